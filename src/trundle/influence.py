@@ -1,0 +1,315 @@
+"""Influence lines by Müller-Breslau, exact as piecewise cubics.
+
+A force effect E at a section is read from the end forces of one element next to it:
+E = r·(k_e u_e − q_e(ξ)), where q_e is the consistent load vector of the unit load at ξ.
+With z = K⁻¹ (L_eᵀ k_e r) the line is the Hermite cubic of z in every element, less r in the
+element the effect is read from: the deflected shape of the structure under the unit
+dislocation (kink, slide, lift) that releases the effect. A reaction at a rigid support is the
+shape with that support displaced by one unit. Between nodes the line is exactly cubic, so a
+``scipy.interpolate.PPoly`` with knots at the nodes holds it without approximation.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterable, Sequence
+from dataclasses import dataclass
+from typing import Literal
+
+import numpy as np
+from numpy.typing import ArrayLike, NDArray
+from scipy.interpolate import PPoly
+
+from trundle.model import Beam, ModelError, Spring
+from trundle.stiffness import assembly_for, element_stiffness, hermite_coefficients
+
+EFFECT_KINDS = ("reaction", "support_moment", "moment", "shear", "deflection", "rotation")
+# what each effect measures, for labels and unit lookup
+EFFECT_QUANTITY = {
+    "reaction": "force",
+    "support_moment": "moment",
+    "moment": "moment",
+    "shear": "force",
+    "deflection": "deflection",
+    "rotation": "rotation",
+}
+
+
+@dataclass(frozen=True)
+class Effect:
+    """One response quantity: ``kind`` at a point ``at`` or at support number ``support``.
+
+    ``side`` ("left"/"right") picks the one-sided value of shear (and of rotation at a hinge).
+    """
+
+    kind: str
+    at: float | None = None
+    support: int | None = None
+    side: Literal["left", "right"] | None = None
+
+    def __post_init__(self) -> None:
+        if self.kind not in EFFECT_KINDS:
+            raise ModelError(f"effect: expected one of {', '.join(EFFECT_KINDS)}, "
+                             f"found {self.kind!r}")
+        if self.kind in ("reaction", "support_moment"):
+            if self.support is None:
+                raise ModelError(f"effect {self.kind!r} needs support=<number>")
+        elif self.at is None:
+            raise ModelError(f"effect {self.kind!r} needs at=<x>")
+        if self.side not in (None, "left", "right"):
+            raise ModelError(f"side: expected 'left' or 'right', found {self.side!r}")
+        if self.kind == "shear" and self.side is None:
+            object.__setattr__(self, "side", "right")
+
+    @property
+    def label(self) -> str:
+        if self.kind in ("reaction", "support_moment"):
+            return f"{self.kind} {self.support}"
+        side = f" {self.side}" if self.side and self.kind in ("shear", "rotation") else ""
+        return f"{self.kind}{side} at {self.at:g}"
+
+    @property
+    def quantity(self) -> str:
+        return EFFECT_QUANTITY[self.kind]
+
+
+def _eval_sided(pp: PPoly, x: ArrayLike, side: str) -> NDArray[np.float64]:
+    """Evaluate a PPoly taking the left- or right-hand limit at breakpoints."""
+    x = np.atleast_1d(np.asarray(x, dtype=float))
+    knots = pp.x
+    idx = np.searchsorted(knots, x, side="left" if side == "left" else "right") - 1
+    idx = np.clip(idx, 0, len(knots) - 2)
+    s = x - knots[idx]
+    c = pp.c
+    out = np.zeros((len(x), *c.shape[2:]))
+    for power in range(c.shape[0]):
+        out = out * s.reshape((-1,) + (1,) * (c.ndim - 2)) + c[power, idx]
+    return out
+
+
+class InfluenceLine:
+    """One influence line: effect value for a unit downward load at x.
+
+    Call it with positions; ``side="left"`` takes the left-hand limit at a jump.
+    """
+
+    def __init__(self, ppoly: PPoly, effect: Effect):
+        self.ppoly = ppoly
+        self.effect = effect
+
+    @property
+    def knots(self) -> NDArray[np.float64]:
+        return self.ppoly.x
+
+    @property
+    def coefficients(self) -> NDArray[np.float64]:
+        return self.ppoly.c
+
+    def __call__(self, x: ArrayLike, side: str = "right") -> NDArray[np.float64] | float:
+        values = _eval_sided(self.ppoly, x, side)
+        return float(values[0]) if np.ndim(x) == 0 else values
+
+    def _extreme(self, sign: float) -> tuple[float, float]:
+        candidates = [self.knots]
+        deriv = self.ppoly.derivative()
+        roots = deriv.roots(extrapolate=False)
+        candidates.append(roots[np.isfinite(roots)])
+        x = np.concatenate(candidates)
+        values = np.concatenate([_eval_sided(self.ppoly, x, "left"),
+                                 _eval_sided(self.ppoly, x, "right")])
+        xs = np.concatenate([x, x])
+        i = int(np.argmax(sign * values))
+        return float(values[i]), float(xs[i])
+
+    def max(self) -> tuple[float, float]:
+        """(largest ordinate, x where it occurs); one-sided limits count at jumps."""
+        return self._extreme(1.0)
+
+    def min(self) -> tuple[float, float]:
+        """(smallest ordinate, x where it occurs)."""
+        return self._extreme(-1.0)
+
+    def integrate(self, a: float, b: float) -> float:
+        return float(self.ppoly.integrate(a, b))
+
+    def areas(self) -> tuple[float, float]:
+        """(∫ max(IL, 0), ∫ min(IL, 0)) over the beam, exact root to root."""
+        pos, neg = signed_areas(self.knots, self.coefficients[..., None])
+        return float(pos[0]), float(neg[0])
+
+    def __repr__(self) -> str:
+        return f"InfluenceLine({self.effect.label}, {len(self.knots) - 1} pieces)"
+
+
+class InfluenceSet:
+    """A batch of influence lines sharing one set of knots.
+
+    Fields
+    ------
+    knots : (m + 1,) breakpoints [length]
+    coefficients : (4, m, n_lines) cubic coefficients per piece, highest power first, in the
+        local variable x − knots[i] (the ``scipy.interpolate.PPoly`` layout)
+    effects : the effect of each line
+    """
+
+    def __init__(self, knots: NDArray[np.float64], coefficients: NDArray[np.float64],
+                 effects: Sequence[Effect]):
+        self.knots = np.ascontiguousarray(knots, dtype=float)
+        self.coefficients = np.ascontiguousarray(coefficients, dtype=float)
+        self.effects = tuple(effects)
+        self.ppoly = PPoly.construct_fast(self.coefficients, self.knots, extrapolate=False)
+
+    def __len__(self) -> int:
+        return len(self.effects)
+
+    def __call__(self, x: ArrayLike, side: str = "right") -> NDArray[np.float64]:
+        """Ordinates, shape (len(x), n_lines)."""
+        return _eval_sided(self.ppoly, x, side)
+
+    def line(self, i: int) -> InfluenceLine:
+        return InfluenceLine(
+            PPoly.construct_fast(np.ascontiguousarray(self.coefficients[:, :, i]), self.knots),
+            self.effects[i],
+        )
+
+    def signed_areas(self) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
+        """(∫ max(IL, 0), ∫ min(IL, 0)) for every line, exact between real roots."""
+        return signed_areas(self.knots, self.coefficients)
+
+
+def signed_areas(knots: NDArray[np.float64], coefficients: NDArray[np.float64]
+                 ) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
+    """Positive and negative areas of piecewise cubics, splitting each piece at its roots."""
+    n_lines = coefficients.shape[2]
+    pos = np.zeros(n_lines)
+    neg = np.zeros(n_lines)
+    h = np.diff(knots)
+    for j in range(n_lines):
+        for i in range(len(h)):
+            c = coefficients[:, i, j]
+            cuts = [0.0, h[i]]
+            if np.any(c[:-1] != 0.0):
+                r = np.roots(c)
+                r = r[np.abs(r.imag) <= 1e-12 * max(1.0, h[i])].real
+                cuts.extend(r[(r > 0.0) & (r < h[i])])
+            cuts = np.sort(cuts)
+            anti = np.polyint(c)
+            vals = np.polyval(anti, cuts)
+            parts = np.diff(vals)
+            mids = np.polyval(c, 0.5 * (cuts[:-1] + cuts[1:]))
+            pos[j] += parts[mids > 0].sum()
+            neg[j] += parts[mids < 0].sum()
+    return pos, neg
+
+
+def _as_effects(effects: Iterable[Effect | tuple | str]) -> list[Effect]:
+    out = []
+    for e in effects:
+        if isinstance(e, Effect):
+            out.append(e)
+        elif isinstance(e, dict):
+            out.append(Effect(**e))
+        else:
+            raise ModelError(f"expected an Effect, found {e!r}")
+    return out
+
+
+# recovery rows r on the element's end forces (v1, θ1, v2, θ2) -> effect at one end
+_ROW_AT_LEFT_END = {"moment": (0.0, 1.0, 0.0, 0.0), "shear": (-1.0, 0.0, 0.0, 0.0)}
+_ROW_AT_RIGHT_END = {"moment": (0.0, 0.0, 0.0, -1.0), "shear": (0.0, 0.0, 1.0, 0.0)}
+
+
+def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
+    """Influence lines of many effects from one factorisation; all share the mesh knots."""
+    effects = _as_effects(effects)
+    length = beam.length
+    tol = 1e-9 * length
+    for e in effects:
+        if e.at is not None and not (-tol <= e.at <= length + tol):
+            raise ModelError(f"{e.label}: x lies outside the beam (0 .. {length:g})")
+        if e.support is not None and not (0 <= e.support < len(beam.supports)):
+            raise ModelError(f"{e.label}: the beam has supports 0 .. {len(beam.supports) - 1}")
+    points = [e.at for e in effects if e.at is not None]
+    asm = assembly_for(beam, points)
+    mesh = asm.mesh
+    h = mesh.lengths
+    n_el = len(h)
+    k_el = element_stiffness(mesh.element_EI, h)
+    n_lines = len(effects)
+
+    rhs = np.zeros((asm.free.size, n_lines))
+    free_pos = np.full(mesh.n_dof, -1)
+    free_pos[asm.free] = np.arange(asm.free.size)
+    prescribed: list[tuple[int, int]] = []  # (line, dof) with a unit dislocation imposed
+    recovery: list[tuple[int, int, NDArray[np.float64]]] = []  # (line, element, r)
+    zero_lines: list[int] = []
+
+    def add_dof_load(j: int, dof: int, weight: float) -> None:
+        if free_pos[dof] >= 0:
+            rhs[free_pos[dof], j] += weight
+
+    for j, e in enumerate(effects):
+        if e.kind in ("reaction", "support_moment"):
+            support = beam.supports[e.support]
+            node = mesh.support_nodes[e.support]
+            dof = mesh.v_dof[node] if e.kind == "reaction" else mesh.theta_right_dof[node]
+            if e.kind == "reaction" and support == "free":
+                raise ModelError(f"support {e.support} is free: it has no reaction")
+            if e.kind == "support_moment" and not (
+                support == "fixed" or (isinstance(support, Spring) and support.kr is not None)
+            ):
+                raise ModelError(f"support {e.support} does not restrain rotation: "
+                                 "it has no reaction couple")
+            if isinstance(support, Spring):
+                stiffness = support.k if e.kind == "reaction" else support.kr
+                add_dof_load(j, dof, stiffness)
+            else:
+                prescribed.append((j, dof))
+                col = asm.K[:, [dof]].toarray().ravel()
+                rhs[:, j] = -col[asm.free]
+            continue
+        node = mesh.node_at(e.at)
+        if e.kind in ("deflection", "rotation"):
+            if e.kind == "deflection":
+                dof = mesh.v_dof[node]
+            else:
+                dof = mesh.theta_left_dof[node] if e.side == "left" else mesh.theta_right_dof[node]
+            if mesh.constrained[dof]:
+                zero_lines.append(j)
+            add_dof_load(j, dof, 1.0)
+            continue
+        # moment or shear, read from the element on the chosen side of the node
+        if e.kind == "moment":
+            use_right = node < n_el
+        else:
+            use_right = e.side == "right"
+            if (use_right and node == n_el) or (not use_right and node == 0):
+                zero_lines.append(j)  # nothing beyond the beam's end: V = 0 there
+                continue
+        element = node if use_right else node - 1
+        r = np.array(_ROW_AT_LEFT_END[e.kind] if use_right else _ROW_AT_RIGHT_END[e.kind])
+        g = k_el[element] @ r
+        for local, dof in enumerate(mesh.element_dofs[element]):
+            add_dof_load(j, dof, g[local])
+        recovery.append((j, element, r))
+
+    u = asm.expand(asm.solve(rhs)) if asm.free.size else np.zeros((mesh.n_dof, n_lines))
+    for j, dof in prescribed:
+        u[dof, j] = 1.0
+    values = u[mesh.element_dofs]  # (n_el, 4, n_lines)
+    for j, element, r in recovery:
+        values[element, :, j] -= r
+    for j in zero_lines:
+        values[:, :, j] = 0.0
+    coefficients = hermite_coefficients(values, h)
+    return InfluenceSet(mesh.x, coefficients, effects)
+
+
+def influence_batch(beam: Beam, kind: str, at: ArrayLike | None = None,
+                    supports: ArrayLike | None = None, side: str | None = None) -> InfluenceSet:
+    """Lines of one effect kind at many sections (``at=``) or supports (``supports=``)."""
+    if kind in ("reaction", "support_moment"):
+        chosen = range(len(beam.supports)) if supports is None else np.atleast_1d(supports)
+        effects = [Effect(kind, support=int(k)) for k in chosen]
+    else:
+        effects = [Effect(kind, at=float(x), side=side) for x in np.atleast_1d(at)]
+    return influence_set(beam, effects)

@@ -1,0 +1,351 @@
+"""The beam model: spans, supports, flexural stiffness, internal hinges.
+
+Conventions (fixed; the tests rely on them): x runs from 0 at the left end; supports are
+numbered 0, 1, 2 … from the left, one at each span end.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from functools import cached_property
+from typing import TYPE_CHECKING, Any, Literal
+
+import numpy as np
+from numpy.typing import ArrayLike, NDArray
+
+if TYPE_CHECKING:
+    from trundle.influence import InfluenceLine, InfluenceSet
+    from trundle.statics import StaticResult
+
+
+class ModelError(ValueError):
+    """A beam model that cannot be analysed; the message says where and why, on one line."""
+
+
+@dataclass(frozen=True)
+class Spring:
+    """An elastic support.
+
+    Parameters
+    ----------
+    k : float [force/length]
+        Vertical stiffness.
+    kr : float or None [moment/radian]
+        Rotational stiffness; ``None`` leaves rotation free.
+    """
+
+    k: float
+    kr: float | None = None
+
+    def __post_init__(self) -> None:
+        if not np.isfinite(self.k) or self.k <= 0:
+            raise ModelError(f"spring stiffness k must be a positive number, found {self.k!r}")
+        if self.kr is not None and (not np.isfinite(self.kr) or self.kr <= 0):
+            raise ModelError(
+                f"rotational spring stiffness kr must be a positive number or None, found {self.kr!r}"
+            )
+
+
+SupportKind = Literal["pin", "fixed", "free"]
+SUPPORT_KINDS = ("pin", "fixed", "free")
+
+
+@dataclass(frozen=True)
+class StiffnessSegment:
+    """EI over ``x0 ≤ x ≤ x1``: constant, linear, or parabolic between ``EI0`` and ``EI1``.
+
+    A parabolic segment has its vertex (zero slope) at the end with the smaller EI, the usual
+    shape of a parabolic haunch that deepens towards a support.
+    """
+
+    x0: float
+    x1: float
+    EI0: float
+    EI1: float
+    shape: Literal["constant", "linear", "parabolic"] = "constant"
+
+    def at(self, x: NDArray[np.float64]) -> NDArray[np.float64]:
+        t = (np.asarray(x, dtype=float) - self.x0) / (self.x1 - self.x0)
+        if self.shape == "constant":
+            return np.full_like(t, self.EI0)
+        if self.shape == "linear":
+            return self.EI0 + (self.EI1 - self.EI0) * t
+        if self.EI0 <= self.EI1:  # vertex at x0
+            return self.EI0 + (self.EI1 - self.EI0) * t**2
+        return self.EI1 + (self.EI0 - self.EI1) * (1.0 - t) ** 2
+
+    @property
+    def varies(self) -> bool:
+        return self.shape != "constant" and self.EI0 != self.EI1
+
+
+def _as_segments(EI: Any, length: float) -> tuple[StiffnessSegment, ...]:
+    if np.ndim(EI) == 0 and not isinstance(EI, list | tuple):
+        value = float(EI)
+        if not np.isfinite(value) or value <= 0:
+            raise ModelError(f"EI must be a positive number, found {EI!r}")
+        return (StiffnessSegment(0.0, length, value, value),)
+    segments = []
+    for i, entry in enumerate(EI):
+        if isinstance(entry, StiffnessSegment):
+            seg = entry
+        else:
+            entry = tuple(entry)
+            if len(entry) == 3:
+                seg = StiffnessSegment(float(entry[0]), float(entry[1]), float(entry[2]),
+                                       float(entry[2]))
+            elif len(entry) in (4, 5):
+                shape = entry[4] if len(entry) == 5 else "linear"
+                if shape not in ("constant", "linear", "parabolic"):
+                    raise ModelError(
+                        f"EI segment {i}: shape must be 'linear' or 'parabolic', found {shape!r}"
+                    )
+                seg = StiffnessSegment(float(entry[0]), float(entry[1]), float(entry[2]),
+                                       float(entry[3]), shape)
+            else:
+                raise ModelError(
+                    f"EI segment {i}: expected (x0, x1, EI) or (x0, x1, EI0, EI1[, shape]), "
+                    f"found {entry!r}"
+                )
+        if not (seg.x1 > seg.x0):
+            raise ModelError(f"EI segment {i}: x1 must exceed x0, found {seg.x0} .. {seg.x1}")
+        if min(seg.EI0, seg.EI1) <= 0 or not np.isfinite([seg.EI0, seg.EI1]).all():
+            raise ModelError(f"EI segment {i}: EI must be positive, found {seg.EI0}, {seg.EI1}")
+        segments.append(seg)
+    if not segments:
+        raise ModelError("EI: at least one stiffness segment is needed")
+    segments.sort(key=lambda s: s.x0)
+    tol = 1e-9 * length
+    cursor = 0.0
+    for seg in segments:
+        if abs(seg.x0 - cursor) > tol:
+            what = "a gap" if seg.x0 > cursor else "an overlap"
+            raise ModelError(f"EI segments leave {what} at x = {cursor:g}; they must cover "
+                             f"0 .. {length:g} end to end")
+        cursor = seg.x1
+    if abs(cursor - length) > tol:
+        raise ModelError(f"EI segments end at x = {cursor:g}, the beam at {length:g}")
+    return tuple(segments)
+
+
+@dataclass(frozen=True, eq=False)
+class Beam:
+    """A straight beam of one or more spans on supports, with optional internal hinges.
+
+    Parameters
+    ----------
+    spans : sequence of float [length]
+        Span lengths, left to right.
+    EI : float or sequence [force·length²]
+        Flexural stiffness: a number, or segments ``(x0, x1, EI)`` (stepped),
+        ``(x0, x1, EI0, EI1)`` (linear) or ``(x0, x1, EI0, EI1, "parabolic")`` (haunch)
+        that cover the beam end to end.
+    supports : sequence of ``"pin" | "fixed" | "free" | Spring``
+        One per span end (``len(spans) + 1``). Default: all pins.
+    hinges : sequence of float [length]
+        Positions of internal moment releases; a hinge may stand over a support.
+    haunch_divisions : int
+        Elements used for each varying-EI segment (piecewise-constant approximation).
+    """
+
+    spans: tuple[float, ...]
+    EI: Any = 1.0
+    supports: tuple[SupportKind | Spring, ...] | None = None
+    hinges: tuple[float, ...] = ()
+    haunch_divisions: int = 24
+    stiffness_segments: tuple[StiffnessSegment, ...] = field(init=False, repr=False)
+
+    def __post_init__(self) -> None:
+        spans = tuple(float(s) for s in np.atleast_1d(np.asarray(self.spans, dtype=float)))
+        if not spans:
+            raise ModelError("spans: at least one span is needed")
+        for i, s in enumerate(spans):
+            if not np.isfinite(s) or s <= 0:
+                raise ModelError(f"spans[{i}]: a span must be a positive length, found {s!r}")
+        object.__setattr__(self, "spans", spans)
+        supports = self.supports
+        if supports is None:
+            supports = ("pin",) * (len(spans) + 1)
+        supports = tuple(supports)
+        if len(supports) != len(spans) + 1:
+            raise ModelError(
+                f"supports: expected {len(spans) + 1} (one per span end), found {len(supports)}"
+            )
+        for i, s in enumerate(supports):
+            if not (isinstance(s, Spring) or s in SUPPORT_KINDS):
+                raise ModelError(
+                    f"supports[{i}]: expected 'pin', 'fixed', 'free' or a Spring, found {s!r}"
+                )
+        object.__setattr__(self, "supports", supports)
+        length = float(sum(spans))
+        hinges = tuple(sorted(float(h) for h in self.hinges))
+        tol = 1e-9 * length
+        for h in hinges:
+            if not (tol < h < length - tol):
+                raise ModelError(f"hinges: a hinge must lie inside the beam (0 < x < {length:g}), "
+                                 f"found {h:g}")
+        if any(b - a <= tol for a, b in zip(hinges, hinges[1:], strict=False)):
+            raise ModelError("hinges: two hinges at the same position")
+        object.__setattr__(self, "hinges", hinges)
+        if int(self.haunch_divisions) < 1:
+            raise ModelError("haunch_divisions must be at least 1")
+        object.__setattr__(self, "stiffness_segments", _as_segments(self.EI, length))
+        for i, s in enumerate(supports):
+            xs = self.support_positions[i]
+            at_hinge = any(abs(h - xs) <= tol for h in hinges)
+            restrains_rotation = s == "fixed" or (isinstance(s, Spring) and s.kr is not None)
+            if at_hinge and restrains_rotation:
+                raise ModelError(
+                    f"supports[{i}] at x = {xs:g} restrains rotation but stands at a hinge; "
+                    "say which side it holds by moving the hinge off the support"
+                )
+        self._check_stability()
+
+    # --- geometry -------------------------------------------------------------------------
+
+    @property
+    def length(self) -> float:
+        """Total length [length]."""
+        return float(sum(self.spans))
+
+    @cached_property
+    def support_positions(self) -> NDArray[np.float64]:
+        """x of each support (span ends) [length]."""
+        return np.concatenate([[0.0], np.cumsum(self.spans)])
+
+    @property
+    def n_spans(self) -> int:
+        return len(self.spans)
+
+    def span_of(self, x: float) -> int:
+        """Index of the span containing x (a support belongs to the span on its left)."""
+        ends = self.support_positions
+        i = int(np.searchsorted(ends, x, side="left")) - 1
+        return min(max(i, 0), self.n_spans - 1)
+
+    def tenth_points(self) -> NDArray[np.float64]:
+        """Tenth points of every span, each support included once [length]."""
+        ends = self.support_positions
+        pts = [ends[0]]
+        for a, b in zip(ends[:-1], ends[1:], strict=True):
+            pts.extend(a + (b - a) * np.arange(1, 11) / 10.0)
+        return np.asarray(pts)
+
+    def support_label(self, i: int) -> str:
+        s = self.supports[i]
+        return f"spring k={s.k:g}" if isinstance(s, Spring) else str(s)
+
+    # --- statics of the rigid-body chain ------------------------------------------------
+
+    def _restraint_count(self) -> int:
+        count = 0
+        for s in self.supports:
+            if s == "pin":
+                count += 1
+            elif s == "fixed":
+                count += 2
+            elif isinstance(s, Spring):
+                count += 1 + (s.kr is not None)
+        return count
+
+    @property
+    def degree_of_indeterminacy(self) -> int:
+        """Redundants beyond statics: restraints + hinge shears − 2 × rigid pieces."""
+        return self._restraint_count() - len(self.hinges) - 2
+
+    def _rigid_pieces(self) -> list[tuple[float, float]]:
+        cuts = [0.0, *self.hinges, self.length]
+        return list(zip(cuts[:-1], cuts[1:], strict=True))
+
+    def _check_stability(self) -> None:
+        """Refuse a mechanism: the chain of rigid pieces between hinges must be held."""
+        pieces = self._rigid_pieces()
+        n = len(pieces)
+        rows = []
+        for i, s in enumerate(self.supports):
+            if s == "free":
+                continue
+            xs = self.support_positions[i]
+            p = min(int(np.searchsorted([b for _, b in pieces], xs - 1e-12 * self.length)), n - 1)
+            row = np.zeros(2 * n)
+            row[2 * p], row[2 * p + 1] = 1.0, xs - pieces[p][0]
+            rows.append(row)
+            if s == "fixed" or (isinstance(s, Spring) and s.kr is not None):
+                row = np.zeros(2 * n)
+                row[2 * p + 1] = 1.0
+                rows.append(row)
+        for j, xh in enumerate(self.hinges):
+            row = np.zeros(2 * n)
+            row[2 * j], row[2 * j + 1] = 1.0, xh - pieces[j][0]
+            row[2 * (j + 1)] = -1.0
+            rows.append(row)
+        scale = np.ones(2 * n)
+        scale[1::2] = self.length  # rotations measured as end lifts keep the rank check fair
+        matrix = np.array(rows).reshape(-1, 2 * n) * scale if rows else np.zeros((0, 2 * n))
+        if matrix.shape[0]:
+            _, sv, vt = np.linalg.svd(matrix)
+            rank = int(np.sum(sv > 1e-10 * sv.max()))
+        else:
+            rank, vt = 0, np.eye(2 * n)
+        if rank == 2 * n:
+            return
+        motion = vt[-1] * scale  # one free motion: (lift, rotation) of each rigid piece
+        moving = []
+        for p, (a, b) in enumerate(pieces):
+            lift, rot = motion[2 * p], motion[2 * p + 1]
+            if max(abs(lift), abs(rot) * (b - a)) > 1e-9 * max(1.0, np.abs(motion).max()):
+                moving.append((a, b))
+        a, b = moving[0][0], moving[-1][1]
+        held = [i for i, s in enumerate(self.supports) if s != "free"
+                and a - 1e-9 <= self.support_positions[i] <= b + 1e-9]
+        inner = [h for h in self.hinges if a < h < b]
+        if not held and a == 0.0 and b == self.length:
+            raise ModelError("unstable model: the beam has no vertical support")
+        raise ModelError(
+            f"unstable model (a mechanism): the beam between x = {a:g} and x = {b:g} can move "
+            f"without bending; that stretch has {len(held)} support(s) and {len(inner)} internal "
+            "hinge(s) - add a support or remove a hinge there"
+        )
+
+    # --- analysis (thin layer over the functions in influence / statics) ----------------
+
+    def influence(
+        self,
+        effect: str,
+        at: float | None = None,
+        support: int | None = None,
+        side: Literal["left", "right"] | None = None,
+    ) -> InfluenceLine:
+        """Influence line of one effect for a unit downward load moving along the beam.
+
+        ``effect`` is ``"reaction"`` or ``"support_moment"`` (with ``support=``), or
+        ``"moment"``, ``"shear"`` (``side=``), ``"deflection"``, ``"rotation"`` (with ``at=``).
+        """
+        from trundle.influence import Effect, influence_set
+
+        return influence_set(self, [Effect(effect, at=at, support=support, side=side)]).line(0)
+
+    def influence_set(self, effects: Any) -> InfluenceSet:
+        """Many influence lines from one factorisation; all share the same knots."""
+        from trundle.influence import influence_set
+
+        return influence_set(self, effects)
+
+    def static(self, loads: Any) -> StaticResult:
+        """Reactions and exact diagrams for fixed loads (see :mod:`trundle.statics`)."""
+        from trundle.statics import solve_static
+
+        return solve_static(self, loads)
+
+    def describe(self) -> str:
+        parts = [f"{self.n_spans} span(s) = {', '.join(f'{s:g}' for s in self.spans)}"]
+        parts.append("supports " + ", ".join(self.support_label(i)
+                                             for i in range(len(self.supports))))
+        if self.hinges:
+            parts.append("hinges at " + ", ".join(f"{h:g}" for h in self.hinges))
+        parts.append(f"degree of indeterminacy {self.degree_of_indeterminacy}")
+        return "; ".join(parts)
+
+
+def as_points(values: ArrayLike) -> NDArray[np.float64]:
+    return np.atleast_1d(np.asarray(values, dtype=float))
