@@ -1,0 +1,195 @@
+"""Run the compiled scan over a batch of influence lines for one arrangement of loads.
+
+A *term group* describes one rigid arrangement of loads in group coordinates u (u = 0 at the
+reference axle, u growing backwards, so a load at u stands at x = ξ − u). The engine turns it
+into the break list and the per-piece lookups the kernel needs, calls the kernel, and offers an
+exact evaluation of the group's response at a given ξ for concurrent effects.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from functools import cached_property
+
+import numpy as np
+from numpy.typing import NDArray
+from scipy.interpolate import PPoly
+
+from trundle.influence import InfluenceSet, _eval_sided
+from trundle.scan.kernels import (
+    KIND_POINT,
+    KIND_RUNNING_INTEGRAL,
+    OFF_LEFT,
+    OFF_RIGHT,
+    scan_lines,
+)
+
+
+@dataclass(frozen=True, eq=False)
+class LineBatch:
+    """Influence lines prepared for scanning: cubics, their running integrals, shared knots.
+
+    Fields
+    ------
+    knots : (m + 1,) shared breakpoints [length]
+    coef : (4, m, n) cubic coefficients, highest power first
+    running : (5, m, n) quartic coefficients of F(x) = ∫₀ˣ IL
+    running_end : (n,) F at the right end of the beam
+    """
+
+    knots: NDArray[np.float64]
+    coef: NDArray[np.float64]
+    running: NDArray[np.float64]
+    running_end: NDArray[np.float64]
+
+    @classmethod
+    def from_set(cls, lines: InfluenceSet) -> LineBatch:
+        knots = lines.knots
+        c = lines.coefficients
+        h = np.diff(knots)
+        running = np.zeros((5, *c.shape[1:]))
+        running[0] = c[0] / 4.0
+        running[1] = c[1] / 3.0
+        running[2] = c[2] / 2.0
+        running[3] = c[3]
+        piece_integrals = (((running[0] * h[:, None] + running[1]) * h[:, None] + running[2])
+                           * h[:, None] + running[3]) * h[:, None]
+        cumulative = np.cumsum(piece_integrals, axis=0)
+        running[4, 1:] = cumulative[:-1]
+        return cls(knots, np.ascontiguousarray(c), np.ascontiguousarray(running),
+                   np.ascontiguousarray(cumulative[-1]))
+
+    @property
+    def n_lines(self) -> int:
+        return self.coef.shape[2]
+
+    @property
+    def length(self) -> float:
+        return float(self.knots[-1])
+
+    def running_at(self, x: NDArray[np.float64]) -> NDArray[np.float64]:
+        """F(x) for every line, (len(x), n); F = 0 left of the beam and F(L) right of it."""
+        x = np.asarray(x, dtype=float)
+        idx = np.clip(np.searchsorted(self.knots, x, side="right") - 1, 0, len(self.knots) - 2)
+        s = np.clip(x, 0.0, self.length) - self.knots[idx]
+        out = np.zeros((len(x), self.n_lines))
+        for power in range(5):
+            out = out * s[:, None] + self.running[power, idx]
+        out[x <= 0.0] = 0.0
+        out[x >= self.length] = self.running_end
+        return out
+
+    def ordinates(self, x: NDArray[np.float64], side: str) -> NDArray[np.float64]:
+        """IL(x) for every line, (len(x), n), as the one-sided limit from ``side``.
+
+        A load approaching an end of the beam from outside reads nothing: the left-hand limit
+        is zero at x ≤ 0 and the right-hand limit zero at x ≥ L.
+        """
+        x = np.asarray(x, dtype=float)
+        out = _eval_sided(self._ppoly, x, side)
+        if side == "left":
+            out[(x <= 0.0) | (x > self.length)] = 0.0
+        else:
+            out[(x < 0.0) | (x >= self.length)] = 0.0
+        return out
+
+    @cached_property
+    def _ppoly(self) -> PPoly:
+        return PPoly.construct_fast(self.coef, self.knots)
+
+
+@dataclass(frozen=True)
+class TermGroup:
+    """A rigid arrangement of loads in group coordinates (u grows backwards).
+
+    Fields
+    ------
+    point_u, point_P : positions [length] and values [force] of concentrated loads
+    uniform : tuple of (u_start, u_end, w): uniform loads [force/length] over
+        u_start ≤ u ≤ u_end; either end may be ±inf (unlimited)
+    """
+
+    point_u: tuple[float, ...]
+    point_P: tuple[float, ...]
+    uniform: tuple[tuple[float, float, float], ...] = ()
+
+    def mirrored(self) -> TermGroup:
+        """The same group running the other way."""
+        return TermGroup(tuple(-u for u in self.point_u), self.point_P,
+                         tuple((-b, -a, w) for a, b, w in self.uniform))
+
+    def terms(self) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArray[np.int64], float]:
+        """(weights, offsets, kinds, weight of F(L) that never moves)."""
+        weights = list(self.point_P)
+        offsets = list(self.point_u)
+        kinds = [KIND_POINT] * len(weights)
+        constant = 0.0
+        for a, b, w in self.uniform:
+            # the load covers x from ξ − b to ξ − a: w·(F(ξ − a) − F(ξ − b))
+            if np.isneginf(a):
+                constant += w
+            else:
+                weights.append(w)
+                offsets.append(a)
+                kinds.append(KIND_RUNNING_INTEGRAL)
+            if not np.isposinf(b):
+                weights.append(-w)
+                offsets.append(b)
+                kinds.append(KIND_RUNNING_INTEGRAL)
+        return (np.asarray(weights, dtype=float), np.asarray(offsets, dtype=float),
+                np.asarray(kinds, dtype=np.int64), constant)
+
+    @property
+    def has_uniform(self) -> bool:
+        return bool(self.uniform)
+
+
+def _pieces(knots: NDArray[np.float64], offsets: NDArray[np.float64]
+            ) -> tuple[NDArray[np.float64], NDArray[np.int64], NDArray[np.float64]]:
+    length = knots[-1]
+    lo = offsets.min()
+    hi = length + offsets.max()
+    breaks = np.unique(np.concatenate([(knots[None, :] + offsets[:, None]).ravel(), [lo, hi]]))
+    breaks = breaks[(breaks >= lo) & (breaks <= hi)]
+    mids = 0.5 * (breaks[:-1] + breaks[1:])
+    x_mid = mids[:, None] - offsets[None, :]
+    piece = np.searchsorted(knots, x_mid, side="right") - 1
+    piece = np.clip(piece, 0, len(knots) - 2)
+    s0 = breaks[:-1, None] - offsets[None, :] - knots[piece]
+    piece = np.where(x_mid < 0.0, OFF_LEFT, np.where(x_mid > length, OFF_RIGHT, piece))
+    return breaks, np.ascontiguousarray(piece.astype(np.int64)), np.ascontiguousarray(s0)
+
+
+def scan_group(batch: LineBatch, group: TermGroup) -> NDArray[np.float64]:
+    """(n_lines, 6): max, ξ at max, side at max, min, ξ at min, side at min.
+
+    ξ is the position of the group's u = 0 point. Side +1 means the extreme is the limit as ξ
+    approaches from above (the loads stand just right of a jump), −1 from below, 0 exact.
+    When the empty beam governs, the value is 0 and ξ is NaN.
+    """
+    weights, offsets, kinds, constant = group.terms()
+    if weights.size == 0:
+        out = np.zeros((batch.n_lines, 6))
+        out[:, [1, 4]] = np.nan
+        out[:, [0, 3]] = constant * batch.running_end[:, None] if constant else 0.0
+        return out
+    breaks, piece, s0 = _pieces(batch.knots, offsets)
+    degree = 4 if (kinds == KIND_RUNNING_INTEGRAL).any() else 3
+    constant_per_line = constant * batch.running_end
+    return scan_lines(breaks, batch.coef, batch.running, batch.running_end, weights,
+                      kinds, piece, s0, np.ascontiguousarray(constant_per_line), degree)
+
+
+def group_response(batch: LineBatch, group: TermGroup, xi: float, side: float = 0.0
+                   ) -> NDArray[np.float64]:
+    """The group's effect on every line with its reference point at ξ (one-sided if asked)."""
+    weights, offsets, kinds, constant = group.terms()
+    x = xi - offsets
+    limit = "left" if side < 0 else "right"
+    total = constant * batch.running_end.copy()
+    point = kinds == KIND_POINT
+    if point.any():
+        total += weights[point] @ batch.ordinates(x[point], limit)
+    if (~point).any():
+        total += weights[~point] @ batch.running_at(x[~point])
+    return total
