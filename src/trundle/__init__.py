@@ -2,7 +2,14 @@
 
 from trundle.influence import Effect, InfluenceLine, InfluenceSet, influence_batch, influence_set
 from trundle.model import Beam, ModelError, Spring
+from trundle.modelfile import ModelFileError, load_model
+from trundle.statics import DistributedLoad, PointLoad, PointMoment
+from trundle.loads import AttachedUniform, LoadCase, Train, UniformLoad, Vehicle
+from trundle.envelope import Envelope, Governing, envelope
 
-__all__ = ["Beam", "Effect", "InfluenceLine", "InfluenceSet", "ModelError", "Spring",
-           "influence_batch", "influence_set"]
+__all__ = ["AttachedUniform", "Beam", "DistributedLoad", "Effect", "Envelope", "Governing",
+           "InfluenceLine", "InfluenceSet", "LoadCase", "ModelError", "ModelFileError",
+           "PointLoad", "PointMoment",
+           "Spring", "Train", "UniformLoad", "Vehicle", "envelope", "influence_batch",
+           "influence_set", "load_model"]
 __version__ = "0.1.0"

@@ -176,29 +176,47 @@ class InfluenceSet:
         return signed_areas(self.knots, self.coefficients)
 
 
+def _sign_pieces(knots: NDArray[np.float64], c: NDArray[np.float64]
+                 ) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArray[np.float64]]:
+    """Cut one line (coefficients (4, m)) at its knots and real roots.
+
+    Returns the cut points, the integral of the line between consecutive cuts, and the line's
+    value in the middle of each stretch (whose sign holds over the whole stretch).
+    """
+    pp = PPoly.construct_fast(np.ascontiguousarray(c), knots, extrapolate=False)
+    roots = pp.roots(discontinuity=False, extrapolate=False)
+    cuts = np.unique(np.concatenate([knots, roots[np.isfinite(roots)]]))
+    running = pp.antiderivative()
+    parts = np.diff(running(cuts))
+    mids = pp(0.5 * (cuts[:-1] + cuts[1:]))
+    return cuts, parts, mids
+
+
 def signed_areas(knots: NDArray[np.float64], coefficients: NDArray[np.float64]
                  ) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
-    """Positive and negative areas of piecewise cubics, splitting each piece at its roots."""
+    """Positive and negative areas of piecewise cubics, split exactly at their real roots."""
     n_lines = coefficients.shape[2]
     pos = np.zeros(n_lines)
     neg = np.zeros(n_lines)
-    h = np.diff(knots)
     for j in range(n_lines):
-        for i in range(len(h)):
-            c = coefficients[:, i, j]
-            cuts = [0.0, h[i]]
-            if np.any(c[:-1] != 0.0):
-                r = np.roots(c)
-                r = r[np.abs(r.imag) <= 1e-12 * max(1.0, h[i])].real
-                cuts.extend(r[(r > 0.0) & (r < h[i])])
-            cuts = np.sort(cuts)
-            anti = np.polyint(c)
-            vals = np.polyval(anti, cuts)
-            parts = np.diff(vals)
-            mids = np.polyval(c, 0.5 * (cuts[:-1] + cuts[1:]))
-            pos[j] += parts[mids > 0].sum()
-            neg[j] += parts[mids < 0].sum()
+        _, parts, mids = _sign_pieces(knots, coefficients[:, :, j])
+        pos[j] = parts[mids > 0].sum()
+        neg[j] = parts[mids < 0].sum()
     return pos, neg
+
+
+def piece_sign_intervals(knots: NDArray[np.float64], coefficients: NDArray[np.float64],
+                         sign: int) -> list[tuple[float, float]]:
+    """Merged intervals of x where one line (coefficients (4, m)) has the given sign."""
+    cuts, _, mids = _sign_pieces(knots, coefficients)
+    out: list[tuple[float, float]] = []
+    for a, b, m in zip(cuts[:-1], cuts[1:], mids, strict=True):
+        if sign * m > 0:
+            if out and out[-1][1] == a:
+                out[-1] = (out[-1][0], float(b))
+            else:
+                out.append((float(a), float(b)))
+    return out
 
 
 def _as_effects(effects: Iterable[Effect | tuple | str]) -> list[Effect]:

@@ -35,10 +35,9 @@ def _horner(poly, degree, t):
 
 
 @njit(**JIT_OPTIONS)
-def _shift_add(poly, coef_high_first, n_coef, s0, weight):
+def _shift_add(poly, coef_high_first, n_coef, s0, weight, work):
     """poly (low first) += weight · p(t + s0), p given highest power first."""
-    # Taylor shift by repeated synthetic division: exact for these low degrees
-    work = np.empty(5)
+    # Taylor shift by repeated synthetic division; ``work`` is scratch of length 5
     for i in range(n_coef):
         work[i] = coef_high_first[n_coef - 1 - i]  # low first
     for i in range(n_coef):
@@ -86,10 +85,11 @@ def _bisect_root(d, lo, hi):
 
 
 @njit(**JIT_OPTIONS)
-def _critical_points(poly, degree, width, out):
-    """Points in (0, width) where the derivative of poly vanishes; returns how many."""
+def _critical_points(poly, degree, width, out, scratch):
+    """Points in (0, width) where the derivative of poly vanishes; returns how many.
+    ``scratch`` holds 10 floats, so the hot loop allocates nothing."""
     n = 0
-    tmp = np.empty(2)
+    tmp = scratch[0:2]
     if degree <= 3:
         m = _quadratic_roots(3.0 * poly[3], 2.0 * poly[2], poly[1], tmp)
         for i in range(m):
@@ -97,7 +97,7 @@ def _critical_points(poly, degree, width, out):
                 out[n] = tmp[i]
                 n += 1
         return n
-    d = np.empty(4)
+    d = scratch[2:6]
     d[0], d[1], d[2], d[3] = poly[1], 2.0 * poly[2], 3.0 * poly[3], 4.0 * poly[4]
     if d[3] == 0.0:
         m = _quadratic_roots(d[2], d[1], d[0], tmp)
@@ -107,7 +107,7 @@ def _critical_points(poly, degree, width, out):
                 n += 1
         return n
     # split (0, width) where the derivative turns, then bracket each sign change
-    cuts = np.empty(4)
+    cuts = scratch[6:10]
     cuts[0] = 0.0
     n_cuts = 1
     m = _quadratic_roots(3.0 * d[3], 2.0 * d[2], d[1], tmp)
@@ -143,6 +143,8 @@ def _scan_one_line(j, breaks, coef, running, running_end, term_weight, term_kind
     best_min, pos_min, side_min = 0.0, np.nan, 0.0
     poly = np.empty(5)
     crit = np.empty(3)
+    work = np.empty(5)
+    scratch = np.empty(10)
     for p in range(n_pieces):
         width = breaks[p + 1] - breaks[p]
         if width <= 0.0:
@@ -158,12 +160,12 @@ def _scan_one_line(j, breaks, coef, running, running_end, term_weight, term_kind
             if term_kind[t] == KIND_POINT:
                 if e == OFF_RIGHT:
                     continue
-                _shift_add(poly, coef[:, e, j], 4, term_s0[p, t], w)
+                _shift_add(poly, coef[:, e, j], 4, term_s0[p, t], w, work)
             else:
                 if e == OFF_RIGHT:
                     poly[0] += w * running_end[j]
                     continue
-                _shift_add(poly, running[:, e, j], 5, term_s0[p, t], w)
+                _shift_add(poly, running[:, e, j], 5, term_s0[p, t], w, work)
         # ends of the piece: one-sided limits
         v0 = poly[0]
         v1 = _horner(poly, degree, width)
@@ -175,7 +177,7 @@ def _scan_one_line(j, breaks, coef, running, running_end, term_weight, term_kind
             best_max, pos_max, side_max = v1, breaks[p + 1], -1.0
         if v1 < best_min:
             best_min, pos_min, side_min = v1, breaks[p + 1], -1.0
-        n_crit = _critical_points(poly, degree, width, crit)
+        n_crit = _critical_points(poly, degree, width, crit, scratch)
         for k in range(n_crit):
             v = _horner(poly, degree, crit[k])
             if v > best_max:
@@ -191,7 +193,7 @@ def _scan_one_line(j, breaks, coef, running, running_end, term_weight, term_kind
 
 
 @njit(**PARALLEL_OPTIONS)
-def scan_lines(breaks, coef, running, running_end, term_weight, term_kind, term_piece,
+def scan_lines_parallel(breaks, coef, running, running_end, term_weight, term_kind, term_piece,
                term_s0, constant, degree):
     """Exact extremes of a load group's response for every line.
 
@@ -217,3 +219,27 @@ def scan_lines(breaks, coef, running, running_end, term_weight, term_kind, term_
         _scan_one_line(j, breaks, coef, running, running_end, term_weight, term_kind,
                        term_piece, term_s0, constant, degree, result)
     return result
+
+
+@njit(**JIT_OPTIONS)
+def scan_lines_serial(breaks, coef, running, running_end, term_weight, term_kind, term_piece,
+                      term_s0, constant, degree):
+    """``scan_lines_parallel`` on one thread: cheaper for a handful of lines, where starting
+    the thread pool costs more than the work."""
+    n_lines = coef.shape[2]
+    result = np.empty((n_lines, 6))
+    for j in range(n_lines):
+        _scan_one_line(j, breaks, coef, running, running_end, term_weight, term_kind,
+                       term_piece, term_s0, constant, degree, result)
+    return result
+
+
+PARALLEL_FROM_LINES = 64  # below this many lines the serial kernel is faster
+
+
+def scan_lines(breaks, coef, running, running_end, term_weight, term_kind, term_piece,
+               term_s0, constant, degree):
+    """Exact extremes for every line; see ``scan_lines_parallel`` for the arguments."""
+    kernel = scan_lines_parallel if coef.shape[2] >= PARALLEL_FROM_LINES else scan_lines_serial
+    return kernel(breaks, coef, running, running_end, term_weight, term_kind, term_piece,
+                  term_s0, constant, degree)
