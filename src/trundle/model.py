@@ -41,9 +41,8 @@ class Spring:
         if not np.isfinite(self.k) or self.k <= 0:
             raise ModelError(f"spring stiffness k must be a positive number, found {self.k!r}")
         if self.kr is not None and (not np.isfinite(self.kr) or self.kr <= 0):
-            raise ModelError(
-                f"rotational spring stiffness kr must be a positive number or None, found {self.kr!r}"
-            )
+            raise ModelError("rotational spring stiffness kr must be a positive number or None, "
+                             f"found {self.kr!r}")
 
 
 SupportKind = Literal["pin", "fixed", "free"]

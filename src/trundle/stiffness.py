@@ -174,7 +174,8 @@ def assembly_for(beam: Beam, points: NDArray[np.float64] | tuple[float, ...] = (
     return _cached_assembly(beam, key)
 
 
-def hermite_coefficients(values: NDArray[np.float64], h: NDArray[np.float64]) -> NDArray[np.float64]:
+def hermite_coefficients(values: NDArray[np.float64], h: NDArray[np.float64]
+                         ) -> NDArray[np.float64]:
     """PPoly coefficients (4, m, …) of the Hermite cubics with end values (v1, θ1, v2, θ2).
 
     ``values`` has shape (m, 4, …); ``h`` (m,) element lengths. Highest power first.
