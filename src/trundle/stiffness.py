@@ -10,8 +10,8 @@ from dataclasses import dataclass
 from functools import lru_cache
 
 import numpy as np
+import scipy.linalg as sla
 import scipy.sparse as sp
-import scipy.sparse.linalg as spla
 from numpy.typing import NDArray
 
 from trundle.model import Beam, ModelError, Spring
@@ -131,16 +131,20 @@ def build_mesh(beam: Beam, extra_points: tuple[float, ...] = ()) -> Mesh:
 
 @dataclass(frozen=True, eq=False)
 class Assembly:
-    """The assembled stiffness and its factorisation over the free dofs."""
+    """The assembled stiffness and its banded Cholesky factor over the free dofs.
+
+    Dofs are numbered node by node, so K_ff is banded (half-bandwidth ≤ 4, hinges included)
+    and one factorisation serves any number of right-hand sides at banded cost.
+    """
 
     mesh: Mesh
     K: sp.csr_matrix  # full matrix, springs included
     free: NDArray[np.int64]
-    lu: spla.SuperLU
+    factor: NDArray[np.float64]  # upper banded Cholesky factor of K_ff
 
     def solve(self, rhs_free: NDArray[np.float64]) -> NDArray[np.float64]:
         """Solve K_ff u = rhs for one or many right-hand sides (columns)."""
-        return self.lu.solve(np.ascontiguousarray(rhs_free))
+        return sla.cho_solve_banded((self.factor, False), rhs_free, check_finite=False)
 
     def expand(self, u_free: NDArray[np.float64]) -> NDArray[np.float64]:
         full = np.zeros((self.mesh.n_dof, *u_free.shape[1:]))
@@ -148,19 +152,32 @@ class Assembly:
         return full
 
 
+def _upper_band(matrix: sp.csr_matrix) -> NDArray[np.float64]:
+    coo = matrix.tocoo()
+    upper = coo.col >= coo.row
+    rows, cols, vals = coo.row[upper], coo.col[upper], coo.data[upper]
+    bandwidth = int((cols - rows).max()) if vals.size else 0
+    band = np.zeros((bandwidth + 1, matrix.shape[0]))
+    np.add.at(band, (bandwidth + rows - cols, cols), vals)
+    return band
+
+
 def assemble(mesh: Mesh) -> Assembly:
     k = element_stiffness(mesh.element_EI, mesh.lengths)
     rows = np.repeat(mesh.element_dofs, 4, axis=1).ravel()
     cols = np.tile(mesh.element_dofs, (1, 4)).ravel()
     K = sp.coo_matrix((k.ravel(), (rows, cols)), shape=(mesh.n_dof, mesh.n_dof)).tocsr()
-    K = K + sp.diags(mesh.spring)
+    K = (K + sp.diags(mesh.spring)).tocsr()
     free = np.flatnonzero(~mesh.constrained)
-    K_ff = K[free][:, free].tocsc()
-    lu = spla.splu(K_ff)
-    diag = np.abs(lu.U.diagonal())
-    if diag.size and diag.min() <= 1e-13 * diag.max():
+    band = _upper_band(K[free][:, free])
+    try:
+        factor = sla.cholesky_banded(band, lower=False, check_finite=False)
+    except np.linalg.LinAlgError:
+        raise ModelError("unstable model: the stiffness matrix is singular") from None
+    pivots = factor[-1]
+    if pivots.size and pivots.min() ** 2 <= 1e-14 * band[-1].max():
         raise ModelError("unstable model: the stiffness matrix is singular")
-    return Assembly(mesh, K.tocsr(), free, lu)
+    return Assembly(mesh, K, free, factor)
 
 
 @lru_cache(maxsize=32)
@@ -182,6 +199,10 @@ def hermite_coefficients(values: NDArray[np.float64], h: NDArray[np.float64]
     """
     v1, t1, v2, t2 = (values[:, i] for i in range(4))
     hh = h.reshape((-1,) + (1,) * (v1.ndim - 1))
-    a2 = (-3 * v1 - 2 * hh * t1 + 3 * v2 - hh * t2) / hh**2
-    a3 = (2 * v1 + hh * t1 - 2 * v2 + hh * t2) / hh**3
-    return np.stack([a3, a2, t1, v1])
+    out = np.empty((4, *v1.shape))
+    dv = v2 - v1
+    out[1] = (3 * dv / hh - 2 * t1 - t2) / hh
+    out[0] = (t1 + t2 - 2 * dv / hh) / hh**2
+    out[2] = t1
+    out[3] = v1
+    return out
