@@ -1,0 +1,263 @@
+"""Units at the edges: parse quantities from model files and label every output.
+
+The numeric core works in plain floats of one consistent set of units. A model file names
+its :class:`UnitSystem`; every value read from it is converted to that system's base units
+(SI: kN and m, US customary: kip and ft) and every printed or plotted number is labelled.
+
+Conversions run in exact rational arithmetic (a pint registry over ``fractions.Fraction``)
+and are rounded to float once, so "10 ft" is exactly the float nearest 3.048 m.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from fractions import Fraction
+from functools import cache
+from typing import Any
+
+# What each physical quantity is, as a pint expression of the system's force F and length L,
+# the pretty label pattern and the plain-ASCII pattern for CSV/JSON headers.
+_QUANTITY_PATTERNS: dict[str, tuple[str, str, str]] = {
+    "length": ("{L}", "{L}", "{L}"),
+    "position": ("{L}", "{L}", "{L}"),
+    "force": ("{F}", "{F}", "{F}"),
+    "moment": ("{F}*{L}", "{F}·{L}", "{F}*{L}"),
+    "flexural rigidity": ("{F}*{L}**2", "{F}·{L}²", "{F}*{L}^2"),
+    "distributed load": ("{F}/{L}", "{F}/{L}", "{F}/{L}"),
+    "spring stiffness": ("{F}/{L}", "{F}/{L}", "{F}/{L}"),
+    "rotational stiffness": ("{F}*{L}/rad", "{F}·{L}/rad", "{F}*{L}/rad"),
+    "modulus": ("{F}/{L}**2", "{F}/{L}²", "{F}/{L}^2"),
+    "second moment of area": ("{L}**4", "{L}⁴", "{L}^4"),
+}
+
+# Quantities where a bare number is too easy to misread (MPa or GPa? in⁴ or ft⁴?): the file
+# must say the unit.
+UNIT_REQUIRED = frozenset({"modulus", "second moment of area"})
+
+# Examples shown in error messages, per system.
+_EXAMPLES = {
+    "SI": {"length": "7.5 m", "position": "3.2 m", "force": "120 kN", "moment": "250 kN*m",
+           "flexural rigidity": "1.2e5 kN*m^2", "distributed load": "18 kN/m",
+           "spring stiffness": "50 MN/m", "rotational stiffness": "2e5 kN*m/rad",
+           "modulus": "210 GPa", "second moment of area": "55200 cm^4"},
+    "US": {"length": "24 ft", "position": "10.5 ft", "force": "25 kip", "moment": "180 kip*ft",
+           "flexural rigidity": "2.0e6 kip*ft^2", "distributed load": "0.64 kip/ft",
+           "spring stiffness": "300 kip/in", "rotational stiffness": "5e4 kip*ft/rad",
+           "modulus": "29000 ksi", "second moment of area": "9040 in^4"},
+}
+
+
+class UnitError(ValueError):
+    """A value that is not the quantity expected; the message is one line without the key."""
+
+
+@cache
+def registry() -> Any:
+    """The one shared pint UnitRegistry (exact rational magnitudes), created on first use."""
+    import pint
+
+    return pint.UnitRegistry(non_int_type=Fraction)
+
+
+@dataclass(frozen=True)
+class UnitSystem:
+    """The base units of a model file and the units its results are shown in.
+
+    Fields
+    ------
+    name : "SI" or "US"
+    force, length : pint names of the base units every number in the core is expressed in
+    deflection : display unit of deflection (mm or in)
+    rotation : display unit of rotation (mrad)
+    """
+
+    name: str
+    force: str
+    length: str
+    deflection: str
+    rotation: str = "mrad"
+
+    def pint_unit(self, quantity: str) -> str:
+        """The base unit of ``quantity`` as a pint expression."""
+        return _QUANTITY_PATTERNS[quantity][0].format(F=self.force, L=self.length)
+
+    def label(self, quantity: str) -> str:
+        """The base unit of ``quantity`` for people: "kN·m²"."""
+        if quantity == "deflection":
+            return self.deflection
+        if quantity == "rotation":
+            return self.rotation
+        return _QUANTITY_PATTERNS[quantity][1].format(F=self.force, L=self.length)
+
+    def ascii_label(self, quantity: str) -> str:
+        """The base unit of ``quantity`` in plain ASCII for CSV and JSON: "kN*m^2"."""
+        if quantity in ("deflection", "rotation"):
+            return self.label(quantity)
+        return _QUANTITY_PATTERNS[quantity][2].format(F=self.force, L=self.length)
+
+    def example(self, quantity: str) -> str:
+        return _EXAMPLES[self.name][quantity]
+
+    def factor(self, from_unit: str, to_unit: str) -> float:
+        """Exact conversion factor between two pint units, rounded once to float."""
+        ureg = registry()
+        return float(ureg.Quantity(1, from_unit).to(to_unit).magnitude)
+
+    def influence_unit(self, quantity: str) -> tuple[float, str, str]:
+        """(factor, label, ASCII label) of an influence ordinate: effect per unit load.
+
+        The core gives ordinates in base units per unit base force; ``factor`` turns them
+        into display units (deflection in mm or in, rotation in mrad).
+        """
+        per = f"/{self.force}"
+        if quantity == "deflection":
+            factor = self.factor(self.length, self.deflection)
+            return factor, self.deflection + per, self.deflection + per
+        if quantity == "rotation":
+            factor = self.factor("rad", self.rotation)
+            return factor, self.rotation + per, self.rotation + per
+        return 1.0, self.label(quantity) + per, self.ascii_label(quantity) + per
+
+    def convert(self, value: Any, quantity: str) -> float:
+        """``value`` (a number in base units, or a string with a unit) in base units.
+
+        Raises :class:`UnitError` saying what was expected and what was found.
+        """
+        return parse_quantity(value, quantity, self)
+
+
+SI = UnitSystem("SI", force="kN", length="m", deflection="mm")
+US = UnitSystem("US", force="kip", length="ft", deflection="in")
+SYSTEMS = {"SI": SI, "US": US}
+
+
+def _dimensionality(unit_expression: str) -> Any:
+    return registry().Quantity(1, unit_expression).dimensionality
+
+
+@cache
+def _known_dimensions() -> tuple[tuple[Any, str], ...]:
+    # Force per length is both a distributed load and a spring stiffness; one name covers both.
+    named = [
+        ("m", "a length"), ("N", "a force"), ("N*m", "a moment"),
+        ("N*m**2", "a flexural rigidity (force·length²)"),
+        ("N/m", "a force per length (distributed load or spring stiffness)"),
+        ("Pa", "a stress or modulus (force/length²)"), ("m**4", "a second moment of area"),
+        ("m**2", "an area"), ("m**3", "a volume"), ("kg", "a mass (use a force unit)"),
+        ("s", "a time"), ("N/m**3", "a force per volume"), ("dimensionless", "a plain number"),
+    ]
+    return tuple((_dimensionality(unit), name) for unit, name in named)
+
+
+def describe_dimension(dimensionality: Any) -> str:
+    """A reader's name for a pint dimensionality: "a force", "a length", …"""
+    for known, name in _known_dimensions():
+        if dimensionality == known:
+            return name
+    parts = []
+    for dimension, power in sorted(dict(dimensionality).items()):
+        exponent = "" if power == 1 else f"^{Fraction(power)}"
+        parts.append(f"{dimension}{exponent}")
+    return "a quantity of dimension " + "·".join(parts)
+
+
+_ARTICLE = {"length": "a length", "position": "a position (length)", "force": "a force",
+            "moment": "a moment", "flexural rigidity": "a flexural rigidity EI",
+            "distributed load": "a distributed load", "spring stiffness": "a spring stiffness",
+            "rotational stiffness": "a rotational stiffness", "modulus": "an elastic modulus",
+            "second moment of area": "a second moment of area"}
+
+
+def expected_phrase(quantity: str, system: UnitSystem) -> str:
+    if quantity in UNIT_REQUIRED:
+        return f'{_ARTICLE[quantity]} with its unit (e.g. "{system.example(quantity)}")'
+    return (f"{_ARTICLE[quantity]} (a number in {system.label(quantity)} "
+            f'or a string such as "{system.example(quantity)}")')
+
+
+def show_value(value: Any) -> str:
+    """A value as it was written in the file, for error messages."""
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, str):
+        return f'"{value}"'
+    if isinstance(value, float):
+        return repr(value) if math.isfinite(value) else str(value)
+    if isinstance(value, dict):
+        keys = ", ".join(value) or "no keys"
+        return f"a table ({keys})"
+    if isinstance(value, list):
+        inner = ", ".join(show_value(v) for v in value[:6])
+        return f"[{inner}{', …' if len(value) > 6 else ''}]"
+    return str(value)
+
+
+def parse_quantity(value: Any, quantity: str, system: UnitSystem) -> float:
+    """Convert ``value`` to ``system``'s base unit of ``quantity``.
+
+    Parameters
+    ----------
+    value : int, float or str
+        A plain number (already in the base unit) or a string with a unit ("14 ft").
+    quantity : str
+        One of "length", "position", "force", "moment", "flexural rigidity",
+        "distributed load", "spring stiffness", "rotational stiffness", "modulus",
+        "second moment of area".
+    system : UnitSystem
+
+    Returns
+    -------
+    float in the base unit (e.g. kN·m² for a flexural rigidity in SI).
+    """
+    expected = expected_phrase(quantity, system)
+    if isinstance(value, bool) or not isinstance(value, int | float | str):
+        raise UnitError(f"expected {expected}, found {show_value(value)}")
+    if isinstance(value, int | float):
+        if quantity in UNIT_REQUIRED:
+            raise UnitError(f"expected {expected}, found the bare number {show_value(value)}")
+        number = float(value)
+        if not math.isfinite(number):
+            raise UnitError(f"expected {expected}, found {show_value(value)}")
+        return number
+    text = value.strip()
+    try:
+        bare = float(text)
+    except ValueError:
+        bare = None
+    if bare is not None:
+        if quantity in UNIT_REQUIRED:
+            raise UnitError(f"expected {expected}, found {show_value(value)} (no unit)")
+        if not math.isfinite(bare):
+            raise UnitError(f"expected {expected}, found {show_value(value)}")
+        return bare
+    ureg = registry()
+    try:
+        parsed = ureg.Quantity(text)
+    except Exception as error:  # pint's parser raises many kinds (undefined unit, syntax, …)
+        reason = _pint_reason(error)
+        raise UnitError(f"expected {expected}, found {show_value(value)} ({reason})") from None
+    target = system.pint_unit(quantity)
+    wanted = _dimensionality(target)
+    if parsed.dimensionality != wanted:
+        found = describe_dimension(parsed.dimensionality)
+        raise UnitError(f"expected {expected}, found {show_value(value)}, which is {found}")
+    try:
+        number = float(parsed.to(target).magnitude)
+    except (OverflowError, ValueError, ZeroDivisionError):
+        number = math.nan
+    if not math.isfinite(number):
+        raise UnitError(f"expected {expected}, found {show_value(value)}")
+    return number
+
+
+def _pint_reason(error: Exception) -> str:
+    name = type(error).__name__
+    if name == "UndefinedUnitError":
+        units = getattr(error, "unit_names", None) or ()
+        if isinstance(units, str):
+            units = (units,)
+        return "unknown unit " + ", ".join(f"'{u}'" for u in units) if units else "unknown unit"
+    if isinstance(error, ZeroDivisionError):
+        return "division by zero"
+    return "not a number followed by a unit"
