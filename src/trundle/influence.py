@@ -16,9 +16,11 @@ from dataclasses import dataclass
 from typing import Literal
 
 import numpy as np
+from numba import njit
 from numpy.typing import ArrayLike, NDArray
 from scipy.interpolate import PPoly
 
+from trundle._jit import JIT_OPTIONS
 from trundle.model import Beam, ModelError, Spring
 from trundle.stiffness import assembly_for, element_stiffness, hermite_coefficients
 
@@ -236,8 +238,41 @@ _ROW_AT_LEFT_END = {"moment": (0.0, 1.0, 0.0, 0.0), "shear": (-1.0, 0.0, 0.0, 0.
 _ROW_AT_RIGHT_END = {"moment": (0.0, 0.0, 0.0, -1.0), "shear": (0.0, 0.0, 1.0, 0.0)}
 
 
+@njit(**JIT_OPTIONS)
+def _spread_pieces(coarse, piece_element, offset, out):
+    """out[:, i, j] = coarse cubic of piece i's element for line j, re-expanded at knot i."""
+    n_pieces = piece_element.shape[0]
+    n_lines = coarse.shape[2]
+    for i in range(n_pieces):
+        e = piece_element[i]
+        d = offset[i]
+        for j in range(n_lines):
+            c3 = coarse[0, e, j]
+            c2 = coarse[1, e, j]
+            c1 = coarse[2, e, j]
+            c0 = coarse[3, e, j]
+            out[0, i, j] = c3
+            out[1, i, j] = c2 + 3.0 * c3 * d
+            out[2, i, j] = c1 + (2.0 * c2 + 3.0 * c3 * d) * d
+            out[3, i, j] = c0 + (c1 + (c2 + c3 * d) * d) * d
+
+
+def _taylor_shift(c: NDArray[np.float64], d: NDArray[np.float64]) -> NDArray[np.float64]:
+    """Cubics c (4, …; highest power first) re-expanded about a point d further along."""
+    c3, c2, c1, c0 = c
+    return np.stack([c3, c2 + 3 * c3 * d, c1 + (2 * c2 + 3 * c3 * d) * d,
+                     c0 + (c1 + (c2 + c3 * d) * d) * d])
+
+
 def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
-    """Influence lines of many effects from one factorisation; all share the mesh knots."""
+    """Influence lines of many effects from one factorisation; all share the same knots.
+
+    The structure is solved on its own nodes only (supports, hinges, stiffness changes), which
+    keeps the stiffness well conditioned however many sections are asked for. A section inside
+    an element splits it into two sub-elements whose shared node is condensed out exactly: the
+    adjoint load of the section enters the element's end dofs, and the section's own
+    deflection and rotation are recovered from the end values afterwards.
+    """
     effects = _as_effects(effects)
     length = beam.length
     tol = 1e-9 * length
@@ -246,9 +281,9 @@ def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
             raise ModelError(f"{e.label}: x lies outside the beam (0 .. {length:g})")
         if e.support is not None and not (0 <= e.support < len(beam.supports)):
             raise ModelError(f"{e.label}: the beam has supports 0 .. {len(beam.supports) - 1}")
-    points = [e.at for e in effects if e.at is not None]
-    asm = assembly_for(beam, points)
+    asm = assembly_for(beam, ())
     mesh = asm.mesh
+    xc = mesh.x
     h = mesh.lengths
     n_el = len(h)
     k_el = element_stiffness(mesh.element_EI, h)
@@ -260,10 +295,12 @@ def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
     prescribed: list[tuple[int, int]] = []  # (line, dof) with a unit dislocation imposed
     recovery: list[tuple[int, int, NDArray[np.float64]]] = []  # (line, element, r)
     zero_lines: list[int] = []
+    inner: list[tuple[int, int, float, Effect]] = []  # sections inside elements
 
-    def add_dof_load(j: int, dof: int, weight: float) -> None:
-        if free_pos[dof] >= 0:
-            rhs[free_pos[dof], j] += weight
+    def add_element_load(j: int, element: int, g: NDArray[np.float64]) -> None:
+        for local, dof in enumerate(mesh.element_dofs[element]):
+            if free_pos[dof] >= 0:
+                rhs[free_pos[dof], j] += g[local]
 
     for j, e in enumerate(effects):
         if e.kind in ("reaction", "support_moment"):
@@ -279,13 +316,17 @@ def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
                                  "it has no reaction couple")
             if isinstance(support, Spring):
                 stiffness = support.k if e.kind == "reaction" else support.kr
-                add_dof_load(j, dof, stiffness)
+                rhs[free_pos[dof], j] += stiffness
             else:
                 prescribed.append((j, dof))
                 col = asm.K[:, [dof]].toarray().ravel()
                 rhs[:, j] = -col[asm.free]
             continue
-        node = mesh.node_at(e.at)
+        x = min(max(float(e.at), 0.0), length)
+        node = int(np.argmin(np.abs(xc - x)))
+        if abs(xc[node] - x) > tol:
+            inner.append((j, int(np.searchsorted(xc, x, side="right")) - 1, x, e))
+            continue
         if e.kind in ("deflection", "rotation"):
             if e.kind == "deflection":
                 dof = mesh.v_dof[node]
@@ -293,9 +334,10 @@ def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
                 dof = mesh.theta_left_dof[node] if e.side == "left" else mesh.theta_right_dof[node]
             if mesh.constrained[dof]:
                 zero_lines.append(j)
-            add_dof_load(j, dof, 1.0)
+            elif free_pos[dof] >= 0:
+                rhs[free_pos[dof], j] += 1.0
             continue
-        # moment or shear, read from the element on the chosen side of the node
+        # moment or shear at a node, read from the element on the chosen side of the node
         if e.kind == "moment":
             use_right = node < n_el
         else:
@@ -305,10 +347,15 @@ def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
                 continue
         element = node if use_right else node - 1
         r = np.array(_ROW_AT_LEFT_END[e.kind] if use_right else _ROW_AT_RIGHT_END[e.kind])
-        g = k_el[element] @ r
-        for local, dof in enumerate(mesh.element_dofs[element]):
-            add_dof_load(j, dof, g[local])
+        add_element_load(j, element, k_el[element] @ r)
         recovery.append((j, element, r))
+
+    inner_data = _condense_inner_sections(inner, mesh, h)
+    if inner_data is not None:
+        lines_in, elements_in, dofs_in, loads_in = inner_data[:4]
+        for k in range(4):
+            free = free_pos[dofs_in[:, k]] >= 0
+            np.add.at(rhs, (free_pos[dofs_in[free, k]], lines_in[free]), loads_in[free, k])
 
     u = asm.expand(asm.solve(rhs)) if asm.free.size else np.zeros((mesh.n_dof, n_lines))
     for j, dof in prescribed:
@@ -318,8 +365,87 @@ def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
         values[element, :, j] -= r
     for j in zero_lines:
         values[:, :, j] = 0.0
-    coefficients = hermite_coefficients(values, h)
-    return InfluenceSet(mesh.x, coefficients, effects)
+    coarse = hermite_coefficients(values, h)  # (4, n_el, n_lines)
+
+    # shared knots: the structure's nodes and every section
+    sections = np.array([x for _, _, x, _ in inner])
+    knots = np.unique(np.concatenate([xc, sections]))
+    knots = knots[np.concatenate([[True], np.diff(knots) > tol])]
+    knots[-1] = length
+    piece_element = np.clip(np.searchsorted(xc, 0.5 * (knots[:-1] + knots[1:])) - 1, 0, n_el - 1)
+    offset = knots[:-1] - xc[piece_element]
+    coefficients = np.empty((4, len(knots) - 1, n_lines))
+    _spread_pieces(np.ascontiguousarray(coarse), piece_element, offset, coefficients)
+    if inner_data is not None:
+        _fill_inner_sections(coefficients, knots, piece_element, values, xc, h, inner_data, tol)
+    return InfluenceSet(knots, coefficients, effects)
+
+
+def _condense_inner_sections(inner: list, mesh, h: NDArray[np.float64]) -> tuple | None:
+    """Adjoint loads of sections that fall inside elements, condensed to the element ends.
+
+    Each section splits its element into two sub-elements meeting at node s with dofs
+    (v_s, θ_s). The local adjoint load g on (v_a, θ_a, v_s, θ_s, v_b, θ_b) is condensed to
+    g_ends − K_es K_ss⁻¹ g_s; after the solve, z_s = K_ss⁻¹ (g_s − K_se z_ends).
+    """
+    if not inner:
+        return None
+    lines = np.array([j for j, *_ in inner])
+    elements = np.array([el for _, el, _, _ in inner])
+    x = np.array([xs for _, _, xs, _ in inner])
+    kinds = [e.kind for *_, e in inner]
+    c = x - mesh.x[elements]
+    EI = mesh.element_EI[elements]
+    k_left = element_stiffness(EI, c)
+    k_right = element_stiffness(EI, h[elements] - c)
+    n = len(inner)
+    k6 = np.zeros((n, 6, 6))
+    k6[:, :4, :4] += k_left
+    k6[:, 2:, 2:] += k_right
+    g6 = np.zeros((n, 6))
+    rows = np.zeros((n, 4))
+    # which sub-element an effect is read from: −1 none, 0 the left one, 1 the right one.
+    # Inside an element no point force acts at the section, so moment and shear read the same
+    # from either side; the longer sub-element keeps the stiffness entries moderate however
+    # close the section is to a node.
+    sub = np.where(c <= 0.5 * h[elements], 1, 0)
+    for i, kind in enumerate(kinds):
+        if kind == "deflection":
+            g6[i, 2], sub[i] = 1.0, -1
+        elif kind == "rotation":
+            g6[i, 3], sub[i] = 1.0, -1
+        elif sub[i] == 1:
+            rows[i] = _ROW_AT_LEFT_END[kind]
+            g6[i, 2:6] = k_right[i] @ rows[i]
+        else:
+            rows[i] = _ROW_AT_RIGHT_END[kind]
+            g6[i, 0:4] = k_left[i] @ rows[i]
+    ends = [0, 1, 4, 5]
+    rhs_local = np.concatenate([g6[:, 2:4, None], k6[:, 2:4][:, :, ends]], axis=2)  # (n, 2, 5)
+    solved = np.linalg.solve(k6[:, 2:4, 2:4], rhs_local)
+    loads = g6[:, ends] - np.einsum("nij,nj->ni", k6[:, ends, 2:4], solved[:, :, 0])
+    dofs = mesh.element_dofs[elements]
+    return lines, elements, dofs, loads, x, c, solved, rows, sub
+
+
+def _fill_inner_sections(coefficients, knots, piece_element, values, xc, h, inner_data, tol):
+    """Write the exact sub-element cubics of lines whose section lies inside an element."""
+    lines, elements, _, _, x, c, solved, rows, sub = inner_data
+    z_end = values[elements, :, lines]  # (n, 4)
+    z_s = solved[:, :, 0] - np.einsum("nij,nj->ni", solved[:, :, 1:], z_end)
+    left = np.concatenate([z_end[:, :2], z_s], axis=1) - rows * (sub == 0)[:, None]
+    right = np.concatenate([z_s, z_end[:, 2:]], axis=1) - rows * (sub == 1)[:, None]
+    left_coef = hermite_coefficients(left, c)  # (4, n)
+    right_coef = hermite_coefficients(right, h[elements] - c)
+    start = np.searchsorted(piece_element, elements, side="left")
+    count = np.searchsorted(piece_element, elements, side="right") - start
+    owner = np.repeat(np.arange(len(lines)), count)
+    first = np.repeat(np.cumsum(count) - count, count)
+    pieces = start[owner] + np.arange(owner.size) - first
+    on_left = knots[pieces] < x[owner] - tol
+    origin = np.where(on_left, xc[elements][owner], x[owner])
+    source = np.where(on_left, left_coef[:, owner], right_coef[:, owner])
+    coefficients[:, pieces, lines[owner]] = _taylor_shift(source, knots[pieces] - origin)
 
 
 def influence_batch(beam: Beam, kind: str, at: ArrayLike | None = None,

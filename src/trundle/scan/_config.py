@@ -1,4 +1,5 @@
-"""Numba options in one place, so every kernel compiles the same way and is cached on disk."""
+"""Numba options for the scan kernels (shared with the rest of the package)."""
 
-JIT_OPTIONS = {"cache": True, "nogil": True}
-PARALLEL_OPTIONS = {**JIT_OPTIONS, "parallel": True}
+from trundle._jit import JIT_OPTIONS, PARALLEL_OPTIONS
+
+__all__ = ["JIT_OPTIONS", "PARALLEL_OPTIONS"]
