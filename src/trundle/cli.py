@@ -83,9 +83,11 @@ def _load(model_file: str) -> Model:
     return load_model(model_file)
 
 
-@click.group(cls=_Commands, context_settings={"help_option_names": ["-h", "--help"]})
+@click.group(cls=_Commands, context_settings={"help_option_names": ["-h", "--help"]},
+             invoke_without_command=True)
 @click.version_option(__version__, prog_name="trundle")
-def cli() -> None:
+@click.pass_context
+def cli(context: click.Context) -> None:
     """trundle: exact influence lines for continuous beams, from a model file.
 
     \b
@@ -93,6 +95,8 @@ def cli() -> None:
       trundle summary examples/harbour_lane_floor_girder_si.toml
       trundle lines examples/harbour_lane_floor_girder_si.toml --effect moment --at 3.6
     """
+    if context.invoked_subcommand is None:
+        click.echo(context.get_help())
 
 
 # ------------------------------------------------------------------------------------------

@@ -43,6 +43,16 @@ RULE = "#d9dde1"
 PALETTE = ("#1f4e79", "#b4532a", "#2e7d5b", "#8a6d1d", "#6a4c93", "#3d8fa8")
 SEQUENTIAL = "cividis"
 
+# The fixed sign conventions (see DESIGN.md), repeated on every axis that shows an effect.
+SIGN_CONVENTION = {
+    "moment": "sagging +",
+    "shear": "upward on left +",
+    "reaction": "upward +",
+    "support_moment": "CCW on beam +",
+    "deflection": "downward +",
+    "rotation": "clockwise +",
+}
+
 _STYLE = {
     "font.family": "DejaVu Sans",
     "font.size": 8.5,
@@ -199,18 +209,20 @@ def plot_beam(beam: Beam, units: UnitSystem, ax: Axes | None = None,
 
 
 def _draw_beam_line(ax: Axes, beam: Beam) -> None:
-    """The beam as a line whose weight follows EI, so stepped and haunched parts show."""
+    """The beam as a band whose depth follows EI, so stepped and haunched parts show."""
     segments = beam.stiffness_segments
     EI_max = max(max(s.EI0, s.EI1) for s in segments)
     EI_min = min(min(s.EI0, s.EI1) for s in segments)
+    xs_all, half_all = [], []
     for seg in segments:
-        n = 24 if seg.varies else 1
-        xs = np.linspace(seg.x0, seg.x1, n + 1)
-        EI = seg.at(0.5 * (xs[:-1] + xs[1:]))
+        xs = np.linspace(seg.x0, seg.x1, 49 if seg.varies else 2)
+        EI = seg.at(xs)
         relative = (EI - EI_min) / (EI_max - EI_min) if EI_max > EI_min else np.zeros_like(EI)
-        for a, b, r in zip(xs[:-1], xs[1:], relative, strict=True):
-            ax.plot([a, b], [0.0, 0.0], color=INK, lw=2.4 + 2.6 * r, solid_capstyle="butt",
-                    zorder=2)
+        xs_all.append(xs)
+        half_all.append(0.035 + 0.045 * relative)  # axis units: the strip spans -1 .. 1
+    x = np.concatenate(xs_all)
+    half = np.concatenate(half_all)
+    ax.fill_between(x, -half, half, color=INK, lw=0, zorder=2)
 
 
 # ------------------------------------------------------------------------------------------
@@ -240,7 +252,7 @@ def plot_influence(lines: InfluenceSet, beam: Beam, units: UnitSystem,
         for support_x in beam.support_positions:
             ax.axvline(support_x, color=RULE, lw=0.8, zorder=0)
         if annotate is None:
-            annotate = len(chosen) <= 3
+            annotate = len(chosen) <= 2
         extremes = line_extremes(lines, beam, units) if annotate else []
         for color, j in zip(colors, chosen, strict=True):
             effect = lines.effects[j]
@@ -256,15 +268,16 @@ def plot_influence(lines: InfluenceSet, beam: Beam, units: UnitSystem,
                 _mark_extremes(ax, extremes[j], color, beam.length, units,
                                stagger=chosen.index(j))
         kind = first.kind.replace("_", " ")
-        ax.set_ylabel(f"{kind} per unit load\n[{ou.label}]")
+        ax.set_ylabel(f"{kind} ({SIGN_CONVENTION[first.kind]})\n[{ou.label}]")
         ax.set_xlim(-0.03 * beam.length, 1.03 * beam.length)
-        ax.margins(y=0.22)
+        ax.margins(y=0.25)
         if many:
             ax.set_title(f"{len(chosen)} lines, coloured by section position (dark = left, "
                          "light = right; sections ticked on the beam)", loc="right",
                          fontsize=7, color=MUTED)
         else:
-            ax.legend(loc="upper right", ncols=min(len(chosen), 3), handlelength=1.6)
+            ax.legend(loc="lower left", bbox_to_anchor=(0.0, 1.0), ncols=min(len(chosen), 3),
+                      handlelength=1.6, borderaxespad=0.2)
     return ax
 
 
