@@ -31,8 +31,15 @@ def expected_key(path: Path) -> str:
     raise AssertionError(f"{path.name} has no '# key:' comment")
 
 
+def runner() -> CliRunner:
+    try:  # click < 8.2 mixes stderr into the output unless told not to
+        return CliRunner(mix_stderr=False)
+    except TypeError:
+        return CliRunner()
+
+
 def run(*args: str):
-    return CliRunner().invoke(cli, [str(a) for a in args], prog_name="trundle")
+    return runner().invoke(cli, [str(a) for a in args], prog_name="trundle")
 
 
 def assert_one_line_error(result, *fragments: str) -> None:

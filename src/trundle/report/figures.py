@@ -270,7 +270,7 @@ def plot_influence(lines: InfluenceSet, beam: Beam, units: UnitSystem,
         kind = first.kind.replace("_", " ")
         ax.set_ylabel(f"{kind} ({SIGN_CONVENTION[first.kind]})\n[{ou.label}]")
         ax.set_xlim(-0.03 * beam.length, 1.03 * beam.length)
-        ax.margins(y=0.25)
+        ax.margins(y=0.3)
         if many:
             ax.set_title(f"{len(chosen)} lines, coloured by section position (dark = left, "
                          "light = right; sections ticked on the beam)", loc="right",
