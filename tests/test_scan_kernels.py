@@ -1,0 +1,223 @@
+"""The compiled scan kernels against their plain-Python twins in tests/naive_scan.py.
+
+Numba kernels are called from Python directly, on parametrised and random inputs: the Taylor
+shift, the quadratic roots (against 50-digit arithmetic), the critical points of cubics and
+quartics (against ``numpy.roots``), and the whole scan of random load groups over the
+influence lines of random beams, with only concentrated loads (cubic pieces) and with
+attached uniform loads, finite and unlimited (quartic pieces).
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+
+from naive_scan import (
+    Arrangement,
+    PlainLine,
+    critical_points,
+    effects_at,
+    plain_scan,
+    quadratic_roots,
+    random_beam,
+    random_sections,
+    taylor_shift,
+)
+from trundle.scan import LineBatch, TermGroup, kernels, scan_group
+
+# --- helpers -------------------------------------------------------------------------------------
+
+
+def _close_sets(found: list[float], expected: list[float], rel: float) -> bool:
+    """Every root of each list lies within rel·max(1, |root|) of a root of the other."""
+    def near(a: float, pool: list[float]) -> bool:
+        return any(abs(a - b) <= rel * max(1.0, abs(b)) for b in pool)
+
+    return all(near(a, expected) for a in found) and all(near(b, found) for b in expected)
+
+
+def _run_kernel(parallel: bool, batch: LineBatch, group: TermGroup) -> np.ndarray:
+    """Call the compiled kernel directly for every line of the batch; (n_lines, 6)."""
+    weights, offsets, kinds, constant = group.terms()
+    degree = 4 if (kinds == kernels.KIND_RUNNING_INTEGRAL).any() else 3
+    n = batch.n_lines
+    if hasattr(kernels, "scan_rows_serial"):  # one row per (line, arrangement)
+        kernel = kernels.scan_rows_parallel if parallel else kernels.scan_rows_serial
+        return kernel(batch.knots, batch.coef, batch.running, batch.running_end, weights,
+                      kinds, np.ascontiguousarray(offsets[None, :]), np.arange(n),
+                      float(constant), degree)
+    from trundle.scan.engine import _pieces  # the earlier layout: breaks prepared in Python
+
+    breaks, piece, s0 = _pieces(batch.knots, offsets)
+    kernel = kernels.scan_lines_parallel if parallel else kernels.scan_lines_serial
+    return kernel(breaks, batch.coef, batch.running, batch.running_end, weights, kinds, piece,
+                  s0, np.ascontiguousarray(constant * batch.running_end), degree)
+
+
+def _random_group(rng: np.random.Generator, length: float, uniform: str
+                  ) -> tuple[TermGroup, Arrangement]:
+    n = int(rng.integers(1, 5))
+    P = np.round(rng.uniform(0.5, 3.0, n), 3)
+    u = np.concatenate([[0.0], np.cumsum(np.round(rng.uniform(0.05, 0.35, n - 1) * length, 3))])
+    parts: list[tuple[float, float, float]] = []
+    if uniform != "none":
+        w = float(np.round(rng.uniform(0.1, 1.0), 3))
+        gap = float(np.round(rng.uniform(0.0, 0.2) * length, 3))
+        reach = math.inf if uniform == "unlimited" else float(
+            np.round(rng.uniform(0.1, 0.8) * length, 3))
+        if rng.random() < 0.5:  # ahead of the first axle
+            parts.append((-gap - reach, -gap, w))
+        else:  # behind the last axle
+            parts.append((u[-1] + gap, u[-1] + gap + reach, w))
+        if uniform == "both":
+            parts.append((-gap - 0.3 * length, -gap, 0.5 * w))
+    group = TermGroup(tuple(u.tolist()), tuple(P.tolist()), tuple(parts))
+    return group, Arrangement(tuple(zip(u.tolist(), P.tolist(), strict=True)), tuple(parts))
+
+
+# --- the helpers of the kernel -------------------------------------------------------------------
+
+
+@pytest.mark.parametrize("n_coef", [4, 5])
+@pytest.mark.parametrize("seed", range(6))
+def test_shift_add_is_the_taylor_shift(n_coef: int, seed: int) -> None:
+    rng = np.random.default_rng(seed)
+    coef_high_first = rng.normal(size=n_coef) * 10.0 ** rng.uniform(-3, 3, n_coef)
+    s0 = float(rng.uniform(-5.0, 5.0))
+    weight = float(rng.normal())
+    start = rng.normal(size=5)
+    poly = start.copy()
+    kernels._shift_add(poly, np.ascontiguousarray(coef_high_first), n_coef, s0, weight,
+                       np.empty(5))
+    expected = start.copy()
+    expected[:n_coef] += weight * np.array(taylor_shift(list(coef_high_first), s0))
+    scale = np.abs(weight) * np.abs(coef_high_first).max() * max(1.0, abs(s0)) ** n_coef
+    np.testing.assert_allclose(poly, expected, rtol=0, atol=1e-13 * scale + 1e-15)
+    # and the shifted polynomial is the original one read further along
+    for t in rng.uniform(-2.0, 2.0, 4):
+        value = sum(c * t**i for i, c in enumerate(poly - start))
+        direct = weight * np.polyval(coef_high_first, t + s0)
+        assert value == pytest.approx(direct, rel=1e-10, abs=1e-12 * scale)
+
+
+QUADRATICS = [
+    (1.0, -3.0, 2.0),  # 1, 2
+    (2.0, 0.0, -8.0),  # ±2
+    (1.0, 2.0, 1.0),  # double root −1
+    (1.0, 0.0, 0.0),  # double root 0
+    (1.0, 0.0, 1.0),  # none
+    (0.0, 2.0, -3.0),  # linear: 1.5
+    (0.0, 0.0, 1.0),  # no equation
+    (1.0, 1e8, 1.0),  # cancellation: a tiny root −1e−8 next to −1e8
+    (1e-9, 1.0, -1.0),  # nearly linear: root near 1 and one near −1e9
+    (-3.0, 5.0, 0.0),  # a root exactly at 0
+]
+
+
+@pytest.mark.parametrize("abc", QUADRATICS)
+def test_quadratic_roots_special_cases(abc: tuple[float, float, float]) -> None:
+    out = np.empty(2)
+    m = kernels._quadratic_roots(*abc, out)
+    assert _close_sets(list(out[:m]), quadratic_roots(*abc), rel=1e-13)
+
+
+@pytest.mark.parametrize("seed", range(5))
+def test_quadratic_roots_random(seed: int) -> None:
+    rng = np.random.default_rng(seed)
+    out = np.empty(2)
+    for _ in range(200):
+        a, b, c = rng.normal(size=3) * 10.0 ** rng.uniform(-4, 4, 3)
+        m = kernels._quadratic_roots(a, b, c, out)
+        assert _close_sets(list(out[:m]), quadratic_roots(a, b, c), rel=1e-12), (a, b, c)
+
+
+def _extremes_on(poly: np.ndarray, width: float, points: list[float]) -> tuple[float, float]:
+    values = [np.polyval(poly[::-1], t) for t in [0.0, width, *points]]
+    return max(values), min(values)
+
+
+@pytest.mark.parametrize("degree", [3, 4])
+@pytest.mark.parametrize("seed", range(6))
+def test_critical_points_match_numpy_roots(degree: int, seed: int) -> None:
+    rng = np.random.default_rng(seed)
+    out, scratch = np.empty(3), np.empty(10)
+    for _ in range(150):
+        width = float(rng.uniform(0.5, 5.0))
+        poly = np.zeros(5)
+        # roots of the derivative placed at random in and around the interval
+        roots = rng.uniform(-0.3 * width, 1.3 * width, degree - 1)
+        derivative = np.poly(roots) * rng.choice([-1.0, 1.0]) * 10.0 ** rng.uniform(-2, 2)
+        poly[1:degree + 1] = (derivative[::-1] / np.arange(1, degree + 1))
+        poly[0] = rng.normal()
+        n = kernels._critical_points(poly, degree, width, out, scratch)
+        found = sorted(out[:n])
+        expected = critical_points(list(poly[:degree + 1]), width)
+        # a root within rounding of an interval end may fall on either side of it
+        clear = [r for r in expected if 1e-9 * width < r < width - 1e-9 * width]
+        found_clear = [r for r in found if 1e-9 * width < r < width - 1e-9 * width]
+        # two derivative roots closer than this are a touching point, not two extremes
+        separated = len(roots) < 2 or np.min(np.diff(np.sort(roots))) > 1e-3 * width
+        if separated:
+            assert _close_sets(found_clear, clear, rel=1e-7), (poly, width)
+        high, low = _extremes_on(poly, width, found)
+        high_ref, low_ref = _extremes_on(poly, width, expected)
+        size = max(abs(high_ref), abs(low_ref), 1e-300)
+        assert high == pytest.approx(high_ref, abs=1e-12 * size)
+        assert low == pytest.approx(low_ref, abs=1e-12 * size)
+
+
+# --- the whole scan -----------------------------------------------------------------------------
+
+
+def _lines_of_random_beam(seed: int):
+    rng = np.random.default_rng(seed)
+    beam = random_beam(rng)
+    effects = effects_at(beam, random_sections(rng, beam, 2))
+    lines = beam.influence_set(effects)
+    return rng, beam, lines
+
+
+@pytest.mark.parametrize("uniform", ["none", "finite", "unlimited", "both"])
+@pytest.mark.parametrize("seed", range(4))
+def test_kernels_match_plain_scan(seed: int, uniform: str) -> None:
+    rng, beam, lines = _lines_of_random_beam(seed)
+    batch = LineBatch.from_set(lines)
+    group, arrangement = _random_group(rng, beam.length, uniform)
+    serial = _run_kernel(False, batch, group)
+    parallel = _run_kernel(True, batch, group)
+    engine = scan_group(batch, group)
+    np.testing.assert_array_equal(serial, parallel)
+    np.testing.assert_array_equal(serial, engine)
+    plain_lines = [PlainLine.from_ppoly(lines.knots, lines.coefficients[:, :, j])
+                   for j in range(len(lines))]
+    expected = np.array([plain_scan(p, arrangement) for p in plain_lines])
+    kinds = np.array([e.kind for e in lines.effects])
+    for j, effect in enumerate(lines.effects):
+        same = kinds == effect.kind
+        scale = max(np.abs(expected[same][:, [0, 3]]).max(), 1e-300)
+        for col in (0, 3):
+            assert serial[j, col] == pytest.approx(expected[j, col], abs=1e-10 * scale), (
+                effect, col)
+            xi, side = serial[j, col + 1], serial[j, col + 2]
+            if np.isnan(xi):  # the empty beam governs
+                assert abs(expected[j, col]) <= 1e-10 * scale
+                continue
+            # the reported position reproduces the reported value
+            again = plain_lines[j].response(arrangement, xi, side)
+            assert again == pytest.approx(serial[j, col], abs=1e-10 * scale), (effect, col)
+
+
+@pytest.mark.parametrize("seed", range(3))
+def test_scan_of_a_single_unit_load_is_the_line_extreme(seed: int) -> None:
+    """One unit load: the scan's extremes are the line's own largest and smallest ordinates
+    (``InfluenceLine.max``/``min``, found from the derivative's roots by scipy)."""
+    _, _, lines = _lines_of_random_beam(seed)
+    batch = LineBatch.from_set(lines)
+    r = _run_kernel(False, batch, TermGroup((0.0,), (1.0,)))
+    for j in range(len(lines)):
+        line = lines.line(j)
+        scale = max(abs(line.max()[0]), abs(line.min()[0]), 1e-300)
+        assert r[j, 0] == pytest.approx(max(line.max()[0], 0.0), abs=1e-12 * scale)
+        assert r[j, 3] == pytest.approx(min(line.min()[0], 0.0), abs=1e-12 * scale)
