@@ -21,11 +21,17 @@ from trundle.influence import Effect, influence_set, piece_sign_intervals
 from trundle.loads.cases import LoadCase, as_case
 from trundle.loads.patterns import UniformLoad
 from trundle.model import Beam, ModelError, Spring
-from trundle.scan.engine import LineBatch, TermGroup, group_response, scan_group
+from trundle.scan.engine import (
+    LineBatch,
+    TermGroup,
+    group_response,
+    scan_arrangements,
+    scan_group,
+)
 
 FAMILIES = ("moment", "shear_left", "shear_right", "deflection", "reaction", "support_moment")
 REQUESTABLE = ("moment", "shear", "deflection", "reaction", "support_moment")
-GRID_BUDGET = 81  # coarse-grid evaluations per case before refinement
+GRID_BUDGET = 33  # coarse-grid evaluations per case before refinement
 REFINE_WITHIN = 0.05  # refine cases whose grid extreme is within 5 % of the line's best
 
 
@@ -41,8 +47,8 @@ class Governing:
     reference : x of the group's reference point (its first axle as given) [length]
     side : +1 the loads stand just right of a jump (limit from above), −1 just left, 0 exact
     searched : values found for the searched spacings/gaps [length]
-    pattern : for placed uniform load: the loaded intervals [(x0, x1), …] and the
-        position of its concentrated load (or None)
+    pattern : for placed uniform load: the loaded intervals [(x0, x1), …]; its
+        concentrated load (if any) stands at ``reference``, on ``side`` of a jump
     """
 
     value: float
@@ -51,7 +57,7 @@ class Governing:
     reference: float = float("nan")
     side: int = 0
     searched: tuple[float, ...] = ()
-    pattern: tuple[tuple[tuple[float, float], ...], float | None] | None = None
+    pattern: tuple | None = None
 
 
 EMPTY = Governing(0.0)
@@ -94,125 +100,193 @@ def _grid(params: Sequence[Any]) -> list[tuple[float, ...]]:
     return list(itertools.product(*axes))
 
 
-class _Tracker:
-    """Best max/min per line with their governing configuration."""
+class _CaseResult:
+    """Per-line extremes of one load case, as arrays, and the Governing of any of them.
 
-    def __init__(self, n: int):
-        self.max = [EMPTY] * n
-        self.min = [EMPTY] * n
+    ``value[w]``, ``xi[w]``, ``side[w]``, ``direction[w]``, ``searched[w]`` for w = 0 (max)
+    and 1 (min); placed uniform load keeps ``pattern[w]`` instead of positions.
+    """
 
-    def offer(self, j: int, which: str, g: Governing) -> None:
-        current = getattr(self, which)
-        if (which == "max" and g.value > current[j].value) or (
-                which == "min" and g.value < current[j].value):
-            current[j] = g
+    def __init__(self, case_index: int, n: int, n_params: int = 0):
+        self.case = case_index
+        self.value = np.zeros((2, n))
+        self.xi = np.full((2, n), np.nan)
+        self.side = np.zeros((2, n), dtype=np.int64)
+        self.direction = np.zeros((2, n), dtype=np.int64)
+        self.searched = np.zeros((2, n, n_params))
+        self.pattern: list[list[Any]] | None = None
+
+    def offer(self, w: int, rows: NDArray[np.int64], value, xi, side, direction, searched
+              ) -> None:
+        """Keep, row by row, whichever is worse (larger for max, smaller for min)."""
+        sign = 1.0 if w == 0 else -1.0
+        better = (sign * value > sign * self.value[w, rows]) & ~np.isnan(xi)
+        r = rows[better]
+        self.value[w, r] = value[better]
+        self.xi[w, r] = xi[better]
+        self.side[w, r] = side[better]
+        self.direction[w, r] = direction if np.isscalar(direction) else direction[better]
+        self.searched[w, r] = searched if searched.ndim == 1 else searched[better]
+
+    def governing(self, w: int, j: int) -> Governing:
+        if self.pattern is not None:
+            return Governing(float(self.value[w, j]), self.case, 0, float(self.xi[w, j]),
+                             int(self.side[w, j]), pattern=self.pattern[w][j])
+        if np.isnan(self.xi[w, j]):
+            return EMPTY
+        return Governing(float(self.value[w, j]), self.case, int(self.direction[w, j]),
+                         float(self.xi[w, j]), int(self.side[w, j]),
+                         tuple(float(v) for v in self.searched[w, j]))
 
 
-def _moving_case_scan(batch: LineBatch, case: LoadCase, case_index: int,
-                      lines: NDArray[np.int64] | None = None) -> tuple[_Tracker, list]:
-    """Grid pass over searched dimensions and both directions; best per line for this case."""
+@dataclass(frozen=True)
+class _Arrangement:
+    """The terms of a moving load in one direction; offsets are linear in the searched values
+    (every spacing and gap adds to the offsets of the loads behind it)."""
+
+    weights: NDArray[np.float64]
+    kinds: NDArray[np.int64]
+    constant: float
+    base: NDArray[np.float64]  # (n_terms,) offsets with every searched value at 0
+    slope: NDArray[np.float64]  # (n_params, n_terms)
+
+    def offsets(self, values: NDArray[np.float64]) -> NDArray[np.float64]:
+        return self.base[None, :] + np.atleast_2d(values) @ self.slope
+
+
+def _arrangements(case: LoadCase) -> dict[int, _Arrangement]:
     load = case.load
-    params = load.parameters()
-    sub = batch if lines is None else _sub_batch(batch, lines)
-    tracker = _Tracker(sub.n_lines)
-    grid = _grid(params)
-    directions = (1, -1) if load.reversible else (1,)
-    for values in grid:
-        group = load.group(values, case.impact)
-        for direction in directions:
-            g = group if direction == 1 else group.mirrored()
-            r = scan_group(sub, g) * 1.0
-            r[:, [0, 3]] *= case.multiplier
-            for j in range(sub.n_lines):
-                for which, col in (("max", 0), ("min", 3)):
-                    if np.isnan(r[j, col + 1]):
-                        continue
-                    tracker.offer(j, which, Governing(
-                        float(r[j, col]), case_index, direction, float(r[j, col + 1]),
-                        int(r[j, col + 2]), tuple(float(v) for v in values)))
-    return tracker, grid
+    k = len(load.parameters())
+    out = {}
+    for direction in ((1, -1) if load.reversible else (1,)):
+        def terms(values: Sequence[float], direction: int = direction) -> tuple:
+            group = load.group(list(values), case.impact)
+            return (group if direction == 1 else group.mirrored()).terms()
+
+        weights, base, kinds, constant = terms([0.0] * k)
+        slope = np.zeros((k, base.size))
+        for i, row in enumerate(np.eye(k)):
+            slope[i] = terms(row)[1] - base
+        out[direction] = _Arrangement(weights * case.multiplier, kinds,
+                                      constant * case.multiplier, base, slope)
+    return out
 
 
-def _sub_batch(batch: LineBatch, lines: NDArray[np.int64]) -> LineBatch:
-    return LineBatch(batch.knots, np.ascontiguousarray(batch.coef[:, :, lines]),
-                     np.ascontiguousarray(batch.running[:, :, lines]),
-                     np.ascontiguousarray(batch.running_end[lines]))
-
-
-def _refine(batch: LineBatch, case: LoadCase, case_index: int, j: int, which: str,
-            start: Governing) -> Governing:
-    """Bounded search of each searched dimension around the best grid value, for one line
-    and the direction of travel that governed on the grid."""
+def _moving_grid(batch: LineBatch, case: LoadCase, case_index: int,
+                 arrangements: dict[int, _Arrangement]) -> _CaseResult:
+    """Every line, every grid value of the searched dimensions, both directions."""
     params = case.load.parameters()
-    if not params:
-        return start
-    sub = _sub_batch(batch, np.array([j]))
-    col = 0 if which == "max" else 3
-    sign = 1.0 if which == "max" else -1.0
+    n = batch.n_lines
+    result = _CaseResult(case_index, n, len(params))
+    lines = np.arange(n)
+    for values in _grid(params):
+        values = np.asarray(values, dtype=float)
+        for direction, arr in arrangements.items():
+            r = scan_arrangements(batch, arr.weights, arr.kinds, arr.offsets(values), lines,
+                                  arr.constant)
+            for w, col in ((0, 0), (1, 3)):
+                result.offer(w, lines, r[:, col], r[:, col + 1], r[:, col + 2].astype(np.int64),
+                             direction, values)
+    return result
+
+
+_INVERSE_GOLDEN = (np.sqrt(5.0) - 1.0) / 2.0
+
+
+def _refine(batch: LineBatch, case: LoadCase, result: _CaseResult,
+            arrangements: dict[int, _Arrangement], w: int, lines: NDArray[np.int64]) -> None:
+    """Golden-section search of each searched dimension, all chosen lines in lockstep, each
+    around its own best grid value and in its own governing direction."""
+    params = case.load.parameters()
+    if not params or lines.size == 0:
+        return
     per = max(2, int(round(GRID_BUDGET ** (1.0 / len(params)))))
-
-    def evaluate(trial: list[float]) -> Governing | None:
-        group = case.load.group(trial, case.impact)
-        r = scan_group(sub, group if start.direction == 1 else group.mirrored())[0]
-        if np.isnan(r[col + 1]):
-            return None
-        return Governing(float(r[col] * case.multiplier), case_index, start.direction,
-                         float(r[col + 1]), int(r[col + 2]), tuple(float(t) for t in trial))
-
-    def score(v: float, base: list[float], k: int) -> float:
-        g = evaluate([*base[:k], v, *base[k + 1:]])
-        return 0.0 if g is None else -sign * g.value
-
-    best = start
+    col = 0 if w == 0 else 3
+    sign = 1.0 if w == 0 else -1.0
+    tolerance = 1e-9 * max(1.0, batch.length)
     for _sweep in range(1 if len(params) == 1 else 2):
         for k, p in enumerate(params):
-            base = list(best.searched)
             step = (p.high - p.low) / (per - 1)
-            lo, hi = max(p.low, base[k] - step), min(p.high, base[k] + step)
-            res = minimize_scalar(score, bounds=(lo, hi), args=(base, k), method="bounded",
-                                  options={"xatol": 1e-8 * max(1.0, batch.length)})
-            g = evaluate([*base[:k], float(res.x), *base[k + 1:]])
-            if g is not None and sign * g.value > sign * best.value:
-                best = g
-    return best
+            for direction, arr in arrangements.items():
+                rows = lines[result.direction[w, lines] == direction]
+                if rows.size == 0:
+                    continue
+                base = result.searched[w, rows].copy()
+                a = np.maximum(p.low, base[:, k] - step)
+                b = np.minimum(p.high, base[:, k] + step)
+
+                def evaluate(points: NDArray[np.float64], rows=rows, base=base, arr=arr,
+                             k=k, direction=direction) -> NDArray[np.float64]:
+                    values = base.copy()
+                    values[:, k] = points
+                    r = scan_arrangements(batch, arr.weights, arr.kinds, arr.offsets(values),
+                                          rows, arr.constant)
+                    result.offer(w, rows, r[:, col], r[:, col + 1],
+                                 r[:, col + 2].astype(np.int64), direction, values)
+                    return sign * np.where(np.isnan(r[:, col + 1]), 0.0, r[:, col])
+
+                width = float((b - a).max())
+                if width <= tolerance:
+                    continue
+                n_iter = int(np.ceil(np.log(tolerance / width) / np.log(_INVERSE_GOLDEN)))
+                c = b - _INVERSE_GOLDEN * (b - a)
+                d = a + _INVERSE_GOLDEN * (b - a)
+                fc, fd = evaluate(c), evaluate(d)
+                for _ in range(n_iter):
+                    left = fc > fd  # the maximum lies in [a, d]
+                    a = np.where(left, a, c)
+                    b = np.where(left, d, b)
+                    c_new = np.where(left, b - _INVERSE_GOLDEN * (b - a), d)
+                    d_new = np.where(left, c, a + _INVERSE_GOLDEN * (b - a))
+                    fresh = evaluate(np.where(left, c_new, d_new))
+                    fc, fd = np.where(left, fresh, fd), np.where(left, fc, fresh)
+                    c, d = c_new, d_new
 
 
-def _uniform_case(batch: LineBatch, case: LoadCase, case_index: int, tracker: _Tracker,
-                  ordinate_extremes: NDArray[np.float64], beam: Beam) -> None:
+def _uniform_case(batch: LineBatch, case: LoadCase, case_index: int,
+                  ordinate_extremes: NDArray[np.float64], beam: Beam) -> _CaseResult:
     load: UniformLoad = case.load
     m = case.multiplier
     P = load.point_load
     n = batch.n_lines
+    result = _CaseResult(case_index, n)
+    result.pattern = [[None] * n, [None] * n]
     if load.placement == "anywhere":
         pos, neg = _signed_areas(batch)
-        for j in range(n):
-            for which, area, col in (("max", pos[j], 0), ("min", neg[j], 3)):
-                value = m * (load.w * area + P * ordinate_extremes[j, col])
-                x_p = ordinate_extremes[j, col + 1] if P else None
+        for w, area, col, sign in ((0, pos, 0, 1), (1, neg, 3, -1)):
+            result.value[w] = m * (load.w * area + P * ordinate_extremes[:, col])
+            for j in range(n):
                 # the loaded stretches are where line j has this sign; found when asked for
-                sign = 1 if which == "max" else -1
-                tracker.offer(j, which, Governing(float(value), case_index, 0,
-                                                  pattern=((("sign of line", j, sign),), x_p)))
-        return
+                result.pattern[w][j] = ("sign of line", j, sign)
+        _point_load_position(result, ordinate_extremes, P)
+        return result
     ends = beam.support_positions
-    F = batch.running_at(ends)  # (n_spans + 1, n)
-    per_span = np.diff(F, axis=0)
+    per_span = np.diff(batch.running_at(ends), axis=0)  # (n_spans, n)
     spans = list(zip(ends[:-1], ends[1:], strict=True))
-    for j in range(n):
+    for w, col in ((0, 0), (1, 3)):
         if load.placement == "spans":
-            for which, mask, col in (("max", per_span[:, j] > 0, 0),
-                                     ("min", per_span[:, j] < 0, 3)):
-                value = m * (load.w * per_span[mask, j].sum() + P * ordinate_extremes[j, col])
-                x_p = ordinate_extremes[j, col + 1] if P else None
-                intervals = tuple(s for s, on in zip(spans, mask, strict=True) if on)
-                tracker.offer(j, which, Governing(float(value), case_index, 0,
-                                                  pattern=(intervals, x_p)))
+            mask = per_span > 0 if w == 0 else per_span < 0
+            area = np.where(mask, per_span, 0.0).sum(axis=0)
         else:
-            for which, col in (("max", 0), ("min", 3)):
-                value = m * (load.w * batch.running_end[j] + P * ordinate_extremes[j, col])
-                x_p = ordinate_extremes[j, col + 1] if P else None
-                tracker.offer(j, which, Governing(float(value), case_index, 0,
-                                                  pattern=(((0.0, beam.length),), x_p)))
+            mask = np.ones_like(per_span, dtype=bool)
+            area = batch.running_end.copy()
+        result.value[w] = m * (load.w * area + P * ordinate_extremes[:, col])
+        for j in range(n):
+            result.pattern[w][j] = tuple(
+                (float(a), float(b)) for (a, b), on in zip(spans, mask[:, j], strict=True) if on)
+    _point_load_position(result, ordinate_extremes, P)
+    if load.placement == "everywhere":  # all or nothing: live load may also be absent
+        result.value[0] = np.maximum(result.value[0], 0.0)
+        result.value[1] = np.minimum(result.value[1], 0.0)
+    return result
+
+
+def _point_load_position(result: _CaseResult, ordinate_extremes: NDArray[np.float64],
+                         point_load: float) -> None:
+    if point_load:
+        for w, col in ((0, 0), (1, 3)):
+            result.xi[w] = ordinate_extremes[:, col + 1]
+            result.side[w] = ordinate_extremes[:, col + 2].astype(np.int64)
 
 
 def _signed_areas(batch: LineBatch) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
@@ -299,17 +373,19 @@ class Envelope:
                 F = self.batch.running_at(np.array([a, b]))
                 total += case.load.w * (F[1] - F[0])
             if x_p is not None and case.load.point_load:
-                total += case.load.point_load * self.batch.ordinates(np.array([x_p]), "right")[0]
+                side = "left" if g.side < 0 else "right"
+                total += case.load.point_load * self.batch.ordinates(np.array([x_p]), side)[0]
             return case.multiplier * total
         group = self.group_of(g)
         return case.multiplier * group_response(self.batch, group, g.reference, g.side)
 
     def loaded_stretches(self, g: Governing) -> tuple[list[tuple[float, float]], float | None]:
         """For placed uniform load: the loaded intervals and where its point load stands."""
-        intervals, x_p = g.pattern
-        if intervals and intervals[0][0] == "sign of line":
-            _, j, sign = intervals[0]
+        intervals = g.pattern
+        if intervals and intervals[0] == "sign of line":
+            _, j, sign = intervals
             intervals = piece_sign_intervals(self.batch.knots, self.batch.coef[:, :, j], sign)
+        x_p = None if np.isnan(g.reference) else g.reference
         return list(intervals), x_p
 
     def group_of(self, g: Governing) -> TermGroup:
@@ -399,9 +475,15 @@ def absolute_extremes(beam: Beam, case: LoadCase, span: int, kind: str = "moment
             e = at(float(res.x))
             best_x, best_value = float(res.x), float(-res.fun * sign)
             governing = e.governing(kind, which)[0]
+            source = e
+        else:
+            source = coarse
+        pattern = governing.pattern
+        if pattern is not None:  # name the loaded stretches outright, not a line of `source`
+            pattern = tuple(source.loaded_stretches(governing)[0])
         governing = Governing(governing.value, case_index if governing.case >= 0 else -1,
                               governing.direction, governing.reference, governing.side,
-                              governing.searched, governing.pattern)
+                              governing.searched, pattern)
         out.append(AbsoluteExtreme(span, case_index, which, best_value, best_x, governing))
     return tuple(out)
 
@@ -427,28 +509,38 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
     lines = influence_set(beam, line_effects)
     batch = LineBatch.from_set(lines)
     n = batch.n_lines
-    overall = _Tracker(n)
     ordinate_extremes = scan_group(batch, TermGroup((0.0,), (1.0,)))
-    moving: list[tuple[int, LoadCase, _Tracker]] = []
+    results: list[_CaseResult] = []
+    moving: list[tuple[LoadCase, _CaseResult, dict[int, _Arrangement]]] = []
     for c, case in enumerate(cases):
         if isinstance(case.load, UniformLoad):
-            _uniform_case(batch, case, c, overall, ordinate_extremes, beam)
+            results.append(_uniform_case(batch, case, c, ordinate_extremes, beam))
             continue
-        tracker, _ = _moving_case_scan(batch, case, c)
-        moving.append((c, case, tracker))
+        arrangements = _arrangements(case)
+        result = _moving_grid(batch, case, c, arrangements)
+        results.append(result)
+        moving.append((case, result, arrangements))
+    # refine searched dimensions where a case comes close to governing on the grid
+    stacked = np.array([r.value for r in results])  # (n_cases, 2, n)
+    best = np.stack([stacked[:, 0].max(axis=0), stacked[:, 1].min(axis=0)])
+    for case, result, arrangements in moving:
+        for w in (0, 1):
+            close = np.abs(result.value[w]) >= (1 - REFINE_WITHIN) * np.abs(best[w])
+            close &= ~np.isnan(result.xi[w])
+            _refine(batch, case, result, arrangements, w, np.flatnonzero(close))
+    stacked = np.array([r.value for r in results])
+    winners = np.stack([stacked[:, 0].argmax(axis=0), stacked[:, 1].argmin(axis=0)])
+    scale = np.zeros(n)
+    for lines_of_family in index.values():
+        if lines_of_family.size:
+            scale[lines_of_family] = np.abs(stacked[:, :, lines_of_family]).max()
+    governing = [[], []]
+    for w in (0, 1):
         for j in range(n):
-            overall.offer(j, "max", tracker.max[j])
-            overall.offer(j, "min", tracker.min[j])
-    # refine searched spacings where a case comes close to governing
-    for c, case, tracker in moving:
-        if not case.load.parameters():
-            continue
-        for j in range(n):
-            for which in ("max", "min"):
-                mine = getattr(tracker, which)[j]
-                best = getattr(overall, which)[j]
-                if mine.case < 0 or abs(mine.value) < (1 - REFINE_WITHIN) * abs(best.value):
-                    continue
-                overall.offer(j, which, _refine(batch, case, c, j, which, mine))
+            g = results[winners[w, j]].governing(w, j)
+            # rounding noise around an empty-beam zero is not a governing load
+            if abs(g.value) <= 1e-12 * scale[j]:
+                g = EMPTY
+            governing[w].append(g)
     return Envelope(beam, sections, cases, tuple(line_effects), index,
-                    tuple(overall.max), tuple(overall.min), batch)
+                    tuple(governing[0]), tuple(governing[1]), batch)

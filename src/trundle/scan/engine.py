@@ -16,13 +16,7 @@ from numpy.typing import NDArray
 from scipy.interpolate import PPoly
 
 from trundle.influence import InfluenceSet, _eval_sided
-from trundle.scan.kernels import (
-    KIND_POINT,
-    KIND_RUNNING_INTEGRAL,
-    OFF_LEFT,
-    OFF_RIGHT,
-    scan_lines,
-)
+from trundle.scan.kernels import KIND_POINT, KIND_RUNNING_INTEGRAL, scan_rows
 
 
 @dataclass(frozen=True, eq=False)
@@ -86,6 +80,13 @@ class LineBatch:
         is zero at x ≤ 0 and the right-hand limit zero at x ≥ L.
         """
         x = np.asarray(x, dtype=float)
+        # a load placed at ξ − u may miss a knot by rounding (0.45 − 0.15 ≠ 0.3); a one-sided
+        # limit must then be read at the knot itself, or it reads the other side of a jump
+        nearest = np.clip(np.searchsorted(self.knots, x), 1, len(self.knots) - 1)
+        nearest = np.where(np.abs(self.knots[nearest - 1] - x) < np.abs(self.knots[nearest] - x),
+                           nearest - 1, nearest)
+        close = np.abs(self.knots[nearest] - x) <= 1e-12 * max(1.0, self.length)
+        x = np.where(close, self.knots[nearest], x)
         out = _eval_sided(self._ppoly, x, side)
         if side == "left":
             out[(x <= 0.0) | (x > self.length)] = 0.0
@@ -144,22 +145,6 @@ class TermGroup:
         return bool(self.uniform)
 
 
-def _pieces(knots: NDArray[np.float64], offsets: NDArray[np.float64]
-            ) -> tuple[NDArray[np.float64], NDArray[np.int64], NDArray[np.float64]]:
-    length = knots[-1]
-    lo = offsets.min()
-    hi = length + offsets.max()
-    breaks = np.unique(np.concatenate([(knots[None, :] + offsets[:, None]).ravel(), [lo, hi]]))
-    breaks = breaks[(breaks >= lo) & (breaks <= hi)]
-    mids = 0.5 * (breaks[:-1] + breaks[1:])
-    x_mid = mids[:, None] - offsets[None, :]
-    piece = np.searchsorted(knots, x_mid, side="right") - 1
-    piece = np.clip(piece, 0, len(knots) - 2)
-    s0 = breaks[:-1, None] - offsets[None, :] - knots[piece]
-    piece = np.where(x_mid < 0.0, OFF_LEFT, np.where(x_mid > length, OFF_RIGHT, piece))
-    return breaks, np.ascontiguousarray(piece.astype(np.int64)), np.ascontiguousarray(s0)
-
-
 def scan_group(batch: LineBatch, group: TermGroup) -> NDArray[np.float64]:
     """(n_lines, 6): max, ξ at max, side at max, min, ξ at min, side at min.
 
@@ -171,13 +156,23 @@ def scan_group(batch: LineBatch, group: TermGroup) -> NDArray[np.float64]:
     if weights.size == 0:
         out = np.zeros((batch.n_lines, 6))
         out[:, [1, 4]] = np.nan
-        out[:, [0, 3]] = constant * batch.running_end[:, None] if constant else 0.0
+        out[:, 0] = np.maximum(constant * batch.running_end, 0.0)
+        out[:, 3] = np.minimum(constant * batch.running_end, 0.0)
         return out
-    breaks, piece, s0 = _pieces(batch.knots, offsets)
+    return scan_arrangements(batch, weights, kinds, offsets[None, :],
+                             np.arange(batch.n_lines), constant)
+
+
+def scan_arrangements(batch: LineBatch, weights: NDArray[np.float64], kinds: NDArray[np.int64],
+                      offsets: NDArray[np.float64], lines: NDArray[np.int64],
+                      constant: float = 0.0) -> NDArray[np.float64]:
+    """One row per (line, arrangement): ``offsets`` (n_rows or 1, n_terms), ``lines`` (n_rows,)."""
     degree = 4 if (kinds == KIND_RUNNING_INTEGRAL).any() else 3
-    constant_per_line = constant * batch.running_end
-    return scan_lines(breaks, batch.coef, batch.running, batch.running_end, weights,
-                      kinds, piece, s0, np.ascontiguousarray(constant_per_line), degree)
+    return scan_rows(batch.knots, batch.coef, batch.running, batch.running_end,
+                     np.ascontiguousarray(weights, dtype=float),
+                     np.ascontiguousarray(kinds, dtype=np.int64),
+                     np.ascontiguousarray(offsets, dtype=float),
+                     np.ascontiguousarray(lines, dtype=np.int64), constant, degree)
 
 
 def group_response(batch: LineBatch, group: TermGroup, xi: float, side: float = 0.0

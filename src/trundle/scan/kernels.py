@@ -22,8 +22,6 @@ from trundle.scan._config import JIT_OPTIONS, PARALLEL_OPTIONS
 
 KIND_POINT = 0
 KIND_RUNNING_INTEGRAL = 1
-OFF_LEFT = -1  # the term stands left of the beam (before x = 0)
-OFF_RIGHT = -2  # the term stands right of the beam (beyond x = L)
 
 
 @njit(**JIT_OPTIONS)
@@ -132,114 +130,178 @@ def _critical_points(poly, degree, width, out, scratch):
 
 
 @njit(**JIT_OPTIONS)
-def _scan_one_line(j, breaks, coef, running, running_end, term_weight, term_kind,
-                   term_piece, term_s0, constant, degree, result):
-    """Max and min of one line's response over all pieces; result row j gets
-    (max, ξ at max, side at max, min, ξ at min, side at min). Side: +1 the limit from above
-    (ξ → b⁺), −1 from below, 0 an interior point."""
-    n_pieces = len(breaks) - 1
-    n_terms = len(term_weight)
+def _locate(knots, x):
+    """Piece of x taken from the right: −1 left of the beam, m at or beyond its right end."""
+    m = knots.shape[0] - 1
+    if x < knots[0]:
+        return -1
+    if x >= knots[m]:
+        return m
+    lo, hi = 0, m
+    while hi - lo > 1:
+        mid = (lo + hi) // 2
+        if knots[mid] <= x:
+            lo = mid
+        else:
+            hi = mid
+    return lo
+
+
+@njit(**JIT_OPTIONS)
+def _next_break(knots, piece, offset):
+    m = knots.shape[0] - 1
+    if piece < 0:
+        return offset + knots[0]
+    if piece < m:
+        return offset + knots[piece + 1]
+    return np.inf
+
+
+@njit(**JIT_OPTIONS)
+def _scan_row(row, line, knots, coef, running, running_end, weight, kind, offsets,
+              constant, degree, result):
+    """Sweep the reference position ξ over every piece of one line's response.
+
+    The group enters at the left (first term at x = 0) and leaves at the right; the breaks
+    are merged on the fly from each term's own walk along the knots. Result row gets
+    (max, ξ at max, side at max, min, ξ at min, side at min); side +1 is the limit from above
+    (ξ → b⁺), −1 from below, 0 an interior point. The empty beam counts (value 0, ξ NaN).
+    """
+    m = knots.shape[0] - 1
+    n_terms = weight.shape[0]
+    lo = offsets[0]
+    hi = offsets[0]
+    for t in range(1, n_terms):
+        lo = min(lo, offsets[t])
+        hi = max(hi, offsets[t])
+    hi += knots[m]
+    piece = np.empty(n_terms, dtype=np.int64)
+    upcoming = np.empty(n_terms)
+    for t in range(n_terms):
+        piece[t] = _locate(knots, lo - offsets[t])
+        upcoming[t] = _next_break(knots, piece[t], offsets[t])
     best_max, pos_max, side_max = 0.0, np.nan, 0.0
     best_min, pos_min, side_min = 0.0, np.nan, 0.0
     poly = np.empty(5)
     crit = np.empty(3)
     work = np.empty(5)
     scratch = np.empty(10)
-    for p in range(n_pieces):
-        width = breaks[p + 1] - breaks[p]
-        if width <= 0.0:
-            continue
-        for i in range(5):
-            poly[i] = 0.0
-        poly[0] = constant[j]
+    xi = lo
+    while xi < hi:
+        nxt = hi
         for t in range(n_terms):
-            e = term_piece[p, t]
-            w = term_weight[t]
-            if e == OFF_LEFT:
-                continue
-            if term_kind[t] == KIND_POINT:
-                if e == OFF_RIGHT:
+            if upcoming[t] < nxt:
+                nxt = upcoming[t]
+        width = nxt - xi
+        if width > 0.0:
+            for i in range(5):
+                poly[i] = 0.0
+            poly[0] = constant
+            for t in range(n_terms):
+                e = piece[t]
+                if e < 0:
                     continue
-                _shift_add(poly, coef[:, e, j], 4, term_s0[p, t], w, work)
-            else:
-                if e == OFF_RIGHT:
-                    poly[0] += w * running_end[j]
-                    continue
-                _shift_add(poly, running[:, e, j], 5, term_s0[p, t], w, work)
-        # ends of the piece: one-sided limits
-        v0 = poly[0]
-        v1 = _horner(poly, degree, width)
-        if v0 > best_max:
-            best_max, pos_max, side_max = v0, breaks[p], 1.0
-        if v0 < best_min:
-            best_min, pos_min, side_min = v0, breaks[p], 1.0
-        if v1 > best_max:
-            best_max, pos_max, side_max = v1, breaks[p + 1], -1.0
-        if v1 < best_min:
-            best_min, pos_min, side_min = v1, breaks[p + 1], -1.0
-        n_crit = _critical_points(poly, degree, width, crit, scratch)
-        for k in range(n_crit):
-            v = _horner(poly, degree, crit[k])
-            if v > best_max:
-                best_max, pos_max, side_max = v, breaks[p] + crit[k], 0.0
-            if v < best_min:
-                best_min, pos_min, side_min = v, breaks[p] + crit[k], 0.0
-    result[j, 0] = best_max
-    result[j, 1] = pos_max
-    result[j, 2] = side_max
-    result[j, 3] = best_min
-    result[j, 4] = pos_min
-    result[j, 5] = side_min
+                if kind[t] == KIND_POINT:
+                    if e < m:
+                        _shift_add(poly, coef[:, e, line], 4, xi - offsets[t] - knots[e],
+                                   weight[t], work)
+                elif e < m:
+                    _shift_add(poly, running[:, e, line], 5, xi - offsets[t] - knots[e],
+                               weight[t], work)
+                else:
+                    poly[0] += weight[t] * running_end[line]
+            v0 = poly[0]
+            v1 = _horner(poly, degree, width)
+            if v0 > best_max:
+                best_max, pos_max, side_max = v0, xi, 1.0
+            if v0 < best_min:
+                best_min, pos_min, side_min = v0, xi, 1.0
+            if v1 > best_max:
+                best_max, pos_max, side_max = v1, nxt, -1.0
+            if v1 < best_min:
+                best_min, pos_min, side_min = v1, nxt, -1.0
+            n_crit = _critical_points(poly, degree, width, crit, scratch)
+            for k in range(n_crit):
+                v = _horner(poly, degree, crit[k])
+                if v > best_max:
+                    best_max, pos_max, side_max = v, xi + crit[k], 0.0
+                if v < best_min:
+                    best_min, pos_min, side_min = v, xi + crit[k], 0.0
+        if nxt == np.inf:
+            break
+        for t in range(n_terms):
+            if upcoming[t] <= nxt:
+                piece[t] += 1
+                upcoming[t] = _next_break(knots, piece[t], offsets[t])
+        xi = nxt
+    result[row, 0] = best_max
+    result[row, 1] = pos_max
+    result[row, 2] = side_max
+    result[row, 3] = best_min
+    result[row, 4] = pos_min
+    result[row, 5] = side_min
 
 
 @njit(**PARALLEL_OPTIONS)
-def scan_lines_parallel(breaks, coef, running, running_end, term_weight, term_kind, term_piece,
-               term_s0, constant, degree):
-    """Exact extremes of a load group's response for every line.
+def scan_rows_parallel(knots, coef, running, running_end, weight, kind, offsets, lines,
+                       constant_weight, degree):
+    """Exact extremes of a load group's response, one row per (line, arrangement).
 
     Parameters
     ----------
-    breaks : (n_pieces + 1,) sorted reference positions ξ where any term crosses a knot
+    knots : (m + 1,) shared breakpoints of the lines [length]
     coef : (4, m, n_lines) influence-line cubics (PPoly layout, highest power first)
-    running : (5, m, n_lines) running integrals of the lines (quartics)
-    running_end : (n_lines,) running integral over the whole beam
-    term_weight, term_kind : (n_terms,) weight and kind of each term
-    term_piece : (n_pieces, n_terms) line piece each term reads on each piece, or OFF_*
-    term_s0 : (n_pieces, n_terms) local coordinate of each term at the start of each piece
-    constant : (n_lines,) response that does not move (e.g. an unlimited load ahead)
+    running : (5, m, n_lines) running integrals F(x) = ∫₀ˣ IL of the lines (quartics)
+    running_end : (n_lines,) F at the right end of the beam
+    weight, kind : (n_terms,) weight of each term and its kind (KIND_POINT or
+        KIND_RUNNING_INTEGRAL)
+    offsets : (n_rows, n_terms) or (1, n_terms) offset of each term behind the reference
+        point, per row or shared by all rows [length]
+    lines : (n_rows,) the line each row scans
+    constant_weight : weight of F(L) that never moves (an unlimited load ahead)
     degree : 3 when only concentrated terms, else 4
 
     Returns
     -------
-    (n_lines, 6): max, ξ at max, side at max, min, ξ at min, side at min
+    (n_rows, 6): max, ξ at max, side at max, min, ξ at min, side at min
     """
-    n_lines = coef.shape[2]
-    result = np.empty((n_lines, 6))
-    for j in prange(n_lines):
-        _scan_one_line(j, breaks, coef, running, running_end, term_weight, term_kind,
-                       term_piece, term_s0, constant, degree, result)
+    n_rows = lines.shape[0]
+    shared = offsets.shape[0] == 1
+    result = np.empty((n_rows, 6))
+    for row in prange(n_rows):
+        line = lines[row]
+        offsets_row = offsets[0] if shared else offsets[row]
+        _scan_row(row, line, knots, coef, running, running_end, weight, kind, offsets_row,
+                  constant_weight * running_end[line], degree, result)
     return result
 
 
 @njit(**JIT_OPTIONS)
-def scan_lines_serial(breaks, coef, running, running_end, term_weight, term_kind, term_piece,
-                      term_s0, constant, degree):
-    """``scan_lines_parallel`` on one thread: cheaper for a handful of lines, where starting
+def scan_rows_serial(knots, coef, running, running_end, weight, kind, offsets, lines,
+                     constant_weight, degree):
+    """``scan_rows_parallel`` on one thread: cheaper for a handful of rows, where starting
     the thread pool costs more than the work."""
-    n_lines = coef.shape[2]
-    result = np.empty((n_lines, 6))
-    for j in range(n_lines):
-        _scan_one_line(j, breaks, coef, running, running_end, term_weight, term_kind,
-                       term_piece, term_s0, constant, degree, result)
+    n_rows = lines.shape[0]
+    shared = offsets.shape[0] == 1
+    result = np.empty((n_rows, 6))
+    for row in range(n_rows):
+        line = lines[row]
+        offsets_row = offsets[0] if shared else offsets[row]
+        _scan_row(row, line, knots, coef, running, running_end, weight, kind, offsets_row,
+                  constant_weight * running_end[line], degree, result)
     return result
 
 
-PARALLEL_FROM_LINES = 64  # below this many lines the serial kernel is faster
+# Below this much work (rows x pieces x terms) starting the thread pool costs more than it
+# saves; measured on 2 cores, where a busy machine makes the pool slower still.
+PARALLEL_FROM_WORK = 4_000_000
 
 
-def scan_lines(breaks, coef, running, running_end, term_weight, term_kind, term_piece,
-               term_s0, constant, degree):
-    """Exact extremes for every line; see ``scan_lines_parallel`` for the arguments."""
-    kernel = scan_lines_parallel if coef.shape[2] >= PARALLEL_FROM_LINES else scan_lines_serial
-    return kernel(breaks, coef, running, running_end, term_weight, term_kind, term_piece,
-                  term_s0, constant, degree)
+def scan_rows(knots, coef, running, running_end, weight, kind, offsets, lines,
+              constant_weight, degree):
+    """Exact extremes per row; see ``scan_rows_parallel`` for the arguments."""
+    n_terms = weight.shape[0]
+    work = lines.shape[0] * knots.shape[0] * n_terms * n_terms
+    kernel = scan_rows_parallel if work >= PARALLEL_FROM_WORK else scan_rows_serial
+    return kernel(knots, coef, running, running_end, weight, kind, offsets, lines,
+                  float(constant_weight), int(degree))
