@@ -79,8 +79,12 @@ class StiffnessSegment:
 
 
 def _as_segments(EI: Any, length: float) -> tuple[StiffnessSegment, ...]:
-    if np.ndim(EI) == 0 and not isinstance(EI, list | tuple):
-        value = float(EI)
+    if not isinstance(EI, list | tuple | np.ndarray):
+        try:
+            value = float(EI)
+        except (TypeError, ValueError):
+            raise ModelError(f"EI must be a positive number or a list of segments, "
+                             f"found {EI!r}") from None
         if not np.isfinite(value) or value <= 0:
             raise ModelError(f"EI must be a positive number, found {EI!r}")
         return (StiffnessSegment(0.0, length, value, value),)
