@@ -134,13 +134,7 @@ def test_concurrent_effects_are_the_static_solution(seed: int, uniform: bool) ->
                     assert not response.any()
                     continue
                 axles, parts = _place(factored, g.reference, g.direction)
-                # an axle a rounding off a shear section: covered (as a known bug) by
-                # test_concurrent_shear_with_an_axle_a_rounding_off_the_section
-                rounding = np.array([e.kind == "shear" and any(
-                    0 < abs(x - e.at) <= 1e-12 * beam.length for x, _ in axles)
-                    for e in effects])
-                if not rounding[line]:
-                    assert response[line] == pytest.approx(g.value, abs=REL * scale[line])
+                assert response[line] == pytest.approx(g.value, abs=REL * scale[line])
                 np.testing.assert_allclose(env.axle_positions(g), [x for x, _ in axles],
                                            rtol=0, atol=1e-12 * beam.length)
                 if g.side == 0:
@@ -154,7 +148,7 @@ def test_concurrent_effects_are_the_static_solution(seed: int, uniform: bool) ->
                 else:
                     expected = factor * static_effects(solver, effects, axles, parts,
                                                        limit=g.side)
-                    bad = (np.abs(response - expected) > REL * scale) & ~rounding
+                    bad = np.abs(response - expected) > REL * scale
                     assert not bad.any(), (kind, which, row, g, [
                         (effects[i], response[i], expected[i]) for i in np.flatnonzero(bad)])
 
@@ -180,13 +174,11 @@ def test_reference_and_direction_of_a_one_way_vehicle() -> None:
     np.testing.assert_allclose(both.axle_positions(g), [3.0, 7.0], atol=1e-9)
 
 
-@pytest.mark.xfail(strict=True, reason="bug: group_response evaluates the one-sided limit at "
-                   "x = ξ − u, which rounding can put one ulp off the knot (0.45 − 0.15 ≠ 0.3), "
-                   "so the concurrent shear at a jump is read on the wrong side")
 def test_concurrent_shear_with_an_axle_a_rounding_off_the_section() -> None:
     """Two unit axles 0.15 apart on a unit simple span, largest moment at x = 0.3: one axle
-    stands at the section, and the side the envelope reports says on which side of the shear
-    jump; with both axles just right of it, V = R_A = 0.55 + 0.7 = 1.25 (statics)."""
+    stands at the section (0.45 − 0.15 is one ulp off 0.3 in floating point), and the side
+    the envelope reports says on which side of the shear jump it stands; with both axles just
+    right of it, V = R_A = 0.55 + 0.7 = 1.25 (statics). Regression test."""
     beam = trundle.Beam(spans=[1.0])
     env = trundle.envelope(beam, [trundle.Vehicle(loads=[1.0, 1.0], spacings=[0.15])],
                            sections=[0.3], effects=("moment", "shear"))
@@ -220,10 +212,9 @@ def test_loaded_stretches_reproduce_the_placed_extreme(placement: str) -> None:
                 assert all(a in ends and b in ends for a, b in stretches)
 
 
-@pytest.mark.xfail(strict=True, reason="bug: a placed uniform load's concentrated load keeps "
-                   "its position but not the side of the jump, so response_to reads the "
-                   "other side of a shear jump")
 def test_concurrent_shear_of_uniform_load_with_point_load() -> None:
+    """The concentrated load of a placed uniform load stands on the side of the shear jump
+    that gives the extreme; the concurrent values must read that side. Regression test."""
     beam = trundle.Beam(spans=[10.0, 10.0])
     env = trundle.envelope(beam, [trundle.UniformLoad(1.0, point_load=5.0)], sections=[4.0],
                            effects=("shear",))
@@ -257,11 +248,9 @@ def test_absolute_moment_bounds_every_section_of_the_span() -> None:
         assert value == pytest.approx(a.value, rel=1e-9)
 
 
-@pytest.mark.xfail(strict=True, reason="bug: absolute_extremes returns the Governing of a "
-                   "temporary envelope; for uniform load placed anywhere its pattern names a "
-                   "line of that envelope, so Envelope.loaded_stretches reads the wrong line "
-                   "(or fails with IndexError)")
 def test_absolute_extreme_of_placed_uniform_load_names_its_loaded_stretches() -> None:
+    """The governing pattern of an absolute extreme must be readable on the envelope it is
+    reported by (it was found on a temporary one). Regression test."""
     beam = trundle.Beam(spans=[10.0, 10.0])
     env = trundle.envelope(beam, [trundle.UniformLoad(1.0)], effects=("moment",))
     for a in env.absolute("moment"):

@@ -38,22 +38,19 @@ def _close_sets(found: list[float], expected: list[float], rel: float) -> bool:
     return all(near(a, expected) for a in found) and all(near(b, found) for b in expected)
 
 
-def _run_kernel(parallel: bool, batch: LineBatch, group: TermGroup) -> np.ndarray:
-    """Call the compiled kernel directly for every line of the batch; (n_lines, 6)."""
-    weights, offsets, kinds, constant = group.terms()
+def _run_kernel(parallel: bool, batch: LineBatch, group: TermGroup,
+                lines: np.ndarray | None = None, offsets: np.ndarray | None = None
+                ) -> np.ndarray:
+    """Call the compiled kernel directly: one row per line (all lines by default), the
+    group's offsets shared by every row unless ``offsets`` gives them per row."""
+    weights, own_offsets, kinds, constant = group.terms()
     degree = 4 if (kinds == kernels.KIND_RUNNING_INTEGRAL).any() else 3
-    n = batch.n_lines
-    if hasattr(kernels, "scan_rows_serial"):  # one row per (line, arrangement)
-        kernel = kernels.scan_rows_parallel if parallel else kernels.scan_rows_serial
-        return kernel(batch.knots, batch.coef, batch.running, batch.running_end, weights,
-                      kinds, np.ascontiguousarray(offsets[None, :]), np.arange(n),
-                      float(constant), degree)
-    from trundle.scan.engine import _pieces  # the earlier layout: breaks prepared in Python
-
-    breaks, piece, s0 = _pieces(batch.knots, offsets)
-    kernel = kernels.scan_lines_parallel if parallel else kernels.scan_lines_serial
-    return kernel(breaks, batch.coef, batch.running, batch.running_end, weights, kinds, piece,
-                  s0, np.ascontiguousarray(constant * batch.running_end), degree)
+    lines = np.arange(batch.n_lines) if lines is None else lines
+    offsets = own_offsets[None, :] if offsets is None else offsets
+    kernel = kernels.scan_rows_parallel if parallel else kernels.scan_rows_serial
+    return kernel(batch.knots, batch.coef, batch.running, batch.running_end, weights, kinds,
+                  np.ascontiguousarray(offsets, dtype=float), np.ascontiguousarray(lines),
+                  float(constant), degree)
 
 
 def _random_group(rng: np.random.Generator, length: float, uniform: str
@@ -221,3 +218,32 @@ def test_scan_of_a_single_unit_load_is_the_line_extreme(seed: int) -> None:
         scale = max(abs(line.max()[0]), abs(line.min()[0]), 1e-300)
         assert r[j, 0] == pytest.approx(max(line.max()[0], 0.0), abs=1e-12 * scale)
         assert r[j, 3] == pytest.approx(min(line.min()[0], 0.0), abs=1e-12 * scale)
+
+
+@pytest.mark.parametrize("seed", range(3))
+def test_rows_with_their_own_arrangements_match_plain_scan(seed: int) -> None:
+    """Rows may scan different lines with different offsets (a searched spacing): every row
+    equals the plain scan of its own line under its own arrangement."""
+    rng, beam, lines = _lines_of_random_beam(seed + 10)
+    batch = LineBatch.from_set(lines)
+    group, arrangement = _random_group(rng, beam.length, "finite")
+    weights, offsets, kinds, _ = group.terms()
+    n_rows = 3 * len(lines)
+    row_lines = rng.integers(0, len(lines), n_rows)
+    stretch = rng.uniform(0.5, 1.5, n_rows)  # every offset scaled per row
+    row_offsets = stretch[:, None] * offsets[None, :]
+    serial = _run_kernel(False, batch, group, row_lines, row_offsets)
+    parallel = _run_kernel(True, batch, group, row_lines, row_offsets)
+    np.testing.assert_array_equal(serial, parallel)
+    expected = np.empty((n_rows, 6))
+    for r in range(n_rows):
+        f = stretch[r]
+        own = Arrangement(tuple((f * u, P) for u, P in arrangement.points),
+                          tuple((f * u0, f * u1, w) for u0, u1, w in arrangement.uniform))
+        line = PlainLine.from_ppoly(lines.knots, lines.coefficients[:, :, row_lines[r]])
+        expected[r] = plain_scan(line, own)
+    kinds = np.array([lines.effects[j].kind for j in row_lines])
+    for r in range(n_rows):
+        scale = max(np.abs(expected[kinds == kinds[r]][:, [0, 3]]).max(), 1e-300)
+        assert serial[r, 0] == pytest.approx(expected[r, 0], abs=1e-10 * scale)
+        assert serial[r, 3] == pytest.approx(expected[r, 3], abs=1e-10 * scale)
