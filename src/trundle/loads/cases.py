@@ -32,16 +32,31 @@ class LoadCase:
     name: str = ""
 
     def __post_init__(self) -> None:
-        if not np.isfinite(self.impact) or self.impact < 0:
+        is_placed = hasattr(self.load, "placement")
+        is_moving = hasattr(self.load, "group") and hasattr(self.load, "parameters")
+        if not (is_placed or is_moving):
+            label = f"load case {self.name!r}" if self.name else "load case"
+            raise ModelError(f"{label}: load: expected a Vehicle, Train or UniformLoad, "
+                             f"found {self.load!r}")
+        try:
+            impact = float(self.impact)
+        except (TypeError, ValueError):
+            impact = float("nan")
+        if not np.isfinite(impact) or impact < 0:
             raise ModelError(f"load case {self.name or self.load.name!r}: impact: expected a "
                              f"fraction >= 0, found {self.impact!r}")
-        factors = tuple((str(k), float(v)) for k, v in (
-            self.factors.items() if isinstance(self.factors, dict) else self.factors))
-        for k, v in factors:
-            if not np.isfinite(v) or v < 0:
+        factors = []
+        for k, v in (self.factors.items() if isinstance(self.factors, dict) else self.factors):
+            try:
+                value = float(v)
+            except (TypeError, ValueError):
+                value = float("nan")
+            if not np.isfinite(value) or value < 0:
                 raise ModelError(f"load case {self.name or self.load.name!r}: factor {k!r}: "
                                  f"expected a number >= 0, found {v!r}")
-        object.__setattr__(self, "factors", factors)
+            factors.append((str(k), value))
+        object.__setattr__(self, "impact", impact)
+        object.__setattr__(self, "factors", tuple(factors))
         if not self.name:
             object.__setattr__(self, "name", getattr(self.load, "name", "load"))
 

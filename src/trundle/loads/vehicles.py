@@ -9,7 +9,7 @@ applied to axle loads only.
 from __future__ import annotations
 
 import math
-from collections.abc import Sequence
+from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -29,15 +29,30 @@ class SearchParameter:
     high: float
 
 
+def _number(value: object, what: str) -> float:
+    try:
+        return float(value)  # type: ignore[arg-type]
+    except (TypeError, ValueError):
+        raise ModelError(f"{what}: expected a number, found {value!r}") from None
+
+
+def _sequence(value: object, what: str) -> tuple:
+    if value is None or isinstance(value, str):
+        raise ModelError(f"{what}: expected a list, found {value!r}")
+    if isinstance(value, Iterable):
+        return tuple(value)
+    return (value,)  # a single value stands for a list of one
+
+
 def _check_spacing(value: Spacing, what: str) -> Spacing:
     if isinstance(value, tuple | list):
         if len(value) != 2:
             raise ModelError(f"{what}: a range is (min, max), found {value!r}")
-        lo, hi = float(value[0]), float(value[1])
+        lo, hi = _number(value[0], what), _number(value[1], what)
         if not (np.isfinite(lo) and np.isfinite(hi)) or lo < 0 or hi < lo:
             raise ModelError(f"{what}: expected 0 <= min <= max, found {value!r}")
         return (lo, hi) if hi > lo else lo
-    v = float(value)
+    v = _number(value, what)
     if not np.isfinite(v) or v < 0:
         raise ModelError(f"{what}: expected a length >= 0, found {value!r}")
     return v
@@ -65,14 +80,15 @@ class Vehicle:
     reversible: bool = True
 
     def __post_init__(self) -> None:
-        loads = tuple(float(p) for p in np.atleast_1d(self.loads))
+        loads = tuple(_number(p, f"vehicle {self.name!r}: loads[{i}]")
+                      for i, p in enumerate(_sequence(self.loads, f"vehicle {self.name!r}: loads")))
         if not loads:
             raise ModelError(f"vehicle {self.name!r}: loads: at least one axle is needed")
         for i, p in enumerate(loads):
             if not np.isfinite(p) or p < 0:
                 raise ModelError(f"vehicle {self.name!r}: loads[{i}]: expected a force >= 0, "
                                  f"found {p!r}")
-        spacings = tuple(self.spacings)
+        spacings = _sequence(self.spacings, f"vehicle {self.name!r}: spacings")
         if len(spacings) != len(loads) - 1:
             raise ModelError(f"vehicle {self.name!r}: spacings: expected {len(loads) - 1} "
                              f"(one between each pair of axles), found {len(spacings)}")
@@ -156,10 +172,18 @@ class Train:
     reversible: bool = True
 
     def __post_init__(self) -> None:
-        vehicles = tuple(self.vehicles)
+        vehicles = _sequence(self.vehicles, f"train {self.name!r}: vehicles")
         if not vehicles:
             raise ModelError(f"train {self.name!r}: at least one vehicle is needed")
-        gaps = tuple(self.gaps)
+        for i, v in enumerate(vehicles):
+            if not isinstance(v, Vehicle):
+                raise ModelError(f"train {self.name!r}: vehicles[{i}]: expected a Vehicle, "
+                                 f"found {v!r}")
+        for label, part in (("ahead", self.ahead), ("behind", self.behind)):
+            if part is not None and not isinstance(part, AttachedUniform):
+                raise ModelError(f"train {self.name!r}: {label}: expected an AttachedUniform "
+                                 f"or None, found {part!r}")
+        gaps = _sequence(self.gaps, f"train {self.name!r}: gaps")
         if len(gaps) != len(vehicles) - 1:
             raise ModelError(f"train {self.name!r}: gaps: expected {len(vehicles) - 1}, "
                              f"found {len(gaps)}")
