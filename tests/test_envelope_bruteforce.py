@@ -268,23 +268,27 @@ def test_searched_axle_spacing() -> None:
     _check_searched(env, truck, low, high)
 
 
-def test_searched_gap_of_a_train_with_uniform_load() -> None:
+@pytest.mark.parametrize("where, reach", [("behind", math.inf), ("behind", 6.0),
+                                          ("ahead", math.inf), ("ahead", 6.0)])
+def test_searched_gap_of_a_train_with_uniform_load(where: str, reach: float) -> None:
     beam = trundle.Beam(spans=[10.0, 14.0, 10.0])
     low, high = 2.0, 12.0
     lead = trundle.Vehicle(loads=[2.0, 2.0], spacings=[1.5])
+    part = trundle.AttachedUniform(0.3, length=reach, gap=1.0)
     train = trundle.Train(vehicles=[lead, lead], gaps=[(low, high)],
-                          behind=trundle.AttachedUniform(0.3, length=math.inf, gap=1.0))
+                          **{where: part})
     sections = [5.0, 10.0, 17.0]
     env = trundle.envelope(beam, [train], sections=sections,
                            effects=("moment", "shear", "reaction"))
     _check_searched(env, train, low, high)
     # at the gap found for the largest support moment, the brute force agrees exactly
     effects = [trundle.Effect("moment", at=10.0)]
-    g = env.governing("moment", "min")[1]
-    gap = g.searched[0]
+    gap = env.governing("moment", "min")[1].searched[0]
     axles = _axles([2.0, 2.0, 2.0, 2.0], [1.5, gap, 1.5])
-    arrangement = Arrangement(tuple(axles), ((axles[-1][0] + 1.0, math.inf, 0.3),))
-    high_bf, low_bf = BruteForce(beam, effects).extremes(arrangement)
+    back = axles[-1][0]
+    uniform = ((back + 1.0, back + 1.0 + reach, 0.3) if where == "behind"
+               else (-1.0 - reach, -1.0, 0.3))
+    _, low_bf = BruteForce(beam, effects).extremes(Arrangement(tuple(axles), (uniform,)))
     assert env.min("moment")[1] == pytest.approx(low_bf[0], rel=REL)
 
 
