@@ -52,13 +52,22 @@ class WheelLoads:
     impact: float
 
 
-def _positive(value: float, what: str, crane: str, allow_zero: bool = False) -> float:
-    v = float(value)
+def _positive(value: object, what: str, crane: str, allow_zero: bool = False) -> float:
+    bound = ">= 0" if allow_zero else "> 0"
+    try:
+        v = float(value)  # type: ignore[arg-type]
+    except (TypeError, ValueError):
+        v = float("nan")
     ok = v >= 0 if allow_zero else v > 0
     if not np.isfinite(v) or not ok:
-        bound = ">= 0" if allow_zero else "> 0"
         raise ModelError(f"crane {crane!r}: {what}: expected a number {bound}, found {value!r}")
     return v
+
+
+def _numbers(value: object, what: str, crane: str) -> tuple:
+    if value is None or isinstance(value, str) or not hasattr(value, "__iter__"):
+        raise ModelError(f"crane {crane!r}: {what}: expected a list of numbers, found {value!r}")
+    return tuple(value)  # type: ignore[arg-type]
 
 
 @dataclass(frozen=True)
@@ -77,7 +86,7 @@ class Crane:
     span : float [length]
         Crane span, rail to rail.
     hook_approach : float [length]
-        Minimum distance from a rail to the hook.
+        Minimum distance from a rail to the hook (at most half the crane span).
     wheel_spacings : sequence of float [length]
         Distances between consecutive wheels along one rail (two wheels: one spacing; four
         wheels in bogies: three).
@@ -112,36 +121,43 @@ class Crane:
 
     def __post_init__(self) -> None:
         n = self.name
-        _positive(self.capacity, "capacity", n, allow_zero=True)
-        _positive(self.bridge_weight, "bridge_weight", n, allow_zero=True)
-        _positive(self.trolley_weight, "trolley_weight", n, allow_zero=True)
-        _positive(self.span, "span", n)
-        _positive(self.hook_approach, "hook_approach", n, allow_zero=True)
-        if self.hook_approach >= self.span:
-            raise ModelError(f"crane {n!r}: hook_approach: expected less than the crane span "
-                             f"({self.span:g}), found {self.hook_approach:g}")
-        spacings = tuple(_positive(s, "wheel_spacings", n) for s in self.wheel_spacings)
-        object.__setattr__(self, "wheel_spacings", spacings)
+
+        def keep(key: str, value: object) -> None:
+            object.__setattr__(self, key, value)
+
+        for key in ("capacity", "bridge_weight", "trolley_weight", "hook_approach"):
+            keep(key, _positive(getattr(self, key), key, n, allow_zero=True))
+        keep("span", _positive(self.span, "span", n))
+        # the trolley must find a place at least the hook approach from both rails
+        if self.hook_approach > 0.5 * self.span:
+            raise ModelError(f"crane {n!r}: hook_approach: expected at most half the crane span "
+                             f"({0.5 * self.span:g}), found {self.hook_approach:g}")
+        keep("wheel_spacings", tuple(_positive(s, "wheel_spacings", n) for s in
+                                     _numbers(self.wheel_spacings, "wheel_spacings", n)))
         if self.operation not in OPERATIONS:
             raise ModelError(f"crane {n!r}: operation: expected one of {', '.join(OPERATIONS)}, "
                              f"found {self.operation!r}")
         for key in ("impact", "lateral_fraction", "longitudinal_fraction"):
             value = getattr(self, key)
             if value is not None:
-                _positive(value, key, n, allow_zero=True)
-        if not (0.0 <= self.lateral_share <= 1.0):
+                keep(key, _positive(value, key, n, allow_zero=True))
+        share = _positive(self.lateral_share, "lateral_share", n, allow_zero=True)
+        if share > 1.0:
             raise ModelError(f"crane {n!r}: lateral_share: expected 0 to 1, "
                              f"found {self.lateral_share!r}")
-        if self.buffer_length is not None and self.buffer_length < self.wheelbase:
-            raise ModelError(f"crane {n!r}: buffer_length: expected at least the wheelbase "
-                             f"({self.wheelbase:g}), found {self.buffer_length:g}")
+        keep("lateral_share", share)
+        if self.buffer_length is not None:
+            keep("buffer_length", _positive(self.buffer_length, "buffer_length", n))
+            if self.buffer_length < self.wheelbase:
+                raise ModelError(f"crane {n!r}: buffer_length: expected at least the wheelbase "
+                                 f"({self.wheelbase:g}), found {self.buffer_length:g}")
         if self.wheel_loads is not None:
             loads = tuple(_positive(w, "wheel_loads", n, allow_zero=True)
-                          for w in self.wheel_loads)
+                          for w in _numbers(self.wheel_loads, "wheel_loads", n))
             if len(loads) != 3:
                 raise ModelError(f"crane {n!r}: wheel_loads: expected (maximum, minimum, "
                                  f"unloaded), found {self.wheel_loads!r}")
-            object.__setattr__(self, "wheel_loads", loads)
+            keep("wheel_loads", loads)
 
     @property
     def wheels_per_rail(self) -> int:
