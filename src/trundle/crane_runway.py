@@ -283,8 +283,8 @@ def _deflection_checks(env: Envelope, ratio: float, both_ways: bool
         x = float(env.sections[i])
         if governing.case >= 0:
             for extreme in absolute_extremes(beam, env.cases[governing.case], span,
-                                             "deflection"):
-                if extreme.which == which and abs(extreme.value) > value:
+                                             "deflection", extremes=(which,)):
+                if abs(extreme.value) > value:
                     value, x = abs(extreme.value), extreme.x
         name = env.cases[governing.case].name if governing.case >= 0 else "none"
         length = beam.spans[span]

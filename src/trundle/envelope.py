@@ -174,19 +174,24 @@ def _arrangements(case: LoadCase) -> dict[int, _Arrangement]:
 
 def _moving_grid(batch: LineBatch, case: LoadCase, case_index: int,
                  arrangements: dict[int, _Arrangement]) -> _CaseResult:
-    """Every line, every grid value of the searched dimensions, both directions."""
+    """Every line, every grid value of the searched dimensions, both directions: one kernel
+    call per direction, a row per (grid value, line)."""
     params = case.load.parameters()
     n = batch.n_lines
     result = _CaseResult(case_index, n, len(params))
+    grid = np.array(_grid(params), dtype=float).reshape(len(_grid(params)), len(params))
     lines = np.arange(n)
-    for values in _grid(params):
-        values = np.asarray(values, dtype=float)
-        for direction, arr in arrangements.items():
-            r = scan_arrangements(batch, arr.weights, arr.kinds, arr.offsets(values), lines,
-                                  arr.constant)
-            for w, col in ((0, 0), (1, 3)):
-                result.offer(w, lines, r[:, col], r[:, col + 1], r[:, col + 2].astype(np.int64),
-                             direction, values)
+    for direction, arr in arrangements.items():
+        offsets = np.repeat(arr.offsets(grid), n, axis=0)
+        r = scan_arrangements(batch, arr.weights, arr.kinds, offsets, np.tile(lines, len(grid)),
+                              arr.constant).reshape(len(grid), n, 6)
+        for w, col in ((0, 0), (1, 3)):
+            sign = 1.0 if w == 0 else -1.0
+            score = np.where(np.isnan(r[:, :, col + 1]), -np.inf, sign * r[:, :, col])
+            g = np.argmax(score, axis=0)
+            pick = r[g, lines]
+            result.offer(w, lines, pick[:, col], pick[:, col + 1],
+                         pick[:, col + 2].astype(np.int64), direction, grid[g])
     return result
 
 
@@ -194,36 +199,46 @@ _INVERSE_GOLDEN = (np.sqrt(5.0) - 1.0) / 2.0
 
 
 def _refine(batch: LineBatch, case: LoadCase, result: _CaseResult,
-            arrangements: dict[int, _Arrangement], w: int, lines: NDArray[np.int64]) -> None:
-    """Golden-section search of each searched dimension, all chosen lines in lockstep, each
-    around its own best grid value and in its own governing direction."""
+            arrangements: dict[int, _Arrangement], tasks: list[NDArray[np.int64]]) -> None:
+    """Golden-section search of each searched dimension around each line's best grid value,
+    in its governing direction; ``tasks[w]`` lists the lines to refine for the max (w = 0)
+    and the min (w = 1). All tasks of a direction advance in lockstep, one kernel call per
+    step."""
     params = case.load.parameters()
-    if not params or lines.size == 0:
+    if not params or not any(t.size for t in tasks):
         return
     per = max(2, int(round(GRID_BUDGET ** (1.0 / len(params)))))
-    col = 0 if w == 0 else 3
-    sign = 1.0 if w == 0 else -1.0
     tolerance = 1e-9 * max(1.0, batch.length)
     for _sweep in range(1 if len(params) == 1 else 2):
         for k, p in enumerate(params):
             step = (p.high - p.low) / (per - 1)
             for direction, arr in arrangements.items():
-                rows = lines[result.direction[w, lines] == direction]
-                if rows.size == 0:
+                which = np.concatenate([np.full(t.size, w) for w, t in enumerate(tasks)])
+                lines = np.concatenate(tasks)
+                keep = result.direction[which, lines] == direction
+                which, lines = which[keep], lines[keep]
+                if lines.size == 0:
                     continue
-                base = result.searched[w, rows].copy()
+                base = result.searched[which, lines].copy()
                 a = np.maximum(p.low, base[:, k] - step)
                 b = np.minimum(p.high, base[:, k] + step)
+                col = np.where(which == 0, 0, 3)
+                sign = np.where(which == 0, 1.0, -1.0)
+                rows = np.arange(lines.size)
 
-                def evaluate(points: NDArray[np.float64], rows=rows, base=base, arr=arr,
-                             k=k, direction=direction) -> NDArray[np.float64]:
+                def evaluate(points: NDArray[np.float64], base=base, arr=arr, k=k,
+                             direction=direction, which=which, lines=lines, col=col,
+                             sign=sign, rows=rows) -> NDArray[np.float64]:
                     values = base.copy()
                     values[:, k] = points
                     r = scan_arrangements(batch, arr.weights, arr.kinds, arr.offsets(values),
-                                          rows, arr.constant)
-                    result.offer(w, rows, r[:, col], r[:, col + 1],
-                                 r[:, col + 2].astype(np.int64), direction, values)
-                    return sign * np.where(np.isnan(r[:, col + 1]), 0.0, r[:, col])
+                                          lines, arr.constant)
+                    value, xi, side = r[rows, col], r[rows, col + 1], r[rows, col + 2]
+                    for w in (0, 1):
+                        mine = which == w
+                        result.offer(w, lines[mine], value[mine], xi[mine],
+                                     side[mine].astype(np.int64), direction, values[mine])
+                    return sign * np.where(np.isnan(xi), 0.0, value)
 
                 width = float((b - a).max())
                 if width <= tolerance:
@@ -443,41 +458,79 @@ class AbsoluteExtreme:
     governing: Governing
 
 
+@dataclass(frozen=True)
+class _Frozen:
+    """A moving load with its searched spacings and gaps held at given values."""
+
+    load: Any
+    values: tuple[float, ...]
+
+    @property
+    def name(self) -> str:
+        return self.load.name
+
+    @property
+    def reversible(self) -> bool:
+        return self.load.reversible
+
+    def parameters(self) -> list:
+        return []
+
+    def group(self, values: Sequence[float] = (), impact: float = 0.0) -> TermGroup:
+        return self.load.group(self.values, impact)
+
+    def describe(self) -> str:
+        return self.load.describe()
+
+
 def absolute_extremes(beam: Beam, case: LoadCase, span: int, kind: str = "moment",
-                      samples: int = 40, case_index: int = 0) -> tuple[AbsoluteExtreme, ...]:
+                      samples: int = 40, case_index: int = 0,
+                      extremes: Sequence[str] = ("max", "min")) -> tuple[AbsoluteExtreme, ...]:
     """Max and min of ``kind`` over all sections of a span: a grid of sections, then a bounded
     search around the best one (the worst section under a moving group is rarely a tenth point).
+
+    Every trial section gets the exact scan over all positions and both directions. Searched
+    spacings and gaps are held at their best values while the section is refined, then
+    searched again at the refined section, and the section refined once more (coordinate
+    ascent; each step can only improve the value).
     """
     if kind not in ("moment", "deflection"):
         raise ModelError(f"absolute extremes: expected moment or deflection, found {kind!r}")
     a, b = beam.support_positions[span], beam.support_positions[span + 1]
     xs = np.linspace(a, b, samples + 1)
     coarse = envelope(beam, [case], sections=xs, effects=(kind,))
+    searched = not isinstance(case.load, UniformLoad) and bool(case.load.parameters())
     out = []
-    for which in ("max", "min"):
+    for which in extremes:
         values = coarse.max(kind) if which == "max" else coarse.min(kind)
         sign = 1.0 if which == "max" else -1.0
         i = int(np.argmax(sign * values))
         lo, hi = xs[max(i - 1, 0)], xs[min(i + 1, samples)]
-
-        def at(x: float, which: str = which) -> Envelope:
-            return envelope(beam, [case], sections=[x], effects=(kind,))
-
-        def score(x: float, which: str = which, sign: float = sign) -> float:
-            e = at(x)
-            return -sign * float((e.max(kind) if which == "max" else e.min(kind))[0])
-
-        res = minimize_scalar(score, bounds=(lo, hi), method="bounded",
-                              options={"xatol": 1e-7 * (b - a)})
         best_x, best_value = float(xs[i]), float(values[i])
         governing = coarse.governing(kind, which)[i]
-        if -res.fun * sign > best_value * sign:
-            e = at(float(res.x))
-            best_x, best_value = float(res.x), float(-res.fun * sign)
+        source = coarse
+        rounds = 0 if governing.case < 0 else 2 if searched else 1  # nothing to refine if empty
+        for _round in range(rounds):
+            trial_case = case
+            if searched:
+                trial_case = LoadCase(_Frozen(case.load, governing.searched), case.impact,
+                                      case.factors, case.name)
+
+            def score(x: float, trial_case: LoadCase = trial_case, which: str = which,
+                      sign: float = sign) -> float:
+                e = envelope(beam, [trial_case], sections=[x], effects=(kind,))
+                return -sign * float((e.max(kind) if which == "max" else e.min(kind))[0])
+
+            res = minimize_scalar(score, bounds=(lo, hi), method="bounded",
+                                  options={"xatol": 1e-7 * (b - a)})
+            # the full search (spacings and gaps free again) at the refined section
+            e = envelope(beam, [case], sections=[float(res.x)], effects=(kind,))
+            value = float((e.max(kind) if which == "max" else e.min(kind))[0])
+            if sign * value <= sign * best_value:
+                break
+            best_x, best_value = float(res.x), value
             governing = e.governing(kind, which)[0]
             source = e
-        else:
-            source = coarse
         pattern = governing.pattern
         if pattern is not None:  # name the loaded stretches outright, not a line of `source`
             pattern = tuple(source.loaded_stretches(governing)[0])
@@ -524,10 +577,12 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
     stacked = np.array([r.value for r in results])  # (n_cases, 2, n)
     best = np.stack([stacked[:, 0].max(axis=0), stacked[:, 1].min(axis=0)])
     for case, result, arrangements in moving:
+        tasks = []
         for w in (0, 1):
             close = np.abs(result.value[w]) >= (1 - REFINE_WITHIN) * np.abs(best[w])
             close &= ~np.isnan(result.xi[w])
-            _refine(batch, case, result, arrangements, w, np.flatnonzero(close))
+            tasks.append(np.flatnonzero(close))
+        _refine(batch, case, result, arrangements, tasks)
     stacked = np.array([r.value for r in results])
     winners = np.stack([stacked[:, 0].argmax(axis=0), stacked[:, 1].argmin(axis=0)])
     scale = np.zeros(n)
