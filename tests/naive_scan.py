@@ -426,7 +426,7 @@ def static_effects(solver: ReferenceSolver, effects: list[trundle.Effect],
             # the reference counts an axle exactly at the section on the right side only;
             # from below (limit −1) it stands left of the section, from above right of it
             for x, P in on_beam:
-                if x == e.at and 0.0 < x < L:
+                if x == e.at:
                     if e.side == "left" and limit < 0:
                         values[j] -= P
                     elif e.side == "right" and limit > 0:
@@ -482,7 +482,12 @@ class BruteForce:
         offsets = loads.offsets()
         lo, hi = min(offsets), L + max(offsets)
         grid = np.linspace(lo, hi, int(math.ceil((hi - lo) / self.step)) + 1)
-        table = np.array([self.values(loads, xi) for xi in grid])  # (n_grid, n_effects)
+        # the grid's ends put a load exactly on an end of the beam: take the limit from inside
+        # there (one-sided limits are what counts at a jump, as at the special positions)
+        limits = np.zeros(len(grid), dtype=int)
+        limits[0], limits[-1] = 1, -1
+        table = np.array([self.values(loads, xi, int(limit))
+                          for xi, limit in zip(grid, limits, strict=True)])
         best_max = np.maximum(table.max(axis=0), 0.0)
         best_min = np.minimum(table.min(axis=0), 0.0)
         for xi in self.special_positions(loads):
