@@ -117,70 +117,126 @@ def _check_loads(beam: Beam, loads: Iterable[Load]) -> list[Load]:
     return out
 
 
+def _shape(s: NDArray[np.float64], h: float) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
+    """Hermite shape functions N (…, 4) and their slopes dN/ds at s in an element of length h."""
+    t = np.asarray(s, dtype=float) / h
+    n = np.stack([1 - 3 * t**2 + 2 * t**3, h * (t - 2 * t**2 + t**3), 3 * t**2 - 2 * t**3,
+                  h * (t**3 - t**2)], axis=-1)
+    dn = np.stack([(6 * t**2 - 6 * t) / h, 1 - 4 * t + 3 * t**2, (6 * t - 6 * t**2) / h,
+                   3 * t**2 - 2 * t], axis=-1)
+    return n, dn
+
+
+_GAUSS_T, _GAUSS_W = np.polynomial.legendre.leggauss(3)  # exact for the quartic N·w
+
+
 def solve_static(beam: Beam, loads: Iterable[Load]) -> StaticResult:
+    """Reactions and exact diagrams for fixed loads.
+
+    The structure is solved on its own nodes (one cached factorisation); loads inside an
+    element enter as their consistent nodal loads, which makes the nodal values exact for
+    Euler-Bernoulli elements. The diagrams are then integrated piece by piece from each
+    element's left-end forces (V' = −w, M' = V, v'' = −M/EI), with every load end a knot.
+    """
     loads = _check_loads(beam, loads)
-    points = []
-    for load in loads:
-        points.extend([load.x0, load.x1] if isinstance(load, DistributedLoad) else [load.x])
-    asm = assembly_for(beam, points)
+    length = beam.length
+    tol = 1e-9 * length
+    asm = assembly_for(beam, ())
     mesh = asm.mesh
+    xc = mesh.x
     h = mesh.lengths
     n_el = len(h)
-    # linear distributed load per element: w(s) = wa + (wb - wa) s / h
-    wa = np.zeros(n_el)
-    wb = np.zeros(n_el)
-    F = np.zeros(mesh.n_dof)
+    points = [xc]
+    for load in loads:
+        points.append([load.x0, load.x1] if isinstance(load, DistributedLoad) else [load.x])
+    knots = np.unique(np.clip(np.concatenate(points), 0.0, length))
+    knots = knots[np.concatenate([[True], np.diff(knots) > tol])]
+    knots[-1] = length
+    # snap each knot onto a structural node it nearly touches
+    nearest = np.abs(knots[:, None] - xc[None, :]).argmin(axis=1)
+    on_node = np.abs(knots - xc[nearest]) <= tol
+    knots[on_node] = xc[nearest[on_node]]
+    piece_element = np.clip(np.searchsorted(xc, 0.5 * (knots[:-1] + knots[1:])) - 1, 0,
+                            n_el - 1)
+    n_pieces = len(knots) - 1
+    wa = np.zeros(n_pieces)
+    wb = np.zeros(n_pieces)
+    force_at = np.zeros(len(knots))
+    couple_at = np.zeros(len(knots))
     for load in loads:
         if isinstance(load, DistributedLoad):
-            left = mesh.x[:-1]
-            right = mesh.x[1:]
-            tol = 1e-9 * beam.length
-            inside = (left >= load.x0 - tol) & (right <= load.x1 + tol)
-            wa[inside] += load.at(np.clip(left[inside], load.x0, load.x1))
-            wb[inside] += load.at(np.clip(right[inside], load.x0, load.x1))
-        elif isinstance(load, PointLoad):
-            F[mesh.v_dof[mesh.node_at(load.x)]] += load.P
+            inside = (knots[:-1] >= load.x0 - tol) & (knots[1:] <= load.x1 + tol)
+            wa[inside] += load.at(np.clip(knots[:-1][inside], load.x0, load.x1))
+            wb[inside] += load.at(np.clip(knots[1:][inside], load.x0, load.x1))
         else:
-            F[mesh.theta_right_dof[mesh.node_at(load.x)]] += load.M
-    # consistent nodal loads of linear loads (uniform part + triangular part)
-    dw = wb - wa
-    q = np.stack([wa * h / 2 + 3 * dw * h / 20, wa * h**2 / 12 + dw * h**2 / 30,
-                  wa * h / 2 + 7 * dw * h / 20, -wa * h**2 / 12 - dw * h**2 / 20], axis=1)
+            k = int(np.abs(knots - load.x).argmin())
+            if isinstance(load, PointLoad):
+                force_at[k] += load.P
+            else:
+                couple_at[k] += load.M
+    # consistent nodal loads
+    q = np.zeros((n_el, 4))
+    F = np.zeros(mesh.n_dof)
+    for p in range(n_pieces):
+        if wa[p] == 0.0 and wb[p] == 0.0:
+            continue
+        e = piece_element[p]
+        a, b = knots[p] - xc[e], knots[p + 1] - xc[e]
+        s = 0.5 * (a + b) + 0.5 * (b - a) * _GAUSS_T
+        w = wa[p] + (wb[p] - wa[p]) * (s - a) / (b - a)
+        n, _ = _shape(s, h[e])
+        q[e] += 0.5 * (b - a) * (_GAUSS_W * w) @ n
+    interior = ~np.isin(knots, xc)
+    for k in np.flatnonzero((force_at != 0.0) | (couple_at != 0.0)):
+        if interior[k]:
+            e = int(np.searchsorted(xc, knots[k], side="right")) - 1
+            n, dn = _shape(np.array(knots[k] - xc[e]), h[e])
+            q[e] += force_at[k] * n + couple_at[k] * dn
+        else:
+            node = int(np.abs(xc - knots[k]).argmin())
+            F[mesh.v_dof[node]] += force_at[k]
+            F[mesh.theta_right_dof[node]] += couple_at[k]
     np.add.at(F, mesh.element_dofs, q)
     u = asm.expand(asm.solve(F[asm.free])) if asm.free.size else np.zeros(mesh.n_dof)
     R_dof = asm.K @ u - F  # force each restraint applies to the nodes, in dof directions
     reactions = np.zeros(len(beam.supports))
     couples = np.zeros(len(beam.supports))
-    for i, (s, node) in enumerate(zip(beam.supports, mesh.support_nodes, strict=True)):
+    for i, (sup, node) in enumerate(zip(beam.supports, mesh.support_nodes, strict=True)):
         v, th = mesh.v_dof[node], mesh.theta_right_dof[node]
-        if isinstance(s, Spring):
-            reactions[i] = s.k * u[v]
-            couples[i] = 0.0 if s.kr is None else s.kr * u[th]
-        elif s != "free":
+        if isinstance(sup, Spring):
+            reactions[i] = sup.k * u[v]
+            couples[i] = 0.0 if sup.kr is None else sup.kr * u[th]
+        elif sup != "free":
             reactions[i] = -R_dof[v]
-            if s == "fixed":
+            if sup == "fixed":
                 couples[i] = -R_dof[th]
 
     k_el = element_stiffness(mesh.element_EI, h)
     ue = u[mesh.element_dofs]
     Q = np.einsum("eij,ej->ei", k_el, ue) - q
-    V0 = -Q[:, 0]
-    M0 = Q[:, 1]
-    # polynomials in s, highest power first (degree 5 for deflection)
-    shear_c = np.zeros((6, n_el))
-    shear_c[3], shear_c[4], shear_c[5] = -dw / (2 * h), -wa, V0
-    moment_c = np.zeros((6, n_el))
-    moment_c[2], moment_c[3], moment_c[4], moment_c[5] = -dw / (6 * h), -wa / 2, V0, M0
-    EI = mesh.element_EI
-    # v'' = -M/EI: integrate twice; v(0) = v1, v'(0) = θ1
-    rot_c = np.zeros((6, n_el))
-    rot_c[1], rot_c[2], rot_c[3], rot_c[4] = (-moment_c[2] / 4 / EI, -moment_c[3] / 3 / EI,
-                                               -moment_c[4] / 2 / EI, -moment_c[5] / EI)
-    rot_c[5] = ue[:, 1]
-    defl_c = np.zeros((6, n_el))
-    defl_c[0:5] = rot_c[1:6] / np.arange(5, 0, -1)[:, None]
-    defl_c[5] = ue[:, 0]
-    knots = mesh.x
+    shear_c = np.zeros((6, n_pieces))
+    moment_c = np.zeros((6, n_pieces))
+    rot_c = np.zeros((6, n_pieces))
+    defl_c = np.zeros((6, n_pieces))
+    V = M = v = theta = 0.0
+    for p in range(n_pieces):
+        e = piece_element[p]
+        if knots[p] == xc[e]:  # a new element: start from its own end forces and end values
+            V, M, v, theta = -Q[e, 0], Q[e, 1], ue[e, 0], ue[e, 1]
+        else:  # a load point inside the element: the diagrams jump
+            V -= force_at[p]
+            M += couple_at[p]
+        hp = knots[p + 1] - knots[p]
+        a, dw = wa[p], wb[p] - wa[p]
+        EI = mesh.element_EI[e]
+        # polynomials in the piece's local t, highest power first
+        shear_c[3:, p] = [-dw / (2 * hp), -a, V]
+        moment_c[2:, p] = [-dw / (6 * hp), -a / 2, V, M]
+        rot_c[1:, p] = [dw / (24 * hp * EI), a / (6 * EI), -V / (2 * EI), -M / EI, theta]
+        defl_c[:, p] = [dw / (120 * hp * EI), a / (24 * EI), -V / (6 * EI), -M / (2 * EI),
+                        theta, v]
+        V, M = np.polyval(shear_c[:, p], hp), np.polyval(moment_c[:, p], hp)
+        v, theta = np.polyval(defl_c[:, p], hp), np.polyval(rot_c[:, p], hp)
     return StaticResult(beam, reactions, couples,
                         PPoly.construct_fast(shear_c, knots),
                         PPoly.construct_fast(moment_c, knots),
