@@ -275,15 +275,17 @@ class Beam:
             rows.append(row)
             if s == "fixed" or (isinstance(s, Spring) and s.kr is not None):
                 row = np.zeros(2 * n)
-                row[2 * p + 1] = 1.0
+                row[2 * p + 1] = self.length  # held rotation, as a lift over the beam length
                 rows.append(row)
         for j, xh in enumerate(self.hinges):
             row = np.zeros(2 * n)
             row[2 * j], row[2 * j + 1] = 1.0, xh - pieces[j][0]
             row[2 * (j + 1)] = -1.0
             rows.append(row)
+        # unknowns (lift, rotation × length) of each piece: all lengths, so the rank check
+        # is fair in any unit system (rotation = lift over the beam length)
         scale = np.ones(2 * n)
-        scale[1::2] = self.length  # rotations measured as end lifts keep the rank check fair
+        scale[1::2] = 1.0 / self.length
         matrix = np.array(rows).reshape(-1, 2 * n) * scale if rows else np.zeros((0, 2 * n))
         if matrix.shape[0]:
             _, sv, vt = np.linalg.svd(matrix)
@@ -292,15 +294,15 @@ class Beam:
             rank, vt = 0, np.eye(2 * n)
         if rank == 2 * n:
             return
-        motion = vt[-1] * scale  # one free motion: (lift, rotation) of each rigid piece
+        motion = vt[-1]  # one free motion, unit norm: (lift, rotation × length) of each piece
         moving = []
         for p, (a, b) in enumerate(pieces):
-            lift, rot = motion[2 * p], motion[2 * p + 1]
-            if max(abs(lift), abs(rot) * (b - a)) > 1e-9 * max(1.0, np.abs(motion).max()):
+            lift, turn = motion[2 * p], motion[2 * p + 1] * (b - a) / self.length
+            if max(abs(lift), abs(lift + turn)) > 1e-9:
                 moving.append((a, b))
         a, b = moving[0][0], moving[-1][1]
         held = [i for i, s in enumerate(self.supports) if s != "free"
-                and a - 1e-9 <= self.support_positions[i] <= b + 1e-9]
+                and a - 1e-9 * self.length <= self.support_positions[i] <= b + 1e-9 * self.length]
         inner = [h for h in self.hinges if a < h < b]
         if not held and a == 0.0 and b == self.length:
             raise ModelError("unstable model: the beam has no vertical support")
