@@ -19,11 +19,10 @@ one-sided limits there from equilibrium.
 
 The static solve is ``ReferenceSolver``: a dense stiffness solve on a fixed mesh with
 work-equivalent nodal loads (exact for Euler–Bernoulli elements), and equilibrium of the part
-left of a section. It is used instead of ``beam.static`` because ``beam.static`` makes every
-load point a node, and a load a hair's breadth from a hinge, a stiffness step, a spring or a
-free end then makes a very short element that costs it digits (or is refused as "unstable");
-a brute force visits such positions all the time. The two agree away from the nodes (checked
-in test_envelope_bruteforce.py).
+left of a section; it shares no code with trundle. It was written because ``beam.static`` once
+made every load point a node, and the very short element next to a hinge, stiffness step,
+spring or free end cost it digits; a brute force visits such positions all the time. The two
+solvers are checked against each other in test_envelope_bruteforce.py.
 
 Load arrangements are given in group coordinates u (u = 0 at the reference axle, u growing
 backwards): a concentrated load at u stands at x = ξ − u, a uniform load (u0, u1, w) covers
