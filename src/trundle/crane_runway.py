@@ -206,16 +206,39 @@ class RunwaySpec:
     def __post_init__(self) -> None:
         if not self.cranes:
             raise ModelError("cranes: at least one crane is needed")
+        for i, crane in enumerate(self.cranes):
+            if not isinstance(crane, Crane):
+                raise ModelError(f"cranes[{i}]: expected a Crane, found {crane!r}")
         if self.service_class not in SERVICE_CLASSES:
             raise ModelError(f"service class: expected one of {', '.join(SERVICE_CLASSES)}, "
                              f"found {self.service_class!r}")
         names = [c.name for c in self.cranes]
         if len(set(names)) != len(names):
             raise ModelError(f"cranes: names must differ, found {names}")
+        if isinstance(self.combinations, str):
+            raise ModelError(f"crane combinations: expected a list of some of "
+                             f"{', '.join(COMBINATIONS)}, found {self.combinations!r}")
+        if not crane_combinations(self.cranes, self.combinations):  # refuses unknown names
+            raise ModelError(f"crane combinations: expected some of {', '.join(COMBINATIONS)}, "
+                             f"found {self.combinations!r}")
+        for key in ("lateral_EI", "vertical_ratio", "lateral_ratio", "section_modulus",
+                    "fatigue_cycles", "ksi"):
+            value = getattr(self, key)
+            if value is None:
+                continue
+            try:
+                number = float(value)
+            except (TypeError, ValueError):
+                number = math.nan
+            unlimited = key == "fatigue_cycles" and number == math.inf
+            if not (number > 0 and (math.isfinite(number) or unlimited)):
+                raise ModelError(f"runway: {key}: expected a positive number, found {value!r}")
         if self.detail_category is not None:
             allowable_stress_range_ksi(self.detail_category, 1.0)
             if self.section_modulus is None or self.ksi is None:
-                raise ModelError("fatigue: a detail category needs a section modulus")
+                raise ModelError("fatigue: a detail category needs section_modulus and ksi "
+                                 "(one ksi in the model's stress units), found "
+                                 f"section_modulus={self.section_modulus!r}, ksi={self.ksi!r}")
 
     @property
     def vertical_limit_ratio(self) -> float:
