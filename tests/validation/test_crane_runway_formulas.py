@@ -143,6 +143,27 @@ def test_one_crane_interior_reaction_of_simple_spans() -> None:
     assert np.min(np.abs(x - L)) < 1e-9 * L
 
 
+def test_four_wheel_crane_interior_reaction_of_simple_spans() -> None:
+    # Derived by hand: bogies of two wheels 1.5 m apart, 4.0 m between the bogies (offsets
+    # 0, 1.5, 5.5, 7.0 m); every wheel fits on the two spans next to the support. Wheel
+    # loads by bridge statics: (500/2 + (400 + 80)·(25 − 1.2)/25)/4 = 176.74 kN, with 25 %
+    # impact 220.925 kN. Inner wheel of a bogie over the support: triangle ordinates
+    # 0.85 + 1 + 0.6 + 0.45 = 2.9 (an outer wheel gives 1 + 0.85 + 0.45 + 0.3 = 2.6), so
+    # R = 2.9 · 220.925 = 640.6825 kN.
+    crane = Crane("ladle crane", capacity=400.0, bridge_weight=500.0, trolley_weight=80.0,
+                  span=25.0, hook_approach=1.2, wheel_spacings=(1.5, 4.0, 1.5),
+                  buffer_length=9.0)
+    assert crane.wheels().maximum == pytest.approx(176.74, rel=1e-12)
+    offsets = [0.0, 1.5, 5.5, 7.0]
+    P = 176.74 * 1.25
+    candidates = [_tent_reaction([P] * 4, offsets, k, CHAIN_L) for k in range(4)]
+    assert max(candidates) == pytest.approx(2.9 * P, rel=1e-12)
+    result = analyse_runway(_chain(), RunwaySpec(cranes=(crane,)))
+    assert result.strength.max("reaction")[1] == pytest.approx(640.6825, rel=REL)
+    assert result.strength.max("reaction")[2] == pytest.approx(640.6825, rel=REL)
+    assert result.service.max("reaction")[1] == pytest.approx(2.9 * 176.74, rel=REL)
+
+
 @pytest.fixture(scope="module")
 def two_cranes_on_chain() -> RunwayResult:
     return analyse_runway(_chain(), RunwaySpec(cranes=(_heavy_crane(), _light_crane())))
