@@ -183,8 +183,9 @@ def naive_effect(beam: trundle.Beam, effect: trundle.Effect, load_at: float) -> 
     if effect.kind == "shear":
         return res.shear(effect.at, effect.side or "right")
     if effect.kind == "moment":
-        # trundle reads the moment just right of the section, just left at the right end
-        side = "left" if effect.at >= beam.length - 1e-9 * beam.length else "right"
+        side = effect.side
+        if side is None:  # trundle's default: just right of the section, just left at the end
+            side = "left" if effect.at >= beam.length - 1e-9 * beam.length else "right"
         return res.moment(effect.at, side)
     if effect.kind == "deflection":
         return res.deflection(effect.at)
@@ -301,8 +302,9 @@ def random_beam(rng: np.random.Generator, max_spans: int = 4, stepped: bool = Tr
 
 
 def effects_for(beam: trundle.Beam, rng: np.random.Generator) -> list[trundle.Effect]:
-    """Every kind of effect the beam has: all reactions and couples, and moment, shear
-    (both sides), deflection and rotation at random sections, at a support and at a hinge."""
+    """Every kind of effect the beam has: all reactions and couples, and moment (default and
+    both faces), shear (both faces), deflection and rotation at random sections, at a support
+    and at a hinge."""
     E = trundle.Effect
     effects = []
     for i, s in enumerate(beam.supports):
@@ -315,7 +317,8 @@ def effects_for(beam: trundle.Beam, rng: np.random.Generator) -> list[trundle.Ef
     sections += list(beam.hinges[:1])
     for x in sections:
         x = float(x)
-        effects += [E("moment", at=x), E("shear", at=x, side="left"),
+        effects += [E("moment", at=x), E("moment", at=x, side="left"),
+                    E("moment", at=x, side="right"), E("shear", at=x, side="left"),
                     E("shear", at=x, side="right"), E("deflection", at=x),
                     E("rotation", at=x, side="left"), E("rotation", at=x, side="right")]
     return effects

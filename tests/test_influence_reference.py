@@ -108,3 +108,25 @@ def test_batch_equals_single_lines(seed: int) -> None:
                                                   if s != "free"])
     assert reactions.coefficients.shape[0] == 4
     assert reactions.coefficients.shape[1] == len(reactions.knots) - 1
+
+
+@pytest.mark.parametrize("support", [trundle.Spring(400.0, kr=60.0), "fixed"])
+def test_moment_either_side_of_a_support_couple(support: object) -> None:
+    """Where a support holds rotation (a fixed interior support, a rotational spring such as
+    a column framed into a continuous girder) the moment jumps by the support's couple;
+    side= picks the face, as for shear, and both faces match the reference. Without side=
+    the line reads the right face, as before."""
+    beam = trundle.Beam(spans=[6.0, 7.0], EI=3.0, supports=["pin", support, "pin"])
+    xi = np.array([0.0, 1.3, 3.0, 4.9, 6.0, 7.7, 10.0, 12.2, 13.0])
+    faces = {}
+    for side in ("left", "right"):
+        line = beam.influence("moment", at=6.0, side=side)
+        expected = np.array([naive_solve(beam, float(p), sections=(6.0,)).moment(6.0, side)
+                             for p in xi])
+        np.testing.assert_allclose(line(xi), expected, rtol=0, atol=1e-10 * 6.0)
+        faces[side] = expected
+        static = beam.static([trundle.PointLoad(3.0, 1.0)]).moment(6.0, side=side)[0]
+        assert static == pytest.approx(naive_solve(beam, 3.0).moment(6.0, side), abs=1e-10)
+    assert np.abs(faces["left"] - faces["right"]).max() > 0.1  # the faces really differ
+    np.testing.assert_allclose(beam.influence("moment", at=6.0)(xi), faces["right"], rtol=0,
+                               atol=1e-10 * 6.0)

@@ -173,3 +173,22 @@ def test_load_close_to_a_free_end(gap: float) -> None:
     assert result.deflection(L)[0] == pytest.approx(xi**2 * (3 * L - xi) / 6.0, rel=1e-9)
     assert result.moment(L / 2)[0] == pytest.approx(-(xi - L / 2), rel=1e-9)
     assert result.support_moments[0] == pytest.approx(xi, rel=1e-9)
+
+
+def test_moment_faces_at_the_ends_of_a_fixed_fixed_beam() -> None:
+    """Without side= the end moment is read inside the beam (−wL²/12 at both fixed ends,
+    from memory, beam-formula tables cited in tests/validation); with side= the face outside
+    the beam carries nothing, as for shear."""
+    L, w = 10.0, 3.0
+    beam = trundle.Beam(spans=[L], supports=["fixed", "fixed"])
+    result = beam.static([DistributedLoad(0.0, L, w)])
+    assert result.moment(np.array([0.0, L])) == pytest.approx([-w * L**2 / 12] * 2, rel=1e-12)
+    assert result.moment(L, side="left")[0] == pytest.approx(-w * L**2 / 12, rel=1e-12)
+    assert result.moment(0.0, side="right")[0] == pytest.approx(-w * L**2 / 12, rel=1e-12)
+    assert result.moment(np.array([0.0, L]), side="left")[0] == 0.0
+    assert result.moment(L, side="right")[0] == 0.0
+    xi = np.linspace(0.0, L, 11)
+    assert w * beam.influence("moment", at=L).integrate(0.0, L) == pytest.approx(
+        -w * L**2 / 12, rel=1e-12)
+    assert beam.influence("moment", at=L, side="right")(xi) == pytest.approx(0.0, abs=0.0)
+    assert beam.influence("moment", at=0.0, side="left")(xi) == pytest.approx(0.0, abs=0.0)

@@ -40,7 +40,8 @@ EFFECT_QUANTITY = {
 class Effect:
     """One response quantity: ``kind`` at a point ``at`` or at support number ``support``.
 
-    ``side`` ("left"/"right") picks the one-sided value of shear (and of rotation at a hinge).
+    ``side`` ("left"/"right") picks the one-sided value of shear, of rotation at a hinge and of
+    moment where a support's couple makes it jump (moment is read just right if not given).
     """
 
     kind: str
@@ -66,7 +67,8 @@ class Effect:
     def label(self) -> str:
         if self.kind in ("reaction", "support_moment"):
             return f"{self.kind} {self.support}"
-        side = f" {self.side}" if self.side and self.kind in ("shear", "rotation") else ""
+        side = (f" {self.side}" if self.side and self.kind in ("shear", "rotation", "moment")
+                else "")
         return f"{self.kind}{side} at {self.at:g}"
 
     @property
@@ -337,8 +339,10 @@ def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
             elif free_pos[dof] >= 0:
                 rhs[free_pos[dof], j] += 1.0
             continue
-        # moment or shear at a node, read from the element on the chosen side of the node
-        if e.kind == "moment":
+        # moment or shear at a node, read from the element on the chosen side of the node;
+        # the moment jumps too where a support holds rotation (its couple), so side= counts
+        # for it as well; without side= the moment is read just right of the node
+        if e.kind == "moment" and e.side is None:
             use_right = node < n_el
         else:
             use_right = e.side == "right"

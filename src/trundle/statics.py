@@ -88,8 +88,19 @@ class StaticResult:
         outside |= (x >= self.beam.length - tol) & (side == "right")
         return np.where(outside, 0.0, values)
 
-    def moment(self, x: ArrayLike) -> NDArray[np.float64]:
-        return _eval_sided(self.moment_pp, x, "right")
+    def moment(self, x: ArrayLike, side: str | None = None) -> NDArray[np.float64]:
+        """Sagging moment. ``side`` picks the face where a support's couple makes it jump
+        (0 beyond the ends, as for shear); without it the moment is read just right of x,
+        just left at the right end."""
+        if side is None:
+            return _eval_sided(self.moment_pp, x, "right")
+        x = np.atleast_1d(np.asarray(x, dtype=float))
+        values = _eval_sided(self.moment_pp, x, side)
+        tol = 1e-12 * self.beam.length
+        outside = (x < -tol) | (x > self.beam.length + tol)
+        outside |= (x <= tol) & (side == "left")
+        outside |= (x >= self.beam.length - tol) & (side == "right")
+        return np.where(outside, 0.0, values)
 
     def deflection(self, x: ArrayLike) -> NDArray[np.float64]:
         return _eval_sided(self.deflection_pp, x, "right")
