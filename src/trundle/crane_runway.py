@@ -40,8 +40,10 @@ FATIGUE_CYCLES = {"A": 100_000.0, "B": 500_000.0, "C": 2_000_000.0, "D": math.in
                   "E": math.inf, "F": math.inf}
 # detail category -> (C_f, threshold F_TH [ksi]); allowable range F_SR = (C_f / n)^(1/3) ≥ F_TH
 # [ksi]: from memory of the fatigue appendix of a widely used steel specification; verify
+# (C' is the usual category of stiffener welds on crane girders; F, shear on welds, follows
+# another exponent and is not offered)
 DETAIL_CATEGORIES = {"A": (250e8, 24.0), "B": (120e8, 16.0), "B'": (61e8, 12.0),
-                     "C": (44e8, 10.0), "D": (22e8, 7.0), "E": (11e8, 4.5),
+                     "C": (44e8, 10.0), "C'": (44e8, 12.0), "D": (22e8, 7.0), "E": (11e8, 4.5),
                      "E'": (3.9e8, 2.6)}
 COMBINATIONS = ("each alone", "all loaded", "one loaded, others unloaded")
 
@@ -169,9 +171,11 @@ class FatigueSection:
 
     @property
     def utilisation(self) -> float | None:
+        """Damage-equivalent stress range over the allowable range for all the cycles the
+        service class and the rainflow count of a passage give (Miner's rule, slope 3)."""
         if self.equivalent_range is None or self.allowable is None:
             return None
-        return self.stress_range / self.allowable
+        return self.equivalent_range / self.allowable
 
 
 @dataclass(frozen=True)
@@ -266,7 +270,8 @@ class RunwayResult:
     combinations : the crane combinations run
     strength : envelope of moment, shear and reactions with vertical impact
     service : envelope of deflection and reactions without impact
-    lateral : envelope of lateral moment and deflection (None without lateral_EI)
+    lateral : envelope of lateral moment and deflection (None without lateral_EI); the
+        lateral forces act either way, so read it through ``lateral_extremes``
     vertical_checks, lateral_checks : per-span deflection checks
     longitudinal : crane name -> tractive force on this rail [force]
     fatigue : per crane, per section moment range and rainflow cycles
@@ -286,6 +291,16 @@ class RunwayResult:
     fatigue: tuple[FatigueSection, ...] = field(default=())
 
 
+def lateral_extremes(result: RunwayResult, kind: str = "moment"
+                     ) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
+    """(max, min) of a lateral effect with the wheel forces acting either way: the envelope
+    of both senses, so min = −max."""
+    if result.lateral is None:
+        raise ModelError("the runway has no lateral analysis (give lateral_EI)")
+    both = np.maximum(result.lateral.max(kind), -result.lateral.min(kind))
+    return both, -both
+
+
 def _deflection_checks(env: Envelope, ratio: float, both_ways: bool
                        ) -> tuple[DeflectionCheck, ...]:
     """Per span: the worst deflection at the envelope's sections, then refined over every
@@ -296,20 +311,26 @@ def _deflection_checks(env: Envelope, ratio: float, both_ways: bool
     high, low = env.max("deflection"), env.min("deflection")
     for span in range(beam.n_spans):
         inside = np.flatnonzero((env.sections >= ends[span]) & (env.sections <= ends[span + 1]))
-        if inside.size == 0:
-            continue
-        candidates = [(high[i], i, "max") for i in inside]
-        if both_ways:
-            candidates += [(-low[i], i, "min") for i in inside]
-        value, i, which = max(candidates)
-        governing = env.governing("deflection", which)[i]
-        x = float(env.sections[i])
-        if governing.case >= 0:
-            for extreme in absolute_extremes(beam, env.cases[governing.case], span,
-                                             "deflection", extremes=(which,)):
+        value, x, name = 0.0, 0.5 * (ends[span] + ends[span + 1]), "none"
+        searches: list[tuple[int, str]] = []
+        if inside.size:
+            candidates = [(high[i], i, "max") for i in inside]
+            if both_ways:
+                candidates += [(-low[i], i, "min") for i in inside]
+            value, i, which = max(candidates)
+            governing = env.governing("deflection", which)[i]
+            x = float(env.sections[i])
+            if governing.case >= 0:
+                name = env.cases[governing.case].name
+                searches.append((governing.case, which))
+        else:  # no section asked for in this span: search it for every combination
+            searches = [(c, w) for c in range(len(env.cases))
+                        for w in (("max", "min") if both_ways else ("max",))]
+        for case, which in searches:
+            for extreme in absolute_extremes(beam, env.cases[case], span, "deflection",
+                                             extremes=(which,)):
                 if abs(extreme.value) > value:
-                    value, x = abs(extreme.value), extreme.x
-        name = env.cases[governing.case].name if governing.case >= 0 else "none"
+                    value, x, name = abs(extreme.value), extreme.x, env.cases[case].name
         length = beam.spans[span]
         allowable = length / ratio
         out.append(DeflectionCheck(span, length, float(value), x, ratio, allowable,

@@ -97,7 +97,7 @@ def test_every_default_with_its_provenance() -> None:
 # Source: AISC 360, Appendix 3, Table A-3.1 (from memory of the fatigue appendix of a widely
 # used steel specification; verify): detail category -> (C_f, F_TH [ksi])
 TABLE_A31 = {"A": (250e8, 24.0), "B": (120e8, 16.0), "B'": (61e8, 12.0), "C": (44e8, 10.0),
-             "D": (22e8, 7.0), "E": (11e8, 4.5), "E'": (3.9e8, 2.6)}
+             "C'": (44e8, 12.0), "D": (22e8, 7.0), "E": (11e8, 4.5), "E'": (3.9e8, 2.6)}
 
 
 def test_detail_categories_as_transcribed() -> None:
