@@ -382,3 +382,34 @@ def test_bad_fatigue_arguments(category: str, cycles: float, word: str) -> None:
 def test_unknown_combination_name() -> None:
     with pytest.raises(trundle.ModelError, match="found 'everything'"):
         crane_combinations([_crane()], ("everything",))
+
+
+def test_lateral_extremes_act_both_ways() -> None:
+    # Lateral wheel forces push either way (common practice, no source): on a simple span the
+    # lateral moment envelope reads ±, and its size is the moving-load formula with H per wheel
+    # (two equal loads, P/(2L)(L − a/2)² at the section under the inner load; from memory)
+    from trundle.crane_runway import lateral_extremes
+
+    L, a = 12.0, 3.6
+    crane = _crane()
+    x = L / 2 - a / 4
+    result = analyse_runway(trundle.Beam(spans=[L], EI=EI),
+                            RunwaySpec(cranes=(crane,), lateral_EI=LATERAL_EI), sections=[x])
+    high, low = lateral_extremes(result)
+    H = crane.wheels().lateral
+    assert high[0] == pytest.approx(H / (2 * L) * (L - a / 2) ** 2, rel=1e-12)
+    assert low[0] == -high[0]
+    assert result.lateral.min("moment")[0] == 0.0  # one sense only before mirroring
+
+
+def test_deflection_is_checked_in_spans_without_requested_sections() -> None:
+    # a span with no section asked for is still searched; it must agree with the check made
+    # when that span's tenth points are asked for
+    beam = _runway()
+    spec = RunwaySpec(cranes=(_crane(),))
+    only_first = [x for x in beam.tenth_points() if x <= SPANS[0]]
+    sparse = analyse_runway(beam, spec, sections=only_first)
+    full = analyse_runway(beam, spec)
+    assert [c.span for c in sparse.vertical_checks] == list(range(len(SPANS)))
+    for a, b in zip(sparse.vertical_checks, full.vertical_checks, strict=True):
+        assert a.deflection == pytest.approx(b.deflection, rel=1e-9)
