@@ -565,3 +565,8 @@ def _syntax_error(name: str, error: tomllib.TOMLDecodeError) -> ModelFileError:
         return ModelFileError(name, f"line {match.group(1)}",
                               f"invalid TOML at column {match.group(2)}: {detail}")
     return ModelFileError(name, "TOML", f"invalid TOML: {message}")
+
+
+# The [[load]] table lives in trundle.loadfile; importing it here registers its reader
+# whenever model files can be read, however trundle was imported.
+import trundle.loadfile  # noqa: E402, F401  (registers [[load]])

@@ -1,0 +1,545 @@
+"""Loads in model files (``[[load]]``) and load-model files (``loadmodels/*.toml``).
+
+A ``[[load]]`` entry is one of: a vehicle (``axles``), a train of vehicles (``vehicles``), a
+placed uniform live load (``uniform``) or a load model from the library or from a file
+(``use``); any of them may carry a dynamic allowance (``impact``) and named multipliers
+(``factors``). A load-model file holds the same keys as one entry at its top level, plus
+``units``, ``description`` and ``source``. The schema is documented in docs/model-file.md.
+
+Every value is converted to the model's base units; a load-model file in other units is
+converted exactly (rational arithmetic, one rounding). Every problem is a one-line
+:class:`trundle.modelfile.ModelFileError` naming the file and the key (``load[2].spacings[1].min``).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import difflib
+import math
+import re
+import tomllib
+from collections.abc import Mapping
+from dataclasses import dataclass, field
+from fractions import Fraction
+from pathlib import Path
+from types import MappingProxyType
+from typing import Any
+
+from trundle.loads import library
+from trundle.loads.cases import LoadCase
+from trundle.loads.patterns import PLACEMENTS, UniformLoad
+from trundle.loads.vehicles import AttachedUniform, Train, Vehicle
+from trundle.model import ModelError
+from trundle.modelfile import Model, ModelFileError, Reader, _syntax_error, register_table
+from trundle.units import SYSTEMS, UnitSystem, parse_quantity, registry, show_value
+
+TABLE = "load"
+KINDS = ("vehicle", "train", "uniform")
+KIND_NAMES = {"vehicle": "vehicle", "train": "train of vehicles",
+              "uniform": "placed uniform load"}
+
+# The key that makes an entry one kind of load, and the keys each kind may have.
+_KIND_KEY = {"axles": "vehicle", "vehicles": "train", "uniform": "uniform", "use": "use"}
+_KIND_KEYS = {
+    "vehicle": ("axles", "spacings", "directions"),
+    "train": ("vehicles", "gaps", "ahead", "behind", "directions"),
+    "uniform": ("uniform", "placement", "point_load"),
+    "use": ("use",),
+}
+_COMMON_KEYS = ("name", "impact", "factors")
+_ENTRY_KEYS = ("name", "axles", "spacings", "vehicles", "gaps", "ahead", "behind", "uniform",
+               "placement", "point_load", "directions", "use", "impact", "factors")
+_LIBRARY_KEYS = ("units", "description", "source", "axles", "spacings", "vehicles", "gaps",
+                 "ahead", "behind", "uniform", "placement", "point_load", "directions",
+                 "impact", "factors")
+_INLINE_VEHICLE_KEYS = ("name", "axles", "spacings")
+_ATTACHED_KEYS = ("w", "length", "gap")
+DIRECTIONS = ("both", "one way")
+
+
+@dataclass(frozen=True)
+class LoadModelFile:
+    """A load model read from a file, in the units of the model that uses it.
+
+    Fields
+    ------
+    name : the library name (the file name without ``.toml``)
+    path : the file read
+    kind : "vehicle", "train" or "uniform"
+    units : the unit system the file is written in
+    description, source : as written in the file
+    load : Vehicle, Train or UniformLoad [target units]
+    impact : dynamic allowance as a fraction (0 if the file gives none)
+    factors : ((name, value), …) as written in the file
+    given : the parsed TOML, as written
+    """
+
+    name: str
+    path: Path
+    kind: str
+    units: UnitSystem
+    description: str
+    source: str
+    load: Any
+    impact: float = 0.0
+    factors: tuple[tuple[str, float], ...] = ()
+    given: Mapping[str, Any] = field(default_factory=dict, repr=False)
+
+
+@dataclass(frozen=True)
+class LoadEntry:
+    """One ``[[load]]`` of a model file, ready for :func:`trundle.envelope`.
+
+    Fields
+    ------
+    name : unique within the model
+    kind : "vehicle", "train" or "uniform"
+    case : the LoadCase (load, impact, factors), in the model's base units
+    origin : "model file", or where a ``use`` found the load model (library name or path)
+    description, source : from the load-model file ("" when defined in the model file)
+    given : the entry as written in the model file
+    files : every load-model file the entry reads (its ``use``, a train's library vehicles)
+    """
+
+    name: str
+    kind: str
+    case: LoadCase
+    origin: str = "model file"
+    description: str = ""
+    source: str = ""
+    given: Mapping[str, Any] = field(default_factory=dict, repr=False)
+    files: tuple[Path, ...] = ()
+
+    @property
+    def load(self) -> Any:
+        return self.case.load
+
+
+def loads_of(model: Model) -> tuple[LoadEntry, ...]:
+    """The loads of a model file, in the order written (empty if it has none)."""
+    return tuple(model.tables.get(TABLE, ()))
+
+
+def require_loads(model: Model) -> tuple[LoadEntry, ...]:
+    """The loads of a model; a one-line error naming the file if there are none."""
+    entries = loads_of(model)
+    if not entries:
+        raise ModelFileError(model.name, TABLE, "expected at least one [[load]] table (a "
+                             "vehicle, a train, a placed uniform load or a library load "
+                             "model, see docs/model-file.md), found nothing")
+    return entries
+
+
+# ------------------------------------------------------------------------------------------
+# [[load]] in a model file
+
+
+def read_loads(value: Any, reader: Reader) -> tuple[LoadEntry, ...]:
+    """Reader of the top-level ``[[load]]`` array (registered with the model-file reader)."""
+    if not isinstance(value, list) or not all(isinstance(item, dict) for item in value):
+        reader.expected(TABLE, "[[load]] tables, each with axles, vehicles, uniform or use",
+                        value)
+    if not value:
+        reader.expected(TABLE, "at least one [[load]] table", value)
+    base = _base_folder(reader.file)
+    entries: list[LoadEntry] = []
+    seen: dict[str, int] = {}
+    for i, item in enumerate(value):
+        key = f"{TABLE}[{i}]"
+        entry = _read_entry(item, key, reader, base)
+        if entry.name in seen:
+            where = "name" if "name" in item else "use"
+            reader.fail(_sub(key, where), f"expected a name different from that of "
+                        f"{TABLE}[{seen[entry.name]}] (names identify loads in the results), "
+                        f'found "{entry.name}" again')
+        seen[entry.name] = i
+        entries.append(entry)
+    return tuple(entries)
+
+
+def _read_entry(item: dict[str, Any], key: str, reader: Reader, base: Path) -> LoadEntry:
+    table = reader.table(item, key, _ENTRY_KEYS)
+    kind = _kind_of(table, key, reader, _ENTRY_KEYS)
+    given = MappingProxyType(dict(table))
+    if kind == "use":
+        extra = [k for k in table if k not in ("use", *_COMMON_KEYS)]
+        if extra:
+            reader.fail(_sub(key, extra[0]), "expected only name, impact and factors beside use "
+                        "(the load model defines the rest), found "
+                        f"{extra[0]} = {show_value(table[extra[0]])}")
+        found = _use(table["use"], _sub(key, "use"), reader, base)
+        name = reader.text(table["name"], _sub(key, "name")) if "name" in table else found.name
+        _nonblank(name, _sub(key, "name"), reader)
+        impact = (_impact(table["impact"], _sub(key, "impact"), reader) if "impact" in table
+                  else found.impact)
+        factors = dict(found.factors)
+        if "factors" in table:
+            factors.update(_factors(table["factors"], _sub(key, "factors"), reader))
+        if found.kind == "uniform" and impact:
+            reader.fail(_sub(key, "impact"), f'expected no impact for "{found.name}", a placed '
+                        "uniform load (the dynamic allowance applies to axle loads only), "
+                        f"found {show_value(table['impact'])}")
+        load = dataclasses.replace(found.load, name=name)
+        origin = (f"library model {found.name}" if library.is_library_file(found.path)
+                  else f"load-model file {found.path}")
+        return LoadEntry(name, found.kind, _case(load, impact, factors, key, reader), origin,
+                         found.description, found.source, given, (found.path,))
+    if "name" not in table:
+        reader.fail(_sub(key, "name"), f"expected a name for this {KIND_NAMES[kind]} (names "
+                    "identify loads in the results), found nothing")
+    name = _nonblank(reader.text(table["name"], _sub(key, "name")), _sub(key, "name"), reader)
+    files: list[Path] = []
+    load = _definition(kind, table, key, reader, name, base, files)
+    impact = _impact(table["impact"], _sub(key, "impact"), reader) if "impact" in table else 0.0
+    factors = _factors(table["factors"], _sub(key, "factors"), reader) if "factors" in table else {}
+    return LoadEntry(name, kind, _case(load, impact, factors, key, reader), given=given,
+                     files=tuple(dict.fromkeys(files)))
+
+
+def _case(load: Any, impact: float, factors: Mapping[str, float], key: str,
+          reader: Reader) -> LoadCase:
+    try:
+        return LoadCase(load, impact=impact, factors=tuple(factors.items()), name=load.name)
+    except ModelError as error:  # checked above; kept so a core change cannot leak a traceback
+        reader.fail(key or "file", str(error))
+
+
+def _kind_of(table: dict[str, Any], key: str, reader: Reader, allowed: tuple[str, ...]) -> str:
+    present = [k for k in _KIND_KEY if k in table]
+    options = [k for k in _KIND_KEY if k in allowed]
+    if not present:
+        described = {"axles": "axles (a vehicle)", "vehicles": "vehicles (a train)",
+                     "uniform": "uniform (a placed uniform load)",
+                     "use": "use (a load model from the library or a file)"}
+        reader.fail(key or "file", "expected one of "
+                    + ", ".join(described[k] for k in options)
+                    + f", found {show_value(table)}")
+    if len(present) > 1:
+        first, second = present[:2]
+        reader.fail(_sub(key, second), f"expected one kind of load per entry, found both "
+                    f"{first} and {second} (write two entries)")
+    kind = _KIND_KEY[present[0]]
+    for name in table:
+        owner = next((k for k, keys in _KIND_KEYS.items() if name in keys), None)
+        if owner is not None and name not in _KIND_KEYS[kind] and kind != "use":
+            if name == "directions" and kind in ("vehicle", "train"):
+                continue
+            reader.fail(_sub(key, name), f"expected no {name} in a {KIND_NAMES[kind]} (it "
+                        f"belongs to a {_owner_name(name)}), found {show_value(table[name])}")
+    return kind
+
+
+def _sub(key: str, name: str) -> str:
+    """The dotted key of ``name`` inside ``key`` (a load-model file's keys are top level)."""
+    return f"{key}.{name}" if key else name
+
+
+def _owner_name(key: str) -> str:
+    owners = [KIND_NAMES[k] for k, keys in _KIND_KEYS.items() if key in keys and k != "use"]
+    return " or ".join(owners)
+
+
+def _nonblank(name: str, key: str, reader: Reader) -> str:
+    if not name.strip():
+        reader.expected(key, "a name that is not blank", name)
+    return name.strip()
+
+
+def _definition(kind: str, table: dict[str, Any], key: str, reader: Reader, name: str,
+                base: Path, files: list[Path]) -> Any:
+    """The load an entry defines; load-model files it reads are appended to ``files``."""
+    if kind == "vehicle":
+        axles, spacings = _axles_and_spacings(table, key, reader)
+        return _build(Vehicle, key, reader, loads=axles, spacings=spacings, name=name,
+                      reversible=_directions(table, key, reader))
+    if kind == "train":
+        return _train(table, key, reader, name, base, files)
+    w = reader.positive(table["uniform"], _sub(key, "uniform"), "distributed load")
+    placement = (reader.text(table["placement"], _sub(key, "placement"), PLACEMENTS)
+                 if "placement" in table else "anywhere")
+    point = (reader.positive(table["point_load"], _sub(key, "point_load"), "force")
+             if "point_load" in table else 0.0)
+    return _build(UniformLoad, key, reader, w=w, placement=placement, point_load=point,
+                  name=name)
+
+
+def _build(cls: type, key: str, reader: Reader, **values: Any) -> Any:
+    try:
+        return cls(**values)
+    except ModelError as error:  # everything is checked before; never a traceback anyway
+        reader.fail(key or "file", str(error))
+
+
+def _axles_and_spacings(table: dict[str, Any], key: str, reader: Reader
+                        ) -> tuple[tuple[float, ...], tuple[float | tuple[float, float], ...]]:
+    assert reader.units is not None
+    example = f'["{reader.units.example("force")}", "{reader.units.example("force")}"]'
+    items = reader.array(table["axles"], _sub(key, "axles"), "axle loads (front to back)", example)
+    if not items:
+        reader.expected(_sub(key, "axles"), "at least one axle load", items)
+    axles = tuple(reader.positive(p, _sub(key, f"axles[{i}]"), "force")
+                  for i, p in enumerate(items))
+    needed = len(axles) - 1
+    if "spacings" not in table:
+        if needed:
+            reader.fail(_sub(key, "spacings"), f"expected {needed} spacing(s), one between each "
+                        f"pair of the {len(axles)} axles, found nothing")
+        return axles, ()
+    length_example = reader.units.example("length")
+    spacing_items = reader.array(table["spacings"], _sub(key, "spacings"), "axle spacings",
+                                 f'["{length_example}", {{min = "…", max = "…"}}]')
+    if len(spacing_items) != needed:
+        reader.fail(_sub(key, "spacings"), f"expected {needed} spacing(s), one between each pair "
+                    f"of the {len(axles)} axles, found {len(spacing_items)}")
+    spacings = tuple(_spacing(s, _sub(key, f"spacings[{i}]"), reader)
+                     for i, s in enumerate(spacing_items))
+    return axles, spacings
+
+
+def _spacing(value: Any, key: str, reader: Reader) -> float | tuple[float, float]:
+    """A length, or ``{min, max}``: a range searched for its worst value."""
+    assert reader.units is not None
+    if isinstance(value, dict):
+        table = reader.table(value, key, ("min", "max"), required=("min", "max"))
+        low = reader.positive(table["min"], _sub(key, "min"), "length")
+        high = reader.positive(table["max"], _sub(key, "max"), "length")
+        unit = reader.units.label("length")
+        if not high > low:
+            reader.fail(_sub(key, "max"), f"expected more than min = {low:g} {unit} (write one "
+                        f"length for a fixed value), found {show_value(table['max'])}")
+        return (low, high)
+    if isinstance(value, list):
+        reader.expected(key, 'a length or a range {{min = "…", max = "…"}}', value)
+    return reader.positive(value, key, "length")
+
+
+def _directions(table: dict[str, Any], key: str, reader: Reader) -> bool:
+    if "directions" not in table:
+        return True
+    return reader.text(table["directions"], _sub(key, "directions"), DIRECTIONS) == "both"
+
+
+def _train(table: dict[str, Any], key: str, reader: Reader, name: str, base: Path,
+           files: list[Path]) -> Train:
+    items = reader.array(table["vehicles"], _sub(key, "vehicles"), "vehicles (library names or "
+                         "inline tables)", '["demo-service-truck", {axles = […], spacings = […]}]')
+    if not items:
+        reader.expected(_sub(key, "vehicles"), "at least one vehicle", items)
+    vehicles = []
+    for j, item in enumerate(items):
+        vkey = _sub(key, f"vehicles[{j}]")
+        if isinstance(item, str):
+            found = _use(item, vkey, reader, base)
+            if found.kind != "vehicle":
+                reader.fail(vkey, f"expected a vehicle, found \"{item}\", which is a "
+                            f"{KIND_NAMES[found.kind]}")
+            vehicles.append(found.load)
+            files.append(found.path)
+            continue
+        if not isinstance(item, dict):
+            reader.expected(vkey, "a library name or an inline table {axles = […], "
+                            "spacings = […]}", item)
+        inline = reader.table(item, vkey, _INLINE_VEHICLE_KEYS, required=("axles",))
+        name_key = _sub(vkey, "name")
+        vname = (_nonblank(reader.text(inline["name"], name_key), name_key, reader)
+                 if "name" in inline else f"vehicle {j + 1}")
+        axles, spacings = _axles_and_spacings(inline, vkey, reader)
+        vehicles.append(_build(Vehicle, vkey, reader, loads=axles, spacings=spacings,
+                               name=vname))
+    needed = len(vehicles) - 1
+    gap_items = []
+    if "gaps" in table:
+        gap_items = reader.array(table["gaps"], _sub(key, "gaps"), "clear gaps (last axle of one "
+                                 "vehicle to the first axle of the next)",
+                                 f'["{reader.units.example("length")}"]')
+    if len(gap_items) != needed:
+        found = f"{len(gap_items)}" if "gaps" in table else "nothing"
+        reader.fail(_sub(key, "gaps"), f"expected {needed} gap(s), one between each pair of the "
+                    f"{len(vehicles)} vehicles, found {found}")
+    gaps = tuple(_spacing(g, _sub(key, f"gaps[{i}]"), reader) for i, g in enumerate(gap_items))
+    ahead = _attached(table["ahead"], _sub(key, "ahead"), reader) if "ahead" in table else None
+    behind = _attached(table["behind"], _sub(key, "behind"), reader) if "behind" in table else None
+    return _build(Train, key, reader, vehicles=tuple(vehicles), gaps=gaps, ahead=ahead,
+                  behind=behind, name=name, reversible=_directions(table, key, reader))
+
+
+def _attached(value: Any, key: str, reader: Reader) -> AttachedUniform:
+    table = reader.table(value, key, _ATTACHED_KEYS, required=("w",))
+    w = reader.positive(table["w"], _sub(key, "w"), "distributed load")
+    length = math.inf
+    if "length" in table:
+        given = table["length"]
+        if isinstance(given, str) and given.strip() == "unlimited":
+            length = math.inf
+        else:
+            try:
+                length = reader.positive(given, _sub(key, "length"), "length")
+            except ModelFileError:
+                assert reader.units is not None
+                reader.expected(_sub(key, "length"), 'a positive length (e.g. "'
+                                f'{reader.units.example("length")}") or "unlimited"', given)
+    gap = 0.0
+    if "gap" in table:
+        gap = reader.quantity(table["gap"], _sub(key, "gap"), "length")
+        if gap < 0:
+            reader.expected(_sub(key, "gap"), "a clear distance of zero or more", table["gap"])
+    return _build(AttachedUniform, key, reader, w=w, length=length, gap=gap)
+
+
+_PERCENT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*%\s*$")
+_IMPACT_EXPECTED = 'a dynamic allowance as a fraction (0.33) or a percentage ("33 %")'
+
+
+def _impact(value: Any, key: str, reader: Reader) -> float:
+    """A fraction: 0.33 or "33 %"; between 0 and 1."""
+    if isinstance(value, str):
+        match = _PERCENT.match(value)
+        if not match:
+            reader.expected(key, _IMPACT_EXPECTED, value)
+        fraction = float(match.group(1)) / 100.0
+    elif isinstance(value, int | float) and not isinstance(value, bool):
+        fraction = float(value)
+        if fraction > 1.0:
+            reader.fail(key, f"expected {_IMPACT_EXPECTED}, found {show_value(value)}, which "
+                        f'would be {100 * fraction:g} % (write "{value:g} %" for a percentage)')
+    else:
+        reader.expected(key, _IMPACT_EXPECTED, value)
+    if not (math.isfinite(fraction) and 0.0 <= fraction <= 1.0):
+        reader.fail(key, f"expected {_IMPACT_EXPECTED} between 0 and 100 %, found "
+                    f"{show_value(value)}")
+    return fraction
+
+
+def _factors(value: Any, key: str, reader: Reader) -> dict[str, float]:
+    """Named multipliers, in the order written: {"load factor" = 1.75, …}."""
+    if not isinstance(value, dict):
+        reader.expected(key, 'a table of named multipliers such as { "multiple presence" = '
+                        '1.2, "load factor" = 1.75 }', value)
+    factors: dict[str, float] = {}
+    for name, number in value.items():
+        bare = re.fullmatch(r"[A-Za-z0-9_-]+", name)
+        fkey = _sub(key, name if bare else f'"{name}"')
+        if isinstance(number, bool) or not isinstance(number, int | float) or \
+                not math.isfinite(number) or number <= 0:
+            reader.expected(fkey, "a positive number (a plain multiplier)", number)
+        if not name.strip():
+            reader.fail(fkey, "expected a factor name that is not blank, found a blank one")
+        factors[name] = float(number)
+    return factors
+
+
+# ------------------------------------------------------------------------------------------
+# use = "library name" or "path/to/model.toml"
+
+
+def _base_folder(file: str) -> Path:
+    return Path(file).parent if not file.startswith("<") else Path.cwd()
+
+
+def _use(value: Any, key: str, reader: Reader, base: Path) -> LoadModelFile:
+    assert reader.units is not None
+    if not isinstance(value, str) or not value.strip():
+        reader.expected(key, "the name of a library load model (see 'trundle library') or "
+                        "the path of a load-model file", value)
+    text = value.strip()
+    if "/" in text or "\\" in text or text.endswith(".toml"):
+        path = Path(text).expanduser()
+        if not path.is_absolute():
+            path = base / path
+        if not path.is_file():
+            reader.fail(key, f"expected an existing load-model file, found \"{text}\" "
+                        f"({path} does not exist)")
+        return read_load_model_file(path, reader.units)
+    names = library.names()
+    if text not in names:
+        hint = difflib.get_close_matches(text, names, n=1, cutoff=0.5)
+        lowered = {n.lower(): n for n in names}
+        if not hint and text.lower() in lowered:
+            hint = [lowered[text.lower()]]
+        extra = f' (did you mean "{hint[0]}"?)' if hint else ""
+        reader.fail(key, "expected a load model from the library (see 'trundle library') or "
+                    f'the path of a load-model file, found "{text}"{extra}')
+    return read_load_model_file(library.path_of(text), reader.units)
+
+
+# ------------------------------------------------------------------------------------------
+# load-model files
+
+
+class _ConvertingReader(Reader):
+    """Checks values in a file's own units and returns them in the target units, exactly."""
+
+    def __init__(self, file: str, units: UnitSystem, target: UnitSystem):
+        super().__init__(file, units)
+        self.target = target
+
+    def quantity(self, value: Any, key: str, quantity: str) -> float:
+        number = super().quantity(value, key, quantity)
+        assert self.units is not None
+        if self.target == self.units:
+            return number
+        if isinstance(value, str) and not _is_bare_number(value):
+            return parse_quantity(value, quantity, self.target)
+        converted = registry().Quantity(Fraction(number), self.units.pint_unit(quantity))
+        return float(converted.to(self.target.pint_unit(quantity)).magnitude)
+
+
+def _is_bare_number(text: str) -> bool:
+    try:
+        float(text)
+    except ValueError:
+        return False
+    return True
+
+
+def read_load_model_file(path: str | Path, target: UnitSystem | None = None) -> LoadModelFile:
+    """Read a load-model file; values come back in ``target``'s units (default: its own).
+
+    Raises
+    ------
+    ModelFileError
+        One line naming this file and the key.
+    """
+    path = Path(path)
+    name = str(path)
+    try:
+        text = path.read_bytes().decode("utf-8")
+    except FileNotFoundError:
+        raise ModelFileError(name, "file", "expected an existing load-model file, found none") \
+            from None
+    except UnicodeDecodeError as error:
+        raise ModelFileError(name, "file", f"expected UTF-8 text, found a byte that is not "
+                             f"UTF-8 at offset {error.start}") from None
+    except OSError as error:
+        raise ModelFileError(name, "file", f"cannot be read ({error.strerror})") from None
+    try:
+        raw = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as error:
+        raise _syntax_error(name, error) from None
+    plain = Reader(name)
+    if "name" in raw:
+        plain.fail("name", f'expected no name in a load-model file (it is called by its file '
+                   f'name, "{path.stem}"), found {show_value(raw["name"])}')
+    if "use" in raw:
+        plain.fail("use", "expected a load defined in this file (axles, vehicles or uniform), "
+                   "found use: a load-model file cannot refer to another")
+    table = plain.table(raw, "", _LIBRARY_KEYS, required=("units", "description", "source"))
+    units_text = table["units"]
+    if not isinstance(units_text, str) or units_text.upper() not in SYSTEMS:
+        plain.expected("units", '"SI" (kN, m) or "US" (kip, ft)', units_text)
+    units = SYSTEMS[units_text.upper()]
+    description = " ".join(plain.text(table["description"], "description").split())
+    source = " ".join(plain.text(table["source"], "source").split())
+    reader = _ConvertingReader(name, units, target or units)
+    kind = _kind_of(table, "", reader, _LIBRARY_KEYS)
+    load = _definition(kind, table, "", reader, path.stem, path.parent, [])
+    impact = _impact(table["impact"], "impact", reader) if "impact" in table else 0.0
+    if kind == "uniform" and impact:
+        reader.fail("impact", "expected no impact for a placed uniform load (the dynamic "
+                    f"allowance applies to axle loads only), found {show_value(table['impact'])}")
+    factors = _factors(table["factors"], "factors", reader) if "factors" in table else {}
+    return LoadModelFile(path.stem, path, kind, units, description, source, load, impact,
+                         tuple(factors.items()), MappingProxyType(raw))
+
+
+register_table(TABLE, read_loads)
