@@ -323,7 +323,7 @@ def _deflection_checks(env: Envelope, ratio: float, both_ways: bool
             if governing.case >= 0:
                 name = env.cases[governing.case].name
                 searches.append((governing.case, which))
-        else:  # no section asked for in this span: search it for every combination
+        if not searches:  # no loaded section asked for in this span: try every combination
             searches = [(c, w) for c in range(len(env.cases))
                         for w in (("max", "min") if both_ways else ("max",))]
         for case, which in searches:
