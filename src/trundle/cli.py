@@ -6,6 +6,7 @@ stderr, ``error: …``, and exit code 2; never a traceback, never a half-written
 
 from __future__ import annotations
 
+import difflib
 import sys
 from collections.abc import Sequence
 from pathlib import Path
@@ -13,19 +14,24 @@ from typing import Any, NoReturn
 
 import click
 from rich.console import Console
+from rich.text import Text
 
 from trundle import __version__
 from trundle._io import write_all_atomic
 from trundle.influence import Effect, InfluenceSet
+from trundle.loadfile import loads_of
 from trundle.model import Beam, ModelError, Spring
 from trundle.modelfile import Model, ModelFileError, load_model
-from trundle.report import CAUTION
+from trundle.report import CAUTION, LOAD_MODEL_CAUTION
 from trundle.units import UnitError, parse_quantity
 
 EFFECT_CHOICES = ("moment", "shear", "reaction", "deflection", "rotation", "support-moment")
 _SECTION_KINDS = ("moment", "shear", "deflection", "rotation")
 _SAFETY_HELP = ("CAUTION: results are for checking by a qualified engineer; local codes and "
                 "licensed practice govern.")
+_DESIGN_SAFETY_HELP = ("CAUTION: results are for checking by a qualified engineer; transcribed "
+                       "load models must be verified against the edition in force; local codes "
+                       "and licensed practice govern.")
 
 
 class UserError(click.ClickException):
@@ -94,6 +100,8 @@ def cli(context: click.Context) -> None:
     Start with a model file (see docs/model-file.md and examples/):
       trundle summary examples/harbour_lane_floor_girder_si.toml
       trundle lines examples/harbour_lane_floor_girder_si.toml --effect moment --at 3.6
+      trundle envelope examples/harbour_lane_floor_girder_si.toml --out results/
+      trundle library
     """
     if context.invoked_subcommand is None:
         click.echo(context.get_help())
@@ -134,6 +142,10 @@ def summary_command(model_file: str) -> None:
         console.print(table)
     positions = ", ".join(format_length(x) for x in model.sections)
     console.print(f"{len(model.sections)} sections [{length}]: {positions}")
+    if loads_of(model):
+        from trundle.report.envelope_tables import model_loads_table, to_rich
+
+        console.print(to_rich(model_loads_table(model)))
     console.print(f"model is stable and complete: {len(beam.supports)} supports, "
                   f"{len(beam.hinges)} hinge(s), {len(beam.stiffness_segments)} stiffness "
                   "segment(s)")
@@ -312,6 +324,119 @@ def _write_outputs(model: Model, model_file: str, lines: InfluenceSet, out_dir: 
         return write_all_atomic(out_dir, files)
     except OSError as error:
         raise UserError(f"--out {out_dir}: cannot write ({error.strerror or error})") from None
+
+
+# ------------------------------------------------------------------------------------------
+# trundle envelope
+
+
+@cli.command("envelope", epilog=_DESIGN_SAFETY_HELP)
+@click.argument("model_file", metavar="MODEL")
+@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False, path_type=Path),
+              help="Write envelope.csv, reactions.csv, envelope.json, the figures and "
+                   "report.html into this folder.")
+@click.option("--format", "figure_format", type=click.Choice(["png", "svg"]), default="png",
+              show_default=True, help="Format of the figure files (the report embeds PNG).")
+@click.option("--no-figure", is_flag=True, help="With --out: write no figure files.")
+@click.option("--no-report", is_flag=True, help="With --out: write no report.html.")
+def envelope_command(model_file: str, out_dir: Path | None, figure_format: str,
+                     no_figure: bool, no_report: bool) -> None:
+    """Envelopes of moment, shear, deflection and reactions under the model's loads.
+
+    Runs every [[load]] of the model file (vehicles both ways unless one way, trains,
+    uniform load placed where it is adverse, library load models) over the model's sections
+    and prints, per span and per support, the governing values with the load that causes
+    them, its direction of travel, where it stands and the spacings found. Values include
+    each load's impact and factors. With --out it also writes the CSV and JSON tables, the
+    figures and a self-contained HTML report.
+
+    \b
+    Example:
+      trundle envelope examples/harbour_lane_floor_girder_si.toml --out results/
+      trundle envelope examples/millrace_access_bridge_us.toml -o results --format svg
+    """
+    from trundle.report.envelope_data import collect
+
+    model = _load(model_file)
+    if out_dir is not None and out_dir.exists() and not out_dir.is_dir():
+        raise UserError(f"--out {out_dir}: expected a folder, found a file")
+    results = collect(model, model_file)
+    console = _console()
+    for renderable in _envelope_summary(results):
+        console.print(renderable)
+    if out_dir is not None:
+        from trundle.report.envelope_report import envelope_files
+
+        files = envelope_files(results, figure_format, with_figures=not no_figure,
+                               with_report=not no_report)
+        try:
+            written = write_all_atomic(out_dir, files)
+        except OSError as error:
+            raise UserError(f"--out {out_dir}: cannot write ({error.strerror or error})") \
+                from None
+        console.print("wrote " + ", ".join(str(p) for p in written))
+    for caution in _envelope_cautions(results):
+        console.print(caution, style="dim")
+
+
+def _envelope_summary(results: Any) -> list[Any]:
+    from trundle.report.envelope_tables import loads_table, summary_tables, to_rich
+
+    units = results.units
+    header = [results.model.title, f"model file {results.model_file}; units {units.name}; "
+              f"{len(results.sections)} sections; values include impact and factors; "
+              "travel → towards +x, ← towards -x"]
+    out: list[Any] = [Text(header[0], style="bold"), Text(header[1])]
+    out.append(to_rich(loads_table(results)))
+    out.extend(to_rich(t) for t in summary_tables(results))
+    for section in results.extra:
+        out.append(Text(section.title, style="bold"))
+        out.extend(to_rich(t) for t in section.tables)
+        out.extend(Text(note) for note in section.notes)
+    return out
+
+
+def _envelope_cautions(results: Any) -> list[str]:
+    from trundle.report.envelope_report import cautions
+
+    return cautions(results)
+
+
+# ------------------------------------------------------------------------------------------
+# trundle library
+
+
+@cli.command("library", epilog=_DESIGN_SAFETY_HELP)
+@click.argument("name", required=False, metavar="[NAME]")
+def library_command(name: str | None) -> None:
+    """List the built-in load models, or show one in detail.
+
+    A model file uses one with `use = "NAME"` in a [[load]] table (see docs/model-file.md).
+    The models shipped now are invented examples, not code load models.
+
+    \b
+    Examples:
+      trundle library
+      trundle library demo-heavy-vehicle-5-axle
+    """
+    from trundle.loads import library
+    from trundle.report.envelope_tables import library_detail, library_table, to_rich
+
+    console = _console()
+    if name is None:
+        console.print(to_rich(library_table(library.read_all())))
+        console.print(f"folder: {library.folder()}", style="dim")
+    else:
+        names = library.names()
+        if name not in names:
+            hint = difflib.get_close_matches(name, names, n=1, cutoff=0.5)
+            extra = f' (did you mean "{hint[0]}"?)' if hint else ""
+            raise UserError(f"library NAME: expected one of {', '.join(names)}, found "
+                            f'"{name}"{extra}')
+        for renderable in library_detail(library.read(name)):
+            console.print(to_rich(renderable) if not isinstance(renderable, str)
+                          else Text(renderable))
+    console.print(LOAD_MODEL_CAUTION, style="dim")
 
 
 def main() -> None:

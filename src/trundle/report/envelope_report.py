@@ -1,0 +1,144 @@
+"""The files of ``trundle envelope --out``: CSV, JSON, figures and the HTML report.
+
+:func:`envelope_files` prepares every file in memory first (so a failure writes nothing) and
+returns name -> content for :func:`trundle._io.write_all_atomic`. The HTML report stands
+alone: its figures are PNG data URIs.
+"""
+
+from __future__ import annotations
+
+import base64
+from typing import Any
+
+from jinja2 import Environment, PackageLoader, StrictUndefined, select_autoescape
+from markupsafe import Markup
+
+from trundle.report import CAUTION, LOAD_MODEL_CAUTION
+from trundle.report.envelope_data import SIGN_CONVENTIONS, EnvelopeResults, quantity_unit
+from trundle.report.envelope_figures import envelope_figures
+from trundle.report.envelope_tables import (
+    envelope_csv,
+    envelope_json,
+    file_sha256,
+    input_tables,
+    loads_table,
+    reactions_csv,
+    sections_table,
+    summary_tables,
+)
+from trundle.report.figures import figure_bytes
+
+FIGURE_FORMATS = ("png", "svg")
+
+
+def cautions(results: EnvelopeResults) -> list[str]:
+    """The cautions every envelope output carries, most important first."""
+    out = [CAUTION, LOAD_MODEL_CAUTION]
+    invented = [entry.name for entry in results.loads
+                if entry.source.lower().startswith("invented")]
+    if invented:
+        out.append("Invented example load models in use (" + ", ".join(invented) + "): they "
+                   "are not code load models and must not be used for design.")
+    return out
+
+
+def figure_captions(results: EnvelopeResults) -> dict[str, str]:
+    units = results.units
+    M, V, D = (quantity_unit(f, units) for f in ("moment", "shear_left", "deflection"))
+    R = quantity_unit("reaction", units)
+    return {
+        "envelope-moment": f"Bending moment envelope [{M}], sagging positive: max and min at "
+                           "the sections; diamonds mark a worse section found between them.",
+        "envelope-shear": f"Shear envelope [{V}]: just left and just right of each section; "
+                          "the envelope jumps at the supports.",
+        "envelope-deflection": f"Deflection envelope [{D}], downward positive.",
+        "reactions": f"Support reactions [{R}], upward positive: max and min of every support.",
+    }
+
+
+def _data_uri(png: bytes) -> str:
+    return "data:image/png;base64," + base64.b64encode(png).decode("ascii")
+
+
+def envelope_html(results: EnvelopeResults, pngs: dict[str, bytes] | None = None) -> str:
+    """The report as one HTML document; ``pngs`` are the figures by name (made if None)."""
+    if pngs is None:
+        pngs = {name: figure_bytes(figure, "png")
+                for name, figure in envelope_figures(results).items()}
+    captions = figure_captions(results)
+    units = results.units
+    own = [name for name in captions if name in pngs]
+    figures = [{"uri": _data_uri(pngs[name]), "caption": captions[name]} for name in own]
+    extra_sections = []
+    for section in results.extra:
+        extra_sections.append({
+            "title": section.title, "tables": list(section.tables), "notes": list(section.notes),
+            "figures": [{"uri": _data_uri(pngs[name]), "caption": name}
+                        for name in section.figures if name in pngs],
+        })
+    load_notes = [{"name": entry.name, "description": entry.description.rstrip("."),
+                   "source": entry.source}
+                  for entry in results.loads if entry.description or entry.source]
+    files = {path for entry in results.loads for path in entry.files}
+    load_files = [{"path": str(path), "sha256": file_sha256(path) or "(not readable)"}
+                  for path in sorted(files)]
+    L = units.label("length")
+    sections = ", ".join(f"{round(float(x), 9) + 0.0:.6g}" for x in results.sections)
+    description = " ".join(str(results.model.raw.get("description", "")).split())
+    context: dict[str, Any] = {
+        "title": results.model.title,
+        "description": description,
+        "model_file": results.model_file,
+        "sha256": results.sha256,
+        "date": results.date,
+        "version": results.version,
+        "units_text": (f"{units.name}: forces in {units.label('force')}, lengths in {L}, "
+                       f"moments in {units.label('moment')}, deflections in "
+                       f"{units.deflection}"),
+        "cautions": cautions(results),
+        "input_tables": input_tables(results),
+        "sections_text": f"{len(results.sections)} sections [{L}]: {sections}",
+        "loads_table": loads_table(results),
+        "load_notes": load_notes,
+        "figures": figures,
+        "summary_tables": summary_tables(results),
+        "sections_table": sections_table(results),
+        "extra_sections": extra_sections,
+        "load_files": load_files,
+        "sign_conventions": list(SIGN_CONVENTIONS),
+        "markup_break": Markup("<br>"),
+    }
+    return _templates().get_template("envelope.html.j2").render(**context)
+
+
+def _templates() -> Environment:
+    return Environment(loader=PackageLoader("trundle.report", "templates"),
+                       autoescape=select_autoescape(["html", "j2"]),
+                       undefined=StrictUndefined, keep_trailing_newline=True)
+
+
+def envelope_files(results: EnvelopeResults, figure_format: str = "png",
+                   with_figures: bool = True, with_report: bool = True
+                   ) -> dict[str, bytes | str]:
+    """Every output file by name, finished in memory."""
+    if figure_format not in FIGURE_FORMATS:
+        raise ValueError(f"figure format: expected one of {FIGURE_FORMATS}, found "
+                         f"{figure_format!r}")
+    files: dict[str, bytes | str] = {
+        "envelope.csv": envelope_csv(results),
+        "reactions.csv": reactions_csv(results),
+        "envelope.json": envelope_json(results),
+    }
+    figures = envelope_figures(results) if (with_figures or with_report) else {}
+    pngs: dict[str, bytes] = {}
+    if with_report or figure_format == "png":
+        pngs = {name: figure_bytes(figure, "png") for name, figure in figures.items()}
+    if with_figures:
+        for name, figure in figures.items():
+            files[f"{name}.{figure_format}"] = (pngs[name] if figure_format == "png"
+                                                else figure_bytes(figure, figure_format))
+    if with_report:
+        files["report.html"] = envelope_html(results, pngs)
+    for section in results.extra:
+        files.update(section.files)
+    return files
