@@ -13,6 +13,8 @@ from typing import Any
 from jinja2 import Environment, PackageLoader, StrictUndefined, select_autoescape
 from markupsafe import Markup
 
+from trundle.loadfile import read_load_model_file
+from trundle.modelfile import ModelFileError
 from trundle.report import CAUTION, LOAD_MODEL_CAUTION
 from trundle.report.envelope_data import SIGN_CONVENTIONS, EnvelopeResults, quantity_unit
 from trundle.report.envelope_figures import envelope_figures
@@ -34,8 +36,14 @@ FIGURE_FORMATS = ("png", "svg")
 def cautions(results: EnvelopeResults) -> list[str]:
     """The cautions every envelope output carries, most important first."""
     out = [CAUTION, LOAD_MODEL_CAUTION]
-    invented = [entry.name for entry in results.loads
-                if entry.source.lower().startswith("invented")]
+    invented = []
+    for path in dict.fromkeys(p for entry in results.loads for p in entry.files):
+        try:
+            source = read_load_model_file(path).source
+        except ModelFileError:  # changed since the model was read: the footer hashes tell
+            continue
+        if source.lower().startswith("invented"):
+            invented.append(path.stem)
     if invented:
         out.append("Invented example load models in use (" + ", ".join(invented) + "): they "
                    "are not code load models and must not be used for design.")
