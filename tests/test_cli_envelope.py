@@ -338,3 +338,17 @@ def test_summary_lists_the_loads():
     assert result.exit_code == 0, result.stderr
     assert "Loads" in result.output and "33 %" in result.output
     assert "library model" in result.output and "demo-lane-load" in result.output
+
+
+def test_cautions_name_invented_load_models_inside_trains(tmp_path):
+    from trundle.report.envelope_report import cautions
+
+    model = tmp_path / "train.toml"
+    model.write_text('units = "SI"\n[beam]\nspans = [12.0]\nsupports = ["pin", "pin"]\n'
+                     'EI = 1e5\n[[load]]\nname = "two trucks"\n'
+                     'vehicles = ["demo-service-truck", "demo-service-truck"]\n'
+                     'gaps = ["10 m"]\n')
+    results = collect(load_model(model), str(model))
+    assert results.loads[0].source == ""  # a train of library vehicles has no source itself
+    assert any("demo-service-truck" in c and "not code load models" in c
+               for c in cautions(results))
