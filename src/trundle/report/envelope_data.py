@@ -495,7 +495,9 @@ def describe_load(load: Any, units: UnitSystem) -> str:
             parts.append(f"vehicle {i + 1} ({vehicle.name}): "
                          + _vehicle_words(vehicle, force, length))
             if i < len(load.gaps):
-                parts.append(f"gap {_spacing_words(load.gaps[i])} {length}")
+                gap = load.gaps[i]
+                parts.append(f"gap {_number(gap[0])} to {_number(gap[1])} {length} (searched)"
+                             if isinstance(gap, tuple) else f"gap {_number(gap)} {length}")
         for label, part in (("ahead", load.ahead), ("behind", load.behind)):
             if part is not None:
                 extent = "unlimited" if math.isinf(part.length) else \
