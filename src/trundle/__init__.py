@@ -1,11 +1,11 @@
 """trundle: exact influence lines and moving-load envelopes for statically indeterminate beams."""
 
+from trundle.envelope import Envelope, Governing, envelope
 from trundle.influence import Effect, InfluenceLine, InfluenceSet, influence_batch, influence_set
+from trundle.loads import AttachedUniform, LoadCase, Train, UniformLoad, Vehicle
 from trundle.model import Beam, ModelError, Spring
 from trundle.modelfile import ModelFileError, load_model
 from trundle.statics import DistributedLoad, PointLoad, PointMoment
-from trundle.loads import AttachedUniform, LoadCase, Train, UniformLoad, Vehicle
-from trundle.envelope import Envelope, Governing, envelope
 
 __all__ = ["AttachedUniform", "Beam", "DistributedLoad", "Effect", "Envelope", "Governing",
            "InfluenceLine", "InfluenceSet", "LoadCase", "ModelError", "ModelFileError",
