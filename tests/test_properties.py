@@ -113,7 +113,9 @@ def test_reactions_and_couples_balance_the_load_moment(beam: trundle.Beam) -> No
     lines = beam.influence_set(effects)(x)
     arms = np.array([beam.support_positions[e.support] if e.kind == "reaction" else 1.0
                      for e in effects])
-    np.testing.assert_allclose(lines @ arms, x, rtol=0, atol=1e-10 * beam.length)
+    # 1e-9: random beams include near-mechanisms (soft springs holding a chain of hinged
+    # pieces) whose stiffness is ill conditioned enough to cost a tenth digit
+    np.testing.assert_allclose(lines @ arms, x, rtol=0, atol=1e-9 * beam.length)
 
 
 @PROPERTY_SETTINGS
