@@ -208,10 +208,12 @@ def _refine(batch: LineBatch, case: LoadCase, result: _CaseResult,
     if not params or not any(t.size for t in tasks):
         return
     per = max(2, int(round(GRID_BUDGET ** (1.0 / len(params)))))
-    tolerance = 1e-9 * max(1.0, batch.length)
     for _sweep in range(1 if len(params) == 1 else 2):
         for k, p in enumerate(params):
             step = (p.high - p.low) / (per - 1)
+            # the searched value to 1e-8 of its range: the extreme is then within about
+            # 1e-8 of itself even where it has a kink in the searched value
+            tolerance = 1e-8 * (p.high - p.low)
             for direction, arr in arrangements.items():
                 which = np.concatenate([np.full(t.size, w) for w, t in enumerate(tasks)])
                 lines = np.concatenate(tasks)
@@ -418,11 +420,14 @@ class Envelope:
         """Max and min of ``kind`` over every section of every span, per load case."""
         key = f"_absolute_{kind}"
         if key not in self._cache:
-            self._cache[key] = tuple(
-                extreme
-                for span in range(self.beam.n_spans)
-                for c, case in enumerate(self.cases)
-                for extreme in absolute_extremes(self.beam, case, span, kind, case_index=c))
+            found: list[AbsoluteExtreme] = []
+            for c, case in enumerate(self.cases):
+                coarse = _coarse_sections(self.beam, case, kind)
+                found.extend((span, c, extreme) for span in range(self.beam.n_spans)
+                             for extreme in absolute_extremes(self.beam, case, span, kind,
+                                                              case_index=c, coarse=coarse))
+            found.sort(key=lambda item: (item[0], item[1]))
+            self._cache[key] = tuple(extreme for *_, extreme in found)
         return self._cache[key]
 
     def concurrent(self, kind: str, which: str = "max", side: str | None = None
@@ -483,9 +488,23 @@ class _Frozen:
         return self.load.describe()
 
 
+ABSOLUTE_SAMPLES = 40  # sections per span searched before the bounded refinement
+
+
+def _coarse_sections(beam: Beam, case: LoadCase, kind: str,
+                     samples: int = ABSOLUTE_SAMPLES) -> Envelope:
+    """One grid envelope over ``samples`` sections of every span, to locate the worst ones
+    (searched spacings at their grid values: the refinement that follows searches them)."""
+    ends = beam.support_positions
+    xs = np.unique(np.concatenate([np.linspace(a, b, samples + 1)
+                                   for a, b in zip(ends[:-1], ends[1:], strict=True)]))
+    return envelope(beam, [case], sections=xs, effects=(kind,), refine=False)
+
+
 def absolute_extremes(beam: Beam, case: LoadCase, span: int, kind: str = "moment",
-                      samples: int = 40, case_index: int = 0,
-                      extremes: Sequence[str] = ("max", "min")) -> tuple[AbsoluteExtreme, ...]:
+                      samples: int = ABSOLUTE_SAMPLES, case_index: int = 0,
+                      extremes: Sequence[str] = ("max", "min"),
+                      coarse: Envelope | None = None) -> tuple[AbsoluteExtreme, ...]:
     """Max and min of ``kind`` over all sections of a span: a grid of sections, then a bounded
     search around the best one (the worst section under a moving group is rarely a tenth point).
 
@@ -497,17 +516,21 @@ def absolute_extremes(beam: Beam, case: LoadCase, span: int, kind: str = "moment
     if kind not in ("moment", "deflection"):
         raise ModelError(f"absolute extremes: expected moment or deflection, found {kind!r}")
     a, b = beam.support_positions[span], beam.support_positions[span + 1]
-    xs = np.linspace(a, b, samples + 1)
-    coarse = envelope(beam, [case], sections=xs, effects=(kind,))
+    if coarse is None:
+        coarse = envelope(beam, [case], sections=np.linspace(a, b, samples + 1),
+                          effects=(kind,), refine=False)
+    tol = 1e-9 * beam.length
+    inside = np.flatnonzero((coarse.sections >= a - tol) & (coarse.sections <= b + tol))
+    xs = coarse.sections[inside]
     searched = not isinstance(case.load, UniformLoad) and bool(case.load.parameters())
     out = []
     for which in extremes:
-        values = coarse.max(kind) if which == "max" else coarse.min(kind)
+        values = (coarse.max(kind) if which == "max" else coarse.min(kind))[inside]
         sign = 1.0 if which == "max" else -1.0
         i = int(np.argmax(sign * values))
-        lo, hi = xs[max(i - 1, 0)], xs[min(i + 1, samples)]
+        lo, hi = xs[max(i - 1, 0)], xs[min(i + 1, len(xs) - 1)]
         best_x, best_value = float(xs[i]), float(values[i])
-        governing = coarse.governing(kind, which)[i]
+        governing = coarse.governing(kind, which)[inside[i]]
         source = coarse
         rounds = 0 if governing.case < 0 else 2 if searched else 1  # nothing to refine if empty
         for _round in range(rounds):
@@ -543,7 +566,7 @@ def absolute_extremes(beam: Beam, case: LoadCase, span: int, kind: str = "moment
 
 def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None,
              effects: Sequence[str] = ("moment", "shear", "deflection", "reaction",
-                                       "support_moment")) -> Envelope:
+                                       "support_moment"), refine: bool = True) -> Envelope:
     """Exact envelopes of the requested effects over every load case.
 
     Parameters
@@ -552,6 +575,8 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
     loads : Vehicle, Train, UniformLoad or LoadCase items
     sections : x of the sections [length]; default the tenth points of every span
     effects : families to compute; "shear" gives both sides of every section
+    refine : search spacings and gaps beyond their coarse grid (default); without it the
+        values are those of the best grid point, lower bounds of the exact extremes
     """
     cases = tuple(as_case(item) for item in loads)
     if not cases:
@@ -576,7 +601,7 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
     # refine searched dimensions where a case comes close to governing on the grid
     stacked = np.array([r.value for r in results])  # (n_cases, 2, n)
     best = np.stack([stacked[:, 0].max(axis=0), stacked[:, 1].min(axis=0)])
-    for case, result, arrangements in moving:
+    for case, result, arrangements in moving if refine else ():
         tasks = []
         for w in (0, 1):
             close = np.abs(result.value[w]) >= (1 - REFINE_WITHIN) * np.abs(best[w])

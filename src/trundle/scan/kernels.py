@@ -294,7 +294,7 @@ def scan_rows_serial(knots, coef, running, running_end, weight, kind, offsets, l
 
 # Below this much work (rows x pieces x terms) starting the thread pool costs more than it
 # saves; measured on 2 cores, where a busy machine makes the pool slower still.
-PARALLEL_FROM_WORK = 4_000_000
+PARALLEL_FROM_WORK = 1_000_000
 
 
 def scan_rows(knots, coef, running, running_end, weight, kind, offsets, lines,
