@@ -162,8 +162,10 @@ def test_json_round_trips_and_traces_the_model(si_run):
     forklift = document["loads"][1]
     assert forklift["name"] == "pallet forklift" and forklift["load"]["axles"] == [34.0, 12.0]
     assert forklift["impact"] == pytest.approx(0.15, rel=1e-15)
-    assert [f["name"] for f in forklift["factors"]] == ["wheel share on this girder",
-                                                        "load factor"]
+    assert [f["name"] for f in forklift["factors"]] == ["wheel share on this girder"]
+    assert forklift["load_factor"] == 1.5
+    assert forklift["product_of_factors"] == pytest.approx(0.9, rel=1e-15)
+    assert forklift["product_of_factors_for_deflection"] == pytest.approx(0.6, rel=1e-15)
 
 
 def test_json_absolute_moments_come_from_the_library(si_run):

@@ -257,3 +257,31 @@ def test_absolute_extreme_of_placed_uniform_load_names_its_loaded_stretches() ->
         stretches, _ = env.loaded_stretches(a.governing)
         res = ReferenceSolver(beam, [a.x]).solve([], [(x0, x1, 1.0) for x0, x1 in stretches])
         assert res.moment(a.x) == pytest.approx(a.value, rel=1e-9)
+
+
+def test_load_factor_is_for_strength_only():
+    # A strength load factor multiplies forces and moments but not deflection, which is a
+    # service check (common practice, no source): the deflection envelope and its concurrent
+    # values are those of the case without the load factor; forces are exactly 1.5 times.
+    beam = trundle.Beam([10.0, 10.0])
+    truck = trundle.Vehicle([10.0, 20.0], [3.0])
+    plain = trundle.envelope(beam, [trundle.LoadCase(truck, factors=(("share", 0.5),))])
+    factored = trundle.envelope(
+        beam, [trundle.LoadCase(truck, factors=(("share", 0.5),), load_factor=1.5)])
+    for kind in ("moment", "reaction"):
+        np.testing.assert_allclose(factored.max(kind), 1.5 * plain.max(kind), rtol=1e-12)
+    np.testing.assert_allclose(factored.max("deflection"), plain.max("deflection"), rtol=1e-12)
+    g = factored.governing("deflection")[3]
+    assert factored.response_to(g)[factored.lines_of("deflection")[3]] == pytest.approx(
+        factored.max("deflection")[3], rel=1e-12)
+    # across cases, deflection is chosen at service level: the heavier service load governs
+    light_but_factored = trundle.LoadCase(truck, name="light", factors=(("share", 0.5),),
+                                          load_factor=3.0)
+    heavy = trundle.LoadCase(truck, name="heavy", factors=(("share", 0.6),))
+    both = trundle.envelope(beam, [light_but_factored, heavy])
+    assert {both.cases[g.case].name for g in both.governing("deflection")
+            if g.case >= 0} == {"heavy"}
+    assert {both.cases[g.case].name for g in both.governing("moment")
+            if g.case >= 0} == {"light"}
+    with pytest.raises(trundle.ModelError, match="load_factor"):
+        trundle.LoadCase(truck, load_factor=0.0)

@@ -370,7 +370,7 @@ def test_bad_load_files_give_one_line_naming_file_and_key(path):
     ('[[load]]\nuse = "demo-service-truck"\naxles = [1]\n', "load[0].use",
      "found both axles and use"),
     ('[[load]]\nuse = "demo-service-truck"\nspacings = [1]\n', "load[0].spacings",
-     "only name, impact and factors beside use"),
+     "only name, impact, factors and load_factor beside use"),
     ('[[load]]\nname = "t"\nvehicles = []\n', "load[0].vehicles", "at least one vehicle"),
     ('[[load]]\nname = "t"\nvehicles = [{axles = [1], wheels = 4}]\n',
      "load[0].vehicles[0].wheels", "unknown key"),

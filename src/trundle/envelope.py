@@ -392,9 +392,11 @@ class Envelope:
             if x_p is not None and case.load.point_load:
                 side = "left" if g.side < 0 else "right"
                 total += case.load.point_load * self.batch.ordinates(np.array([x_p]), side)[0]
-            return case.multiplier * total
-        group = self.group_of(g)
-        return case.multiplier * group_response(self.batch, group, g.reference, g.side)
+        else:
+            total = group_response(self.batch, self.group_of(g), g.reference, g.side)
+        factor = np.full(len(self.effects), case.multiplier)
+        factor[self.index["deflection"]] = case.service_multiplier  # no strength load factor
+        return factor * total
 
     def loaded_stretches(self, g: Governing) -> tuple[list[tuple[float, float]], float | None]:
         """For placed uniform load: the loaded intervals and where its point load stands."""
@@ -598,16 +600,23 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
         result = _moving_grid(batch, case, c, arrangements)
         results.append(result)
         moving.append((case, result, arrangements))
+    # deflection stays at service level, without the strength load factor of each case
+    service = np.ones((len(cases), n))
+    for c, case in enumerate(cases):
+        service[c, index["deflection"]] = 1.0 / case.load_factor
     # refine searched dimensions where a case comes close to governing on the grid
-    stacked = np.array([r.value for r in results])  # (n_cases, 2, n)
+    stacked = np.array([r.value for r in results]) * service[:, None, :]  # (n_cases, 2, n)
     best = np.stack([stacked[:, 0].max(axis=0), stacked[:, 1].min(axis=0)])
     for case, result, arrangements in moving if refine else ():
+        c = results.index(result)
         tasks = []
         for w in (0, 1):
-            close = np.abs(result.value[w]) >= (1 - REFINE_WITHIN) * np.abs(best[w])
+            close = np.abs(result.value[w] * service[c]) >= (1 - REFINE_WITHIN) * np.abs(best[w])
             close &= ~np.isnan(result.xi[w])
             tasks.append(np.flatnonzero(close))
         _refine(batch, case, result, arrangements, tasks)
+    for c, result in enumerate(results):
+        result.value *= service[c]
     stacked = np.array([r.value for r in results])
     winners = np.stack([stacked[:, 0].argmax(axis=0), stacked[:, 1].argmin(axis=0)])
     scale = np.zeros(n)

@@ -46,9 +46,10 @@ _KIND_KEYS = {
     "uniform": ("uniform", "placement", "point_load"),
     "use": ("use",),
 }
-_COMMON_KEYS = ("name", "impact", "factors")
+_COMMON_KEYS = ("name", "impact", "factors", "load_factor")
 _ENTRY_KEYS = ("name", "axles", "spacings", "vehicles", "gaps", "ahead", "behind", "uniform",
-               "placement", "point_load", "directions", "use", "impact", "factors")
+               "placement", "point_load", "directions", "use", "impact", "factors",
+               "load_factor")
 _LIBRARY_KEYS = ("units", "description", "source", "axles", "spacings", "vehicles", "gaps",
                  "ahead", "behind", "uniform", "placement", "point_load", "directions",
                  "impact", "factors")
@@ -164,7 +165,8 @@ def _read_entry(item: dict[str, Any], key: str, reader: Reader, base: Path) -> L
     if kind == "use":
         extra = [k for k in table if k not in ("use", *_COMMON_KEYS)]
         if extra:
-            reader.fail(_sub(key, extra[0]), "expected only name, impact and factors beside use "
+            reader.fail(_sub(key, extra[0]), "expected only name, impact, factors and "
+                        "load_factor beside use "
                         "(the load model defines the rest), found "
                         f"{extra[0]} = {show_value(table[extra[0]])}")
         found = _use(table["use"], _sub(key, "use"), reader, base)
@@ -182,8 +184,10 @@ def _read_entry(item: dict[str, Any], key: str, reader: Reader, base: Path) -> L
         load = dataclasses.replace(found.load, name=name)
         origin = (f"library model {found.name}" if library.is_library_file(found.path)
                   else f"load-model file {found.path}")
-        return LoadEntry(name, found.kind, _case(load, impact, factors, key, reader), origin,
-                         found.description, found.source, given, (found.path,))
+        return LoadEntry(name, found.kind,
+                         _case(load, impact, factors, _load_factor(table, key, reader), key,
+                               reader),
+                         origin, found.description, found.source, given, (found.path,))
     if "name" not in table:
         reader.fail(_sub(key, "name"), f"expected a name for this {KIND_NAMES[kind]} (names "
                     "identify loads in the results), found nothing")
@@ -192,14 +196,27 @@ def _read_entry(item: dict[str, Any], key: str, reader: Reader, base: Path) -> L
     load = _definition(kind, table, key, reader, name, base, files)
     impact = _impact(table["impact"], _sub(key, "impact"), reader) if "impact" in table else 0.0
     factors = _factors(table["factors"], _sub(key, "factors"), reader) if "factors" in table else {}
-    return LoadEntry(name, kind, _case(load, impact, factors, key, reader), given=given,
-                     files=tuple(dict.fromkeys(files)))
+    return LoadEntry(name, kind,
+                     _case(load, impact, factors, _load_factor(table, key, reader), key, reader),
+                     given=given, files=tuple(dict.fromkeys(files)))
 
 
-def _case(load: Any, impact: float, factors: Mapping[str, float], key: str,
+def _load_factor(table: Mapping[str, Any], key: str, reader: Reader) -> float:
+    """The strength load factor: on forces and moments, not on deflection."""
+    if "load_factor" not in table:
+        return 1.0
+    value = table["load_factor"]
+    if isinstance(value, bool) or not isinstance(value, int | float) or not value > 0:
+        reader.expected(_sub(key, "load_factor"), "a positive number such as 1.5 (it multiplies "
+                        "forces and moments, not deflection)", value)
+    return float(value)
+
+
+def _case(load: Any, impact: float, factors: Mapping[str, float], load_factor: float, key: str,
           reader: Reader) -> LoadCase:
     try:
-        return LoadCase(load, impact=impact, factors=tuple(factors.items()), name=load.name)
+        return LoadCase(load, impact=impact, factors=tuple(factors.items()), name=load.name,
+                        load_factor=load_factor)
     except ModelError as error:  # checked above; kept so a core change cannot leak a traceback
         reader.fail(key or "file", str(error))
 

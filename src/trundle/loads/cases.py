@@ -20,16 +20,20 @@ class LoadCase:
     impact : float
         Dynamic allowance as a fraction (0.33 for 33 %), applied to axle loads only.
     factors : tuple of (name, value)
-        Plain multipliers on everything (multiple presence, distribution to one girder,
-        load factor …), kept by name so a report can show each one.
+        Plain multipliers on every effect (multiple presence, distribution to one girder …),
+        kept by name so a report can show each one.
     name : str
         Defaults to the load's name.
+    load_factor : float
+        Multiplier for strength: on reactions, shear, moment and support couples, but not on
+        deflection and rotation, which stay at service level (common practice, no source).
     """
 
     load: Any
     impact: float = 0.0
     factors: tuple[tuple[str, float], ...] = ()
     name: str = ""
+    load_factor: float = 1.0
 
     def __post_init__(self) -> None:
         is_placed = hasattr(self.load, "placement")
@@ -55,20 +59,36 @@ class LoadCase:
                 raise ModelError(f"load case {self.name or self.load.name!r}: factor {k!r}: "
                                  f"expected a number >= 0, found {v!r}")
             factors.append((str(k), value))
+        try:
+            load_factor = float(self.load_factor)
+        except (TypeError, ValueError):
+            load_factor = float("nan")
+        if not np.isfinite(load_factor) or load_factor <= 0:
+            raise ModelError(f"load case {self.name or self.load.name!r}: load_factor: expected "
+                             f"a number > 0, found {self.load_factor!r}")
         object.__setattr__(self, "impact", impact)
         object.__setattr__(self, "factors", tuple(factors))
+        object.__setattr__(self, "load_factor", load_factor)
         if not self.name:
             object.__setattr__(self, "name", getattr(self.load, "name", "load"))
 
     @property
-    def multiplier(self) -> float:
+    def service_multiplier(self) -> float:
+        """Product of the named factors: what deflection and rotation are multiplied by."""
         return float(np.prod([v for _, v in self.factors])) if self.factors else 1.0
+
+    @property
+    def multiplier(self) -> float:
+        """Named factors times the load factor: what forces and moments are multiplied by."""
+        return self.service_multiplier * self.load_factor
 
     def describe(self) -> str:
         parts = [self.load.describe()]
         if self.impact:
             parts.append(f"dynamic allowance {100 * self.impact:g} % on axles")
         parts.extend(f"{k} x{v:g}" for k, v in self.factors)
+        if self.load_factor != 1.0:
+            parts.append(f"load factor x{self.load_factor:g} (not on deflection)")
         return "; ".join(parts)
 
 

@@ -22,12 +22,13 @@ import numpy as np
 from numpy.typing import NDArray
 
 from trundle import __version__
+from trundle.cranefile import cranes_of
 from trundle.envelope import AbsoluteExtreme, Envelope, Governing, envelope
-from trundle.loadfile import LoadEntry, require_loads
+from trundle.loadfile import LoadEntry, loads_of
 from trundle.loads.patterns import UniformLoad
 from trundle.loads.vehicles import Train, Vehicle
 from trundle.model import Beam, Spring
-from trundle.modelfile import Model
+from trundle.modelfile import Model, ModelFileError
 from trundle.units import UnitSystem
 
 EFFECTS = ("moment", "shear", "deflection", "reaction", "support_moment")
@@ -66,6 +67,10 @@ class ExtraSection:
     figures : name -> matplotlib Figure; written as ``<name>.<format>`` and embedded
     files : extra output files, name -> finished content
     data : JSON-able content, stored under ``extra[title]`` in envelope.json
+    detail_tables : long tables shown in the HTML report only (the terminal would scroll
+        past them; their numbers are in the section's files too)
+    captions : figure name -> caption in the HTML report (default: the name)
+    cautions : added to the cautions of every output (terminal, JSON, report)
     """
 
     title: str
@@ -74,6 +79,9 @@ class ExtraSection:
     figures: dict[str, Any] = field(default_factory=dict)
     files: dict[str, bytes | str] = field(default_factory=dict)
     data: Any = None
+    detail_tables: tuple[TableData, ...] = ()
+    captions: dict[str, str] = field(default_factory=dict)
+    cautions: tuple[str, ...] = ()
 
 
 SectionProvider = Callable[["EnvelopeResults"], "ExtraSection | None"]
@@ -123,8 +131,9 @@ class EnvelopeResults:
     sha256 : SHA-256 of the model file's bytes (hex)
     date : when the results were computed (UTC, ISO 8601)
     version : trundle version
-    loads : the model's [[load]] entries (their cases are ``env.cases``)
-    env : the envelope over the model's sections
+    loads : the model's [[load]] entries (their cases are ``env.cases``); may be empty when
+        the model has cranes
+    env : the envelope of the loads over the model's sections (None without loads)
     absolute : per span and per "max"/"min", the worst absolute moment over all loads
     extra : sections added by other features
     """
@@ -135,7 +144,7 @@ class EnvelopeResults:
     date: str
     version: str
     loads: tuple[LoadEntry, ...]
-    env: Envelope
+    env: Envelope | None
     absolute: tuple[dict[str, AbsoluteExtreme | None], ...]
     extra: tuple[ExtraSection, ...] = ()
     cache: dict[Any, Any] = field(default_factory=dict, repr=False, compare=False)
@@ -150,19 +159,33 @@ class EnvelopeResults:
 
     @property
     def sections(self) -> NDArray[np.float64]:
-        return self.env.sections
+        return self.env.sections if self.env is not None else self.model.sections
+
+    @property
+    def has_loads(self) -> bool:
+        """Whether the model has [[load]] tables (and so an envelope of them)."""
+        return self.env is not None
 
 
 def collect(model: Model, model_file: str | Path, date: str | None = None,
             providers: Sequence[SectionProvider] | None = None) -> EnvelopeResults:
     """Run every load of ``model`` over its sections and gather the results.
 
-    Raises ModelFileError if the model has no ``[[load]]``.
+    Raises ModelFileError if the model has neither ``[[load]]`` nor ``[[crane]]`` tables.
     """
-    entries = require_loads(model)
-    env = envelope(model.beam, [entry.case for entry in entries], sections=model.sections,
-                   effects=EFFECTS)
-    absolute = _worst_absolute(env, model.beam.n_spans)
+    _register_builtin_sections()
+    entries = loads_of(model)
+    if not entries and not cranes_of(model):
+        raise ModelFileError(model.name, "load", "expected at least one [[load]] table (a "
+                             "vehicle, a train, a placed uniform load or a library load "
+                             "model) or [[crane]] tables with a [runway] table, see "
+                             "docs/model-file.md; found nothing")
+    env = None
+    absolute: tuple[dict[str, AbsoluteExtreme | None], ...] = ()
+    if entries:
+        env = envelope(model.beam, [entry.case for entry in entries],
+                       sections=model.sections, effects=EFFECTS)
+        absolute = _worst_absolute(env, model.beam.n_spans)
     digest = hashlib.sha256(Path(model_file).read_bytes()).hexdigest()
     when = date or _datetime.datetime.now(_datetime.UTC).isoformat(timespec="seconds")
     results = EnvelopeResults(model, str(model_file), digest, when, __version__, entries, env,
@@ -173,6 +196,12 @@ def collect(model: Model, model_file: str | Path, date: str | None = None,
         results = EnvelopeResults(model, str(model_file), digest, when, __version__, entries,
                                   env, absolute, extra)
     return results
+
+
+def _register_builtin_sections() -> None:
+    """Import the sections trundle itself adds (they register on import); here rather than at
+    module level because they build on this module."""
+    import trundle.report.crane_section  # noqa: F401
 
 
 def _worst_absolute(env: Envelope, n_spans: int) -> tuple[dict[str, AbsoluteExtreme | None],
@@ -541,9 +570,10 @@ def _number(value: float) -> str:
 
 
 def factors_words(entry: LoadEntry) -> str:
-    if not entry.case.factors:
-        return "none"
-    return ", ".join(f"{name} × {value:g}" for name, value in entry.case.factors)
+    words = [f"{name} × {value:g}" for name, value in entry.case.factors]
+    if entry.case.load_factor != 1.0:
+        words.append(f"load factor × {entry.case.load_factor:g} (not on deflection)")
+    return ", ".join(words) if words else "none"
 
 
 def impact_words(entry: LoadEntry) -> str:

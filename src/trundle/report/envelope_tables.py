@@ -256,7 +256,8 @@ def deflection_table(results: EnvelopeResults) -> TableData:
                      ("span", f"max δ [{unit}]", "span / δ", f"at x [{L}]",
                       *_governing_headers(L)), tuple(rows),
                      (True, True, True, True, False, False, False, False),
-                     note="At the sections; with the dynamic allowance and factors of each load.")
+                     note="At the sections; with the dynamic allowance and factors of each load, "
+                     "without its load factor (service level).")
 
 
 def reactions_table(results: EnvelopeResults) -> TableData:
@@ -298,7 +299,9 @@ def support_moment_table(results: EnvelopeResults) -> TableData | None:
 
 
 def summary_tables(results: EnvelopeResults) -> list[TableData]:
-    """The summary, in the order the terminal and the report show it."""
+    """The summary, in the order the terminal and the report show it (none without loads)."""
+    if not results.has_loads:
+        return []
     tables = [moment_table(results), shear_table(results), deflection_table(results),
               reactions_table(results)]
     support_moments = support_moment_table(results)
@@ -532,6 +535,62 @@ def envelope_document(results: EnvelopeResults) -> dict[str, Any]:
     """Everything, as one JSON-able document."""
     units, beam, model = results.units, results.beam, results.model
     L = units.ascii_label("length")
+    sections, spans, supports = (_load_parts(results) if results.has_loads else ([], [], []))
+    loads = []
+    for entry in results.loads:
+        loads.append({
+            "name": entry.name, "kind": entry.kind, "defined_in": entry.origin,
+            "definition": load_definition(entry, units),
+            "description": entry.description or None, "source": entry.source or None,
+            "impact": entry.case.impact,
+            "factors": [{"name": n, "value": v} for n, v in entry.case.factors],
+            "product_of_factors": entry.case.multiplier,
+            "load_factor": entry.case.load_factor,
+            "product_of_factors_for_deflection": entry.case.service_multiplier,
+            "searched": parameter_labels(entry.load),
+            "load": load_json(entry.load),
+            "as_given": _plain(dict(entry.given)),
+            "files": [{"path": str(p), "sha256": file_sha256(p)} for p in entry.files],
+        })
+    extra_cautions = [c for s in results.extra for c in s.cautions]
+    return {
+        "title": model.title,
+        "generator": f"trundle {results.version}",
+        "trundle_version": results.version,
+        "date": results.date,
+        "model": {"file": results.model_file, "sha256": results.sha256,
+                  "inputs": _plain(dict(model.raw))},
+        "cautions": list(CAUTIONS) + extra_cautions,
+        "sign_conventions": dict(SIGN_CONVENTIONS),
+        "units": {"length": L, "force": units.ascii_label("force"),
+                  "moment": units.ascii_label("moment"),
+                  "shear": units.ascii_label("force"),
+                  "reaction": units.ascii_label("force"),
+                  "support_moment": units.ascii_label("moment"),
+                  "deflection": units.deflection,
+                  "distributed_load": units.ascii_label("distributed load")},
+        "notes": ["Values include each load's dynamic allowance (axle loads only) and the "
+                  "product of its factors; deflections leave out its load factor.",
+                  "An extreme with load null is the empty beam (no load makes it worse than 0).",
+                  "lead_axle_or_point_load_x: x of the first axle as listed (it leads in the "
+                  "direction of travel), or of a placed load's point load; direction +1 "
+                  "towards +x, -1 towards -x, 0 placed."],
+        "beam": {"spans": [float(s) for s in beam.spans],
+                 "supports": [support_kind_words(s) for s in beam.supports],
+                 "support_positions": [float(x) for x in beam.support_positions],
+                 "hinges": [float(h) for h in beam.hinges],
+                 "stiffness_as_given": list(model.stiffness_given)},
+        "loads": loads,
+        "sections": sections,
+        "spans": spans,
+        "supports": supports,
+        "extra": {s.title: _plain(s.data) for s in results.extra if s.data is not None},
+    }
+
+
+def _load_parts(results: EnvelopeResults) -> tuple[list[Any], list[Any], list[Any]]:
+    """The sections, spans and supports parts of envelope.json (the loads' envelope)."""
+    beam = results.beam
     extremes = {(f, w): section_extremes(results, f, w) for f in SECTION_FAMILIES
                 for w in ("max", "min")}
     concurrent = {w: concurrent_shear(results, w) for w in ("max", "min")}
@@ -570,53 +629,7 @@ def envelope_document(results: EnvelopeResults) -> dict[str, Any]:
                 item[family] = {w: extreme_json(by_support[(family, w)][k])
                                 for w in ("max", "min")}
         supports.append(item)
-    loads = []
-    for entry in results.loads:
-        loads.append({
-            "name": entry.name, "kind": entry.kind, "defined_in": entry.origin,
-            "definition": load_definition(entry, units),
-            "description": entry.description or None, "source": entry.source or None,
-            "impact": entry.case.impact,
-            "factors": [{"name": n, "value": v} for n, v in entry.case.factors],
-            "product_of_factors": entry.case.multiplier,
-            "searched": parameter_labels(entry.load),
-            "load": load_json(entry.load),
-            "as_given": _plain(dict(entry.given)),
-            "files": [{"path": str(p), "sha256": file_sha256(p)} for p in entry.files],
-        })
-    return {
-        "title": model.title,
-        "generator": f"trundle {results.version}",
-        "trundle_version": results.version,
-        "date": results.date,
-        "model": {"file": results.model_file, "sha256": results.sha256,
-                  "inputs": _plain(dict(model.raw))},
-        "cautions": list(CAUTIONS),
-        "sign_conventions": dict(SIGN_CONVENTIONS),
-        "units": {"length": L, "force": units.ascii_label("force"),
-                  "moment": units.ascii_label("moment"),
-                  "shear": units.ascii_label("force"),
-                  "reaction": units.ascii_label("force"),
-                  "support_moment": units.ascii_label("moment"),
-                  "deflection": units.deflection,
-                  "distributed_load": units.ascii_label("distributed load")},
-        "notes": ["Values include each load's dynamic allowance (axle loads only) and the "
-                  "product of its factors.",
-                  "An extreme with load null is the empty beam (no load makes it worse than 0).",
-                  "lead_axle_or_point_load_x: x of the first axle as listed (it leads in the "
-                  "direction of travel), or of a placed load's point load; direction +1 "
-                  "towards +x, -1 towards -x, 0 placed."],
-        "beam": {"spans": [float(s) for s in beam.spans],
-                 "supports": [support_kind_words(s) for s in beam.supports],
-                 "support_positions": [float(x) for x in beam.support_positions],
-                 "hinges": [float(h) for h in beam.hinges],
-                 "stiffness_as_given": list(model.stiffness_given)},
-        "loads": loads,
-        "sections": sections,
-        "spans": spans,
-        "supports": supports,
-        "extra": {s.title: _plain(s.data) for s in results.extra if s.data is not None},
-    }
+    return sections, spans, supports
 
 
 def load_json(load: Any) -> dict[str, Any]:
