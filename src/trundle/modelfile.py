@@ -88,6 +88,8 @@ class Reader:
         self.units = units
         self.beam = beam
         self.length = beam.length if beam is not None else length
+        # the whole parsed file, for a table whose reading depends on another one
+        self.raw: Mapping[str, Any] = {}
 
     # --- errors ---------------------------------------------------------------------------
 
@@ -237,6 +239,7 @@ def read_model(text: str, name: str = "<model>", source: Path | None = None) -> 
     except tomllib.TOMLDecodeError as error:
         raise _syntax_error(name, error) from None
     reader = Reader(name)
+    reader.raw = raw
     for key in raw:
         if key not in known_top_level_keys():
             reader.fail(key, "unknown top-level key; "
@@ -567,6 +570,8 @@ def _syntax_error(name: str, error: tomllib.TOMLDecodeError) -> ModelFileError:
     return ModelFileError(name, "TOML", f"invalid TOML: {message}")
 
 
-# The [[load]] table lives in trundle.loadfile; importing it here registers its reader
-# whenever model files can be read, however trundle was imported.
+# The [[load]] table lives in trundle.loadfile, [[crane]] and [runway] in trundle.cranefile;
+# importing them here registers their readers whenever model files can be read, however
+# trundle was imported.
 import trundle.loadfile  # noqa: E402, F401  (registers [[load]])
+import trundle.cranefile  # noqa: E402, F401  (registers [[crane]] and [runway])
