@@ -224,9 +224,11 @@ def _footer(results: EnvelopeResults) -> str:
 
 def envelope_figures(results: EnvelopeResults) -> dict[str, Figure]:
     """Every figure of the envelope outputs by file stem, extra sections' figures included."""
-    figures = {f"envelope-{kind}": envelope_figure(results, kind)
-               for kind in ("moment", "shear", "deflection")}
-    figures["reactions"] = reactions_figure(results)
+    figures: dict[str, Figure] = {}
+    if results.has_loads:
+        figures.update({f"envelope-{kind}": envelope_figure(results, kind)
+                        for kind in ("moment", "shear", "deflection")})
+        figures["reactions"] = reactions_figure(results)
     for section in results.extra:
         figures.update(section.figures)
     return figures

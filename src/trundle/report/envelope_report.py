@@ -47,6 +47,7 @@ def cautions(results: EnvelopeResults) -> list[str]:
     if invented:
         out.append("Invented example load models in use (" + ", ".join(invented) + "): they "
                    "are not code load models and must not be used for design.")
+    out.extend(c for section in results.extra for c in section.cautions)
     return out
 
 
@@ -81,7 +82,9 @@ def envelope_html(results: EnvelopeResults, pngs: dict[str, bytes] | None = None
     for section in results.extra:
         extra_sections.append({
             "title": section.title, "tables": list(section.tables), "notes": list(section.notes),
-            "figures": [{"uri": _data_uri(pngs[name]), "caption": name}
+            "detail_tables": list(section.detail_tables),
+            "figures": [{"uri": _data_uri(pngs[name]),
+                         "caption": section.captions.get(name, name)}
                         for name in section.figures if name in pngs],
         })
     load_notes = [{"name": entry.name, "description": entry.description.rstrip("."),
@@ -110,7 +113,10 @@ def envelope_html(results: EnvelopeResults, pngs: dict[str, bytes] | None = None
         "load_notes": load_notes,
         "figures": figures,
         "summary_tables": summary_tables(results),
-        "sections_table": sections_table(results),
+        "sections_table": sections_table(results) if results.has_loads else None,
+        "has_loads": results.has_loads,
+        "kicker": " · ".join((["Moving-load envelope"] if results.has_loads else [])
+                             + [section.title for section in results.extra]),
         "extra_sections": extra_sections,
         "load_files": load_files,
         "sign_conventions": list(SIGN_CONVENTIONS),
@@ -132,11 +138,11 @@ def envelope_files(results: EnvelopeResults, figure_format: str = "png",
     if figure_format not in FIGURE_FORMATS:
         raise ValueError(f"figure format: expected one of {FIGURE_FORMATS}, found "
                          f"{figure_format!r}")
-    files: dict[str, bytes | str] = {
-        "envelope.csv": envelope_csv(results),
-        "reactions.csv": reactions_csv(results),
-        "envelope.json": envelope_json(results),
-    }
+    files: dict[str, bytes | str] = {}
+    if results.has_loads:
+        files["envelope.csv"] = envelope_csv(results)
+        files["reactions.csv"] = reactions_csv(results)
+    files["envelope.json"] = envelope_json(results)
     figures = envelope_figures(results) if (with_figures or with_report) else {}
     pngs: dict[str, bytes] = {}
     if with_report or figure_format == "png":

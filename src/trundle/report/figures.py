@@ -165,11 +165,12 @@ def _draw_spring(ax: Axes, x: float, rotational: bool) -> None:
 
 
 def plot_beam(beam: Beam, units: UnitSystem, ax: Axes | None = None,
-              sections: Sequence[float] = (), section_colors: Sequence[str] | None = None
-              ) -> Axes:
+              sections: Sequence[float] = (), section_colors: Sequence[str] | None = None,
+              span_labels: bool = True) -> Axes:
     """Draw the beam, its supports, hinges and spans; mark ``sections`` with small ticks.
 
-    The y axis is hidden; x is position along the beam [length].
+    The y axis is hidden; x is position along the beam [length]. ``span_labels=False``
+    leaves out the span lengths above the beam (where loads are drawn on it).
     """
     with figure_style():
         if ax is None:
@@ -193,7 +194,7 @@ def plot_beam(beam: Beam, units: UnitSystem, ax: Axes | None = None,
                 _draw_spring(ax, xs, s.kr is not None)
             ax.annotate(str(i), (xs, 0.0), xytext=(0, -32), textcoords="offset points",
                         ha="center", va="center", fontsize=7, color=MUTED)
-        for a, b in zip(ends[:-1], ends[1:], strict=True):
+        for a, b in zip(ends[:-1], ends[1:], strict=True) if span_labels else ():
             ax.annotate(f"{format_length(b - a)} {units.label('length')}", ((a + b) / 2, 0.0),
                         xytext=(0, 11), textcoords="offset points", ha="center",
                         va="bottom", fontsize=7.5, color=MUTED)
