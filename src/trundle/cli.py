@@ -18,6 +18,7 @@ from rich.text import Text
 
 from trundle import __version__
 from trundle._io import write_all_atomic
+from trundle.cranefile import cranes_of
 from trundle.influence import Effect, InfluenceSet
 from trundle.loadfile import loads_of
 from trundle.model import Beam, ModelError, Spring
@@ -146,6 +147,12 @@ def summary_command(model_file: str) -> None:
         from trundle.report.envelope_tables import model_loads_table, to_rich
 
         console.print(to_rich(model_loads_table(model)))
+    if cranes_of(model):
+        from trundle.report.crane_tables import model_cranes_tables
+        from trundle.report.envelope_tables import to_rich
+
+        for table in model_cranes_tables(model):
+            console.print(to_rich(table))
     console.print(f"model is stable and complete: {len(beam.supports)} supports, "
                   f"{len(beam.hinges)} hinge(s), {len(beam.stiffness_segments)} stiffness "
                   "segment(s)")
@@ -350,10 +357,18 @@ def envelope_command(model_file: str, out_dir: Path | None, figure_format: str,
     each load's impact and factors. With --out it also writes the CSV and JSON tables, the
     figures and a self-contained HTML report.
 
+    A model with [[crane]] tables and a [runway] table also gets the crane runway checks:
+    wheel loads from the crane data, worst reactions per support with and without impact,
+    moment and shear with impact, vertical and lateral deflection against the limits,
+    longitudinal forces and fatigue ranges (runway-*.csv and runway-*.png with --out).
+    Crane defaults (impact, lateral and longitudinal fractions, limits, cycles) must be
+    verified against the governing guide/code.
+
     \b
     Example:
       trundle envelope examples/harbour_lane_floor_girder_si.toml --out results/
       trundle envelope examples/millrace_access_bridge_us.toml -o results --format svg
+      trundle envelope examples/cranes/hall_kestrel_quay_si.toml --out results/
     """
     from trundle.report.envelope_data import collect
 
@@ -383,11 +398,14 @@ def _envelope_summary(results: Any) -> list[Any]:
     from trundle.report.envelope_tables import loads_table, summary_tables, to_rich
 
     units = results.units
+    values = ("values include impact and factors" if results.has_loads
+              else "crane runway only (no [[load]] tables)")
     header = [results.model.title, f"model file {results.model_file}; units {units.name}; "
-              f"{len(results.sections)} sections; values include impact and factors; "
+              f"{len(results.sections)} sections; {values}; "
               "travel → towards +x, ← towards -x"]
     out: list[Any] = [Text(header[0], style="bold"), Text(header[1])]
-    out.append(to_rich(loads_table(results)))
+    if results.has_loads:
+        out.append(to_rich(loads_table(results)))
     out.extend(to_rich(t) for t in summary_tables(results))
     for section in results.extra:
         out.append(Text(section.title, style="bold"))
