@@ -573,5 +573,5 @@ def _syntax_error(name: str, error: tomllib.TOMLDecodeError) -> ModelFileError:
 # The [[load]] table lives in trundle.loadfile, [[crane]] and [runway] in trundle.cranefile;
 # importing them here registers their readers whenever model files can be read, however
 # trundle was imported.
-import trundle.loadfile  # noqa: E402, F401  (registers [[load]])
 import trundle.cranefile  # noqa: E402, F401  (registers [[crane]] and [runway])
+import trundle.loadfile  # noqa: E402, F401  (registers [[load]])

@@ -263,7 +263,7 @@ def _draw_cranes(ax: Axes, report: RunwayReport, p: CranePlacement, label: str) 
                     textcoords="offset points", ha="center", va="bottom", fontsize=7,
                     color=color, zorder=7, annotation_clip=False)
     x = p.extreme.x
-    ax.axvline(x, color=LIMIT_COLOR, lw=1.0, ls=(0, (3, 2)), zorder=1)
+    ax.plot([x, x], [-1.0, 0.05], color=LIMIT_COLOR, lw=1.0, ls=(0, (3, 2)), zorder=1)
     ax.annotate(label, (x, -0.82), xytext=(4, 0), textcoords="offset points", ha="left",
                 va="center", fontsize=7, color=LIMIT_COLOR, zorder=7,
                 bbox={"boxstyle": "round,pad=0.12", "fc": "white", "ec": "none",
@@ -316,8 +316,9 @@ def runway_positions_figure(report: RunwayReport) -> Figure | None:
             _draw_cranes(ax, report, p, label)
             ax.set_title(f"{title}\n{_placement_words(report, p)}", fontsize=7.5, color=INK,
                          loc="left", pad=26)
-        _finish(report, figure, "crane runway: governing crane positions (wheel loads with "
-                                "impact; dashed: unloaded crane)")
+        _finish(report, figure, "crane runway: governing crane positions\n(wheel loads with "
+                                "impact; dashed: unloaded crane; grey: wheel beyond the "
+                                "runway end)")
     return figure
 
 
