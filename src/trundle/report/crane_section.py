@@ -40,7 +40,8 @@ ONE_CRANE_NOTE = "The crane runs with its rated load, both ways along the runway
 NOTES = (
     "Strength values (moment, shear and reactions 'with impact') include each crane's "
     "vertical impact on its wheel loads; deflections, reactions 'without impact', lateral "
-    "values and fatigue ranges do not (common practice, no source).",
+    "values and fatigue ranges do not (common practice, no source). All crane values are "
+    "unfactored: apply the load factors and combinations of the governing code.",
     "Lead wheel: the first wheel of the first crane of the combination as listed; travel → "
     "towards +x, ← towards −x. '(no crane)': no crane position is worse than the empty runway.",
     "The crane runway results stand apart from the envelope of any [[load]] tables of the "
