@@ -154,7 +154,10 @@ class FatigueSection:
     cycles : rainflow cycles of one passage as (range [moment], count) pairs (ASTM E1049)
     stress_range, equivalent_range : ΔM / S and (Σ n ΔM³ / n_passage)^(1/3) / S [stress],
         None without a section modulus
-    allowable : allowable stress range for the service-class cycles [stress], or None
+    allowable : allowable stress range [stress], or None without a detail category
+    check : "threshold" when the largest range is below the detail's constant-amplitude
+        threshold (checked against it), "finite life" otherwise (the equivalent range against
+        the allowable range for all the cycles)
     """
 
     x: float
@@ -164,6 +167,7 @@ class FatigueSection:
     stress_range: float | None = None
     equivalent_range: float | None = None
     allowable: float | None = None
+    check: str | None = None
 
     @property
     def cycles_per_passage(self) -> float:
@@ -171,11 +175,13 @@ class FatigueSection:
 
     @property
     def utilisation(self) -> float | None:
-        """Damage-equivalent stress range over the allowable range for all the cycles the
-        service class and the rainflow count of a passage give (Miner's rule, slope 3)."""
+        """The largest range over the threshold, or (finite life) the damage-equivalent range
+        over the allowable range for all the cycles (Miner's rule, slope 3); inf where
+        unlimited cycles meet a range above the threshold."""
         if self.equivalent_range is None or self.allowable is None:
             return None
-        return self.equivalent_range / self.allowable
+        demand = self.stress_range if self.check == "threshold" else self.equivalent_range
+        return math.inf if self.allowable == 0.0 else demand / self.allowable
 
 
 @dataclass(frozen=True)
@@ -369,7 +375,7 @@ def _fatigue(beam: Beam, sections: NDArray[np.float64], spec: RunwaySpec
             series = np.concatenate([[0.0], history[:, i], [0.0]])
             cycles = tuple((float(r), float(n)) for r, n in rainflow.count_cycles(series)
                            if r > 1e-12 * max(1.0, ranges[i]))
-            stress = equivalent = allowable = None
+            stress = equivalent = allowable = check = None
             if spec.section_modulus is not None:
                 stress = ranges[i] / spec.section_modulus
                 per_passage = sum(n for _, n in cycles)
@@ -379,12 +385,28 @@ def _fatigue(beam: Beam, sections: NDArray[np.float64], spec: RunwaySpec
                 else:
                     equivalent = 0.0
                 if spec.detail_category is not None and spec.ksi is not None:
-                    cycles_total = spec.cycles * max(per_passage, 1.0)
-                    allowable = spec.ksi * allowable_stress_range_ksi(spec.detail_category,
-                                                                      cycles_total)
-            out.append(FatigueSection(float(x), crane.name, float(ranges[i]), cycles, stress,
-                                      equivalent, allowable))
+                    allowable, check = _allowable(spec, stress, per_passage)
+            out.append(FatigueSection(float(x), crane.name, float(ranges[i]), cycles,
+                                      None if stress is None else float(stress),
+                                      None if equivalent is None else float(equivalent),
+                                      allowable, check))
     return tuple(out)
+
+
+def _allowable(spec: RunwaySpec, largest: float, per_passage: float) -> tuple[float, str]:
+    """(allowable range [stress], which check) for a section whose largest stress range is
+    ``largest``.
+
+    Below the constant-amplitude threshold every range is harmless: the check is the largest
+    range against the threshold. Above it the threshold gives no relief: the damage-
+    equivalent range (Miner's rule, slope 3) is checked against (C_f / n)^(1/3) for all the
+    cycles, with no floor (from memory of the fatigue appendix named above; verify).
+    """
+    c_f, threshold = DETAIL_CATEGORIES[spec.detail_category]
+    if largest <= threshold * spec.ksi:
+        return threshold * spec.ksi, "threshold"
+    cycles = spec.cycles * max(per_passage, 1.0)
+    return spec.ksi * (c_f / cycles) ** (1.0 / 3.0), "finite life"
 
 
 def _moment(x: float):

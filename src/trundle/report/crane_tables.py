@@ -394,17 +394,19 @@ def fatigue_table(report: RunwayReport) -> TableData | None:
         "Fatigue per span and crane, the worst section (loaded passages, no impact)"
         + (f" [{S}]" if report.spec.section_modulus is not None else
            " (give section_modulus in [runway] for stress ranges)"),
-        _fatigue_headers(M, L, S), tuple(rows), (False,) + (True,) * 9, groups=tuple(groups),
+        _fatigue_headers(M, L, S), tuple(rows), (False,) + (True,) * 8 + (False, True),
+        groups=tuple(groups),
         note="Rainflow count of one passage (half cycles count ½); Δσ equivalent = "
-             "(Σ n·Δσ³ / Σ n)^(1/3); utilisation = Δσ equivalent / allowable for the cycles "
-             "over the life (passages × cycles per passage). Every section: "
-             "runway-fatigue.csv.")
+             "(Σ n·Δσ³ / Σ n)^(1/3). Where Δσ max is below the detail's threshold, "
+             "utilisation = Δσ max / threshold; otherwise utilisation = Δσ equivalent / "
+             "allowable for the cycles over the life (passages × cycles per passage), with no "
+             "threshold floor. Every section: runway-fatigue.csv.")
 
 
 def _fatigue_headers(M: str, L: str, S: str) -> tuple[str, ...]:
     return ("crane", "span", f"x\n[{L}]", f"ΔM per\npassage [{M}]", "cycles per\npassage",
             f"Δσ max\n[{S}]", f"Δσ\nequivalent [{S}]", "cycles over\nthe life",
-            f"allowable\n[{S}]", "utilisation")
+            f"allowable\n[{S}]", "check", "utilisation")
 
 
 def _fatigue_cells(report: RunwayReport, span: int, item: FatigueSection, d: int, ds: int
@@ -419,6 +421,7 @@ def _fatigue_cells(report: RunwayReport, span: int, item: FatigueSection, d: int
             f"{item.cycles_per_passage:g}", stress(item.stress_range),
             stress(item.equivalent_range),
             "unlimited" if math.isinf(life) else f"{life:,.0f}", stress(item.allowable),
+            item.check or "—",
             "—" if item.utilisation is None else f"{item.utilisation:.3f}")
 
 
@@ -440,7 +443,8 @@ def fatigue_sections_table(report: RunwayReport) -> TableData | None:
             rows.append(_fatigue_cells(report, span, item, d, ds))
     return TableData(
         f"Fatigue at every section [{S}]",
-        _fatigue_headers(M, L, S), tuple(rows), (False,) + (True,) * 9, groups=tuple(groups))
+        _fatigue_headers(M, L, S), tuple(rows), (False,) + (True,) * 8 + (False, True),
+        groups=tuple(groups))
 
 
 def sections_table(report: RunwayReport) -> TableData:
@@ -578,7 +582,7 @@ def fatigue_csv(report: RunwayReport) -> str:
     header = ["crane", "span", f"x [{L}]", f"moment range per passage [{M}]",
               "cycles per passage", f"rainflow cycles of one passage (range [{M}] x count)",
               f"stress range max [{S}]", f"equivalent stress range [{S}]",
-              "cycles over the life", f"allowable stress range [{S}]", "utilisation"]
+              "cycles over the life", f"allowable stress range [{S}]", "check", "utilisation"]
     rows = []
     for item in report.runway.fatigue:
         span, _ = span_of_section(report.beam, item.x)
@@ -592,7 +596,7 @@ def fatigue_csv(report: RunwayReport) -> str:
                      "; ".join(f"{_number(r)} x {_number(n)}" for r, n in item.cycles),
                      stress(item.stress_range), stress(item.equivalent_range),
                      "unlimited" if math.isinf(life) else _number(life),
-                     stress(item.allowable),
+                     stress(item.allowable), item.check or "",
                      "" if item.utilisation is None else _number(item.utilisation)])
     return _csv(header, rows)
 
@@ -710,6 +714,7 @@ def runway_json(report: RunwayReport, cautions: Sequence[str]) -> dict[str, Any]
                                      else item.equivalent_range * factor),
             "cycles_over_life": None if math.isinf(life) else life,
             "allowable": _num(None if item.allowable is None else item.allowable * factor),
+            "check": item.check,
             "utilisation": _num(item.utilisation),
         })
     return {
