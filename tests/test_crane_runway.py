@@ -438,3 +438,34 @@ def test_deflection_is_checked_in_spans_without_requested_sections() -> None:
     assert [c.span for c in sparse.vertical_checks] == list(range(len(SPANS)))
     for a, b in zip(sparse.vertical_checks, full.vertical_checks, strict=True):
         assert a.deflection == pytest.approx(b.deflection, rel=1e-9)
+
+
+def test_end_stops_keep_every_wheel_on_the_runway() -> None:
+    # With end stops at the beam's ends the crane cannot roll a wheel off the runway: on an
+    # 8 m span with a 5.5 m wheelbase both wheels stay on the span, so the one-wheel value
+    # P·L/4 (moving-load formulas, from memory) is out of reach. Reference: static solves
+    # over every allowed position (both wheels in 0 ≤ x ≤ L), refined (common practice).
+    L, a = 8.0, 5.5
+    crane = Crane("forge crane", capacity=200.0, bridge_weight=300.0, trolley_weight=50.0,
+                  span=20.0, hook_approach=1.0, wheel_spacings=(a,), operation="pendant")
+    beam = trundle.Beam(spans=[L], EI=2.0e5)
+    free = analyse_runway(beam, RunwaySpec(cranes=(crane,)), sections=[L / 2])
+    stopped = analyse_runway(beam, RunwaySpec(cranes=(crane,), end_stops=True),
+                             sections=[L / 2])
+    P = crane.wheels().maximum * 1.10
+
+    def moment(x: float) -> float:
+        return float(beam.static([PointLoad(x, P), PointLoad(x + a, P)]).moment([L / 2])[0])
+
+    grid = np.linspace(0.0, L - a, 2001)
+    best = grid[np.argmax([moment(x) for x in grid])]
+    lo, hi = max(0.0, best - (L - a) / 2000), min(L - a, best + (L - a) / 2000)
+    res = minimize_scalar(lambda x: -moment(x), bounds=(lo, hi), method="bounded",
+                          options={"xatol": 1e-12})
+    reference = max(-res.fun, moment(0.0), moment(L - a))
+    assert stopped.strength.max("moment")[0] == pytest.approx(reference, rel=1e-9)
+    assert free.strength.max("moment")[0] == pytest.approx(P * L / 4, rel=1e-12)
+    assert stopped.strength.max("moment")[0] < free.strength.max("moment")[0]
+    g = stopped.strength.governing("moment")[0]
+    wheels = stopped.strength.axle_positions(g)
+    assert wheels.min() >= -1e-12 and wheels.max() <= L + 1e-12

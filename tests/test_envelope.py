@@ -28,6 +28,7 @@ from naive_scan import (
     random_sections,
     static_effects,
 )
+from trundle.statics import PointLoad
 
 REL = 1e-9
 
@@ -285,3 +286,37 @@ def test_load_factor_is_for_strength_only():
             if g.case >= 0} == {"light"}
     with pytest.raises(trundle.ModelError, match="load_factor"):
         trundle.LoadCase(truck, load_factor=0.0)
+
+
+@pytest.mark.parametrize("seed", [0, 1, 2])
+def test_confined_vehicle_against_static_solves_on_the_beam(seed):
+    # A confined group (a crane between end stops) stands only where every axle is on the
+    # beam. Reference: static solves over allowed positions of the front axle, both ways,
+    # on a fine grid plus the window ends (common practice, no source); the exact scan is at
+    # least every sampled value and within the grid's reach of the best of them.
+    rng = np.random.default_rng(seed)
+    spans = list(rng.uniform(6.0, 12.0, size=2))
+    beam = trundle.Beam(spans)
+    loads = list(rng.uniform(10.0, 50.0, size=3))
+    spacings = list(rng.uniform(1.0, 3.0, size=2))
+    vehicle = trundle.Vehicle(loads, spacings, confined=True)
+    sections = np.array([0.3 * spans[0], spans[0], spans[0] + 0.6 * spans[1]])
+    env = trundle.envelope(beam, [vehicle], sections=sections, effects=("moment",))
+    u = vehicle.axle_offsets()
+    best = np.zeros(3)
+    worst = np.zeros(3)
+    for d in (u, u[-1] - u[::-1]):
+        P = loads if d is u else loads[::-1]
+        for xi in np.linspace(d[-1], beam.length + d[0], 1501):
+            x = xi - d
+            m = beam.static([PointLoad(float(xx), p) for xx, p in zip(x, P, strict=True)])
+            values = m.moment(sections)
+            best, worst = np.maximum(best, values), np.minimum(worst, values)
+    scale = np.abs(np.concatenate([best, worst])).max()
+    assert np.all(env.max("moment") >= best - 1e-9 * scale)
+    assert np.all(env.min("moment") <= worst + 1e-9 * scale)
+    np.testing.assert_allclose(env.max("moment"), best, atol=2e-3 * scale)
+    for g in env.governing("moment"):
+        if g.case >= 0:
+            x = env.axle_positions(g)
+            assert x.min() >= -1e-9 and x.max() <= beam.length + 1e-9

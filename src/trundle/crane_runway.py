@@ -92,7 +92,8 @@ def crane_combinations(cranes: Sequence[Crane], wanted: Sequence[str] = COMBINAT
     return out
 
 
-def _crane_vehicle(crane: Crane, state: str, with_impact: bool, lateral: bool) -> Vehicle:
+def _crane_vehicle(crane: Crane, state: str, with_impact: bool, lateral: bool,
+                   confined: bool = False) -> Vehicle:
     w = crane.wheels()
     if lateral:
         # an unloaded crane still pushes sideways with its trolley: the same fraction of the
@@ -107,21 +108,25 @@ def _crane_vehicle(crane: Crane, state: str, with_impact: bool, lateral: bool) -
         if with_impact:
             load *= 1.0 + w.impact
     return Vehicle([load] * crane.wheels_per_rail, list(crane.wheel_spacings),
-                   name=f"{crane.name} ({state})")
+                   name=f"{crane.name} ({state})", confined=confined)
 
 
 def combination_load(combo: CraneCombination, runway_length: float, with_impact: bool = False,
-                     lateral: bool = False) -> Vehicle | Train:
+                     lateral: bool = False, confined: bool = False) -> Vehicle | Train:
     """The moving load of a combination: one crane, or a train of cranes whose clear gap runs
-    from buffers touching to a runway length apart (searched)."""
-    vehicles = [_crane_vehicle(c, state, with_impact, lateral) for c, state in combo.members]
+    from buffers touching to a runway length apart (searched). ``confined``: the beam is the
+    whole runway between its end stops, so every wheel stays on it; otherwise wheels may
+    stand beyond the beam's ends (on the next girders of a longer runway)."""
+    vehicles = [_crane_vehicle(c, state, with_impact, lateral, confined)
+                for c, state in combo.members]
     if len(vehicles) == 1:
-        return Vehicle(vehicles[0].loads, vehicles[0].spacings, name=combo.name)
+        return Vehicle(vehicles[0].loads, vehicles[0].spacings, name=combo.name,
+                       confined=confined)
     gaps = []
     for (a, _), (b, _) in zip(combo.members[:-1], combo.members[1:], strict=True):
         touching = buffer_gap(a, b)
         gaps.append((touching, touching + runway_length))
-    return Train(tuple(vehicles), tuple(gaps), name=combo.name)
+    return Train(tuple(vehicles), tuple(gaps), name=combo.name, confined=confined)
 
 
 @dataclass(frozen=True)
@@ -200,6 +205,9 @@ class RunwaySpec:
     detail_category : fatigue detail category, or None to skip the stress check
     fatigue_cycles : override of the service-class cycles
     ksi : one ksi in the model's stress units (force/length²), for the allowable range
+    end_stops : the beam is the whole runway, with end stops at its ends: wheels stay on it.
+        Without (default) wheels may stand beyond its ends, as on the next girders of a
+        longer runway (conservative for a girder modelled alone)
     """
 
     cranes: tuple[Crane, ...]
@@ -212,8 +220,11 @@ class RunwaySpec:
     detail_category: str | None = None
     fatigue_cycles: float | None = None
     ksi: float | None = None
+    end_stops: bool = False
 
     def __post_init__(self) -> None:
+        if not isinstance(self.end_stops, bool):
+            raise ModelError(f"end_stops: expected true or false, found {self.end_stops!r}")
         if not self.cranes:
             raise ModelError("cranes: at least one crane is needed")
         for i, crane in enumerate(self.cranes):
@@ -348,10 +359,15 @@ def passage_history(batch: LineBatch, vehicle: Vehicle, samples: int = 2001
                     ) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
     """Every line's response as the vehicle crosses once: (ξ (N,), values (N, n_lines)).
 
-    Sampled at every break (an axle over a knot) and on a fine even grid in between.
+    Sampled at every break (an axle over a knot) and on a fine even grid in between. A
+    confined vehicle (a crane) travels from one end of the beam to the other with every
+    wheel on it; another enters and leaves.
     """
-    weights, offsets, kinds, constant = vehicle.group().terms()
+    group = vehicle.group()
+    weights, offsets, kinds, constant = group.terms()
     lo, hi = offsets.min(), batch.length + offsets.max()
+    if group.confined:
+        lo, hi = offsets.max(), batch.length + offsets.min()
     breaks = (batch.knots[None, :] + offsets[:, None]).ravel()
     xi = np.unique(np.concatenate([np.linspace(lo, hi, samples), breaks[(breaks >= lo)
                                                                         & (breaks <= hi)]]))
@@ -367,7 +383,8 @@ def _fatigue(beam: Beam, sections: NDArray[np.float64], spec: RunwaySpec
     lines = beam.influence_set([_moment(x) for x in sections])
     batch = LineBatch.from_set(lines)
     for crane in spec.cranes:
-        vehicle = _crane_vehicle(crane, "loaded", with_impact=False, lateral=False)
+        vehicle = _crane_vehicle(crane, "loaded", with_impact=False, lateral=False,
+                                 confined=spec.end_stops)
         env = envelope(beam, [vehicle], sections=sections, effects=("moment",))
         ranges = env.max("moment") - env.min("moment")
         _, history = passage_history(batch, vehicle)
@@ -421,9 +438,12 @@ def analyse_runway(beam: Beam, spec: RunwaySpec, sections: NDArray[np.float64] |
     sections = beam.tenth_points() if sections is None else np.asarray(sections, dtype=float)
     combos = tuple(crane_combinations(spec.cranes, spec.combinations))
     length = beam.length
-    strength_loads = [LoadCase(combination_load(c, length, with_impact=True), name=c.name)
+    confined = spec.end_stops
+    strength_loads = [LoadCase(combination_load(c, length, with_impact=True, confined=confined),
+                               name=c.name)
                       for c in combos]
-    service_loads = [LoadCase(combination_load(c, length), name=c.name) for c in combos]
+    service_loads = [LoadCase(combination_load(c, length, confined=confined), name=c.name)
+                     for c in combos]
     strength = envelope(beam, strength_loads, sections=sections,
                         effects=("moment", "shear", "reaction", "support_moment"))
     service = envelope(beam, service_loads, sections=sections,
@@ -433,7 +453,8 @@ def analyse_runway(beam: Beam, spec: RunwaySpec, sections: NDArray[np.float64] |
     if spec.lateral_EI is not None:
         lateral_beam = Beam(beam.spans, EI=spec.lateral_EI, supports=beam.supports,
                             hinges=beam.hinges)
-        lateral_loads = [LoadCase(combination_load(c, length, lateral=True), name=c.name)
+        lateral_loads = [LoadCase(combination_load(c, length, lateral=True, confined=confined),
+                                  name=c.name)
                          for c in combos]
         lateral = envelope(lateral_beam, lateral_loads, sections=sections,
                            effects=("moment", "deflection"))

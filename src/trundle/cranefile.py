@@ -43,7 +43,8 @@ _CRANE_REQUIRED = ("name", "capacity", "bridge_weight", "trolley_weight", "span"
                    "hook_approach", "wheel_spacings", "operation")
 _WHEEL_LOAD_KEYS = ("maximum", "minimum", "unloaded")
 _RUNWAY_KEYS = ("combinations", "service_class", "lateral_EI", "lateral_I", "vertical_limit",
-                "lateral_limit", "section_modulus", "detail_category", "fatigue_cycles")
+                "lateral_limit", "section_modulus", "detail_category", "fatigue_cycles",
+                "end_stops")
 
 # The conventional value of standard gravity (exact by definition, 9.80665 m/s²): a mass
 # written for a crane weight or capacity becomes the force it exerts at rest.
@@ -82,6 +83,7 @@ class RunwaySettings:
     section_modulus : [length³] or None
     detail_category : or None
     fatigue_cycles : or None for the service-class default (math.inf: unlimited)
+    end_stops : the beam is the whole runway with end stops at its ends (wheels stay on it)
     given : the table as written
     """
 
@@ -95,6 +97,7 @@ class RunwaySettings:
     detail_category: str | None = None
     fatigue_cycles: float | None = None
     given: Mapping[str, Any] = field(default_factory=dict, repr=False)
+    end_stops: bool = False
 
 
 def cranes_of(model: Model) -> tuple[CraneEntry, ...]:
@@ -125,7 +128,8 @@ def runway_spec(model: Model) -> RunwaySpec | None:
                           lateral_ratio=settings.lateral_ratio,
                           section_modulus=settings.section_modulus,
                           detail_category=settings.detail_category,
-                          fatigue_cycles=settings.fatigue_cycles, ksi=one_ksi(model.units))
+                          fatigue_cycles=settings.fatigue_cycles, ksi=one_ksi(model.units),
+                          end_stops=settings.end_stops)
     except ModelError as error:  # everything is checked on reading; never a traceback anyway
         raise ModelFileError(model.name, RUNWAY_TABLE, str(error)) from None
 
@@ -343,8 +347,15 @@ def read_runway(value: Any, reader: Reader) -> RunwaySettings:
     cycles = None
     if "fatigue_cycles" in table:
         cycles = _cycles(table["fatigue_cycles"], f"{key}.fatigue_cycles", reader)
+    end_stops = False
+    if "end_stops" in table:
+        end_stops = table["end_stops"]
+        if not isinstance(end_stops, bool):
+            reader.expected(f"{key}.end_stops", "true (the beam is the whole runway: wheels "
+                            "stay on it) or false (wheels may stand beyond its ends)", end_stops)
     return RunwaySettings(combinations, service_class, lateral_EI, lateral_given, vertical,
-                          lateral, modulus, category, cycles, MappingProxyType(dict(table)))
+                          lateral, modulus, category, cycles, MappingProxyType(dict(table)),
+                          end_stops)
 
 
 _MODULUS_EXAMPLE = {"SI": "3120 cm^3", "US": "190 in^3"}

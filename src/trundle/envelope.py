@@ -149,6 +149,7 @@ class _Arrangement:
     constant: float
     base: NDArray[np.float64]  # (n_terms,) offsets with every searched value at 0
     slope: NDArray[np.float64]  # (n_params, n_terms)
+    confined: bool = False  # stands only with every concentrated load on the beam
 
     def offsets(self, values: NDArray[np.float64]) -> NDArray[np.float64]:
         return self.base[None, :] + np.atleast_2d(values) @ self.slope
@@ -164,11 +165,12 @@ def _arrangements(case: LoadCase) -> dict[int, _Arrangement]:
             return (group if direction == 1 else group.mirrored()).terms()
 
         weights, base, kinds, constant = terms([0.0] * k)
+        confined = load.group([0.0] * k, case.impact).confined
         slope = np.zeros((k, base.size))
         for i, row in enumerate(np.eye(k)):
             slope[i] = terms(row)[1] - base
         out[direction] = _Arrangement(weights * case.multiplier, kinds,
-                                      constant * case.multiplier, base, slope)
+                                      constant * case.multiplier, base, slope, confined)
     return out
 
 
@@ -184,7 +186,7 @@ def _moving_grid(batch: LineBatch, case: LoadCase, case_index: int,
     for direction, arr in arrangements.items():
         offsets = np.repeat(arr.offsets(grid), n, axis=0)
         r = scan_arrangements(batch, arr.weights, arr.kinds, offsets, np.tile(lines, len(grid)),
-                              arr.constant).reshape(len(grid), n, 6)
+                              arr.constant, arr.confined).reshape(len(grid), n, 6)
         for w, col in ((0, 0), (1, 3)):
             sign = 1.0 if w == 0 else -1.0
             score = np.where(np.isnan(r[:, :, col + 1]), -np.inf, sign * r[:, :, col])
@@ -234,7 +236,7 @@ def _refine(batch: LineBatch, case: LoadCase, result: _CaseResult,
                     values = base.copy()
                     values[:, k] = points
                     r = scan_arrangements(batch, arr.weights, arr.kinds, arr.offsets(values),
-                                          lines, arr.constant)
+                                          lines, arr.constant, arr.confined)
                     value, xi, side = r[rows, col], r[rows, col + 1], r[rows, col + 2]
                     for w in (0, 1):
                         mine = which == w

@@ -72,12 +72,16 @@ class Vehicle:
     name : str
     reversible : bool
         Run in both directions (default). Turn off for a one-way load whose order matters.
+    confined : bool
+        Stand only where every axle is on the beam (a crane between the end stops of its
+        runway), instead of entering and leaving the beam (default).
     """
 
     loads: tuple[float, ...]
     spacings: tuple[Spacing, ...] = ()
     name: str = "vehicle"
     reversible: bool = True
+    confined: bool = False
 
     def __post_init__(self) -> None:
         loads = tuple(_number(p, f"vehicle {self.name!r}: loads[{i}]")
@@ -120,7 +124,8 @@ class Vehicle:
 
     def group(self, values: Sequence[float] = (), impact: float = 0.0) -> TermGroup:
         u = self.axle_offsets(values)
-        return TermGroup(tuple(u), tuple(p * (1.0 + impact) for p in self.loads))
+        return TermGroup(tuple(u), tuple(p * (1.0 + impact) for p in self.loads),
+                         confined=self.confined)
 
     def describe(self) -> str:
         def fmt(s: Spacing) -> str:
@@ -162,6 +167,8 @@ class Train:
         (``len(vehicles) - 1``); a range is searched for its worst value.
     ahead, behind : AttachedUniform or None
         Uniform load travelling in front of the first axle / behind the last axle.
+    confined : bool
+        Stand only where every axle is on the beam (cranes between the end stops).
     """
 
     vehicles: tuple[Vehicle, ...]
@@ -170,6 +177,7 @@ class Train:
     behind: AttachedUniform | None = None
     name: str = "train"
     reversible: bool = True
+    confined: bool = False
 
     def __post_init__(self) -> None:
         vehicles = _sequence(self.vehicles, f"train {self.name!r}: vehicles")
@@ -223,7 +231,7 @@ class Train:
         if self.behind is not None and self.behind.w > 0:
             start = u_all[-1] + self.behind.gap
             uniform.append((start, start + self.behind.length, self.behind.w))
-        return TermGroup(tuple(u_all), tuple(p_all), tuple(uniform))
+        return TermGroup(tuple(u_all), tuple(p_all), tuple(uniform), self.confined)
 
     def describe(self) -> str:
         parts = [v.describe() for v in self.vehicles]

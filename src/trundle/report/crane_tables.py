@@ -212,6 +212,10 @@ def runway_settings_table(report: RunwayReport) -> TableData:
              "given" if "combinations" in settings.given else
              "all of " + ", ".join(f'"{c}"' for c in COMBINATIONS)),
             ("service class", spec.service_class, "given"),
+            ("crane travel", "between end stops at the beam's ends: every wheel on the beam"
+             if spec.end_stops else "wheels may stand beyond the beam's ends (a girder of a "
+             "longer runway; conservative)", "given" if "end_stops" in settings.given
+             else "default (end_stops = false)"),
             ("vertical deflection limit (without impact)", _ratio(spec.vertical_limit_ratio),
              "given" if spec.vertical_ratio is not None else f"default; {VERIFY}")]
     if spec.lateral_EI is not None:

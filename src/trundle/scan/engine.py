@@ -108,16 +108,19 @@ class TermGroup:
     point_u, point_P : positions [length] and values [force] of concentrated loads
     uniform : tuple of (u_start, u_end, w): uniform loads [force/length] over
         u_start ≤ u ≤ u_end; either end may be ±inf (unlimited)
+    confined : the group only stands with every concentrated load on the beam (a crane
+        between its end stops), instead of entering and leaving it
     """
 
     point_u: tuple[float, ...]
     point_P: tuple[float, ...]
     uniform: tuple[tuple[float, float, float], ...] = ()
+    confined: bool = False
 
     def mirrored(self) -> TermGroup:
         """The same group running the other way."""
         return TermGroup(tuple(-u for u in self.point_u), self.point_P,
-                         tuple((-b, -a, w) for a, b, w in self.uniform))
+                         tuple((-b, -a, w) for a, b, w in self.uniform), self.confined)
 
     def terms(self) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArray[np.int64], float]:
         """(weights, offsets, kinds, weight of F(L) that never moves)."""
@@ -160,19 +163,19 @@ def scan_group(batch: LineBatch, group: TermGroup) -> NDArray[np.float64]:
         out[:, 3] = np.minimum(constant * batch.running_end, 0.0)
         return out
     return scan_arrangements(batch, weights, kinds, offsets[None, :],
-                             np.arange(batch.n_lines), constant)
+                             np.arange(batch.n_lines), constant, group.confined)
 
 
 def scan_arrangements(batch: LineBatch, weights: NDArray[np.float64], kinds: NDArray[np.int64],
                       offsets: NDArray[np.float64], lines: NDArray[np.int64],
-                      constant: float = 0.0) -> NDArray[np.float64]:
+                      constant: float = 0.0, confined: bool = False) -> NDArray[np.float64]:
     """One row per (line, arrangement): ``offsets`` (n_rows or 1, n_terms), ``lines`` (n_rows,)."""
     degree = 4 if (kinds == KIND_RUNNING_INTEGRAL).any() else 3
     return scan_rows(batch.knots, batch.coef, batch.running, batch.running_end,
                      np.ascontiguousarray(weights, dtype=float),
                      np.ascontiguousarray(kinds, dtype=np.int64),
                      np.ascontiguousarray(offsets, dtype=float),
-                     np.ascontiguousarray(lines, dtype=np.int64), constant, degree)
+                     np.ascontiguousarray(lines, dtype=np.int64), constant, degree, confined)
 
 
 def group_response(batch: LineBatch, group: TermGroup, xi: float, side: float = 0.0

@@ -159,11 +159,13 @@ def _next_break(knots, piece, offset):
 
 @njit(**JIT_OPTIONS)
 def _scan_row(row, line, knots, coef, running, running_end, weight, kind, offsets,
-              constant, degree, result):
+              constant, degree, result, confined):
     """Sweep the reference position ξ over every piece of one line's response.
 
     The group enters at the left (first term at x = 0) and leaves at the right; the breaks
-    are merged on the fly from each term's own walk along the knots. Result row gets
+    are merged on the fly from each term's own walk along the knots. A ``confined`` group
+    (a crane between its end stops) only stands where every concentrated load is on the
+    beam. Result row gets
     (max, ξ at max, side at max, min, ξ at min, side at min); side +1 is the limit from above
     (ξ → b⁺), −1 from below, 0 an interior point. The empty beam counts (value 0, ξ NaN).
     """
@@ -175,6 +177,11 @@ def _scan_row(row, line, knots, coef, running, running_end, weight, kind, offset
         lo = min(lo, offsets[t])
         hi = max(hi, offsets[t])
     hi += knots[m]
+    if confined:
+        for t in range(n_terms):
+            if kind[t] == KIND_POINT:
+                lo = max(lo, offsets[t])
+                hi = min(hi, knots[m] + offsets[t])
     piece = np.empty(n_terms, dtype=np.int64)
     upcoming = np.empty(n_terms)
     for t in range(n_terms):
@@ -244,7 +251,7 @@ def _scan_row(row, line, knots, coef, running, running_end, weight, kind, offset
 
 @njit(**PARALLEL_OPTIONS)
 def scan_rows_parallel(knots, coef, running, running_end, weight, kind, offsets, lines,
-                       constant_weight, degree):
+                       constant_weight, degree, confined=False):
     """Exact extremes of a load group's response, one row per (line, arrangement).
 
     Parameters
@@ -260,6 +267,8 @@ def scan_rows_parallel(knots, coef, running, running_end, weight, kind, offsets,
     lines : (n_rows,) the line each row scans
     constant_weight : weight of F(L) that never moves (an unlimited load ahead)
     degree : 3 when only concentrated terms, else 4
+    confined : only positions with every concentrated load on the beam (a crane between the
+        end stops of its runway); otherwise the group enters and leaves the beam
 
     Returns
     -------
@@ -272,13 +281,13 @@ def scan_rows_parallel(knots, coef, running, running_end, weight, kind, offsets,
         line = lines[row]
         offsets_row = offsets[0] if shared else offsets[row]
         _scan_row(row, line, knots, coef, running, running_end, weight, kind, offsets_row,
-                  constant_weight * running_end[line], degree, result)
+                  constant_weight * running_end[line], degree, result, confined)
     return result
 
 
 @njit(**JIT_OPTIONS)
 def scan_rows_serial(knots, coef, running, running_end, weight, kind, offsets, lines,
-                     constant_weight, degree):
+                     constant_weight, degree, confined=False):
     """``scan_rows_parallel`` on one thread: cheaper for a handful of rows, where starting
     the thread pool costs more than the work."""
     n_rows = lines.shape[0]
@@ -288,7 +297,7 @@ def scan_rows_serial(knots, coef, running, running_end, weight, kind, offsets, l
         line = lines[row]
         offsets_row = offsets[0] if shared else offsets[row]
         _scan_row(row, line, knots, coef, running, running_end, weight, kind, offsets_row,
-                  constant_weight * running_end[line], degree, result)
+                  constant_weight * running_end[line], degree, result, confined)
     return result
 
 
@@ -298,10 +307,10 @@ PARALLEL_FROM_WORK = 1_000_000
 
 
 def scan_rows(knots, coef, running, running_end, weight, kind, offsets, lines,
-              constant_weight, degree):
+              constant_weight, degree, confined=False):
     """Exact extremes per row; see ``scan_rows_parallel`` for the arguments."""
     n_terms = weight.shape[0]
     work = lines.shape[0] * knots.shape[0] * n_terms * n_terms
     kernel = scan_rows_parallel if work >= PARALLEL_FROM_WORK else scan_rows_serial
     return kernel(knots, coef, running, running_end, weight, kind, offsets, lines,
-                  float(constant_weight), int(degree))
+                  float(constant_weight), int(degree), bool(confined))
