@@ -11,45 +11,16 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from click.testing import CliRunner
 
 import trundle
+from cli_helpers import assert_one_line_error, expected_key, run
 from trundle import _io
-from trundle.cli import cli
 from trundle.modelfile import load_model
 
 ROOT = Path(__file__).resolve().parents[1]
 SI_EXAMPLE = ROOT / "examples" / "harbour_lane_floor_girder_si.toml"
 US_EXAMPLE = ROOT / "examples" / "millrace_access_bridge_us.toml"
 BAD_MODELS = sorted((Path(__file__).parent / "bad_models").glob("*.toml"))
-
-
-def expected_key(path: Path) -> str:
-    for line in path.read_text().splitlines():
-        if line.startswith("# key:"):
-            return line.removeprefix("# key:").strip()
-    raise AssertionError(f"{path.name} has no '# key:' comment")
-
-
-def runner() -> CliRunner:
-    try:  # click < 8.2 mixes stderr into the output unless told not to
-        return CliRunner(mix_stderr=False)
-    except TypeError:
-        return CliRunner()
-
-
-def run(*args: str):
-    return runner().invoke(cli, [str(a) for a in args], prog_name="trundle")
-
-
-def assert_one_line_error(result, *fragments: str) -> None:
-    assert result.exit_code == 2, (result.output, result.stderr)
-    lines = result.stderr.splitlines()
-    assert len(lines) == 1, result.stderr
-    assert lines[0].startswith("error: ")
-    assert "Traceback" not in result.output + result.stderr
-    for fragment in fragments:
-        assert fragment in lines[0]
 
 
 @pytest.mark.parametrize("command", ["summary", "lines"])

@@ -14,9 +14,8 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from click.testing import CliRunner
 
-from trundle.cli import cli
+from cli_helpers import assert_one_line_error, expected_key, run
 from trundle.crane_runway import RunwayResult, analyse_runway, lateral_extremes
 from trundle.cranefile import cranes_of, runway_spec
 from trundle.modelfile import load_model
@@ -32,34 +31,6 @@ TITLE = "Crane runway"
 # Source: NIST Special Publication 811 (2008 edition), Appendix B.8: 1 ft = 12 in exactly;
 # 1 MPa = 1000 kN/m²; standard gravity g_n = 9.806 65 m/s² (conventional value).
 G_N = 9.80665
-
-
-def runner() -> CliRunner:
-    try:  # click < 8.2 mixes stderr into the output unless told not to
-        return CliRunner(mix_stderr=False)
-    except TypeError:
-        return CliRunner()
-
-
-def run(*args: object):
-    return runner().invoke(cli, [str(a) for a in args], prog_name="trundle")
-
-
-def assert_one_line_error(result, *fragments: str) -> None:
-    assert result.exit_code == 2, (result.output, result.stderr)
-    lines = result.stderr.splitlines()
-    assert len(lines) == 1, result.stderr
-    assert lines[0].startswith("error: ")
-    assert "Traceback" not in result.output + result.stderr
-    for fragment in fragments:
-        assert fragment in lines[0]
-
-
-def expected_key(path: Path) -> str:
-    for line in path.read_text().splitlines():
-        if line.startswith("# key:"):
-            return line.removeprefix("# key:").strip()
-    raise AssertionError(f"{path.name} has no '# key:' comment")
 
 
 def library_runway(path: Path) -> RunwayResult:

@@ -14,10 +14,9 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from click.testing import CliRunner
 
 import trundle
-from trundle.cli import cli
+from cli_helpers import assert_one_line_error, expected_key, run
 from trundle.loadfile import loads_of
 from trundle.modelfile import load_model
 from trundle.report.envelope_data import ExtraSection, TableData, collect
@@ -31,34 +30,6 @@ BAD_LOADS = sorted((Path(__file__).parent / "bad_models").glob("load_*.toml"))
 ALL_FILES = {"envelope.csv", "reactions.csv", "envelope.json", "report.html",
              "envelope-moment.png", "envelope-shear.png", "envelope-deflection.png",
              "reactions.png"}
-
-
-def runner() -> CliRunner:
-    try:  # click < 8.2 mixes stderr into the output unless told not to
-        return CliRunner(mix_stderr=False)
-    except TypeError:
-        return CliRunner()
-
-
-def run(*args: object):
-    return runner().invoke(cli, [str(a) for a in args], prog_name="trundle")
-
-
-def assert_one_line_error(result, *fragments: str) -> None:
-    assert result.exit_code == 2, (result.output, result.stderr)
-    lines = result.stderr.splitlines()
-    assert len(lines) == 1, result.stderr
-    assert lines[0].startswith("error: ")
-    assert "Traceback" not in result.output + result.stderr
-    for fragment in fragments:
-        assert fragment in lines[0]
-
-
-def expected_key(path: Path) -> str:
-    for line in path.read_text().splitlines():
-        if line.startswith("# key:"):
-            return line.removeprefix("# key:").strip()
-    raise AssertionError(f"{path.name} has no '# key:' comment")
 
 
 def library_envelope(path: Path) -> trundle.Envelope:

@@ -1,0 +1,39 @@
+"""Shared helpers for the CLI tests: run a command in-process, check a one-line error."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from click.testing import CliRunner
+
+from trundle.cli import cli
+
+
+def runner() -> CliRunner:
+    try:  # click < 8.2 mixes stderr into the output unless told not to
+        return CliRunner(mix_stderr=False)
+    except TypeError:
+        return CliRunner()
+
+
+def run(*args: object):
+    return runner().invoke(cli, [str(a) for a in args], prog_name="trundle")
+
+
+def assert_one_line_error(result, *fragments: str) -> None:
+    """Exit code 2, exactly one line on stderr starting "error: ", no traceback."""
+    assert result.exit_code == 2, (result.output, result.stderr)
+    lines = result.stderr.splitlines()
+    assert len(lines) == 1, result.stderr
+    assert lines[0].startswith("error: ")
+    assert "Traceback" not in result.output + result.stderr
+    for fragment in fragments:
+        assert fragment in lines[0]
+
+
+def expected_key(path: Path) -> str:
+    """The key a bad model file names in its "# key:" comment."""
+    for line in path.read_text().splitlines():
+        if line.startswith("# key:"):
+            return line.removeprefix("# key:").strip()
+    raise AssertionError(f"{path.name} has no '# key:' comment")
