@@ -269,7 +269,6 @@ def _force_or_mass(value: Any, key: str, reader: Reader) -> float:
 
 
 _MASS_EXAMPLE = {"SI": "20 t", "US": "15 ton"}
-_PERCENT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*%\s*$")
 
 
 def _fraction(table: dict[str, Any], name: str, key: str, reader: Reader, what: str
@@ -277,23 +276,7 @@ def _fraction(table: dict[str, Any], name: str, key: str, reader: Reader, what: 
     """An optional fraction: 0.25 or "25 %", from 0 to 1."""
     if name not in table:
         return None
-    value, where = table[name], f"{key}.{name}"
-    expected = f'{what} as a fraction (0.25) or a percentage ("25 %")'
-    if isinstance(value, str):
-        match = _PERCENT.match(value)
-        if not match:
-            reader.expected(where, expected, value)
-        fraction = float(match.group(1)) / 100.0
-    elif isinstance(value, int | float) and not isinstance(value, bool):
-        fraction = float(value)
-        if fraction > 1.0:
-            reader.fail(where, f"expected {expected}, found {show_value(value)}, which would "
-                        f'be {100 * fraction:g} % (write "{value:g} %" for a percentage)')
-    else:
-        reader.expected(where, expected, value)
-    if not (math.isfinite(fraction) and 0.0 <= fraction <= 1.0):
-        reader.fail(where, f"expected {expected} from 0 to 100 %, found {show_value(value)}")
-    return fraction
+    return reader.fraction(table[name], f"{key}.{name}", what)
 
 
 def _is_number(text: str) -> bool:

@@ -403,28 +403,9 @@ def _attached(value: Any, key: str, reader: Reader) -> AttachedUniform:
     return _build(AttachedUniform, key, reader, w=w, length=length, gap=gap)
 
 
-_PERCENT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*%\s*$")
-_IMPACT_EXPECTED = 'a dynamic allowance as a fraction (0.33) or a percentage ("33 %")'
-
-
 def _impact(value: Any, key: str, reader: Reader) -> float:
-    """A fraction: 0.33 or "33 %"; between 0 and 1."""
-    if isinstance(value, str):
-        match = _PERCENT.match(value)
-        if not match:
-            reader.expected(key, _IMPACT_EXPECTED, value)
-        fraction = float(match.group(1)) / 100.0
-    elif isinstance(value, int | float) and not isinstance(value, bool):
-        fraction = float(value)
-        if fraction > 1.0:
-            reader.fail(key, f"expected {_IMPACT_EXPECTED}, found {show_value(value)}, which "
-                        f'would be {100 * fraction:g} % (write "{value:g} %" for a percentage)')
-    else:
-        reader.expected(key, _IMPACT_EXPECTED, value)
-    if not (math.isfinite(fraction) and 0.0 <= fraction <= 1.0):
-        reader.fail(key, f"expected {_IMPACT_EXPECTED} between 0 and 100 %, found "
-                    f"{show_value(value)}")
-    return fraction
+    """A dynamic allowance: 0.33 or "33 %"; between 0 and 1."""
+    return reader.fraction(value, key, "a dynamic allowance", example=0.33)
 
 
 def _factors(value: Any, key: str, reader: Reader) -> dict[str, float]:

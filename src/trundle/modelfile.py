@@ -76,6 +76,9 @@ class Model:
         return str(self.source) if self.source is not None else "<model>"
 
 
+_PERCENT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*%\s*$")
+
+
 class Reader:
     """Checks and converts the values of one model file; passed to table readers.
 
@@ -135,6 +138,27 @@ class Reader:
         if isinstance(value, bool) or not isinstance(value, int) or value < minimum:
             self.expected(key, f"a whole number of at least {minimum}", value)
         return int(value)
+
+    def fraction(self, value: Any, key: str, what: str, example: float = 0.25) -> float:
+        """A fraction from 0 to 1, written 0.25 or "25 %"; a bare number above 1 is refused
+        (it is almost always a percentage without its sign)."""
+        expected = f'{what} as a fraction ({example:g}) or a percentage ("{100 * example:g} %")'
+        if isinstance(value, str):
+            match = _PERCENT.match(value)
+            if not match:
+                self.expected(key, expected, value)
+            fraction = float(match.group(1)) / 100.0
+        elif isinstance(value, int | float) and not isinstance(value, bool):
+            fraction = float(value)
+            if fraction > 1.0:
+                self.fail(key, f"expected {expected}, found {show_value(value)}, which would "
+                          f'be {100 * fraction:g} % (write "{value:g} %" for a percentage)')
+        else:
+            self.expected(key, expected, value)
+        if not (math.isfinite(fraction) and 0.0 <= fraction <= 1.0):
+            self.fail(key, f"expected {expected} between 0 and 100 % (0 to 100 %), "
+                      f"found {show_value(value)}")
+        return fraction
 
     # --- quantities -----------------------------------------------------------------------
 
