@@ -23,8 +23,8 @@ spec="."
 stamp=".venv/.installed-${extra:-base}"
 # reinstall only when the project definition changed since the last install
 if [ ! -f "$stamp" ] || [ pyproject.toml -nt "$stamp" ]; then
-  "$venv_python" -m pip install --quiet --upgrade pip
-  "$venv_python" -m pip install --quiet -e "$spec"
+  "$venv_python" -m pip install --quiet --quiet --upgrade pip
+  "$venv_python" -m pip install --quiet --quiet -e "$spec"
   touch "$stamp"
 fi
 export PATH="$root/.venv/bin:$PATH"

@@ -160,9 +160,9 @@ class FatigueSection:
     stress_range, equivalent_range : ΔM / S and (Σ n ΔM³ / n_passage)^(1/3) / S [stress],
         None without a section modulus
     allowable : allowable stress range [stress], or None without a detail category
-    check : "threshold" when the largest range is below the detail's constant-amplitude
-        threshold (checked against it), "finite life" otherwise (the equivalent range against
-        the allowable range for all the cycles)
+    check : "threshold" (the largest range against the detail's constant-amplitude
+        threshold) or "finite life" (the equivalent range against the allowable range for all
+        the cycles), whichever gives the lower utilisation
     """
 
     x: float
@@ -181,8 +181,8 @@ class FatigueSection:
     @property
     def utilisation(self) -> float | None:
         """The largest range over the threshold, or (finite life) the damage-equivalent range
-        over the allowable range for all the cycles (Miner's rule, slope 3); inf where
-        unlimited cycles meet a range above the threshold."""
+        over the allowable range for all the cycles (Miner's rule, slope 3), whichever is
+        lower; inf where unlimited cycles meet a range above the threshold."""
         if self.equivalent_range is None or self.allowable is None:
             return None
         demand = self.stress_range if self.check == "threshold" else self.equivalent_range
@@ -402,7 +402,7 @@ def _fatigue(beam: Beam, sections: NDArray[np.float64], spec: RunwaySpec
                 else:
                     equivalent = 0.0
                 if spec.detail_category is not None and spec.ksi is not None:
-                    allowable, check = _allowable(spec, stress, per_passage)
+                    allowable, check = _allowable(spec, stress, equivalent, per_passage)
             out.append(FatigueSection(float(x), crane.name, float(ranges[i]), cycles,
                                       None if stress is None else float(stress),
                                       None if equivalent is None else float(equivalent),
@@ -410,20 +410,26 @@ def _fatigue(beam: Beam, sections: NDArray[np.float64], spec: RunwaySpec
     return tuple(out)
 
 
-def _allowable(spec: RunwaySpec, largest: float, per_passage: float) -> tuple[float, str]:
-    """(allowable range [stress], which check) for a section whose largest stress range is
-    ``largest``.
+def _allowable(spec: RunwaySpec, largest: float, equivalent: float, per_passage: float
+               ) -> tuple[float, str]:
+    """(allowable range [stress], which check) for a section's stress ranges.
 
-    Below the constant-amplitude threshold every range is harmless: the check is the largest
-    range against the threshold. Above it the threshold gives no relief: the damage-
-    equivalent range (Miner's rule, slope 3) is checked against (C_f / n)^(1/3) for all the
-    cycles, with no floor (from memory of the fatigue appendix named above; verify).
+    A detail passes either way (from memory of the fatigue appendix named above; verify):
+    every range below the constant-amplitude threshold ("threshold": the largest range
+    against F_TH), or the damage-equivalent range (Miner's rule, slope 3) within the finite-life
+    range (C_f / n)^(1/3) for all the cycles ("finite life", no threshold floor). The check
+    reported is the one with the lower utilisation, so the utilisation does not jump at the
+    threshold.
     """
     c_f, threshold = DETAIL_CATEGORIES[spec.detail_category]
-    if largest <= threshold * spec.ksi:
-        return threshold * spec.ksi, "threshold"
     cycles = spec.cycles * max(per_passage, 1.0)
-    return spec.ksi * (c_f / cycles) ** (1.0 / 3.0), "finite life"
+    finite = spec.ksi * (c_f / cycles) ** (1.0 / 3.0)  # 0 for unlimited cycles
+    floor = threshold * spec.ksi
+    by_threshold = largest / floor
+    by_life = equivalent / finite if finite > 0.0 else math.inf
+    if by_threshold <= by_life:
+        return floor, "threshold"
+    return finite, "finite life"
 
 
 def _moment(x: float):

@@ -195,6 +195,10 @@ def _read_entry(item: dict[str, Any], key: str, reader: Reader, base: Path) -> L
     files: list[Path] = []
     load = _definition(kind, table, key, reader, name, base, files)
     impact = _impact(table["impact"], _sub(key, "impact"), reader) if "impact" in table else 0.0
+    if kind == "uniform" and "impact" in table:
+        reader.fail(_sub(key, "impact"), "expected no impact for a placed uniform load (the "
+                    "dynamic allowance applies to axle loads only), found "
+                    f"{show_value(table['impact'])}")
     factors = _factors(table["factors"], _sub(key, "factors"), reader) if "factors" in table else {}
     return LoadEntry(name, kind,
                      _case(load, impact, factors, _load_factor(table, key, reader), key, reader),
@@ -326,7 +330,7 @@ def _spacing(value: Any, key: str, reader: Reader) -> float | tuple[float, float
                         f"length for a fixed value), found {show_value(table['max'])}")
         return (low, high)
     if isinstance(value, list):
-        reader.expected(key, 'a length or a range {{min = "…", max = "…"}}', value)
+        reader.expected(key, 'a length or a range {min = "…", max = "…"}', value)
     return reader.positive(value, key, "length")
 
 

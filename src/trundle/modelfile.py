@@ -266,9 +266,8 @@ def read_model(text: str, name: str = "<model>", source: Path | None = None) -> 
     reader.raw = raw
     for key in raw:
         if key not in known_top_level_keys():
-            reader.fail(key, "unknown top-level key; "
-                        + _unknown_key_detail(key, known_top_level_keys()).removeprefix(
-                            "unknown key; "))
+            reader.fail(key, _unknown_key_detail(key, known_top_level_keys(),
+                                                 what="top-level key"))
     title = reader.text(raw["title"], "title") if "title" in raw else (
         source.stem if source is not None else "untitled")
     if "description" in raw:
@@ -509,6 +508,7 @@ def _read_sections(value: Any, reader: Reader) -> NDArray[np.float64]:
     if "at" in table:
         at = table["at"]
         if isinstance(at, str):
+            at = _section_name(at)
             if at not in _NAMED_SECTIONS:
                 reader.expected("sections.at", "a list of positions or one of "
                                 + ", ".join(f'"{n}"' for n in _NAMED_SECTIONS), at)
@@ -518,8 +518,8 @@ def _read_sections(value: Any, reader: Reader) -> NDArray[np.float64]:
             if not items:
                 reader.expected("sections.at", "at least one position", items)
             for i, x in enumerate(items):
-                if isinstance(x, str) and x in _NAMED_SECTIONS:
-                    points.extend(_named_sections(beam, x))
+                if isinstance(x, str) and _section_name(x) in _NAMED_SECTIONS:
+                    points.extend(_named_sections(beam, _section_name(x)))
                 else:
                     points.append(reader.position(x, f"sections.at[{i}]"))
     if "every" in table:
@@ -530,6 +530,11 @@ def _read_sections(value: Any, reader: Reader) -> NDArray[np.float64]:
             points.extend(a + np.arange(count) * step)
             points.append(b)
     return _unique_sorted(np.asarray(points, dtype=float), beam.length)
+
+
+def _section_name(text: str) -> str:
+    """ "Tenth-points", "tenth_points" and "tenth points" all name the tenth points."""
+    return " ".join(text.replace("-", " ").replace("_", " ").lower().split())
 
 
 def _named_sections(beam: Beam, name: str) -> NDArray[np.float64]:
@@ -564,7 +569,7 @@ def _join(parent: str, name: str) -> str:
     return f"{parent}.{name}" if parent else name
 
 
-def _unknown_key_detail(name: str, allowed: Iterable[str]) -> str:
+def _unknown_key_detail(name: str, allowed: Iterable[str], what: str = "key") -> str:
     allowed = list(allowed)
     hint = difflib.get_close_matches(name, allowed, n=1, cutoff=0.6)
     if not hint:
@@ -572,7 +577,7 @@ def _unknown_key_detail(name: str, allowed: Iterable[str]) -> str:
         if name.lower() in lowered:
             hint = [lowered[name.lower()]]
     extra = f' (did you mean "{hint[0]}"?)' if hint else ""
-    return f"unknown key{extra}; expected one of {', '.join(allowed)}"
+    return f"unknown {what}{extra}; expected one of {', '.join(allowed)}"
 
 
 def _shown_length(value: Any, x: float, unit: str) -> str:

@@ -75,7 +75,7 @@ class CranePlacement:
     Fields
     ------
     extreme : value (display units), section, combination, direction, lead wheel x, wheels x
-    gaps : clear gap from the last wheel of one crane to the first of the next [length]
+    gaps : distance from the last wheel of one crane to the first of the next [length]
     touching : per gap, whether the buffers touch (the smallest gap the cranes allow)
     wheel_loads : load of each wheel of the placement [force] (with impact for strength)
     cranes : per crane of the combination, in order: (name, "loaded"/"unloaded", wheels)

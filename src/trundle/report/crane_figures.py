@@ -278,8 +278,8 @@ def _placement_words(report: RunwayReport, p: CranePlacement) -> str:
     travel = {1: "travelling towards +x", -1: "travelling towards −x"}.get(e.direction, "")
     words = f"{e.load}, {travel}, lead wheel at x = {_position(e.lead_x)} {L}"
     for gap, touching in zip(p.gaps, p.touching, strict=True):
-        words += f"; clear gap {_position(gap)} {L}" + (" (buffers touching)" if touching
-                                                        else "")
+        words += (f"; wheel to wheel between cranes {_position(gap)} {L}"
+                  + (" (buffers touching)" if touching else ""))
     return words
 
 

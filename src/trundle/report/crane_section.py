@@ -32,9 +32,9 @@ TITLE = "Crane runway"
 COMBINATION_NOTE = (
     "Combinations: '<crane> alone' is one crane with its rated load; 'all loaded' runs the "
     "cranes together, each with its rated load; '<crane> loaded, others unloaded' runs them "
-    "together with one lifting. Cranes run together as one group whose clear gap (last wheel "
-    "of one crane to the first of the next) is searched from buffers touching to a runway "
-    "length apart, both ways along the runway.")
+    "together with one lifting. Cranes run together as one group whose wheel-to-wheel "
+    "distance (last wheel of one crane to the first of the next) is searched from buffers "
+    "touching to a runway length apart, both ways along the runway.")
 ONE_CRANE_NOTE = "The crane runs with its rated load, both ways along the runway."
 
 NOTES = (

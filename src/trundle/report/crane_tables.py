@@ -75,12 +75,13 @@ def _governing_cells(p: CranePlacement) -> list[str]:
 
 
 def _governing_headers(L: str) -> tuple[str, ...]:
-    return ("combination", "travel", f"lead wheel\nx [{L}]", f"clear gap\nbetween cranes [{L}]")
+    return ("combination", "travel", f"lead wheel\nx [{L}]",
+            f"wheel to wheel\nbetween cranes [{L}]")
 
 
 def _without_empty_gaps(table: TableData) -> TableData:
     """The table without its crane-gap column when no placement has a gap (one crane)."""
-    index = next((i for i, c in enumerate(table.columns) if c.startswith("clear gap")), None)
+    index = next((i for i, c in enumerate(table.columns) if c.startswith("wheel to wheel")), None)
     if index is None or any(row[index] for row in table.rows):
         return table
 
@@ -401,10 +402,10 @@ def fatigue_table(report: RunwayReport) -> TableData | None:
         _fatigue_headers(M, L, S), tuple(rows), (False,) + (True,) * 8 + (False, True),
         groups=tuple(groups),
         note="Rainflow count of one passage (half cycles count ½); Δσ equivalent = "
-             "(Σ n·Δσ³ / Σ n)^(1/3). Where Δσ max is below the detail's threshold, "
-             "utilisation = Δσ max / threshold; otherwise utilisation = Δσ equivalent / "
-             "allowable for the cycles over the life (passages × cycles per passage), with no "
-             "threshold floor. Every section: runway-fatigue.csv.")
+             "(Σ n·Δσ³ / Σ n)^(1/3). A detail passes by 'threshold' (Δσ max / the detail's "
+             "threshold ≤ 1) or by 'finite life' (Δσ equivalent / allowable for the cycles "
+             "over the life, passages × cycles per passage, no threshold floor, ≤ 1); the "
+             "lower utilisation is shown. Every section: runway-fatigue.csv.")
 
 
 def _fatigue_headers(M: str, L: str, S: str) -> tuple[str, ...]:
@@ -500,7 +501,7 @@ def _csv(header: list[str], rows: list[list[str]]) -> str:
 def _placement_columns(name: str, unit: str, L: str) -> list[str]:
     return [f"{name} [{unit}]", f"{name}: combination", f"{name}: direction",
             f"{name}: lead wheel x [{L}]", f"{name}: wheel x [{L}]",
-            f"{name}: clear gaps between cranes [{L}]"]
+            f"{name}: wheel-to-wheel distances between cranes [{L}]"]
 
 
 def _placement_cells(p: CranePlacement) -> list[str]:
