@@ -320,3 +320,38 @@ def test_confined_vehicle_against_static_solves_on_the_beam(seed):
         if g.case >= 0:
             x = env.axle_positions(g)
             assert x.min() >= -1e-9 and x.max() <= beam.length + 1e-9
+
+
+def test_loads_acting_together_add_their_own_worst_placements():
+    # A lane load superposed on a design vehicle: each stands where it is worst for the
+    # effect, so the envelope of the sum is the sum of the envelopes (common practice, no
+    # source); concurrent values are the static solution with the axles where reported and
+    # the lane on its reported stretches; deflection leaves out each part's load factor.
+    beam = trundle.Beam([30.0, 30.0])
+    truck = trundle.LoadCase(trundle.Vehicle([35.0, 145.0, 145.0], [4.3, (4.3, 9.0)],
+                                             name="truck"), impact=0.33, load_factor=1.75)
+    lane = trundle.LoadCase(trundle.UniformLoad(9.3, name="lane"), load_factor=1.75)
+    both = trundle.Together((truck, lane), name="truck + lane")
+    together = trundle.envelope(beam, [both])
+    alone = [trundle.envelope(beam, [part]) for part in (truck, lane)]
+    for kind in ("moment", "reaction", "deflection"):
+        for which in ("max", "min"):
+            expected = sum(getattr(e, which)(kind) for e in alone)
+            np.testing.assert_allclose(getattr(together, which)(kind), expected, rtol=1e-12,
+                                       atol=1e-12 * np.nanmax(np.abs(expected)))
+    g = together.governing("moment", "min")[10]  # over the pier
+    assert [p.case for p in g.parts] == [0, 1]
+    axles = together.axle_positions(g)
+    stretches, _ = together.loaded_stretches(g)
+    # axle_positions keeps the listed axle order in either direction of travel
+    loads = [PointLoad(float(x), 1.33 * 1.75 * p)
+             for x, p in zip(axles, truck.load.loads, strict=True)]
+    loads += [trundle.DistributedLoad(a, b, 9.3 * 1.75) for a, b in stretches]
+    static = beam.static(loads)
+    assert together.min("moment")[10] == pytest.approx(float(static.moment([30.0])[0]),
+                                                       rel=1e-9)
+    assert together.response_to(g)[together.lines_of("moment")[10]] == pytest.approx(
+        together.min("moment")[10], rel=1e-12)
+    with pytest.raises(trundle.ModelError, match="two or more"):
+        trundle.Together((truck,))
+

@@ -2,7 +2,7 @@
 
 from trundle.envelope import Envelope, Governing, envelope
 from trundle.influence import Effect, InfluenceLine, InfluenceSet, influence_batch, influence_set
-from trundle.loads import AttachedUniform, LoadCase, Train, UniformLoad, Vehicle
+from trundle.loads import AttachedUniform, LoadCase, Together, Train, UniformLoad, Vehicle
 from trundle.model import Beam, ModelError, Spring
 from trundle.modelfile import ModelFileError, load_model
 from trundle.statics import DistributedLoad, PointLoad, PointMoment
@@ -10,6 +10,6 @@ from trundle.statics import DistributedLoad, PointLoad, PointMoment
 __all__ = ["AttachedUniform", "Beam", "DistributedLoad", "Effect", "Envelope", "Governing",
            "InfluenceLine", "InfluenceSet", "LoadCase", "ModelError", "ModelFileError",
            "PointLoad", "PointMoment",
-           "Spring", "Train", "UniformLoad", "Vehicle", "envelope", "influence_batch",
+           "Spring", "Together", "Train", "UniformLoad", "Vehicle", "envelope", "influence_batch",
            "influence_set", "load_model"]
 __version__ = "0.1.0"

@@ -18,7 +18,7 @@ from numpy.typing import ArrayLike, NDArray
 from scipy.optimize import minimize_scalar
 
 from trundle.influence import Effect, influence_set, piece_sign_intervals
-from trundle.loads.cases import LoadCase, as_case
+from trundle.loads.cases import LoadCase, Together, as_case
 from trundle.loads.patterns import UniformLoad
 from trundle.model import Beam, ModelError, Spring
 from trundle.scan.engine import (
@@ -49,6 +49,8 @@ class Governing:
     searched : values found for the searched spacings/gaps [length]
     pattern : for placed uniform load: the loaded intervals [(x0, x1), …]; its
         concentrated load (if any) stands at ``reference``, on ``side`` of a jump
+    parts : for loads acting together: the Governing of each part, whose ``case`` is the
+        part's index in the Together
     """
 
     value: float
@@ -58,6 +60,7 @@ class Governing:
     side: int = 0
     searched: tuple[float, ...] = ()
     pattern: tuple | None = None
+    parts: tuple[Governing, ...] = ()
 
 
 EMPTY = Governing(0.0)
@@ -115,6 +118,7 @@ class _CaseResult:
         self.direction = np.zeros((2, n), dtype=np.int64)
         self.searched = np.zeros((2, n, n_params))
         self.pattern: list[list[Any]] | None = None
+        self.parts: list[_CaseResult] = []  # loads acting together: one result per part
 
     def offer(self, w: int, rows: NDArray[np.int64], value, xi, side, direction, searched
               ) -> None:
@@ -129,6 +133,9 @@ class _CaseResult:
         self.searched[w, r] = searched if searched.ndim == 1 else searched[better]
 
     def governing(self, w: int, j: int) -> Governing:
+        if self.parts:
+            return Governing(float(self.value[w, j]), self.case,
+                             parts=tuple(p.governing(w, j) for p in self.parts))
         if self.pattern is not None:
             return Governing(float(self.value[w, j]), self.case, 0, float(self.xi[w, j]),
                              int(self.side[w, j]), pattern=self.pattern[w][j])
@@ -385,8 +392,14 @@ class Envelope:
         if g.case < 0:
             return np.zeros(len(self.effects))
         case = self.cases[g.case]
+        if isinstance(case, Together):
+            return sum((self._response(case.parts[p.case], p) for p in g.parts if p.case >= 0),
+                       np.zeros(len(self.effects)))
+        return self._response(case, g)
+
+    def _response(self, case: LoadCase, g: Governing) -> NDArray[np.float64]:
         if isinstance(case.load, UniformLoad):
-            intervals, x_p = self.loaded_stretches(g)
+            intervals, x_p = self._stretches(g)
             total = np.zeros(len(self.effects))
             for a, b in intervals:
                 F = self.batch.running_at(np.array([a, b]))
@@ -395,30 +408,57 @@ class Envelope:
                 side = "left" if g.side < 0 else "right"
                 total += case.load.point_load * self.batch.ordinates(np.array([x_p]), side)[0]
         else:
-            total = group_response(self.batch, self.group_of(g), g.reference, g.side)
+            total = group_response(self.batch, self._group(case, g), g.reference, g.side)
         factor = np.full(len(self.effects), case.multiplier)
         factor[self.index["deflection"]] = case.service_multiplier  # no strength load factor
         return factor * total
 
     def loaded_stretches(self, g: Governing) -> tuple[list[tuple[float, float]], float | None]:
-        """For placed uniform load: the loaded intervals and where its point load stands."""
+        """For placed uniform load: the loaded intervals and where its point load stands
+        (for loads acting together: those of its placed parts)."""
+        if g.parts:
+            case = self.cases[g.case]
+            stretches: list[tuple[float, float]] = []
+            x_p = None
+            for p in g.parts:
+                if p.case >= 0 and isinstance(case.parts[p.case].load, UniformLoad):
+                    more, x = self._stretches(p)
+                    stretches.extend(more)
+                    x_p = x if x is not None else x_p
+            return stretches, x_p
+        return self._stretches(g)
+
+    def _stretches(self, g: Governing) -> tuple[list[tuple[float, float]], float | None]:
         intervals = g.pattern
         if intervals and intervals[0] == "sign of line":
             _, j, sign = intervals
             intervals = piece_sign_intervals(self.batch.knots, self.batch.coef[:, :, j], sign)
         x_p = None if np.isnan(g.reference) else g.reference
-        return list(intervals), x_p
+        return list(intervals or ()), x_p
 
     def group_of(self, g: Governing) -> TermGroup:
-        case = self.cases[g.case]
+        return self._group(self.cases[g.case], g)
+
+    @staticmethod
+    def _group(case: LoadCase, g: Governing) -> TermGroup:
         group = case.load.group(g.searched, case.impact)
         return group if g.direction >= 0 else group.mirrored()
 
     def axle_positions(self, g: Governing) -> NDArray[np.float64]:
-        """x of each concentrated load of the governing configuration [length]."""
-        if g.case < 0 or isinstance(self.cases[g.case].load, UniformLoad):
+        """x of each concentrated load of the governing configuration [length] (for loads
+        acting together: of every moving part)."""
+        if g.case < 0:
             return np.array([])
-        return g.reference - np.asarray(self.group_of(g).point_u)
+        case = self.cases[g.case]
+        if isinstance(case, Together):
+            found = [self._axles(case.parts[p.case], p) for p in g.parts if p.case >= 0]
+            return np.concatenate(found) if found else np.array([])
+        return self._axles(case, g)
+
+    def _axles(self, case: LoadCase, g: Governing) -> NDArray[np.float64]:
+        if isinstance(case.load, UniformLoad):
+            return np.array([])
+        return g.reference - np.asarray(self._group(case, g).point_u)
 
     def absolute(self, kind: str = "moment") -> tuple[AbsoluteExtreme, ...]:
         """Max and min of ``kind`` over every section of every span, per load case."""
@@ -492,6 +532,17 @@ class _Frozen:
         return self.load.describe()
 
 
+def _standalone(source: Envelope, g: Governing, case: int) -> Governing:
+    """``g`` of envelope ``source`` with its loaded stretches named outright (not as a line of
+    ``source``) and its case index set, so it can stand in another envelope."""
+    pattern = g.pattern
+    if pattern is not None:
+        pattern = tuple(source._stretches(g)[0])
+    parts = tuple(_standalone(source, p, p.case) for p in g.parts)
+    return Governing(g.value, case, g.direction, g.reference, g.side, g.searched, pattern,
+                     parts)
+
+
 ABSOLUTE_SAMPLES = 40  # sections per span searched before the bounded refinement
 
 
@@ -526,7 +577,8 @@ def absolute_extremes(beam: Beam, case: LoadCase, span: int, kind: str = "moment
     tol = 1e-9 * beam.length
     inside = np.flatnonzero((coarse.sections >= a - tol) & (coarse.sections <= b + tol))
     xs = coarse.sections[inside]
-    searched = not isinstance(case.load, UniformLoad) and bool(case.load.parameters())
+    searched = (isinstance(case, LoadCase) and not isinstance(case.load, UniformLoad)
+                and bool(case.load.parameters()))
     out = []
     for which in extremes:
         values = (coarse.max(kind) if which == "max" else coarse.min(kind))[inside]
@@ -558,14 +610,26 @@ def absolute_extremes(beam: Beam, case: LoadCase, span: int, kind: str = "moment
             best_x, best_value = float(res.x), value
             governing = e.governing(kind, which)[0]
             source = e
-        pattern = governing.pattern
-        if pattern is not None:  # name the loaded stretches outright, not a line of `source`
-            pattern = tuple(source.loaded_stretches(governing)[0])
-        governing = Governing(governing.value, case_index if governing.case >= 0 else -1,
-                              governing.direction, governing.reference, governing.side,
-                              governing.searched, pattern)
+        governing = _standalone(source, governing, case_index if governing.case >= 0 else -1)
         out.append(AbsoluteExtreme(span, case_index, which, best_value, best_x, governing))
     return tuple(out)
+
+
+def _together(batch: LineBatch, together: Together, c: int, single: Any,
+              index: dict[str, NDArray[np.int64]], refine: bool) -> _CaseResult:
+    """Loads acting together: each part at its own worst, so the extreme of the sum is the
+    sum of the parts' extremes (each counts the empty beam). Parts are refined on their own
+    and their deflections taken without their own load factors before they are added."""
+    result = _CaseResult(c, batch.n_lines)
+    for k, part in enumerate(together.parts):
+        part_result, arrangements = single(part, k)
+        if arrangements is not None and refine:
+            tasks = [np.flatnonzero(~np.isnan(part_result.xi[w])) for w in (0, 1)]
+            _refine(batch, part, part_result, arrangements, tasks)
+        part_result.value[:, index["deflection"]] /= part.load_factor
+        result.parts.append(part_result)
+        result.value += part_result.value
+    return result
 
 
 def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None,
@@ -594,14 +658,21 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
     ordinate_extremes = scan_group(batch, TermGroup((0.0,), (1.0,)))
     results: list[_CaseResult] = []
     moving: list[tuple[LoadCase, _CaseResult, dict[int, _Arrangement]]] = []
-    for c, case in enumerate(cases):
+
+    def single(case: LoadCase, c: int) -> tuple[_CaseResult, dict | None]:
         if isinstance(case.load, UniformLoad):
-            results.append(_uniform_case(batch, case, c, ordinate_extremes, beam))
-            continue
+            return _uniform_case(batch, case, c, ordinate_extremes, beam), None
         arrangements = _arrangements(case)
-        result = _moving_grid(batch, case, c, arrangements)
+        return _moving_grid(batch, case, c, arrangements), arrangements
+
+    for c, case in enumerate(cases):
+        if isinstance(case, Together):
+            results.append(_together(batch, case, c, single, index, refine))
+            continue
+        result, arrangements = single(case, c)
         results.append(result)
-        moving.append((case, result, arrangements))
+        if arrangements is not None:
+            moving.append((case, result, arrangements))
     # deflection stays at service level, without the strength load factor of each case
     service = np.ones((len(cases), n))
     for c, case in enumerate(cases):

@@ -92,5 +92,50 @@ class LoadCase:
         return "; ".join(parts)
 
 
-def as_case(item: Any) -> LoadCase:
-    return item if isinstance(item, LoadCase) else LoadCase(item)
+def as_case(item: Any) -> Any:
+    """A LoadCase (or Together) for anything the envelope accepts as a load."""
+    if isinstance(item, LoadCase | Together):
+        return item
+    return LoadCase(item)
+
+
+@dataclass(frozen=True)
+class Together:
+    """Loads that act at the same time, each standing where it is worst for the effect.
+
+    The extreme of the sum is the sum of the extremes (each part placed independently, the
+    empty beam counting for each), the way a lane load is superposed on a design vehicle.
+    Each part keeps its own impact, factors and load factor.
+
+    Parameters
+    ----------
+    parts : two or more LoadCase (or Vehicle, Train, UniformLoad) items
+    name : str
+        Defaults to the parts' names joined with " + ".
+    """
+
+    parts: tuple[Any, ...]
+    name: str = ""
+
+    def __post_init__(self) -> None:
+        try:
+            parts = tuple(as_case(p) for p in self.parts)
+        except TypeError:
+            raise ModelError(f"loads acting together {self.name!r}: parts: expected a list of "
+                             f"loads, found {self.parts!r}") from None
+        if len(parts) < 2:
+            raise ModelError(f"loads acting together {self.name!r}: parts: expected two or "
+                             f"more loads, found {len(parts)}")
+        object.__setattr__(self, "parts", parts)
+        if not self.name:
+            object.__setattr__(self, "name", " + ".join(p.name for p in parts))
+
+    # a Together is a case of its own; the factors live on its parts
+    impact = 0.0
+    factors: tuple[tuple[str, float], ...] = ()
+    load_factor = 1.0
+    multiplier = 1.0
+    service_multiplier = 1.0
+
+    def describe(self) -> str:
+        return "acting together: " + " + ".join(f"({p.describe()})" for p in self.parts)
