@@ -3,8 +3,10 @@
 A ``[[load]]`` entry is one of: a vehicle (``axles``), a train of vehicles (``vehicles``), a
 placed uniform live load (``uniform``) or a load model from the library or from a file
 (``use``); any of them may carry a dynamic allowance (``impact``) and named multipliers
-(``factors``). A load-model file holds the same keys as one entry at its top level, plus
-``units``, ``description`` and ``source``. The schema is documented in docs/model-file.md.
+(``factors``). An entry with ``together = ["truck", "lane"]`` makes other entries of the same
+file act at the same time, each where it is worst and with its own impact and factors.
+A load-model file holds the same keys as one entry at its top level, plus ``units``,
+``description`` and ``source``. The schema is documented in docs/model-file.md.
 
 Every value is converted to the model's base units; a load-model file in other units is
 converted exactly (rational arithmetic, one rounding). Every problem is a one-line
@@ -26,7 +28,7 @@ from types import MappingProxyType
 from typing import Any
 
 from trundle.loads import library
-from trundle.loads.cases import LoadCase
+from trundle.loads.cases import LoadCase, Together
 from trundle.loads.patterns import PLACEMENTS, UniformLoad
 from trundle.loads.vehicles import AttachedUniform, Train, Vehicle
 from trundle.model import ModelError
@@ -34,21 +36,23 @@ from trundle.modelfile import Model, ModelFileError, Reader, _syntax_error, regi
 from trundle.units import SYSTEMS, UnitSystem, parse_quantity, registry, show_value
 
 TABLE = "load"
-KINDS = ("vehicle", "train", "uniform")
+KINDS = ("vehicle", "train", "uniform", "together")
 KIND_NAMES = {"vehicle": "vehicle", "train": "train of vehicles",
-              "uniform": "placed uniform load"}
+              "uniform": "placed uniform load", "together": "set of loads acting together"}
 
 # The key that makes an entry one kind of load, and the keys each kind may have.
-_KIND_KEY = {"axles": "vehicle", "vehicles": "train", "uniform": "uniform", "use": "use"}
+_KIND_KEY = {"axles": "vehicle", "vehicles": "train", "uniform": "uniform", "use": "use",
+             "together": "together"}
 _KIND_KEYS = {
     "vehicle": ("axles", "spacings", "directions"),
     "train": ("vehicles", "gaps", "ahead", "behind", "directions"),
     "uniform": ("uniform", "placement", "point_load"),
     "use": ("use",),
+    "together": ("together",),
 }
 _COMMON_KEYS = ("name", "impact", "factors", "load_factor")
 _ENTRY_KEYS = ("name", "axles", "spacings", "vehicles", "gaps", "ahead", "behind", "uniform",
-               "placement", "point_load", "directions", "use", "impact", "factors",
+               "placement", "point_load", "directions", "use", "together", "impact", "factors",
                "load_factor")
 _LIBRARY_KEYS = ("units", "description", "source", "axles", "spacings", "vehicles", "gaps",
                  "ahead", "behind", "uniform", "placement", "point_load", "directions",
@@ -94,17 +98,19 @@ class LoadEntry:
     Fields
     ------
     name : unique within the model
-    kind : "vehicle", "train" or "uniform"
-    case : the LoadCase (load, impact, factors), in the model's base units
+    kind : "vehicle", "train", "uniform" or "together"
+    case : the LoadCase (load, impact, factors), in the model's base units; for loads acting
+        together a :class:`trundle.Together` of the other entries' cases
     origin : "model file", or where a ``use`` found the load model (library name or path)
     description, source : from the load-model file ("" when defined in the model file)
     given : the entry as written in the model file
-    files : every load-model file the entry reads (its ``use``, a train's library vehicles)
+    files : every load-model file the entry reads (its ``use``, a train's library vehicles;
+        for loads acting together, those of its parts)
     """
 
     name: str
     kind: str
-    case: LoadCase
+    case: LoadCase | Together
     origin: str = "model file"
     description: str = ""
     source: str = ""
@@ -113,7 +119,13 @@ class LoadEntry:
 
     @property
     def load(self) -> Any:
-        return self.case.load
+        """The Vehicle, Train or UniformLoad (for loads acting together: the Together)."""
+        return self.case if isinstance(self.case, Together) else self.case.load
+
+    @property
+    def parts(self) -> tuple[str, ...]:
+        """For loads acting together: the names of the entries that act together."""
+        return tuple(p.name for p in self.case.parts) if isinstance(self.case, Together) else ()
 
 
 def loads_of(model: Model) -> tuple[LoadEntry, ...]:
@@ -138,12 +150,13 @@ def require_loads(model: Model) -> tuple[LoadEntry, ...]:
 def read_loads(value: Any, reader: Reader) -> tuple[LoadEntry, ...]:
     """Reader of the top-level ``[[load]]`` array (registered with the model-file reader)."""
     if not isinstance(value, list) or not all(isinstance(item, dict) for item in value):
-        reader.expected(TABLE, "[[load]] tables, each with axles, vehicles, uniform or use",
+        reader.expected(TABLE, "[[load]] tables, each with axles, vehicles, uniform, use or "
+                        "together",
                         value)
     if not value:
         reader.expected(TABLE, "at least one [[load]] table", value)
     base = _base_folder(reader.file)
-    entries: list[LoadEntry] = []
+    entries: list[LoadEntry | _Pending] = []
     seen: dict[str, int] = {}
     for i, item in enumerate(value):
         key = f"{TABLE}[{i}]"
@@ -155,12 +168,84 @@ def read_loads(value: Any, reader: Reader) -> tuple[LoadEntry, ...]:
                         f'found "{entry.name}" again')
         seen[entry.name] = i
         entries.append(entry)
-    return tuple(entries)
+    # loads acting together name other entries, which may come later in the file
+    return tuple(_together(e, entries, seen, reader) if isinstance(e, _Pending) else e
+                 for e in entries)
 
 
-def _read_entry(item: dict[str, Any], key: str, reader: Reader, base: Path) -> LoadEntry:
+@dataclass(frozen=True)
+class _Pending:
+    """A ``together`` entry read but not yet resolved (its parts may come later)."""
+
+    name: str
+    key: str
+    parts: tuple[str, ...]
+    given: Mapping[str, Any]
+
+
+def _read_together(table: dict[str, Any], key: str, reader: Reader) -> _Pending:
+    for name in ("impact", "factors", "load_factor"):
+        if name in table:
+            reader.fail(_sub(key, name), f"expected no {name} on loads acting together (each "
+                        f"part keeps its own: write it in that part's [[load]]), found "
+                        f"{show_value(table[name])}")
+    if "name" not in table:
+        reader.fail(_sub(key, "name"), "expected a name for these loads acting together "
+                    '(e.g. "truck + lane"; names identify loads in the results), found nothing')
+    name = _nonblank(reader.text(table["name"], _sub(key, "name")), _sub(key, "name"), reader)
+    items = reader.array(table["together"], _sub(key, "together"), "names of other [[load]] "
+                         "entries of this file", '["truck", "lane"]')
+    if len(items) < 2:
+        reader.expected(_sub(key, "together"), "the names of two or more other [[load]] "
+                        "entries of this file", items)
+    parts: list[str] = []
+    for j, item in enumerate(items):
+        pkey = _sub(key, f"together[{j}]")
+        if not isinstance(item, str) or not item.strip():
+            reader.expected(pkey, "the name of another [[load]] entry of this file", item)
+        part = item.strip()
+        if part in parts:
+            reader.fail(pkey, f'expected each load once, found "{part}" again (a load acts '
+                        "once; to double it, use factors on its own entry)")
+        parts.append(part)
+    return _Pending(name, key, tuple(parts), MappingProxyType(dict(table)))
+
+
+def _together(pending: _Pending, entries: list[Any], seen: Mapping[str, int],
+              reader: Reader) -> LoadEntry:
+    """A ``together`` entry with its parts looked up among the file's other entries."""
+    cases = []
+    files: list[Path] = []
+    for j, part in enumerate(pending.parts):
+        pkey = _sub(pending.key, f"together[{j}]")
+        if part == pending.name:
+            reader.fail(pkey, f'expected the name of another [[load]] entry, found "{part}", '
+                        "the name of this entry itself")
+        if part not in seen:
+            names = [n for n, i in seen.items() if not isinstance(entries[i], _Pending)]
+            hint = difflib.get_close_matches(part, names, n=1, cutoff=0.5)
+            extra = f' (did you mean "{hint[0]}"?)' if hint else ""
+            known = ", ".join(f'"{n}"' for n in names) or "none"
+            reader.fail(pkey, f"expected the name of a [[load]] entry of this file (one of "
+                        f'{known}), found "{part}"{extra}')
+        other = entries[seen[part]]
+        if isinstance(other, _Pending):
+            reader.fail(pkey, f'expected a vehicle, train, placed uniform load or library '
+                        f'load model, found "{part}", itself loads acting together (list its '
+                        "parts here instead)")
+        cases.append(other.case)
+        files.extend(other.files)
+    case = _build(Together, pending.key, reader, parts=tuple(cases), name=pending.name)
+    return LoadEntry(pending.name, "together", case, given=pending.given,
+                     files=tuple(dict.fromkeys(files)))
+
+
+def _read_entry(item: dict[str, Any], key: str, reader: Reader, base: Path
+                ) -> LoadEntry | _Pending:
     table = reader.table(item, key, _ENTRY_KEYS)
     kind = _kind_of(table, key, reader, _ENTRY_KEYS)
+    if kind == "together":
+        return _read_together(table, key, reader)
     given = MappingProxyType(dict(table))
     if kind == "use":
         extra = [k for k in table if k not in ("use", *_COMMON_KEYS)]
@@ -231,7 +316,8 @@ def _kind_of(table: dict[str, Any], key: str, reader: Reader, allowed: tuple[str
     if not present:
         described = {"axles": "axles (a vehicle)", "vehicles": "vehicles (a train)",
                      "uniform": "uniform (a placed uniform load)",
-                     "use": "use (a load model from the library or a file)"}
+                     "use": "use (a load model from the library or a file)",
+                     "together": "together (other loads acting at the same time)"}
         reader.fail(key or "file", "expected one of "
                     + ", ".join(described[k] for k in options)
                     + f", found {show_value(table)}")

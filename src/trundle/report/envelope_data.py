@@ -10,6 +10,7 @@ with :func:`register_section`; every output renders the extra sections it is giv
 
 from __future__ import annotations
 
+import dataclasses
 import datetime as _datetime
 import hashlib
 import math
@@ -25,6 +26,7 @@ from trundle import __version__
 from trundle.cranefile import cranes_of
 from trundle.envelope import AbsoluteExtreme, Envelope, Governing, envelope
 from trundle.loadfile import LoadEntry, loads_of
+from trundle.loads.cases import Together
 from trundle.loads.patterns import UniformLoad
 from trundle.loads.vehicles import Train, Vehicle
 from trundle.model import Beam, Spring
@@ -274,7 +276,11 @@ def quantity_unit(family: str, units: UnitSystem, ascii_only: bool = False) -> s
 
 
 def parameter_labels(load: Any) -> list[str]:
-    """Names of the searched dimensions of a load, in the order of ``load.parameters()``."""
+    """Names of the searched dimensions of a load, in the order of ``load.parameters()``
+    (for loads acting together: those of each part, labelled with the part's name)."""
+    if isinstance(load, Together):
+        return [f"{part.name}: {label}" for part in load.parts
+                for label in parameter_labels(part.load)]
     if isinstance(load, Vehicle):
         return [f"spacing {i + 1}-{i + 2}" for i, s in enumerate(load.spacings)
                 if isinstance(s, tuple)]
@@ -291,15 +297,27 @@ def parameter_labels(load: Any) -> list[str]:
 def describe_extreme(results: EnvelopeResults, family: str, which: str, g: Governing,
                      x: float) -> Extreme:
     """``g`` (a Governing of the envelope) in words and display units."""
-    env, beam = results.env, results.beam
+    env = results.env
     value = g.value * display_factor(family, results.units) + 0.0
     if g.case < 0:
         return Extreme(family, which, value, x)
     case = env.cases[g.case]
+    if isinstance(case, Together):
+        return _describe_together(results, family, which, g, x, case, value)
+    return _describe_case(results, family, which, g, g, x, case, value)
+
+
+def _describe_case(results: EnvelopeResults, family: str, which: str, own: Governing,
+                   asked: Governing, x: float, case: Any, value: float) -> Extreme:
+    """One load case in words: ``own`` is its own Governing (reference, side, searched …),
+    ``asked`` the Governing of the envelope to ask for its positions (the same, or a
+    Together's with only this part)."""
+    env, beam = results.env, results.beam
+    g = own
     load = case.load
     side_note = ""
     if isinstance(load, UniformLoad):
-        stretches, point_x = env.loaded_stretches(g)
+        stretches, point_x = env.loaded_stretches(asked)
         loaded = tuple((float(a), float(b)) for a, b in _merged(stretches, beam.length))
         placement = _placement_words(load.placement, which, loaded, beam)
         if point_x is not None and load.point_load:
@@ -312,10 +330,46 @@ def describe_extreme(results: EnvelopeResults, family: str, which: str, g: Gover
                        placement, side_note)
     if family.startswith("shear") and g.side:
         side_note = f"axle just {'right' if g.side > 0 else 'left'} of the section"
-    axles = tuple(float(a) for a in env.axle_positions(g))
+    axles = tuple(float(a) for a in env.axle_positions(asked))
     searched = tuple(zip(parameter_labels(load), g.searched, strict=False))
     return Extreme(family, which, value, x, case.name, int(g.direction), float(g.reference),
                    axles, (), "", side_note, searched)
+
+
+def _describe_together(results: EnvelopeResults, family: str, which: str, g: Governing,
+                       x: float, together: Together, value: float) -> Extreme:
+    """Loads acting together: each part described on its own, then merged (direction and
+    lead axle from the first moving part, every axle, every loaded stretch)."""
+    described = []
+    for k, part in enumerate(g.parts):
+        if part.case < 0:  # this part makes nothing worse than the empty beam
+            continue
+        case = together.parts[part.case]
+        only = dataclasses.replace(g, parts=tuple(
+            p if i == k else Governing(0.0) for i, p in enumerate(g.parts)))
+        described.append((case, _describe_case(results, family, which, part, only, x, case,
+                                               value)))
+    if not described:
+        return Extreme(family, which, value, x, together.name, placement="not loaded")
+    moving = [e for case, e in described if not isinstance(case.load, UniformLoad)]
+    lead = moving[0] if moving else described[0][1]
+    unit = results.units.label("length")
+    words, notes = [], []
+    for case, e in described:
+        if isinstance(case.load, UniformLoad):
+            words.append(f"{case.name}: {e.placement.removeprefix('placed: ')}")
+        else:
+            words.append(f"{case.name} {direction_arrow(e.direction)} lead axle at "
+                         f"{_position(e.lead_x)} {unit}")
+        if e.side_note:
+            notes.append(f"{case.name}: {e.side_note}")
+    loaded = tuple((float(a), float(b)) for a, b in
+                   _merged([s for _, e in described for s in e.loaded], results.beam.length))
+    searched = tuple((f"{case.name}: {label}", v) for case, e in described
+                     for label, v in e.searched)
+    return Extreme(family, which, value, x, together.name, lead.direction, lead.lead_x,
+                   tuple(a for _, e in described for a in e.axles), loaded, "; ".join(words),
+                   "; ".join(notes), searched)
 
 
 def _merged(stretches: Sequence[tuple[float, float]], length: float
@@ -360,6 +414,12 @@ def loaded_spans(loaded: Sequence[tuple[float, float]], beam: Beam) -> list[int]
 
 def _length(x: float) -> str:
     return f"{round(float(x), 9) + 0.0:.6g}"
+
+
+def _position(x: float) -> str:
+    """A load position for people: to a thousandth of the length unit (mm, 0.001 ft)."""
+    text = f"{float(x) + 0.0:.3f}".rstrip("0").rstrip(".")
+    return "0" if text in ("-0", "") else text
 
 
 def direction_arrow(direction: int) -> str:
@@ -516,6 +576,8 @@ def load_definition(entry: LoadEntry, units: UnitSystem) -> str:
 
 def describe_load(load: Any, units: UnitSystem) -> str:
     force, length = units.label("force"), units.label("length")
+    if isinstance(load, Together):  # its parts are described in their own rows
+        return " + ".join(part.name for part in load.parts)
     if isinstance(load, Vehicle):
         return _vehicle_words(load, force, length) + _directions_words(load)
     if isinstance(load, Train):
@@ -570,6 +632,8 @@ def _number(value: float) -> str:
 
 
 def factors_words(entry: LoadEntry) -> str:
+    if entry.kind == "together":
+        return "each part's own"
     words = [f"{name} × {value:g}" for name, value in entry.case.factors]
     if entry.case.load_factor != 1.0:
         words.append(f"load factor × {entry.case.load_factor:g} (not on deflection)")
@@ -579,11 +643,21 @@ def factors_words(entry: LoadEntry) -> str:
 def impact_words(entry: LoadEntry) -> str:
     if entry.kind == "uniform":
         return "—"
+    if entry.kind == "together":
+        return "each part's own"
     return f"{100 * entry.case.impact:.4g} %"
 
 
+def product_words(entry: LoadEntry) -> str:
+    """The product of the factors, as shown in the loads table."""
+    if entry.kind == "together":
+        return "each part's own"
+    return f"{entry.case.multiplier:.4g}"
+
+
 def kind_words(kind: str) -> str:
-    return {"vehicle": "vehicle", "train": "train", "uniform": "placed uniform"}[kind]
+    return {"vehicle": "vehicle", "train": "train", "uniform": "placed uniform",
+            "together": "acting together"}[kind]
 
 
 def support_kind_words(support: Any) -> str:

@@ -20,6 +20,7 @@ from rich.table import Table
 from rich.text import Text
 
 from trundle.loadfile import LoadEntry, LoadModelFile, loads_of
+from trundle.loads.cases import Together
 from trundle.loads.patterns import UniformLoad
 from trundle.loads.vehicles import Train, Vehicle
 from trundle.model import Spring
@@ -42,6 +43,7 @@ from trundle.report.envelope_data import (
     kind_words,
     load_definition,
     parameter_labels,
+    product_words,
     quantity_unit,
     section_extremes,
     span_of_section,
@@ -129,7 +131,7 @@ def loads_table_of(entries: Sequence[LoadEntry], units: UnitSystem) -> TableData
     rows = []
     for entry in entries:
         rows.append((entry.name, kind_words(entry.kind), load_definition(entry, units),
-                     impact_words(entry), factors_words(entry), f"{entry.case.multiplier:.4g}",
+                     impact_words(entry), factors_words(entry), product_words(entry),
                      entry.origin))
     return TableData("Loads (results include the impact on axle loads and the product of the "
                      "factors)",
@@ -538,15 +540,18 @@ def envelope_document(results: EnvelopeResults) -> dict[str, Any]:
     sections, spans, supports = (_load_parts(results) if results.has_loads else ([], [], []))
     loads = []
     for entry in results.loads:
+        together = entry.kind == "together"  # impact and factors: each part's own
         loads.append({
             "name": entry.name, "kind": entry.kind, "defined_in": entry.origin,
             "definition": load_definition(entry, units),
             "description": entry.description or None, "source": entry.source or None,
-            "impact": entry.case.impact,
-            "factors": [{"name": n, "value": v} for n, v in entry.case.factors],
-            "product_of_factors": entry.case.multiplier,
-            "load_factor": entry.case.load_factor,
-            "product_of_factors_for_deflection": entry.case.service_multiplier,
+            "impact": None if together else entry.case.impact,
+            "factors": None if together else [{"name": n, "value": v}
+                                              for n, v in entry.case.factors],
+            "product_of_factors": None if together else entry.case.multiplier,
+            "load_factor": None if together else entry.case.load_factor,
+            "product_of_factors_for_deflection": (None if together
+                                                  else entry.case.service_multiplier),
             "searched": parameter_labels(entry.load),
             "load": load_json(entry.load),
             "as_given": _plain(dict(entry.given)),
@@ -633,10 +638,13 @@ def _load_parts(results: EnvelopeResults) -> tuple[list[Any], list[Any], list[An
 
 
 def load_json(load: Any) -> dict[str, Any]:
-    """A load's numbers in the model's base units (before impact and factors)."""
+    """A load's numbers in the model's base units (before impact and factors); loads acting
+    together name their parts (each has its own entry)."""
     def spacing(value: Any) -> Any:
         return {"min": value[0], "max": value[1]} if isinstance(value, tuple) else value
 
+    if isinstance(load, Together):
+        return {"together": [part.name for part in load.parts]}
     if isinstance(load, Vehicle):
         return {"axles": list(load.loads), "spacings": [spacing(v) for v in load.spacings],
                 "directions": "both" if load.reversible else "one way"}
