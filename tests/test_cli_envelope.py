@@ -325,3 +325,115 @@ def test_cautions_name_invented_load_models_inside_trains(tmp_path):
     assert results.loads[0].source == ""  # a train of library vehicles has no source itself
     assert any("demo-service-truck" in c and "not code load models" in c
                for c in cautions(results))
+
+
+# --- loads acting together ----------------------------------------------------------------
+
+TOGETHER_MODEL = """units = "SI"
+[beam]
+spans = ["{first}", "{second}"]
+supports = ["pin", "pin", "pin"]
+EI = 2.0e6
+
+[[load]]
+name = "truck + lane"
+together = ["truck", "lane"]
+
+[[load]]
+name = "truck"
+axles = ["{axle}"]
+impact = "30 %"
+factors = {{ "distribution" = 0.8 }}
+
+[[load]]
+name = "lane"
+uniform = "{w}"
+placement = "{placement}"
+"""
+
+
+def test_together_on_one_span_equals_the_closed_form_sum(tmp_path):
+    # one axle P at midspan and a uniform load w over the whole span of a simple beam:
+    # M = P L / 4 + w L^2 / 8, with the axle's impact and factor on P only.
+    # Source: AISC Steel Construction Manual (15th ed.), Table 3-23, cases 1 and 7 (from memory).
+    model = tmp_path / "one_span.toml"
+    model.write_text(TOGETHER_MODEL.replace('"{second}"', "").replace(
+        '"pin", "pin", "pin"', '"pin", "pin"').format(
+        first="20 m", axle="200 kN", w="10 kN/m", placement="everywhere").replace(
+        'spans = ["20 m", ]', 'spans = ["20 m"]'))
+    out = tmp_path / "results"
+    result = run("envelope", model, "--out", out, "--no-figure", "--no-report")
+    assert result.exit_code == 0, result.stderr
+    header, body = read_csv(out / "envelope.csv")
+    middle = [row for row in body if float(row[0]) == 10.0][0]
+    P, L, w = 200.0 * 1.3 * 0.8, 20.0, 10.0
+    assert float(middle[header.index("moment max [kN*m]")]) == pytest.approx(
+        P * L / 4 + w * L**2 / 8, rel=1e-10)
+    assert middle[header.index("moment max: load")] == "truck + lane"
+    assert float(middle[header.index("moment max: lead axle or point load x [m]")]) == \
+        pytest.approx(10.0, rel=1e-10)
+    assert middle[header.index("moment max: loaded stretches [m]")] == "0..20"
+
+
+def test_together_in_the_cli_equals_the_library_together(tmp_path):
+    model = tmp_path / "two_spans.toml"
+    model.write_text(TOGETHER_MODEL.format(first="18 m", second="24 m", axle="150 kN",
+                                           w="9 kN/m", placement="spans"))
+    out = tmp_path / "results"
+    result = run("envelope", model, "--out", out, "--no-figure", "--no-report")
+    assert result.exit_code == 0, result.stderr
+    # the same loads built directly with the library, not through the model file
+    beam = trundle.Beam(spans=[18.0, 24.0], EI=2.0e6, supports=["pin", "pin", "pin"])
+    truck = trundle.LoadCase(trundle.Vehicle(loads=[150.0], spacings=[], name="truck"),
+                             impact=0.3, factors=(("distribution", 0.8),), name="truck")
+    lane = trundle.UniformLoad(9.0, placement="spans", name="lane")
+    both = trundle.Together((truck, lane), name="truck + lane")
+    env = trundle.envelope(beam, [both, truck, lane], sections=beam.tenth_points())
+    header, body = read_csv(out / "envelope.csv")
+    np.testing.assert_allclose(column(header, body, "x [m]"), env.sections, rtol=1e-12)
+    checks = {
+        "moment max [kN*m]": env.max("moment"), "moment min [kN*m]": env.min("moment"),
+        "shear left max [kN]": env.max("shear", side="left"),
+        "shear right min [kN]": env.min("shear", side="right"),
+        "deflection max [mm]": 1000.0 * env.max("deflection"),
+    }
+    for name, expected in checks.items():
+        np.testing.assert_allclose(column(header, body, name), expected, rtol=1e-11,
+                                   atol=1e-9, err_msg=name)
+    # the combination governs wherever a load does: each part counts at its own worst
+    governing = env.governing("moment", "max")
+    loads = [row[header.index("moment max: load")] for row in body]
+    for g, name in zip(governing, loads, strict=True):
+        assert name == ("truck + lane" if g.case >= 0 else "(no load)")
+    # (at the two ends and over the pier no load gives sagging moment)
+    assert loads.count("truck + lane") == len(loads) - 3
+    # where both parts act, the CSV gives the truck's lead axle and the lane's spans
+    i = int(np.argmax(env.max("moment")))
+    g = governing[i]
+    axle = g.parts[0]
+    assert float(body[i][header.index("moment max: lead axle or point load x [m]")]) == \
+        pytest.approx(axle.reference, rel=1e-11)
+    stretches = body[i][header.index("moment max: loaded stretches [m]")]
+    assert stretches in ("0..18", "18..42")
+    reactions_header, reactions = read_csv(out / "reactions.csv")
+    np.testing.assert_allclose(column(reactions_header, reactions, "reaction max [kN]"),
+                               env.max("reaction"), rtol=1e-11)
+    # the terminal names the combination and where each part stands
+    assert "truck + lane" in result.output
+    assert "truck → lead axle at" in result.output and "lane: span" in result.output
+    document = json.loads((out / "envelope.json").read_text(encoding="utf-8"))
+    entry = document["loads"][0]
+    assert entry["kind"] == "together" and entry["load"] == {"together": ["truck", "lane"]}
+    assert entry["definition"] == "truck + lane" and entry["impact"] is None
+    section = document["sections"][i]["moment"]["max"]
+    assert section["load"] == "truck + lane"
+    assert section["placement"].startswith("truck → lead axle at")
+
+
+def test_summary_lists_loads_acting_together(tmp_path):
+    model = tmp_path / "two_spans.toml"
+    model.write_text(TOGETHER_MODEL.format(first="18 m", second="24 m", axle="150 kN",
+                                           w="9 kN/m", placement="spans"))
+    result = run("summary", model)
+    assert result.exit_code == 0, result.stderr
+    assert "acting together" in result.output and "truck + lane" in result.output

@@ -295,7 +295,7 @@ def test_examples_read_with_their_loads():
     for path in sorted((ROOT / "examples").glob("*.toml")):
         counts[path.name] = [e.kind for e in loads_of(load_model(path))]
     assert counts["harbour_lane_floor_girder_si.toml"] == ["uniform", "vehicle"]
-    assert counts["millrace_access_bridge_us.toml"] == ["vehicle", "uniform"]
+    assert counts["millrace_access_bridge_us.toml"] == ["vehicle", "uniform", "together"]
     assert counts["ferry_road_overpass_convoy_si.toml"] == ["train", "vehicle", "uniform"]
 
 
@@ -413,3 +413,109 @@ def test_errors_in_load_model_files_name_that_file_and_its_key(tmp_path, text, k
     assert info.value.key == key, str(info.value)
     assert fragment in str(info.value)
     assert "\n" not in str(info.value)
+
+
+# --- loads acting together ----------------------------------------------------------------
+
+TRUCK_AND_LANE = """
+[[load]]
+name = "truck"
+axles = ["100 kN", "150 kN"]
+spacings = [{ min = "4 m", max = "9 m" }]
+impact = "30 %"
+factors = { "distribution" = 0.6 }
+load_factor = 1.75
+
+[[load]]
+name = "lane"
+uniform = "9 kN/m"
+placement = "spans"
+"""
+
+
+def together_error(extra: str, loads: str = TRUCK_AND_LANE) -> ModelFileError:
+    with pytest.raises(ModelFileError) as info:
+        read(loads + extra)
+    assert "\n" not in str(info.value)
+    return info.value
+
+
+def test_together_names_other_entries_and_keeps_their_own_impact_and_factors():
+    # written before its parts: names are resolved after every entry is read
+    together, truck, lane = entries('[[load]]\nname = "truck + lane"\n'
+                                    'together = ["truck", "lane"]\n' + TRUCK_AND_LANE)
+    assert together.kind == "together" and together.name == "truck + lane"
+    assert isinstance(together.case, trundle.Together)
+    assert together.case.name == "truck + lane"
+    assert together.case.parts == (truck.case, lane.case)
+    assert together.parts == ("truck", "lane")
+    assert together.load is together.case
+    assert together.case.parts[0].impact == 0.3
+    assert together.case.parts[0].factors == (("distribution", 0.6),)
+    assert together.case.parts[0].load_factor == 1.75
+    assert together.case.parts[1].impact == 0.0
+    assert together.origin == "model file" and together.files == ()
+
+
+def test_together_of_library_models_carries_their_files():
+    entry = entries('[[load]]\nuse = "demo-lane-load"\n[[load]]\n'
+                    'use = "demo-heavy-vehicle-5-axle"\n[[load]]\nname = "both"\n'
+                    'together = ["demo-heavy-vehicle-5-axle", "demo-lane-load"]\n')[2]
+    assert [p.stem for p in entry.files] == ["demo-heavy-vehicle-5-axle", "demo-lane-load"]
+    assert entry.parts == ("demo-heavy-vehicle-5-axle", "demo-lane-load")
+
+
+def test_together_unknown_name_suggests_the_close_one():
+    error = together_error('[[load]]\nname = "both"\ntogether = ["truck", "lame"]\n')
+    assert error.key == "load[2].together[1]"
+    assert 'found "lame" (did you mean "lane"?)' in error.detail
+
+
+def test_together_cannot_name_itself():
+    error = together_error('[[load]]\nname = "both"\ntogether = ["truck", "both"]\n')
+    assert error.key == "load[2].together[1]" and "this entry itself" in error.detail
+
+
+def test_together_cannot_include_another_together():
+    error = together_error('[[load]]\nname = "both"\ntogether = ["truck", "lane"]\n'
+                           '[[load]]\nname = "more"\ntogether = ["lane", "both"]\n')
+    assert error.key == "load[3].together[1]"
+    assert "itself loads acting together" in error.detail
+
+
+@pytest.mark.parametrize("parts", ['["truck"]', "[]"])
+def test_together_needs_two_or_more_parts(parts):
+    error = together_error(f'[[load]]\nname = "both"\ntogether = {parts}\n')
+    assert error.key == "load[2].together" and "two or more" in error.detail
+
+
+def test_together_refuses_a_part_twice():
+    error = together_error('[[load]]\nname = "both"\ntogether = ["truck", "truck"]\n')
+    assert error.key == "load[2].together[1]" and 'found "truck" again' in error.detail
+
+
+@pytest.mark.parametrize("key, value", [("impact", '"33 %"'), ("factors", "{ a = 1.2 }"),
+                                        ("load_factor", "1.5")])
+def test_together_has_no_impact_or_factors_of_its_own(key, value):
+    error = together_error(f'[[load]]\nname = "both"\ntogether = ["truck", "lane"]\n'
+                           f"{key} = {value}\n")
+    assert error.key == f"load[2].{key}" and "each part keeps its own" in error.detail
+
+
+def test_together_needs_a_name_and_no_other_kind_of_load():
+    error = together_error('[[load]]\ntogether = ["truck", "lane"]\n')
+    assert error.key == "load[2].name"
+    error = together_error('[[load]]\nname = "both"\ntogether = ["truck", "lane"]\n'
+                           'uniform = "2 kN/m"\n')
+    assert "one kind of load per entry" in error.detail
+    error = together_error('[[load]]\nname = "truck"\ntogether = ["lane", "truck"]\n')
+    assert error.key == "load[2].name" and "different" in error.detail
+
+
+def test_together_is_not_allowed_in_a_load_model_file(tmp_path):
+    path = tmp_path / "combo.toml"
+    path.write_text('units = "SI"\ndescription = "x"\nsource = "invented"\n'
+                    'together = ["a", "b"]\n')
+    with pytest.raises(ModelFileError) as info:
+        read_load_model_file(path)
+    assert info.value.key == "together"

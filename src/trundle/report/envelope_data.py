@@ -353,14 +353,13 @@ def _describe_together(results: EnvelopeResults, family: str, which: str, g: Gov
         return Extreme(family, which, value, x, together.name, placement="not loaded")
     moving = [e for case, e in described if not isinstance(case.load, UniformLoad)]
     lead = moving[0] if moving else described[0][1]
-    unit = results.units.label("length")
     words, notes = [], []
     for case, e in described:
         if isinstance(case.load, UniformLoad):
             words.append(f"{case.name}: {e.placement.removeprefix('placed: ')}")
         else:
             words.append(f"{case.name} {direction_arrow(e.direction)} lead axle at "
-                         f"{_position(e.lead_x)} {unit}")
+                         f"{_position(e.lead_x)}")
         if e.side_note:
             notes.append(f"{case.name}: {e.side_note}")
     loaded = tuple((float(a), float(b)) for a, b in
