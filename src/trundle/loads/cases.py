@@ -31,7 +31,7 @@ class LoadCase:
 
     load: Any
     impact: float = 0.0
-    factors: tuple[tuple[str, float], ...] = ()
+    factors = ()  # a class constant, not a field: the factors live on the parts
     name: str = ""
     load_factor: float = 1.0
 
@@ -132,7 +132,7 @@ class Together:
 
     # a Together is a case of its own; the factors live on its parts
     impact = 0.0
-    factors: tuple[tuple[str, float], ...] = ()
+    factors = ()  # a class constant, not a field: the factors live on the parts
     load_factor = 1.0
     multiplier = 1.0
     service_multiplier = 1.0
