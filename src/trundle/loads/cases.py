@@ -31,7 +31,7 @@ class LoadCase:
 
     load: Any
     impact: float = 0.0
-    factors = ()  # a class constant, not a field: the factors live on the parts
+    factors: tuple[tuple[str, float], ...] = ()
     name: str = ""
     load_factor: float = 1.0
 
