@@ -443,10 +443,15 @@ def _each_default(report: RunwayReport) -> list[DefaultInUse]:
                                 GUIDE_BASIS))
     if spec.detail_category is not None:
         c_f, threshold = DETAIL_CATEGORIES[spec.detail_category]
+        in_model_units = ""
+        if report.stress_unit != "ksi" and spec.ksi is not None:
+            mpa = threshold * spec.ksi * report.stress_factor
+            in_model_units = f" = {mpa:.1f} {report.stress_unit}"
         out.append(DefaultInUse(
             "allowable stress range", "runway",
-            f"category {spec.detail_category}: (C_f / N)^(1/3) with C_f = {c_f:.3g} ksi³, "
-            f"not below the threshold {threshold:g} ksi", FATIGUE_BASIS))
+            f"category {spec.detail_category}: (C_f / N)^(1/3) with C_f = {c_f:.3g} ksi³ "
+            f"(N cycles); passes below the threshold {threshold:g} ksi{in_model_units}",
+            FATIGUE_BASIS))
     return out
 
 
