@@ -11,6 +11,7 @@ and are rounded to float once, so "10 ft" is exactly the float nearest 3.048 m.
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass
 from fractions import Fraction
 from functools import cache
@@ -241,7 +242,11 @@ def parse_quantity(value: Any, quantity: str, system: UnitSystem) -> float:
     wanted = _dimensionality(target)
     if parsed.dimensionality != wanted:
         found = describe_dimension(parsed.dimensionality)
-        raise UnitError(f"expected {expected}, found {show_value(value)}, which is {found}")
+        hint = ""
+        if re.search(r"\bkn\b", text):  # "kn" is a knot; the kilonewton is kN
+            hint = ' (the kilonewton is written "kN"; "kn" is a knot)'
+        raise UnitError(f"expected {expected}, found {show_value(value)}, which is "
+                        f"{found}{hint}")
     try:
         number = float(parsed.to(target).magnitude)
     except (OverflowError, ValueError, ZeroDivisionError):
