@@ -355,3 +355,32 @@ def test_loads_acting_together_add_their_own_worst_placements():
     with pytest.raises(trundle.ModelError, match="two or more"):
         trundle.Together((truck,))
 
+
+
+def test_identical_lines_are_scanned_once_and_reported_for_each_effect():
+    # Inside a span no point force acts at a section, so shear just left and just right of
+    # it are one line (common practice, no source); the envelope scans it once and reports it
+    # for both effects. Reference: each line scanned on its own with the scan engine, both
+    # directions.
+    from trundle.scan import LineBatch, scan_group
+
+    beam = trundle.Beam([10.0, 12.0])
+    truck = trundle.Vehicle([20.0, 40.0], [3.0])
+    sections = np.array([3.0, 10.0, 15.0])
+    env = trundle.envelope(beam, [truck], sections=sections, effects=("shear",))
+    for side in ("left", "right"):
+        lines = trundle.influence_batch(beam, "shear", at=sections, side=side)
+        batch = LineBatch.from_set(lines)
+        forward = scan_group(batch, truck.group())
+        backward = scan_group(batch, truck.group().mirrored())
+        # (the envelope reports rounding noise around an empty-beam zero as 0)
+        np.testing.assert_allclose(env.max("shear", side=side),
+                                   np.maximum(forward[:, 0], backward[:, 0]), rtol=1e-12,
+                                   atol=1e-12)
+        np.testing.assert_allclose(env.min("shear", side=side),
+                                   np.minimum(forward[:, 3], backward[:, 3]), rtol=1e-12,
+                                   atol=1e-12)
+    inside = [0, 2]  # sections 3.0 and 15.0; 10.0 is the middle support
+    np.testing.assert_array_equal(env.max("shear", side="left")[inside],
+                                  env.max("shear", side="right")[inside])
+    assert env.max("shear", side="left")[1] != env.max("shear", side="right")[1]

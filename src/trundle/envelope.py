@@ -653,7 +653,14 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
         np.asarray(sections, dtype=float))
     line_effects, index = _line_effects(beam, sections, effects)
     lines = influence_set(beam, line_effects)
-    batch = LineBatch.from_set(lines)
+    full_batch = LineBatch.from_set(lines)
+    # identical lines (shear just left and right of a section inside a span, zero lines) are
+    # scanned once; `index` below is in terms of the distinct lines
+    keep, inverse, index_all, index = _distinct_lines(lines.coefficients, index)
+    batch = full_batch if keep.size == full_batch.n_lines else LineBatch(
+        full_batch.knots, np.ascontiguousarray(full_batch.coef[:, :, keep]),
+        np.ascontiguousarray(full_batch.running[:, :, keep]),
+        np.ascontiguousarray(full_batch.running_end[keep]))
     n = batch.n_lines
     ordinate_extremes = scan_group(batch, TermGroup((0.0,), (1.0,)))
     results: list[_CaseResult] = []
@@ -698,11 +705,48 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
             scale[lines_of_family] = np.abs(stacked[:, :, lines_of_family]).max()
     governing = [[], []]
     for w in (0, 1):
+        distinct = []
         for j in range(n):
             g = results[winners[w, j]].governing(w, j)
             # rounding noise around an empty-beam zero is not a governing load
             if abs(g.value) <= 1e-12 * scale[j]:
                 g = EMPTY
-            governing[w].append(g)
-    return Envelope(beam, sections, cases, tuple(line_effects), index,
-                    tuple(governing[0]), tuple(governing[1]), batch)
+            distinct.append(_renumbered(g, keep))
+        governing[w] = [distinct[u] for u in inverse]
+    return Envelope(beam, sections, cases, tuple(line_effects), index_all,
+                    tuple(governing[0]), tuple(governing[1]), full_batch)
+
+
+def _distinct_lines(coefficients: NDArray[np.float64], index: dict[str, NDArray[np.int64]]
+                    ) -> tuple[NDArray[np.int64], NDArray[np.int64], dict, dict]:
+    """Lines of the same family with identical coefficients, found once.
+
+    Returns (keep, inverse, index, distinct index): line ``keep[u]`` stands for distinct line
+    u, line j is distinct line ``inverse[j]``, and the family index in both numberings.
+    """
+    n = coefficients.shape[2]
+    family = np.zeros(n)
+    for code, (name, lines) in enumerate(index.items()):
+        # shear just left and just right of a section inside a span are the same line
+        family[lines] = -1 if name.startswith("shear") else code
+    keys = np.concatenate([family[None, :], coefficients.reshape(-1, n)], axis=0).T
+    _, keep, inverse = np.unique(keys, axis=0, return_index=True, return_inverse=True)
+    # number the distinct lines in the order they first appear
+    order = np.argsort(keep)
+    rank = np.empty_like(order)
+    rank[order] = np.arange(order.size)
+    keep, inverse = keep[order], rank[np.asarray(inverse).ravel()]
+    distinct = {f: np.unique(inverse[lines]).astype(np.int64) for f, lines in index.items()}
+    return keep.astype(np.int64), inverse, index, distinct
+
+
+def _renumbered(g: Governing, keep: NDArray[np.int64]) -> Governing:
+    """``g`` with a placed load's "sign of line" pattern pointing at the full set of lines."""
+    pattern = g.pattern
+    if pattern and pattern[0] == "sign of line":
+        pattern = ("sign of line", int(keep[pattern[1]]), pattern[2])
+    parts = tuple(_renumbered(p, keep) for p in g.parts)
+    if pattern is g.pattern and not parts:
+        return g
+    return Governing(g.value, g.case, g.direction, g.reference, g.side, g.searched, pattern,
+                     parts)
