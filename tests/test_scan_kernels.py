@@ -42,7 +42,8 @@ def _run_kernel(parallel: bool, batch: LineBatch, group: TermGroup,
                 lines: np.ndarray | None = None, offsets: np.ndarray | None = None
                 ) -> np.ndarray:
     """Call the compiled kernel directly: one row per line (all lines by default), the
-    group's offsets shared by every row unless ``offsets`` gives them per row."""
+    group's offsets shared by every row unless ``offsets`` gives them per row; with the
+    batch's record of where each line really breaks, as the engine passes it."""
     weights, own_offsets, kinds, constant = group.terms()
     degree = 4 if (kinds == kernels.KIND_RUNNING_INTEGRAL).any() else 3
     lines = np.arange(batch.n_lines) if lines is None else lines
@@ -50,7 +51,8 @@ def _run_kernel(parallel: bool, batch: LineBatch, group: TermGroup,
     kernel = kernels.scan_rows_parallel if parallel else kernels.scan_rows_serial
     return kernel(batch.knots, batch.coef, batch.running, batch.running_end, weights, kinds,
                   np.ascontiguousarray(offsets, dtype=float), np.ascontiguousarray(lines),
-                  float(constant), degree)
+                  float(constant), degree, group.confined, batch.prev_node, batch.next_node,
+                  batch.own)
 
 
 def _random_group(rng: np.random.Generator, length: float, uniform: str
@@ -247,3 +249,23 @@ def test_rows_with_their_own_arrangements_match_plain_scan(seed: int) -> None:
         scale = max(np.abs(expected[kinds == kinds[r]][:, [0, 3]]).max(), 1e-300)
         assert serial[r, 0] == pytest.approx(expected[r, 0], abs=1e-10 * scale)
         assert serial[r, 3] == pytest.approx(expected[r, 3], abs=1e-10 * scale)
+
+
+
+@pytest.mark.parametrize("seed", range(3))
+def test_skipping_other_sections_knots_changes_nothing_but_rounding(seed: int) -> None:
+    # A line is one cubic between structural nodes and its own section; the kernel may walk
+    # only those breaks. Reference: the same kernel breaking at every knot (no structure
+    # given), which the plain twin above checks.
+    rng, beam, lines = _lines_of_random_beam(seed)
+    batch = LineBatch.from_set(lines)
+    group, _ = _random_group(rng, beam.length, "both")
+    weights, offsets, kinds, constant = group.terms()
+    args = (batch.knots, batch.coef, batch.running, batch.running_end, weights, kinds,
+            np.ascontiguousarray(offsets[None, :]), np.arange(batch.n_lines), float(constant), 4)
+    every_knot = kernels.scan_rows_serial(*args)
+    real_breaks = kernels.scan_rows_serial(*args, False, batch.prev_node, batch.next_node,
+                                           batch.own)
+    size = np.abs(every_knot[:, [0, 3]]).max()
+    np.testing.assert_allclose(real_breaks[:, [0, 3]], every_knot[:, [0, 3]], rtol=0,
+                               atol=1e-12 * size)

@@ -657,10 +657,7 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
     # identical lines (shear just left and right of a section inside a span, zero lines) are
     # scanned once; `index` below is in terms of the distinct lines
     keep, inverse, index_all, index = _distinct_lines(lines.coefficients, index)
-    batch = full_batch if keep.size == full_batch.n_lines else LineBatch(
-        full_batch.knots, np.ascontiguousarray(full_batch.coef[:, :, keep]),
-        np.ascontiguousarray(full_batch.running[:, :, keep]),
-        np.ascontiguousarray(full_batch.running_end[keep]))
+    batch = full_batch if keep.size == full_batch.n_lines else full_batch.subset(keep)
     n = batch.n_lines
     ordinate_extremes = scan_group(batch, TermGroup((0.0,), (1.0,)))
     results: list[_CaseResult] = []

@@ -156,10 +156,15 @@ class InfluenceSet:
     """
 
     def __init__(self, knots: NDArray[np.float64], coefficients: NDArray[np.float64],
-                 effects: Sequence[Effect]):
+                 effects: Sequence[Effect], node_knots: NDArray[np.int64] | None = None,
+                 own_knots: NDArray[np.int64] | None = None):
         self.knots = np.ascontiguousarray(knots, dtype=float)
         self.coefficients = np.ascontiguousarray(coefficients, dtype=float)
         self.effects = tuple(effects)
+        # where the lines really break: the structure's nodes (all lines) and each line's own
+        # section (own_knots, −1 for none); None when not known
+        self.node_knots = node_knots
+        self.own_knots = own_knots
         self.ppoly = PPoly.construct_fast(self.coefficients, self.knots, extrapolate=False)
 
     def __len__(self) -> int:
@@ -382,7 +387,11 @@ def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
     _spread_pieces(np.ascontiguousarray(coarse), piece_element, offset, coefficients)
     if inner_data is not None:
         _fill_inner_sections(coefficients, knots, piece_element, values, xc, h, inner_data, tol)
-    return InfluenceSet(knots, coefficients, effects)
+    node_knots = np.flatnonzero(np.isin(knots, xc))
+    own_knots = np.full(n_lines, -1, dtype=np.int64)
+    for j, _, x, _ in inner:
+        own_knots[j] = int(np.argmin(np.abs(knots - x)))
+    return InfluenceSet(knots, coefficients, effects, node_knots, own_knots)
 
 
 def _condense_inner_sections(inner: list, mesh, h: NDArray[np.float64]) -> tuple | None:

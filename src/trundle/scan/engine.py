@@ -29,12 +29,17 @@ class LineBatch:
     coef : (4, m, n) cubic coefficients, highest power first
     running : (5, m, n) quartic coefficients of F(x) = ∫₀ˣ IL
     running_end : (n,) F at the right end of the beam
+    prev_node, next_node, own : where each line really breaks (see scan_rows_parallel);
+        None: at every knot
     """
 
     knots: NDArray[np.float64]
     coef: NDArray[np.float64]
     running: NDArray[np.float64]
     running_end: NDArray[np.float64]
+    prev_node: NDArray[np.int64] | None = None
+    next_node: NDArray[np.int64] | None = None
+    own: NDArray[np.int64] | None = None
 
     @classmethod
     def from_set(cls, lines: InfluenceSet) -> LineBatch:
@@ -50,8 +55,27 @@ class LineBatch:
                            * h[:, None] + running[3]) * h[:, None]
         cumulative = np.cumsum(piece_integrals, axis=0)
         running[4, 1:] = cumulative[:-1]
+        prev_node = next_node = own = None
+        if lines.node_knots is not None:
+            is_node = np.zeros(len(knots), dtype=bool)
+            is_node[lines.node_knots] = True
+            is_node[[0, -1]] = True
+            nodes = np.flatnonzero(is_node)
+            prev_node = nodes[np.searchsorted(nodes, np.arange(len(knots)), side="right") - 1]
+            after = np.searchsorted(nodes, np.arange(len(knots)), side="right")
+            next_node = np.where(after < len(nodes), nodes[np.minimum(after, len(nodes) - 1)],
+                                 len(knots) - 1).astype(np.int64)
+            own = np.ascontiguousarray(lines.own_knots, dtype=np.int64)
         return cls(knots, np.ascontiguousarray(c), np.ascontiguousarray(running),
-                   np.ascontiguousarray(cumulative[-1]))
+                   np.ascontiguousarray(cumulative[-1]), prev_node, next_node, own)
+
+    def subset(self, lines: NDArray[np.int64]) -> LineBatch:
+        """The same batch restricted to some lines."""
+        return LineBatch(self.knots, np.ascontiguousarray(self.coef[:, :, lines]),
+                         np.ascontiguousarray(self.running[:, :, lines]),
+                         np.ascontiguousarray(self.running_end[lines]), self.prev_node,
+                         self.next_node, None if self.own is None
+                         else np.ascontiguousarray(self.own[lines]))
 
     @property
     def n_lines(self) -> int:
@@ -175,7 +199,8 @@ def scan_arrangements(batch: LineBatch, weights: NDArray[np.float64], kinds: NDA
                      np.ascontiguousarray(weights, dtype=float),
                      np.ascontiguousarray(kinds, dtype=np.int64),
                      np.ascontiguousarray(offsets, dtype=float),
-                     np.ascontiguousarray(lines, dtype=np.int64), constant, degree, confined)
+                     np.ascontiguousarray(lines, dtype=np.int64), constant, degree, confined,
+                     batch.prev_node, batch.next_node, batch.own)
 
 
 def group_response(batch: LineBatch, group: TermGroup, xi: float, side: float = 0.0

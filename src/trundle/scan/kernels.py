@@ -148,18 +148,39 @@ def _locate(knots, x):
 
 
 @njit(**JIT_OPTIONS)
-def _next_break(knots, piece, offset):
+def _next_real(piece, m, next_node, own):
+    """The knot after ``piece`` where the line really changes: the next structural node, or
+    the line's own section (``own``), whichever comes first; m at the end."""
+    if piece < 0:
+        return 0
+    nxt = next_node[piece] if piece < m else m
+    if piece < own < nxt:
+        nxt = own
+    return nxt
+
+
+@njit(**JIT_OPTIONS)
+def _real_start(piece, prev_node, own):
+    """The knot where the real piece containing knot-piece ``piece`` starts."""
+    start = prev_node[piece]
+    if start < own <= piece:
+        start = own
+    return start
+
+
+@njit(**JIT_OPTIONS)
+def _next_break(knots, piece, offset, next_node, own):
     m = knots.shape[0] - 1
     if piece < 0:
         return offset + knots[0]
     if piece < m:
-        return offset + knots[piece + 1]
+        return offset + knots[_next_real(piece, m, next_node, own)]
     return np.inf
 
 
 @njit(**JIT_OPTIONS)
 def _scan_row(row, line, knots, coef, running, running_end, weight, kind, offsets,
-              constant, degree, result, confined):
+              constant, degree, result, confined, prev_node, next_node, own):
     """Sweep the reference position ξ over every piece of one line's response.
 
     The group enters at the left (first term at x = 0) and leaves at the right; the breaks
@@ -185,8 +206,9 @@ def _scan_row(row, line, knots, coef, running, running_end, weight, kind, offset
     piece = np.empty(n_terms, dtype=np.int64)
     upcoming = np.empty(n_terms)
     for t in range(n_terms):
-        piece[t] = _locate(knots, lo - offsets[t])
-        upcoming[t] = _next_break(knots, piece[t], offsets[t])
+        k = _locate(knots, lo - offsets[t])
+        piece[t] = _real_start(k, prev_node, own) if 0 <= k < m else k
+        upcoming[t] = _next_break(knots, piece[t], offsets[t], next_node, own)
     best_max, pos_max, side_max = 0.0, np.nan, 0.0
     best_min, pos_min, side_min = 0.0, np.nan, 0.0
     poly = np.empty(5)
@@ -238,8 +260,8 @@ def _scan_row(row, line, knots, coef, running, running_end, weight, kind, offset
             break
         for t in range(n_terms):
             if upcoming[t] <= nxt:
-                piece[t] += 1
-                upcoming[t] = _next_break(knots, piece[t], offsets[t])
+                piece[t] = _next_real(piece[t], m, next_node, own)
+                upcoming[t] = _next_break(knots, piece[t], offsets[t], next_node, own)
         xi = nxt
     result[row, 0] = best_max
     result[row, 1] = pos_max
@@ -251,7 +273,8 @@ def _scan_row(row, line, knots, coef, running, running_end, weight, kind, offset
 
 @njit(**PARALLEL_OPTIONS)
 def scan_rows_parallel(knots, coef, running, running_end, weight, kind, offsets, lines,
-                       constant_weight, degree, confined=False):
+                       constant_weight, degree, confined=False, prev_node=None,
+                       next_node=None, own=None):
     """Exact extremes of a load group's response, one row per (line, arrangement).
 
     Parameters
@@ -269,6 +292,11 @@ def scan_rows_parallel(knots, coef, running, running_end, weight, kind, offsets,
     degree : 3 when only concentrated terms, else 4
     confined : only positions with every concentrated load on the beam (a crane between the
         end stops of its runway); otherwise the group enters and leaves the beam
+    prev_node, next_node : (m + 1,) for each knot, the structural node at or before it and the
+        next one after it (knots between are sections, where most lines do not break)
+    own : (n_lines,) the knot of each line's own section (−1 for none). A line is one cubic
+        from a structural node or its own section to the next, so the sweep skips the other
+        sections' knots. Without these every knot is a break (same result, more pieces).
 
     Returns
     -------
@@ -277,27 +305,44 @@ def scan_rows_parallel(knots, coef, running, running_end, weight, kind, offsets,
     n_rows = lines.shape[0]
     shared = offsets.shape[0] == 1
     result = np.empty((n_rows, 6))
+    m = knots.shape[0] - 1
+    if own is None:  # no structure given: every knot is a real break of every line
+        prev_node_ = np.arange(m + 1)
+        next_node_ = np.arange(1, m + 2)
+        own_ = np.full(coef.shape[2], -1)
+    else:
+        prev_node_, next_node_, own_ = prev_node, next_node, own
     for row in prange(n_rows):
         line = lines[row]
         offsets_row = offsets[0] if shared else offsets[row]
         _scan_row(row, line, knots, coef, running, running_end, weight, kind, offsets_row,
-                  constant_weight * running_end[line], degree, result, confined)
+                  constant_weight * running_end[line], degree, result, confined, prev_node_,
+                  next_node_, own_[line])
     return result
 
 
 @njit(**JIT_OPTIONS)
 def scan_rows_serial(knots, coef, running, running_end, weight, kind, offsets, lines,
-                     constant_weight, degree, confined=False):
+                     constant_weight, degree, confined=False, prev_node=None,
+                     next_node=None, own=None):
     """``scan_rows_parallel`` on one thread: cheaper for a handful of rows, where starting
     the thread pool costs more than the work."""
     n_rows = lines.shape[0]
     shared = offsets.shape[0] == 1
     result = np.empty((n_rows, 6))
+    m = knots.shape[0] - 1
+    if own is None:  # no structure given: every knot is a real break of every line
+        prev_node_ = np.arange(m + 1)
+        next_node_ = np.arange(1, m + 2)
+        own_ = np.full(coef.shape[2], -1)
+    else:
+        prev_node_, next_node_, own_ = prev_node, next_node, own
     for row in range(n_rows):
         line = lines[row]
         offsets_row = offsets[0] if shared else offsets[row]
         _scan_row(row, line, knots, coef, running, running_end, weight, kind, offsets_row,
-                  constant_weight * running_end[line], degree, result, confined)
+                  constant_weight * running_end[line], degree, result, confined, prev_node_,
+                  next_node_, own_[line])
     return result
 
 
@@ -307,10 +352,11 @@ PARALLEL_FROM_WORK = 1_000_000
 
 
 def scan_rows(knots, coef, running, running_end, weight, kind, offsets, lines,
-              constant_weight, degree, confined=False):
+              constant_weight, degree, confined=False, prev_node=None, next_node=None,
+              own=None):
     """Exact extremes per row; see ``scan_rows_parallel`` for the arguments."""
     n_terms = weight.shape[0]
     work = lines.shape[0] * knots.shape[0] * n_terms * n_terms
     kernel = scan_rows_parallel if work >= PARALLEL_FROM_WORK else scan_rows_serial
     return kernel(knots, coef, running, running_end, weight, kind, offsets, lines,
-                  float(constant_weight), int(degree), bool(confined))
+                  float(constant_weight), int(degree), bool(confined), prev_node, next_node, own)
