@@ -271,6 +271,14 @@ def _scan_row(row, line, knots, coef, running, running_end, weight, kind, offset
     result[row, 5] = side_min
 
 
+@njit(**JIT_OPTIONS)
+def _breaks(m, n_lines, prev_node, next_node, own):
+    """Where the lines really break; with no structure given, at every knot."""
+    if own is None:
+        return np.arange(m + 1), np.arange(1, m + 2), np.full(n_lines, -1)
+    return prev_node, next_node, own
+
+
 @njit(**PARALLEL_OPTIONS)
 def scan_rows_parallel(knots, coef, running, running_end, weight, kind, offsets, lines,
                        constant_weight, degree, confined=False, prev_node=None,
@@ -305,19 +313,13 @@ def scan_rows_parallel(knots, coef, running, running_end, weight, kind, offsets,
     n_rows = lines.shape[0]
     shared = offsets.shape[0] == 1
     result = np.empty((n_rows, 6))
-    m = knots.shape[0] - 1
-    if own is None:  # no structure given: every knot is a real break of every line
-        prev_node_ = np.arange(m + 1)
-        next_node_ = np.arange(1, m + 2)
-        own_ = np.full(coef.shape[2], -1)
-    else:
-        prev_node_, next_node_, own_ = prev_node, next_node, own
+    prev_node_, next_node_, own_ = _breaks(knots.shape[0] - 1, coef.shape[2], prev_node,
+                                           next_node, own)
     for row in prange(n_rows):
         line = lines[row]
-        offsets_row = offsets[0] if shared else offsets[row]
-        _scan_row(row, line, knots, coef, running, running_end, weight, kind, offsets_row,
-                  constant_weight * running_end[line], degree, result, confined, prev_node_,
-                  next_node_, own_[line])
+        _scan_row(row, line, knots, coef, running, running_end, weight, kind,
+                  offsets[0] if shared else offsets[row], constant_weight * running_end[line],
+                  degree, result, confined, prev_node_, next_node_, own_[line])
     return result
 
 
@@ -330,19 +332,13 @@ def scan_rows_serial(knots, coef, running, running_end, weight, kind, offsets, l
     n_rows = lines.shape[0]
     shared = offsets.shape[0] == 1
     result = np.empty((n_rows, 6))
-    m = knots.shape[0] - 1
-    if own is None:  # no structure given: every knot is a real break of every line
-        prev_node_ = np.arange(m + 1)
-        next_node_ = np.arange(1, m + 2)
-        own_ = np.full(coef.shape[2], -1)
-    else:
-        prev_node_, next_node_, own_ = prev_node, next_node, own
+    prev_node_, next_node_, own_ = _breaks(knots.shape[0] - 1, coef.shape[2], prev_node,
+                                           next_node, own)
     for row in range(n_rows):
         line = lines[row]
-        offsets_row = offsets[0] if shared else offsets[row]
-        _scan_row(row, line, knots, coef, running, running_end, weight, kind, offsets_row,
-                  constant_weight * running_end[line], degree, result, confined, prev_node_,
-                  next_node_, own_[line])
+        _scan_row(row, line, knots, coef, running, running_end, weight, kind,
+                  offsets[0] if shared else offsets[row], constant_weight * running_end[line],
+                  degree, result, confined, prev_node_, next_node_, own_[line])
     return result
 
 
