@@ -2,8 +2,10 @@
 
 from __future__ import annotations
 
+import csv
 from pathlib import Path
 
+import numpy as np
 from click.testing import CliRunner
 
 from trundle.cli import cli
@@ -37,3 +39,16 @@ def expected_key(path: Path) -> str:
         if line.startswith("# key:"):
             return line.removeprefix("# key:").strip()
     raise AssertionError(f"{path.name} has no '# key:' comment")
+
+
+def read_csv(path: Path) -> tuple[list[str], list[list[str]]]:
+    """(header, rows) of a CSV file written by the CLI."""
+    with open(path, newline="", encoding="utf-8") as handle:
+        rows = list(csv.reader(handle))
+    return rows[0], rows[1:]
+
+
+def column(header: list[str], body: list[list[str]], name: str) -> np.ndarray:
+    """One named column of a CSV as numbers."""
+    index = header.index(name)
+    return np.array([float(row[index]) for row in body])

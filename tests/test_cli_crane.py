@@ -7,7 +7,6 @@ The crane examples run once per module (analyse_runway takes seconds for two cra
 
 from __future__ import annotations
 
-import csv
 import json
 import re
 from pathlib import Path
@@ -15,7 +14,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from cli_helpers import assert_one_line_error, expected_key, run
+from cli_helpers import assert_one_line_error, column, expected_key, read_csv, run
 from trundle.crane_runway import RunwayResult, analyse_runway, lateral_extremes
 from trundle.cranefile import cranes_of, runway_spec
 from trundle.modelfile import load_model
@@ -37,17 +36,6 @@ def library_runway(path: Path) -> RunwayResult:
     """The runway analysed directly with the library, for comparison with the files."""
     model = load_model(path)
     return analyse_runway(model.beam, runway_spec(model), sections=model.sections)
-
-
-def read_csv(path: Path) -> tuple[list[str], list[list[str]]]:
-    with open(path, newline="", encoding="utf-8") as handle:
-        rows = list(csv.reader(handle))
-    return rows[0], rows[1:]
-
-
-def column(header: list[str], body: list[list[str]], name: str) -> np.ndarray:
-    index = header.index(name)
-    return np.array([float(row[index]) for row in body])
 
 
 @pytest.fixture(scope="module")

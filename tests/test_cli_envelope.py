@@ -4,7 +4,6 @@ the JSON round-trips, the report stands alone and carries the cautions, bad inpu
 
 from __future__ import annotations
 
-import csv
 import datetime
 import hashlib
 import json
@@ -16,7 +15,7 @@ import numpy as np
 import pytest
 
 import trundle
-from cli_helpers import assert_one_line_error, expected_key, run
+from cli_helpers import assert_one_line_error, column, expected_key, read_csv, run
 from trundle.loadfile import loads_of
 from trundle.modelfile import load_model
 from trundle.report.envelope_data import ExtraSection, TableData, collect
@@ -44,17 +43,6 @@ def si_run(tmp_path_factory):
     out = tmp_path_factory.mktemp("si") / "results"
     result = run("envelope", SI_EXAMPLE, "--out", out)
     return result, out
-
-
-def read_csv(path: Path) -> tuple[list[str], list[list[str]]]:
-    with open(path, newline="", encoding="utf-8") as handle:
-        rows = list(csv.reader(handle))
-    return rows[0], rows[1:]
-
-
-def column(header: list[str], body: list[list[str]], name: str) -> np.ndarray:
-    index = header.index(name)
-    return np.array([float(row[index]) for row in body])
 
 
 # --- the files ----------------------------------------------------------------------------

@@ -380,14 +380,12 @@ def passage_history(batch: LineBatch, vehicle: Vehicle, samples: int = 2001
 def _fatigue(beam: Beam, sections: NDArray[np.float64], spec: RunwaySpec
              ) -> tuple[FatigueSection, ...]:
     out = []
-    lines = beam.influence_set([_moment(x) for x in sections])
-    batch = LineBatch.from_set(lines)
     for crane in spec.cranes:
         vehicle = _crane_vehicle(crane, "loaded", with_impact=False, lateral=False,
                                  confined=spec.end_stops)
         env = envelope(beam, [vehicle], sections=sections, effects=("moment",))
         ranges = env.max("moment") - env.min("moment")
-        _, history = passage_history(batch, vehicle)
+        _, history = passage_history(env.batch, vehicle)  # the envelope's moment lines
         for i, x in enumerate(sections):
             series = np.concatenate([[0.0], history[:, i], [0.0]])
             cycles = tuple((float(r), float(n)) for r, n in rainflow.count_cycles(series)
@@ -430,12 +428,6 @@ def _allowable(spec: RunwaySpec, largest: float, equivalent: float, per_passage:
     if by_threshold <= by_life:
         return floor, "threshold"
     return finite, "finite life"
-
-
-def _moment(x: float):
-    from trundle.influence import Effect
-
-    return Effect("moment", at=float(x))
 
 
 def analyse_runway(beam: Beam, spec: RunwaySpec, sections: NDArray[np.float64] | None = None

@@ -17,7 +17,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 from scipy.optimize import minimize_scalar
 
-from trundle.influence import Effect, influence_set, piece_sign_intervals
+from trundle.influence import Effect, influence_set, piece_sign_intervals, signed_areas
 from trundle.loads.cases import LoadCase, Together, as_case
 from trundle.loads.patterns import UniformLoad
 from trundle.model import Beam, ModelError, Spring
@@ -278,7 +278,7 @@ def _uniform_case(batch: LineBatch, case: LoadCase, case_index: int,
     result = _CaseResult(case_index, n)
     result.pattern = [[None] * n, [None] * n]
     if load.placement == "anywhere":
-        pos, neg = _signed_areas(batch)
+        pos, neg = signed_areas(batch.knots, batch.coef)
         for w, area, col, sign in ((0, pos, 0, 1), (1, neg, 3, -1)):
             result.value[w] = m * (load.w * area + P * ordinate_extremes[:, col])
             for j in range(n):
@@ -313,12 +313,6 @@ def _point_load_position(result: _CaseResult, ordinate_extremes: NDArray[np.floa
         for w, col in ((0, 0), (1, 3)):
             result.xi[w] = ordinate_extremes[:, col + 1]
             result.side[w] = ordinate_extremes[:, col + 2].astype(np.int64)
-
-
-def _signed_areas(batch: LineBatch) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
-    from trundle.influence import signed_areas
-
-    return signed_areas(batch.knots, batch.coef)
 
 
 @dataclass(frozen=True, eq=False)
@@ -659,7 +653,10 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
     keep, inverse, index_all, index = _distinct_lines(lines.coefficients, index)
     batch = full_batch if keep.size == full_batch.n_lines else full_batch.subset(keep)
     n = batch.n_lines
-    ordinate_extremes = scan_group(batch, TermGroup((0.0,), (1.0,)))
+    # largest and smallest ordinate of every line: where a placed load's point load stands
+    placed = any(isinstance(p.load, UniformLoad) for c in cases
+                 for p in (c.parts if isinstance(c, Together) else (c,)))
+    ordinate_extremes = scan_group(batch, TermGroup((0.0,), (1.0,))) if placed else None
     results: list[_CaseResult] = []
     moving: list[tuple[LoadCase, _CaseResult, dict[int, _Arrangement]]] = []
 

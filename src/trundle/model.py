@@ -11,7 +11,7 @@ from functools import cached_property
 from typing import TYPE_CHECKING, Any, Literal
 
 import numpy as np
-from numpy.typing import ArrayLike, NDArray
+from numpy.typing import NDArray
 
 if TYPE_CHECKING:
     from trundle.influence import InfluenceLine, InfluenceSet
@@ -351,6 +351,3 @@ class Beam:
         parts.append(f"degree of indeterminacy {self.degree_of_indeterminacy}")
         return "; ".join(parts)
 
-
-def as_points(values: ArrayLike) -> NDArray[np.float64]:
-    return np.atleast_1d(np.asarray(values, dtype=float))

@@ -50,11 +50,6 @@ class Mesh:
     def lengths(self) -> NDArray[np.float64]:
         return np.diff(self.x)
 
-    def node_at(self, x: float) -> int:
-        i = int(np.argmin(np.abs(self.x - x)))
-        if abs(self.x[i] - x) > 1e-9 * max(1.0, self.x[-1]):
-            raise ModelError(f"x = {x:g} is not a node of the mesh")
-        return i
 
 
 def element_stiffness(EI: NDArray[np.float64], h: NDArray[np.float64]) -> NDArray[np.float64]:
