@@ -30,8 +30,8 @@ import time
 import numpy as np
 
 import trundle
-from trundle.envelope import _line_effects
-from trundle.stiffness import assemble, build_mesh, element_stiffness
+from trundle.analysis.envelope import _line_effects
+from trundle.core.fem import assemble, build_mesh, element_stiffness
 
 SPANS = [24.0, 30.0, 24.0]
 AXLES = [50.0, 110.0, 110.0, 90.0, 90.0]

@@ -23,8 +23,8 @@ import time
 import numpy as np
 
 import trundle
-from trundle.influence import Effect
-from trundle.statics import PointLoad, PointMoment
+from trundle.core.influence import Effect
+from trundle.core.statics import PointLoad, PointMoment
 
 
 def job() -> tuple[trundle.Beam, list[Effect], np.ndarray]:
@@ -46,7 +46,7 @@ def main() -> None:
     beam.influence_set(effects[:4])  # warm imports
     runs = []
     for _ in range(3):
-        trundle.stiffness._cached_assembly.cache_clear()
+        trundle.core.fem._cached_assembly.cache_clear()
         t0 = time.perf_counter()
         lines = beam.influence_set(effects)
         runs.append(time.perf_counter() - t0)
@@ -67,7 +67,7 @@ def main() -> None:
             worst = max(worst, np.abs(a - b).max() / (np.abs(a).max() + 1e-300))
     per_knot = (time.perf_counter() - t0) / len(sample)
     baseline = per_knot * len(knots)
-    asm = trundle.stiffness.assembly_for(beam, sections)
+    asm = trundle.core.fem.assembly_for(beam, sections)
     K_ff = asm.K[asm.free][:, asm.free].toarray()
     rhs = np.zeros((K_ff.shape[0], 2))
     rhs[0, 0] = rhs[1, 1] = 1.0

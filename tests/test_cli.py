@@ -14,8 +14,8 @@ import pytest
 
 import trundle
 from cli_helpers import assert_one_line_error, expected_key, run
-from trundle import _io
-from trundle.modelfile import load_model
+from trundle.io import outputs as _io
+from trundle.io.modelfile import load_model
 
 ROOT = Path(__file__).resolve().parents[1]
 SI_EXAMPLE = ROOT / "examples" / "harbour_lane_floor_girder_si.toml"

@@ -15,9 +15,9 @@ import numpy as np
 import pytest
 
 from cli_helpers import assert_one_line_error, column, expected_key, read_csv, run
-from trundle.crane_runway import RunwayResult, analyse_runway, lateral_extremes
-from trundle.cranefile import cranes_of, runway_spec
-from trundle.modelfile import load_model
+from trundle.io.cranes import cranes_of, runway_spec
+from trundle.io.modelfile import load_model
+from trundle.workflows.crane_runway import RunwayResult, analyse_runway, lateral_extremes
 
 ROOT = Path(__file__).resolve().parents[1]
 SI_HALL = ROOT / "examples" / "cranes" / "hall_kestrel_quay_si.toml"

@@ -16,8 +16,8 @@ import pytest
 
 import trundle
 from cli_helpers import assert_one_line_error, column, expected_key, read_csv, run
-from trundle.loadfile import loads_of
-from trundle.modelfile import load_model
+from trundle.io.loads import loads_of
+from trundle.io.modelfile import load_model
 from trundle.report.envelope_data import ExtraSection, TableData, collect
 from trundle.report.envelope_report import envelope_files, envelope_html
 from trundle.report.envelope_tables import envelope_document

@@ -22,7 +22,9 @@ from numpy.typing import NDArray
 from scipy.optimize import minimize, minimize_scalar
 
 import trundle
-from trundle.crane_runway import (
+from trundle.core.statics import PointLoad
+from trundle.loads.cranes import Crane, buffer_gap
+from trundle.workflows.crane_runway import (
     DETAIL_CATEGORIES,
     RunwayResult,
     RunwaySpec,
@@ -31,8 +33,6 @@ from trundle.crane_runway import (
     combination_load,
     crane_combinations,
 )
-from trundle.loads.cranes import Crane, buffer_gap
-from trundle.statics import PointLoad
 
 SPANS = [10.0, 12.0, 10.0]
 EI = 2.0e5  # kN m²
@@ -286,7 +286,7 @@ def test_fatigue_threshold_gives_no_relief_above_it() -> None:
     # (from memory of the fatigue appendix; verify): a largest range over F_TH with many
     # small cycles pulling the equivalent range down is judged on finite life, and fails when
     # the equivalent range exceeds (C_f/N)^(1/3) even though that is below F_TH.
-    from trundle.crane_runway import _allowable
+    from trundle.workflows.crane_runway import _allowable
 
     spec = RunwaySpec(cranes=(_crane(),), section_modulus=SECTION_MODULUS, detail_category="C'",
                       ksi=KSI, service_class="C")
@@ -411,7 +411,7 @@ def test_lateral_extremes_act_both_ways() -> None:
     # Lateral wheel forces push either way (common practice, no source): on a simple span the
     # lateral moment envelope reads ±, and its size is the moving-load formula with H per wheel
     # (two equal loads, P/(2L)(L − a/2)² at the section under the inner load; from memory)
-    from trundle.crane_runway import lateral_extremes
+    from trundle.workflows.crane_runway import lateral_extremes
 
     L, a = 12.0, 3.6
     crane = _crane()

@@ -10,10 +10,10 @@ from pathlib import Path
 
 import pytest
 
-from trundle.crane_runway import COMBINATIONS, RunwaySpec
-from trundle.cranefile import cranes_of, one_ksi, runway_settings_of, runway_spec
+from trundle.io.cranes import cranes_of, one_ksi, runway_settings_of, runway_spec
+from trundle.io.modelfile import ModelFileError, load_model, read_model
 from trundle.loads.cranes import Crane
-from trundle.modelfile import ModelFileError, load_model, read_model
+from trundle.workflows.crane_runway import COMBINATIONS, RunwaySpec
 
 ROOT = Path(__file__).resolve().parents[1]
 BAD_CRANES = sorted((Path(__file__).parent / "bad_models").glob("crane_*.toml"))

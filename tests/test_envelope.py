@@ -28,7 +28,7 @@ from naive_scan import (
     random_sections,
     static_effects,
 )
-from trundle.statics import PointLoad
+from trundle.core.statics import PointLoad
 
 REL = 1e-9
 

@@ -31,8 +31,8 @@ from naive_scan import (
     random_beam,
     random_sections,
 )
+from trundle.core.statics import DistributedLoad, PointLoad
 from trundle.scan import LineBatch, TermGroup, scan_group
-from trundle.statics import DistributedLoad, PointLoad
 
 REL = 1e-9
 

@@ -11,16 +11,16 @@ import numpy as np
 import pytest
 
 import trundle
-from trundle import loadfile
-from trundle.loadfile import (
+from trundle.io import loads as loadfile
+from trundle.io.loads import (
     LoadEntry,
     loads_of,
     read_load_model_file,
     require_loads,
 )
+from trundle.io.modelfile import ModelFileError, load_model, read_model
+from trundle.io.units import SI, US
 from trundle.loads import library
-from trundle.modelfile import ModelFileError, load_model, read_model
-from trundle.units import SI, US
 
 ROOT = Path(__file__).resolve().parents[1]
 BAD_LOADS = sorted((Path(__file__).parent / "bad_models").glob("load_*.toml"))
@@ -38,7 +38,7 @@ EI = 1.0e5
 """
 
 
-def read(loads: str, name: str = "m.toml", units: str = "SI") -> trundle.modelfile.Model:
+def read(loads: str, name: str = "m.toml", units: str = "SI") -> trundle.io.modelfile.Model:
     return read_model(BEAM.replace('"SI"', f'"{units}"') + loads, name)
 
 
@@ -108,7 +108,7 @@ directions = "one way"
 """)
     train = entry.load
     assert entry.kind == "train" and isinstance(train, trundle.Train)
-    service = library.read("demo-service-truck", SI).load
+    service = loadfile.read_library_model("demo-service-truck", SI).load
     assert train.vehicles[0].loads == service.loads
     assert train.vehicles[0].spacings == service.spacings
     assert train.vehicles[1].name == "tandem" and train.vehicles[1].spacings == (1.2,)
@@ -151,7 +151,7 @@ name = "heavy, lane 2"
 impact = "30 %"
 factors = { distribution = 0.5 }
 """)
-    model = library.read("demo-heavy-vehicle-5-axle", SI)
+    model = loadfile.read_library_model("demo-heavy-vehicle-5-axle", SI)
     assert plain.name == "demo-heavy-vehicle-5-axle" and plain.kind == "vehicle"
     assert plain.load.loads == model.load.loads
     assert plain.origin == "library model demo-heavy-vehicle-5-axle"
@@ -220,10 +220,10 @@ def test_si_library_model_in_a_us_model_is_converted_exactly():
 
 
 def test_a_load_model_file_read_in_its_own_units():
-    model = library.read("demo-lane-load")
+    model = loadfile.read_library_model("demo-lane-load")
     assert model.units == SI and model.kind == "uniform"
     assert model.load.w == 9.0 and model.load.point_load == 60.0
-    converted = library.read("demo-lane-load", US)
+    converted = loadfile.read_library_model("demo-lane-load", US)
     assert converted.units == SI  # the file's own units, as written
     assert converted.load.w == float(9 * 1000 / KIP * FOOT)
 
@@ -234,12 +234,12 @@ def test_a_load_model_file_read_in_its_own_units():
 def test_the_library_lists_its_models_with_kind_description_and_source():
     names = library.names()
     assert {"demo-service-truck", "demo-heavy-vehicle-5-axle", "demo-lane-load"} <= set(names)
-    models = library.read_all()
+    models = loadfile.read_library()
     assert [m.name for m in models] == names
     for model in models:
         assert model.kind in loadfile.KINDS
         assert model.description and model.source
-    heavy = library.read("demo-heavy-vehicle-5-axle")
+    heavy = loadfile.read_library_model("demo-heavy-vehicle-5-axle")
     assert len(heavy.load.loads) == 5
     assert [isinstance(s, tuple) for s in heavy.load.spacings].count(True) == 1
 
@@ -247,7 +247,7 @@ def test_the_library_lists_its_models_with_kind_description_and_source():
 def test_the_shipped_examples_say_they_are_invented():
     # Published code load models come later; until then nothing in the library may look
     # like one.
-    for model in library.read_all():
+    for model in loadfile.read_library():
         source = model.source.lower()
         assert source.startswith("invented") and "not a code load model" in source
 
@@ -260,7 +260,7 @@ def test_the_library_prefers_the_folder_shipped_inside_the_package(tmp_path, mon
     monkeypatch.setattr(library, "_PACKAGE", package)
     assert library.folder() == package / "loadmodels"
     assert library.names() == ["only-here"]
-    assert library.read("only-here").load.loads == (10.0,)
+    assert loadfile.read_library_model("only-here").load.loads == (10.0,)
 
 
 def test_without_a_shipped_folder_the_repository_folder_is_used():

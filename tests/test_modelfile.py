@@ -9,9 +9,9 @@ import numpy as np
 import pytest
 
 import trundle
-from trundle import modelfile
-from trundle.modelfile import ModelFileError, load_model, read_model
-from trundle.units import SI, US, UnitError, parse_quantity
+from trundle.io import modelfile
+from trundle.io.modelfile import ModelFileError, load_model, read_model
+from trundle.io.units import SI, US, UnitError, parse_quantity
 
 ROOT = Path(__file__).resolve().parents[1]
 EXAMPLES = sorted((ROOT / "examples").glob("*.toml"))

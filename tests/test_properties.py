@@ -15,7 +15,7 @@ from hypothesis import strategies as st
 
 import trundle
 from naive import MIN_NODE_GAP, beam_nodes, floor_scale
-from trundle.statics import DistributedLoad, PointLoad, PointMoment
+from trundle.core.statics import DistributedLoad, PointLoad, PointMoment
 
 PROPERTY_SETTINGS = settings(max_examples=30, deadline=None,
                              suppress_health_check=[HealthCheck.filter_too_much,

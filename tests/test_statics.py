@@ -13,7 +13,7 @@ from scipy.integrate import quad
 
 import trundle
 from naive import floor_scale, naive_solve, random_beam, spread_points
-from trundle.statics import DistributedLoad, PointLoad, PointMoment
+from trundle.core.statics import DistributedLoad, PointLoad, PointMoment
 
 
 def _naive_superposed(beam: trundle.Beam, loads: list[PointLoad], sections: np.ndarray):

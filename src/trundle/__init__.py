@@ -1,15 +1,23 @@
 """trundle: exact influence lines and moving-load envelopes for statically indeterminate beams."""
 
-from trundle.envelope import Envelope, Governing, envelope
-from trundle.influence import Effect, InfluenceLine, InfluenceSet, influence_batch, influence_set
+from trundle._version import __version__
+from trundle.analysis.envelope import Envelope, Governing, envelope
+from trundle.core.beam import Beam, ModelError, Spring
+from trundle.core.influence import (
+    Effect,
+    InfluenceLine,
+    InfluenceSet,
+    influence_batch,
+    influence_set,
+)
+from trundle.core.statics import DistributedLoad, PointLoad, PointMoment
+from trundle.io import ModelFileError, load_model
 from trundle.loads import AttachedUniform, LoadCase, Together, Train, UniformLoad, Vehicle
-from trundle.model import Beam, ModelError, Spring
-from trundle.modelfile import ModelFileError, load_model
-from trundle.statics import DistributedLoad, PointLoad, PointMoment
+from trundle.loads.cranes import Crane, WheelLoads
+from trundle.workflows.crane_runway import RunwayResult, RunwaySpec, analyse_runway
 
-__all__ = ["AttachedUniform", "Beam", "DistributedLoad", "Effect", "Envelope", "Governing",
-           "InfluenceLine", "InfluenceSet", "LoadCase", "ModelError", "ModelFileError",
-           "PointLoad", "PointMoment",
-           "Spring", "Together", "Train", "UniformLoad", "Vehicle", "envelope", "influence_batch",
-           "influence_set", "load_model"]
-__version__ = "0.1.0"
+__all__ = ["AttachedUniform", "Beam", "Crane", "DistributedLoad", "Effect", "Envelope",
+           "Governing", "InfluenceLine", "InfluenceSet", "LoadCase", "ModelError",
+           "ModelFileError", "PointLoad", "PointMoment", "RunwayResult", "RunwaySpec", "Spring",
+           "Together", "Train", "UniformLoad", "Vehicle", "WheelLoads", "__version__",
+           "analyse_runway", "envelope", "influence_batch", "influence_set", "load_model"]

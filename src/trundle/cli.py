@@ -16,15 +16,15 @@ import click
 from rich.console import Console
 from rich.text import Text
 
-from trundle import __version__
-from trundle._io import write_all_atomic
-from trundle.cranefile import cranes_of
-from trundle.influence import Effect, InfluenceSet
-from trundle.loadfile import loads_of
-from trundle.model import Beam, ModelError, Spring
-from trundle.modelfile import Model, ModelFileError, load_model
+from trundle._version import __version__
+from trundle.core.beam import Beam, ModelError, Spring
+from trundle.core.influence import Effect, InfluenceSet
+from trundle.io.cranes import cranes_of
+from trundle.io.loads import loads_of
+from trundle.io.modelfile import Model, ModelFileError, load_model
+from trundle.io.outputs import write_all_atomic
+from trundle.io.units import UnitError, parse_quantity
 from trundle.report import CAUTION, LOAD_MODEL_CAUTION
-from trundle.units import UnitError, parse_quantity
 
 EFFECT_CHOICES = ("moment", "shear", "reaction", "deflection", "rotation", "support-moment")
 _SECTION_KINDS = ("moment", "shear", "deflection", "rotation")
@@ -371,11 +371,12 @@ def envelope_command(model_file: str, out_dir: Path | None, figure_format: str,
       trundle envelope examples/cranes/hall_kestrel_quay_si.toml --out results/
     """
     from trundle.report.envelope_data import collect
+    from trundle.report.sections import SECTIONS
 
     model = _load(model_file)
     if out_dir is not None and out_dir.exists() and not out_dir.is_dir():
         raise UserError(f"--out {out_dir}: expected a folder, found a file")
-    results = collect(model, model_file)
+    results = collect(model, model_file, providers=SECTIONS)
     console = _console()
     for renderable in _envelope_summary(results):
         console.print(renderable)
@@ -437,12 +438,13 @@ def library_command(name: str | None) -> None:
       trundle library
       trundle library demo-heavy-vehicle-5-axle
     """
+    from trundle.io.loads import read_library, read_library_model
     from trundle.loads import library
     from trundle.report.envelope_tables import library_detail, library_table, to_rich
 
     console = _console()
     if name is None:
-        console.print(to_rich(library_table(library.read_all())))
+        console.print(to_rich(library_table(read_library())))
         console.print(f"folder: {library.folder()}", style="dim")
     else:
         names = library.names()
@@ -451,7 +453,7 @@ def library_command(name: str | None) -> None:
             extra = f' (did you mean "{hint[0]}"?)' if hint else ""
             raise UserError(f"library NAME: expected one of {', '.join(names)}, found "
                             f'"{name}"{extra}')
-        for renderable in library_detail(library.read(name)):
+        for renderable in library_detail(read_library_model(name)):
             console.print(to_rich(renderable) if not isinstance(renderable, str)
                           else Text(renderable))
     console.print(LOAD_MODEL_CAUTION, style="dim")

@@ -21,7 +21,13 @@ import math
 
 import pytest
 
-from trundle.crane_runway import (
+from trundle.loads.cranes import (
+    IMPACT_BY_OPERATION,
+    LATERAL_FRACTION,
+    LONGITUDINAL_FRACTION,
+    Crane,
+)
+from trundle.workflows.crane_runway import (
     COMBINATIONS,
     DETAIL_CATEGORIES,
     FATIGUE_CYCLES,
@@ -30,12 +36,6 @@ from trundle.crane_runway import (
     VERTICAL_DEFLECTION_RATIO,
     RunwaySpec,
     allowable_stress_range_ksi,
-)
-from trundle.loads.cranes import (
-    IMPACT_BY_OPERATION,
-    LATERAL_FRACTION,
-    LONGITUDINAL_FRACTION,
-    Crane,
 )
 
 

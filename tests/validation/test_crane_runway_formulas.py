@@ -24,8 +24,8 @@ import numpy as np
 import pytest
 
 import trundle
-from trundle.crane_runway import RunwayResult, RunwaySpec, analyse_runway
 from trundle.loads.cranes import Crane, buffer_gap
+from trundle.workflows.crane_runway import RunwayResult, RunwaySpec, analyse_runway
 
 REL = 1e-9
 

@@ -14,7 +14,7 @@ import pytest
 
 import trundle
 from trundle import Spring
-from trundle.statics import DistributedLoad, PointLoad
+from trundle.core.statics import DistributedLoad, PointLoad
 
 EXACT = 1e-11
 

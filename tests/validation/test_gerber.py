@@ -11,7 +11,7 @@ import numpy as np
 import pytest
 
 import trundle
-from trundle.statics import DistributedLoad
+from trundle.core.statics import DistributedLoad
 
 EXACT = 1e-11
 

@@ -21,7 +21,7 @@ import numpy as np
 import pytest
 
 import trundle
-from trundle.statics import DistributedLoad, PointLoad
+from trundle.core.statics import DistributedLoad, PointLoad
 
 EXACT = 1e-11  # closed forms the solver reproduces to rounding
 TABLE = 5e-3  # coefficients printed to three figures: half a unit in the last is up to 0.5 %

@@ -15,7 +15,7 @@ import sympy as sp
 from scipy.integrate import quad
 
 import trundle
-from trundle.statics import PointLoad
+from trundle.core.statics import PointLoad
 
 L = 10.0
 HAUNCH = 4.0  # the haunch runs from the wall (x = 0) to x = 4

@@ -21,7 +21,7 @@ import numpy as np
 import pytest
 
 import trundle
-from trundle.envelope import AbsoluteExtreme
+from trundle.analysis.envelope import AbsoluteExtreme
 
 L = 20.0
 SQRT2_LIMIT = 2.0 - math.sqrt(2.0)  # a/L below which two equal loads beat one

@@ -20,7 +20,7 @@ import pytest
 from scipy.optimize import brentq
 
 import trundle
-from trundle.statics import DistributedLoad, PointLoad
+from trundle.core.statics import DistributedLoad, PointLoad
 
 L = 10.0
 W = 1.5

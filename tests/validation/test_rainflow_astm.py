@@ -24,10 +24,10 @@ import pytest
 import rainflow
 
 import trundle
-from trundle.crane_runway import RunwayResult, RunwaySpec, analyse_runway, passage_history
+from trundle.core.statics import PointLoad
 from trundle.loads.cranes import Crane
 from trundle.scan.engine import LineBatch
-from trundle.statics import PointLoad
+from trundle.workflows.crane_runway import RunwayResult, RunwaySpec, analyse_runway, passage_history
 
 ASTM_HISTORY = [-2.0, 1.0, -3.0, 5.0, -1.0, 3.0, -4.0, 4.0, -2.0]
 ASTM_COUNTS = {3.0: 0.5, 4.0: 1.5, 6.0: 0.5, 8.0: 1.0, 9.0: 0.5}

@@ -7,7 +7,7 @@ from typing import Any
 
 import numpy as np
 
-from trundle.model import ModelError
+from trundle.core.beam import ModelError
 
 
 @dataclass(frozen=True)

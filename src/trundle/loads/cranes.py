@@ -19,8 +19,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from trundle.core.beam import ModelError
 from trundle.loads.vehicles import Vehicle
-from trundle.model import ModelError
 
 # from memory of a widely used US building-code provision; verify against the code in force
 IMPACT_BY_OPERATION = {"cab": 0.25, "remote": 0.25, "monorail": 0.25, "pendant": 0.10,

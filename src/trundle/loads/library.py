@@ -3,17 +3,13 @@
 The library name of a load model is its file name without ``.toml``. In an installed wheel the
 files sit inside the package (``trundle/loadmodels``, put there by pyproject's force-include);
 in a source checkout (editable install) they are read from the repository's ``loadmodels/``.
-Reading a file is :func:`trundle.loadfile.read_load_model_file`; this module only finds them.
+Reading a file is :func:`trundle.io.loads.read_library_model` (the io layer, above this one);
+this module only finds them and imports no reader.
 """
 
 from __future__ import annotations
 
 from pathlib import Path
-from typing import TYPE_CHECKING
-
-if TYPE_CHECKING:
-    from trundle.loadfile import LoadModelFile
-    from trundle.units import UnitSystem
 
 _PACKAGE = Path(__file__).resolve().parents[1]  # .../trundle
 
@@ -47,14 +43,3 @@ def is_library_file(path: Path) -> bool:
     except OSError:
         return False
 
-
-def read(name: str, units: UnitSystem | None = None) -> LoadModelFile:
-    """The load model ``name``, in ``units`` (default: the units its file is written in)."""
-    from trundle.loadfile import read_load_model_file
-
-    return read_load_model_file(path_of(name), units)
-
-
-def read_all(units: UnitSystem | None = None) -> list[LoadModelFile]:
-    """Every load model of the library, sorted by name."""
-    return [read(name, units) for name in names()]

@@ -8,7 +8,7 @@ from typing import Literal
 
 import numpy as np
 
-from trundle.model import ModelError
+from trundle.core.beam import ModelError
 
 PLACEMENTS = ("anywhere", "spans", "everywhere")
 

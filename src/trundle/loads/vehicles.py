@@ -14,7 +14,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from trundle.model import ModelError
+from trundle.core.beam import ModelError
 from trundle.scan.engine import TermGroup
 
 Spacing = float | tuple[float, float]

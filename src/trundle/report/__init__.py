@@ -1,7 +1,7 @@
 """Reports: figures (matplotlib), terminal tables (rich), CSV and JSON export.
 
 Everything here only presents results the core has computed; units come from the model's
-:class:`trundle.units.UnitSystem`.
+:class:`trundle.io.units.UnitSystem`.
 """
 
 CAUTION = ("Results are for checking by a qualified engineer; local codes and licensed "

@@ -1,10 +1,10 @@
 """The crane runway of a model file, gathered for presentation: one place that decides what
 the crane tables, figures, CSV files and the JSON part show.
 
-:func:`runway_report` runs :func:`trundle.crane_runway.analyse_runway` on the model's beam and
-sections and keeps what the outputs read: per support the worst reactions with and without
-impact, per span the governing moment and shear with impact (also the worst section between
-the sections), the deflection checks, the lateral moments (wheel forces either way), the
+:func:`runway_report` runs :func:`trundle.workflows.crane_runway.analyse_runway` on the model's
+beam and sections and keeps what the outputs read: per support the worst reactions with and
+without impact, per span the governing moment and shear with impact (also the worst section
+between the sections), the deflection checks, the lateral moments (wheel forces either way), the
 fatigue ranges, and every default in use with where it comes from.
 """
 
@@ -19,7 +19,20 @@ from typing import Any
 import numpy as np
 from numpy.typing import NDArray
 
-from trundle.crane_runway import (
+from trundle.analysis.envelope import Envelope, Governing, absolute_extremes
+from trundle.core.beam import Beam
+from trundle.io.cranes import CraneEntry, cranes_of, runway_settings_of, runway_spec
+from trundle.io.units import UnitSystem
+from trundle.loads.cranes import (
+    IMPACT_BY_OPERATION,
+    LATERAL_FRACTION,
+    LONGITUDINAL_FRACTION,
+    Crane,
+    buffer_gap,
+)
+from trundle.loads.vehicles import Train
+from trundle.report.envelope_data import EnvelopeResults, Extreme, describe_extreme
+from trundle.workflows.crane_runway import (
     DETAIL_CATEGORIES,
     FATIGUE_CYCLES,
     LATERAL_DEFLECTION_RATIO,
@@ -30,19 +43,6 @@ from trundle.crane_runway import (
     RunwaySpec,
     analyse_runway,
 )
-from trundle.cranefile import CraneEntry, RunwaySettings, cranes_of, runway_settings_of, runway_spec
-from trundle.envelope import Envelope, Governing, absolute_extremes
-from trundle.loads.cranes import (
-    IMPACT_BY_OPERATION,
-    LATERAL_FRACTION,
-    LONGITUDINAL_FRACTION,
-    Crane,
-    buffer_gap,
-)
-from trundle.loads.vehicles import Train
-from trundle.model import Beam
-from trundle.report.envelope_data import EnvelopeResults, Extreme, describe_extreme
-from trundle.units import UnitSystem
 
 VERIFY = "verify against the governing guide/code in force"
 CRANE_CAUTION = ("Crane defaults in use (vertical impact, lateral and longitudinal force "
@@ -141,7 +141,7 @@ class RunwayReport:
 
     results: EnvelopeResults
     entries: tuple[CraneEntry, ...]
-    settings: RunwaySettings
+    settings: RunwaySpec
     spec: RunwaySpec
     runway: RunwayResult
     cache: dict[Any, Any] = field(default_factory=dict, repr=False)

@@ -15,7 +15,6 @@ import numpy as np
 from matplotlib.axes import Axes
 from matplotlib.figure import Figure
 
-from trundle.crane_runway import lateral_extremes
 from trundle.report.crane_data import (
     CranePlacement,
     RunwayReport,
@@ -34,6 +33,7 @@ from trundle.report.figures import (
     new_figure,
     plot_beam,
 )
+from trundle.workflows.crane_runway import lateral_extremes
 
 MAX_COLOR = PALETTE[0]
 MIN_COLOR = PALETTE[1]

@@ -1,6 +1,6 @@
-"""The crane runway part of ``trundle envelope``: registered with
-:func:`trundle.report.envelope_data.register_section`, so the terminal summary, the CSV and
-JSON files and the HTML report all carry it for a model with ``[[crane]]`` tables.
+"""The crane runway part of ``trundle envelope``: listed in
+:mod:`trundle.report.sections`, so the terminal summary, the CSV and JSON files and the HTML
+report all carry it for a model with ``[[crane]]`` tables.
 """
 
 from __future__ import annotations
@@ -25,7 +25,7 @@ from trundle.report.crane_tables import (
     shear_table,
     wheel_loads_table,
 )
-from trundle.report.envelope_data import EnvelopeResults, ExtraSection, register_section
+from trundle.report.envelope_data import EnvelopeResults, ExtraSection
 
 TITLE = "Crane runway"
 
@@ -71,5 +71,3 @@ def crane_section(results: EnvelopeResults) -> ExtraSection | None:
                         detail_tables=tuple(t for t in detail if t is not None),
                         captions=captions, cautions=cautions)
 
-
-register_section(crane_section)

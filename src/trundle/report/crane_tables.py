@@ -14,10 +14,10 @@ import math
 from collections.abc import Sequence
 from typing import Any
 
-from trundle.crane_runway import COMBINATIONS, DeflectionCheck, FatigueSection, lateral_extremes
-from trundle.cranefile import CraneEntry, cranes_of, given_text, mass_given
+from trundle.io.cranes import CraneEntry, cranes_of, given_text, mass_given
+from trundle.io.modelfile import Model
+from trundle.io.units import UnitSystem
 from trundle.loads.cranes import LATERAL_FRACTION, Crane
-from trundle.modelfile import Model
 from trundle.report.crane_data import (
     VERIFY,
     CranePlacement,
@@ -46,7 +46,12 @@ from trundle.report.envelope_tables import (
     _position,
     extreme_json,
 )
-from trundle.units import UnitSystem
+from trundle.workflows.crane_runway import (
+    COMBINATIONS,
+    DeflectionCheck,
+    FatigueSection,
+    lateral_extremes,
+)
 
 # ------------------------------------------------------------------------------------------
 # cells

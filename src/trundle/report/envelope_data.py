@@ -4,8 +4,9 @@ what every table, figure, CSV/JSON file and the HTML report shows.
 :func:`collect` runs the envelope (every ``[[load]]`` over the model's sections) and the
 absolute moment extremes per span, and keeps what traceability needs: the trundle version, the
 model file's SHA-256, the date. :func:`describe_extreme` turns one governing configuration into
-words and display units. Later features (cranes, fatigue …) add their own part of the outputs
-with :func:`register_section`; every output renders the extra sections it is given.
+words and display units. Other workflows (the crane runway) add their own part of the outputs as
+section providers passed to :func:`collect` (composed in :mod:`trundle.report.sections`);
+every output renders the extra sections it is given.
 """
 
 from __future__ import annotations
@@ -22,16 +23,16 @@ from typing import Any
 import numpy as np
 from numpy.typing import NDArray
 
-from trundle import __version__
-from trundle.cranefile import cranes_of
-from trundle.envelope import AbsoluteExtreme, Envelope, Governing, envelope
-from trundle.loadfile import LoadEntry, loads_of
+from trundle._version import __version__
+from trundle.analysis.envelope import AbsoluteExtreme, Envelope, Governing, envelope
+from trundle.core.beam import Beam, Spring
+from trundle.io.cranes import cranes_of
+from trundle.io.loads import LoadEntry, loads_of
+from trundle.io.modelfile import Model, ModelFileError
+from trundle.io.units import UnitSystem
 from trundle.loads.cases import Together
 from trundle.loads.patterns import UniformLoad
 from trundle.loads.vehicles import Train, Vehicle
-from trundle.model import Beam, Spring
-from trundle.modelfile import Model, ModelFileError
-from trundle.units import UnitSystem
 
 EFFECTS = ("moment", "shear", "deflection", "reaction", "support_moment")
 # The section families of the envelope, in the order of the CSV columns.
@@ -87,13 +88,6 @@ class ExtraSection:
 
 
 SectionProvider = Callable[["EnvelopeResults"], "ExtraSection | None"]
-_PROVIDERS: list[SectionProvider] = []
-
-
-def register_section(provider: SectionProvider) -> None:
-    """Add ``provider(results) -> ExtraSection | None`` to every envelope output."""
-    if provider not in _PROVIDERS:
-        _PROVIDERS.append(provider)
 
 
 @dataclass(frozen=True)
@@ -170,12 +164,11 @@ class EnvelopeResults:
 
 
 def collect(model: Model, model_file: str | Path, date: str | None = None,
-            providers: Sequence[SectionProvider] | None = None) -> EnvelopeResults:
+            providers: Sequence[SectionProvider] = ()) -> EnvelopeResults:
     """Run every load of ``model`` over its sections and gather the results.
 
     Raises ModelFileError if the model has neither ``[[load]]`` nor ``[[crane]]`` tables.
     """
-    _register_builtin_sections()
     entries = loads_of(model)
     if not entries and not cranes_of(model):
         raise ModelFileError(model.name, "load", "expected at least one [[load]] table (a "
@@ -192,18 +185,11 @@ def collect(model: Model, model_file: str | Path, date: str | None = None,
     when = date or _datetime.datetime.now(_datetime.UTC).isoformat(timespec="seconds")
     results = EnvelopeResults(model, str(model_file), digest, when, __version__, entries, env,
                               absolute)
-    chosen = _PROVIDERS if providers is None else providers
-    extra = tuple(s for s in (p(results) for p in chosen) if s is not None)
+    extra = tuple(s for s in (p(results) for p in providers) if s is not None)
     if extra:
         results = EnvelopeResults(model, str(model_file), digest, when, __version__, entries,
                                   env, absolute, extra)
     return results
-
-
-def _register_builtin_sections() -> None:
-    """Import the sections trundle itself adds (they register on import); here rather than at
-    module level because they build on this module."""
-    import trundle.report.crane_section  # noqa: F401
 
 
 def _worst_absolute(env: Envelope, n_spans: int) -> tuple[dict[str, AbsoluteExtreme | None],

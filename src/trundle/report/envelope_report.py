@@ -1,7 +1,7 @@
 """The files of ``trundle envelope --out``: CSV, JSON, figures and the HTML report.
 
 :func:`envelope_files` prepares every file in memory first (so a failure writes nothing) and
-returns name -> content for :func:`trundle._io.write_all_atomic`. The HTML report stands
+returns name -> content for :func:`trundle.io.outputs.write_all_atomic`. The HTML report stands
 alone: its figures are PNG data URIs.
 """
 
@@ -13,8 +13,8 @@ from typing import Any
 from jinja2 import Environment, PackageLoader, StrictUndefined, select_autoescape
 from markupsafe import Markup
 
-from trundle.loadfile import read_load_model_file
-from trundle.modelfile import ModelFileError
+from trundle.io.loads import read_load_model_file
+from trundle.io.modelfile import ModelFileError
 from trundle.report import CAUTION, LOAD_MODEL_CAUTION
 from trundle.report.envelope_data import SIGN_CONVENTIONS, EnvelopeResults, quantity_unit
 from trundle.report.envelope_figures import envelope_figures

@@ -19,12 +19,13 @@ import numpy as np
 from rich.table import Table
 from rich.text import Text
 
-from trundle.loadfile import LoadEntry, LoadModelFile, loads_of
+from trundle.core.beam import Spring
+from trundle.io.loads import LoadEntry, LoadModelFile, loads_of
+from trundle.io.modelfile import Model
+from trundle.io.units import UnitSystem
 from trundle.loads.cases import Together
 from trundle.loads.patterns import UniformLoad
 from trundle.loads.vehicles import Train, Vehicle
-from trundle.model import Spring
-from trundle.modelfile import Model
 from trundle.report import CAUTION, LOAD_MODEL_CAUTION
 from trundle.report.envelope_data import (
     FAMILY_NAMES,
@@ -51,7 +52,6 @@ from trundle.report.envelope_data import (
     support_extremes,
     support_kind_words,
 )
-from trundle.units import UnitSystem
 
 CAUTIONS = (CAUTION, LOAD_MODEL_CAUTION)
 

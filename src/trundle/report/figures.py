@@ -24,8 +24,9 @@ from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure
 from matplotlib.transforms import Affine2D, ScaledTranslation, Transform
 
-from trundle.influence import InfluenceSet
-from trundle.model import Beam, Spring
+from trundle.core.beam import Beam, Spring
+from trundle.core.influence import InfluenceSet
+from trundle.io.units import UnitSystem
 from trundle.report import CAUTION
 from trundle.report.tables import (
     effect_label,
@@ -34,7 +35,6 @@ from trundle.report.tables import (
     ordinate_units,
     sample,
 )
-from trundle.units import UnitSystem
 
 # House palette: ink-and-paper tones with a few muted accents.
 INK = "#262b31"

@@ -1,6 +1,6 @@
 """Tables of influence lines and models: rich tables for the terminal, CSV and JSON text.
 
-Writers return finished text; the caller writes it (atomically, see :mod:`trundle._io`).
+Writers return finished text; the caller writes it (atomically, see :mod:`trundle.io.outputs`).
 Ordinates are in display units: effect per unit load, e.g. kN·m/kN for a moment line and
 mm/kN for a deflection line.
 """
@@ -20,13 +20,13 @@ from numpy.typing import NDArray
 from rich.table import Table
 from rich.text import Text
 
-from trundle.influence import Effect, InfluenceSet
-from trundle.model import Beam, Spring
+from trundle.core.beam import Beam, Spring
+from trundle.core.influence import Effect, InfluenceSet
+from trundle.io.units import UnitSystem
 from trundle.report import CAUTION
-from trundle.units import UnitSystem
 
 if TYPE_CHECKING:
-    from trundle.modelfile import Model
+    from trundle.io.modelfile import Model
 
 _KIND_NAMES = {"reaction": "reaction", "support_moment": "support moment", "moment": "moment",
                "shear": "shear", "deflection": "deflection", "rotation": "rotation"}

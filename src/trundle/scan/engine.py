@@ -15,7 +15,7 @@ import numpy as np
 from numpy.typing import NDArray
 from scipy.interpolate import PPoly
 
-from trundle.influence import InfluenceSet, _eval_sided
+from trundle.core.influence import InfluenceSet, _eval_sided
 from trundle.scan.kernels import KIND_POINT, KIND_RUNNING_INTEGRAL, scan_rows
 
 

@@ -14,8 +14,8 @@ import numpy as np
 from numpy.typing import NDArray
 
 if TYPE_CHECKING:
-    from trundle.influence import InfluenceLine, InfluenceSet
-    from trundle.statics import StaticResult
+    from trundle.core.influence import InfluenceLine, InfluenceSet
+    from trundle.core.statics import StaticResult
 
 
 class ModelError(ValueError):
@@ -326,19 +326,19 @@ class Beam:
         ``effect`` is ``"reaction"`` or ``"support_moment"`` (with ``support=``), or
         ``"moment"``, ``"shear"`` (``side=``), ``"deflection"``, ``"rotation"`` (with ``at=``).
         """
-        from trundle.influence import Effect, influence_set
+        from trundle.core.influence import Effect, influence_set
 
         return influence_set(self, [Effect(effect, at=at, support=support, side=side)]).line(0)
 
     def influence_set(self, effects: Any) -> InfluenceSet:
         """Many influence lines from one factorisation; all share the same knots."""
-        from trundle.influence import influence_set
+        from trundle.core.influence import influence_set
 
         return influence_set(self, effects)
 
     def static(self, loads: Any) -> StaticResult:
-        """Reactions and exact diagrams for fixed loads (see :mod:`trundle.statics`)."""
-        from trundle.statics import solve_static
+        """Reactions and exact diagrams for fixed loads (see :mod:`trundle.core.statics`)."""
+        from trundle.core.statics import solve_static
 
         return solve_static(self, loads)
 

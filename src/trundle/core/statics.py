@@ -14,9 +14,9 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 from scipy.interpolate import PPoly
 
-from trundle.influence import _eval_sided
-from trundle.model import Beam, ModelError, Spring
-from trundle.stiffness import assembly_for, element_stiffness
+from trundle.core.beam import Beam, ModelError, Spring
+from trundle.core.fem import assembly_for, element_stiffness
+from trundle.core.influence import _eval_sided
 
 
 @dataclass(frozen=True)

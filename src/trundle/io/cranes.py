@@ -5,16 +5,17 @@ weights as forces or masses, span, hook approach, wheel spacings, buffer length,
 operation, optional overrides of the default percentages and the maker's wheel loads); the
 ``[runway]`` table says how the runway is checked (crane combinations, service class, lateral
 stiffness of the top flange, deflection limits, fatigue data). Both are read into the objects
-of :mod:`trundle.loads.cranes` and :mod:`trundle.crane_runway`; the schema is documented in
-docs/model-file.md.
+of :mod:`trundle.loads.cranes` and :mod:`trundle.workflows.crane_runway`; the schema is
+documented in docs/model-file.md.
 
 A mass ("20 t", "40000 lb") is turned into its weight with standard gravity,
 g = 9.80665 m/s² exactly (the conventional value of the SI). Every problem is a one-line
-:class:`trundle.modelfile.ModelFileError` naming the file and the key (``crane[1].span``).
+:class:`trundle.io.modelfile.ModelFileError` naming the file and the key (``crane[1].span``).
 """
 
 from __future__ import annotations
 
+import dataclasses
 import math
 import re
 from collections.abc import Mapping
@@ -22,16 +23,16 @@ from dataclasses import dataclass, field
 from types import MappingProxyType
 from typing import Any
 
-from trundle.crane_runway import (
+from trundle.core.beam import ModelError
+from trundle.io.modelfile import _MISSING, Model, ModelFileError, Reader
+from trundle.io.units import UnitError, UnitSystem, parse_quantity, registry, show_value
+from trundle.loads.cranes import OPERATIONS, Crane
+from trundle.workflows.crane_runway import (
     COMBINATIONS,
     DETAIL_CATEGORIES,
     SERVICE_CLASSES,
     RunwaySpec,
 )
-from trundle.loads.cranes import OPERATIONS, Crane
-from trundle.model import ModelError
-from trundle.modelfile import _MISSING, Model, ModelFileError, Reader, register_table
-from trundle.units import UnitError, UnitSystem, parse_quantity, registry, show_value
 
 CRANE_TABLE = "crane"
 RUNWAY_TABLE = "runway"
@@ -69,43 +70,13 @@ class CraneEntry:
         return self.crane.name
 
 
-@dataclass(frozen=True)
-class RunwaySettings:
-    """The ``[runway]`` table, checked and in base units (cranes apart).
-
-    Fields
-    ------
-    combinations : which crane combinations to run (of trundle.crane_runway.COMBINATIONS)
-    service_class : "A" … "F"
-    lateral_EI : EI of the top flange about its vertical axis [force·length²] or None
-    lateral_EI_given : how the file stated it ("" when not given)
-    vertical_ratio, lateral_ratio : span / limit, or None for the defaults
-    section_modulus : [length³] or None
-    detail_category : or None
-    fatigue_cycles : or None for the service-class default (math.inf: unlimited)
-    end_stops : the beam is the whole runway with end stops at its ends (wheels stay on it)
-    given : the table as written
-    """
-
-    combinations: tuple[str, ...]
-    service_class: str
-    lateral_EI: float | None = None
-    lateral_EI_given: str = ""
-    vertical_ratio: float | None = None
-    lateral_ratio: float | None = None
-    section_modulus: float | None = None
-    detail_category: str | None = None
-    fatigue_cycles: float | None = None
-    given: Mapping[str, Any] = field(default_factory=dict, repr=False)
-    end_stops: bool = False
-
-
 def cranes_of(model: Model) -> tuple[CraneEntry, ...]:
     """The ``[[crane]]`` entries of a model, in the order written (empty if none)."""
     return tuple(model.tables.get(CRANE_TABLE, ()))
 
 
-def runway_settings_of(model: Model) -> RunwaySettings | None:
+def runway_settings_of(model: Model) -> RunwaySpec | None:
+    """The ``[runway]`` table as read: a RunwaySpec without its cranes (None without one)."""
     return model.tables.get(RUNWAY_TABLE)
 
 
@@ -121,15 +92,7 @@ def runway_spec(model: Model) -> RunwaySpec | None:
     if not entries or settings is None:
         return None
     try:
-        return RunwaySpec(cranes=tuple(e.crane for e in entries),
-                          combinations=settings.combinations, lateral_EI=settings.lateral_EI,
-                          service_class=settings.service_class,
-                          vertical_ratio=settings.vertical_ratio,
-                          lateral_ratio=settings.lateral_ratio,
-                          section_modulus=settings.section_modulus,
-                          detail_category=settings.detail_category,
-                          fatigue_cycles=settings.fatigue_cycles, ksi=one_ksi(model.units),
-                          end_stops=settings.end_stops)
+        return dataclasses.replace(settings, cranes=tuple(e.crane for e in entries))
     except ModelError as error:  # everything is checked on reading; never a traceback anyway
         raise ModelFileError(model.name, RUNWAY_TABLE, str(error)) from None
 
@@ -291,7 +254,7 @@ def _is_number(text: str) -> bool:
 # [runway]
 
 
-def read_runway(value: Any, reader: Reader) -> RunwaySettings:
+def read_runway(value: Any, reader: Reader) -> RunwaySpec:
     """Reader of the top-level ``[runway]`` table (registered with the model-file reader)."""
     assert reader.units is not None
     table = reader.table(value, RUNWAY_TABLE, _RUNWAY_KEYS, required=("service_class",))
@@ -336,9 +299,15 @@ def read_runway(value: Any, reader: Reader) -> RunwaySettings:
         if not isinstance(end_stops, bool):
             reader.expected(f"{key}.end_stops", "true (the beam is the whole runway: wheels "
                             "stay on it) or false (wheels may stand beyond its ends)", end_stops)
-    return RunwaySettings(combinations, service_class, lateral_EI, lateral_given, vertical,
-                          lateral, modulus, category, cycles, MappingProxyType(dict(table)),
-                          end_stops)
+    try:
+        return RunwaySpec(combinations=combinations, lateral_EI=lateral_EI,
+                          service_class=service_class, vertical_ratio=vertical,
+                          lateral_ratio=lateral, section_modulus=modulus,
+                          detail_category=category, fatigue_cycles=cycles,
+                          ksi=one_ksi(reader.units), end_stops=end_stops,
+                          lateral_EI_given=lateral_given, given=MappingProxyType(dict(table)))
+    except ModelError as error:  # everything is checked above; never a traceback anyway
+        reader.fail(RUNWAY_TABLE, str(error))
 
 
 _MODULUS_EXAMPLE = {"SI": "3120 cm^3", "US": "190 in^3"}
@@ -443,8 +412,5 @@ def mass_given(value: Any) -> bool:
     return parsed.dimensionality == ureg.Quantity(1, "kg").dimensionality
 
 
-__all__ = ["CraneEntry", "RunwaySettings", "cranes_of", "one_ksi", "read_cranes",
+__all__ = ["CraneEntry", "cranes_of", "one_ksi", "read_cranes",
            "read_runway", "runway_settings_of", "runway_spec"]
-
-register_table(CRANE_TABLE, read_cranes)
-register_table(RUNWAY_TABLE, read_runway)

@@ -14,7 +14,7 @@ import scipy.linalg as sla
 import scipy.sparse as sp
 from numpy.typing import NDArray
 
-from trundle.model import Beam, ModelError, Spring
+from trundle.core.beam import Beam, ModelError, Spring
 
 
 @dataclass(frozen=True, eq=False)

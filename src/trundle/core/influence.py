@@ -20,9 +20,9 @@ from numba import njit
 from numpy.typing import ArrayLike, NDArray
 from scipy.interpolate import PPoly
 
-from trundle._jit import JIT_OPTIONS
-from trundle.model import Beam, ModelError, Spring
-from trundle.stiffness import assembly_for, element_stiffness, hermite_coefficients
+from trundle.core._jit import JIT_OPTIONS
+from trundle.core.beam import Beam, ModelError, Spring
+from trundle.core.fem import assembly_for, element_stiffness, hermite_coefficients
 
 EFFECT_KINDS = ("reaction", "support_moment", "moment", "shear", "deflection", "rotation")
 # what each effect measures, for labels and unit lookup

@@ -17,10 +17,10 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 from scipy.optimize import minimize_scalar
 
-from trundle.influence import Effect, influence_set, piece_sign_intervals, signed_areas
+from trundle.core.beam import Beam, ModelError, Spring
+from trundle.core.influence import Effect, influence_set, piece_sign_intervals, signed_areas
 from trundle.loads.cases import LoadCase, Together, as_case
 from trundle.loads.patterns import UniformLoad
-from trundle.model import Beam, ModelError, Spring
 from trundle.scan.engine import (
     LineBatch,
     TermGroup,

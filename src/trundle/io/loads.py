@@ -10,7 +10,8 @@ A load-model file holds the same keys as one entry at its top level, plus ``unit
 
 Every value is converted to the model's base units; a load-model file in other units is
 converted exactly (rational arithmetic, one rounding). Every problem is a one-line
-:class:`trundle.modelfile.ModelFileError` naming the file and the key (``load[2].spacings[1].min``).
+:class:`trundle.io.modelfile.ModelFileError` naming the file and the key
+(``load[2].spacings[1].min``).
 """
 
 from __future__ import annotations
@@ -27,13 +28,13 @@ from pathlib import Path
 from types import MappingProxyType
 from typing import Any
 
+from trundle.core.beam import ModelError
+from trundle.io.modelfile import Model, ModelFileError, Reader, _syntax_error
+from trundle.io.units import SYSTEMS, UnitSystem, parse_quantity, registry, show_value
 from trundle.loads import library
 from trundle.loads.cases import LoadCase, Together
 from trundle.loads.patterns import PLACEMENTS, UniformLoad
 from trundle.loads.vehicles import AttachedUniform, Train, Vehicle
-from trundle.model import ModelError
-from trundle.modelfile import Model, ModelFileError, Reader, _syntax_error, register_table
-from trundle.units import SYSTEMS, UnitSystem, parse_quantity, registry, show_value
 
 TABLE = "load"
 KINDS = ("vehicle", "train", "uniform", "together")
@@ -93,7 +94,7 @@ class LoadModelFile:
 
 @dataclass(frozen=True)
 class LoadEntry:
-    """One ``[[load]]`` of a model file, ready for :func:`trundle.envelope`.
+    """One ``[[load]]`` of a model file, ready for :func:`trundle.analysis.envelope`.
 
     Fields
     ------
@@ -630,4 +631,11 @@ def read_load_model_file(path: str | Path, target: UnitSystem | None = None) -> 
                          tuple(factors.items()), MappingProxyType(raw))
 
 
-register_table(TABLE, read_loads)
+def read_library_model(name: str, units: UnitSystem | None = None) -> LoadModelFile:
+    """The built-in load model ``name`` in ``units`` (default: the units of its file)."""
+    return read_load_model_file(library.path_of(name), units)
+
+
+def read_library(units: UnitSystem | None = None) -> list[LoadModelFile]:
+    """Every built-in load model, sorted by name."""
+    return [read_library_model(name, units) for name in library.names()]

@@ -25,8 +25,8 @@ from typing import Any, NoReturn
 import numpy as np
 from numpy.typing import NDArray
 
-from trundle.model import SUPPORT_KINDS, Beam, ModelError, Spring
-from trundle.units import SYSTEMS, UnitError, UnitSystem, parse_quantity, show_value
+from trundle.core.beam import SUPPORT_KINDS, Beam, ModelError, Spring
+from trundle.io.units import SYSTEMS, UnitError, UnitSystem, parse_quantity, show_value
 
 
 class ModelFileError(ValueError):
@@ -163,7 +163,7 @@ class Reader:
     # --- quantities -----------------------------------------------------------------------
 
     def quantity(self, value: Any, key: str, quantity: str) -> float:
-        """``value`` in base units; see :func:`trundle.units.parse_quantity`."""
+        """``value`` in base units; see :func:`trundle.io.units.parse_quantity`."""
         if self.units is None:
             raise RuntimeError("the unit system is not known yet")
         if value is _MISSING:
@@ -598,9 +598,3 @@ def _syntax_error(name: str, error: tomllib.TOMLDecodeError) -> ModelFileError:
                               f"invalid TOML at column {match.group(2)}: {detail}")
     return ModelFileError(name, "TOML", f"invalid TOML: {message}")
 
-
-# The [[load]] table lives in trundle.loadfile, [[crane]] and [runway] in trundle.cranefile;
-# importing them here registers their readers whenever model files can be read, however
-# trundle was imported.
-import trundle.cranefile  # noqa: E402, F401  (registers [[crane]] and [runway])
-import trundle.loadfile  # noqa: E402, F401  (registers [[load]])

@@ -12,18 +12,19 @@ can be overridden; every one must be verified against the governing guide and co
 from __future__ import annotations
 
 import math
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
+from typing import Any
 
 import numpy as np
 import rainflow
 from numpy.typing import NDArray
 
-from trundle.envelope import Envelope, absolute_extremes, envelope
+from trundle.analysis.envelope import Envelope, absolute_extremes, envelope
+from trundle.core.beam import Beam, ModelError
 from trundle.loads.cases import LoadCase
 from trundle.loads.cranes import Crane, WheelLoads, buffer_gap
 from trundle.loads.vehicles import Train, Vehicle
-from trundle.model import Beam, ModelError
 from trundle.scan.engine import LineBatch
 
 SERVICE_CLASSES = ("A", "B", "C", "D", "E", "F")
@@ -208,9 +209,15 @@ class RunwaySpec:
     end_stops : the beam is the whole runway, with end stops at its ends: wheels stay on it.
         Without (default) wheels may stand beyond its ends, as on the next girders of a
         longer runway (conservative for a girder modelled alone)
+    lateral_EI_given : how a model file stated lateral_EI ("" when not given)
+    given : the ``[runway]`` table as written in a model file (empty when built in Python)
+
+    A model file's ``[runway]`` table is read into a spec without cranes; the ``[[crane]]``
+    tables fill them in (:func:`trundle.io.cranes.runway_spec`). :func:`analyse_runway`
+    refuses a spec without cranes.
     """
 
-    cranes: tuple[Crane, ...]
+    cranes: tuple[Crane, ...] = ()
     combinations: tuple[str, ...] = COMBINATIONS
     lateral_EI: float | None = None
     service_class: str = "C"
@@ -221,12 +228,13 @@ class RunwaySpec:
     fatigue_cycles: float | None = None
     ksi: float | None = None
     end_stops: bool = False
+    lateral_EI_given: str = ""
+    given: Mapping[str, Any] = field(default_factory=dict, repr=False)
 
     def __post_init__(self) -> None:
         if not isinstance(self.end_stops, bool):
             raise ModelError(f"end_stops: expected true or false, found {self.end_stops!r}")
-        if not self.cranes:
-            raise ModelError("cranes: at least one crane is needed")
+        object.__setattr__(self, "cranes", tuple(self.cranes))
         for i, crane in enumerate(self.cranes):
             if not isinstance(crane, Crane):
                 raise ModelError(f"cranes[{i}]: expected a Crane, found {crane!r}")
@@ -239,7 +247,7 @@ class RunwaySpec:
         if isinstance(self.combinations, str):
             raise ModelError(f"crane combinations: expected a list of some of "
                              f"{', '.join(COMBINATIONS)}, found {self.combinations!r}")
-        if not crane_combinations(self.cranes, self.combinations):  # refuses unknown names
+        if self.cranes and not crane_combinations(self.cranes, self.combinations):
             raise ModelError(f"crane combinations: expected some of {', '.join(COMBINATIONS)}, "
                              f"found {self.combinations!r}")
         for key in ("lateral_EI", "vertical_ratio", "lateral_ratio", "section_modulus",
@@ -433,6 +441,8 @@ def _allowable(spec: RunwaySpec, largest: float, equivalent: float, per_passage:
 def analyse_runway(beam: Beam, spec: RunwaySpec, sections: NDArray[np.float64] | None = None
                    ) -> RunwayResult:
     """Run every crane combination over the runway: strength, service, lateral, fatigue."""
+    if not spec.cranes:
+        raise ModelError("cranes: at least one crane is needed")
     sections = beam.tenth_points() if sections is None else np.asarray(sections, dtype=float)
     combos = tuple(crane_combinations(spec.cranes, spec.combinations))
     length = beam.length

@@ -1,0 +1,177 @@
+"""Rerun every bundled example and compare its numbers with a saved baseline folder.
+
+    python scripts/compare_outputs.py BASELINE_DIR [--new NEW_DIR] [--rel 1e-12]
+
+BASELINE_DIR holds one folder per example (``<example name>/``, written earlier with
+``trundle envelope EXAMPLE --out BASELINE_DIR/<example name>``). The examples are run again into
+NEW_DIR (a temporary folder unless given) and every JSON value and every CSV cell is compared:
+numbers to ``--rel`` relative (zero compares to zero within ``--rel`` absolute), text exactly.
+Fields that only describe the run (date, paths) are skipped. Fields renamed on purpose are
+mapped through ``JSON_RENAMES`` / ``CSV_RENAMES`` below; the renames used are printed.
+Exit code 0 when everything agrees, 1 otherwise.
+"""
+
+from __future__ import annotations
+
+import argparse
+import csv
+import json
+import math
+import os
+import subprocess
+import sys
+import tempfile
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parent.parent
+
+# Baseline JSON path prefix -> new JSON path prefix (dotted, list indices as [i]).
+JSON_RENAMES: dict[str, str] = {}
+# (baseline CSV file name, baseline column header) -> (new file name, new column header);
+# a header of None renames the whole file.
+CSV_RENAMES: dict[tuple[str, str | None], tuple[str, str | None]] = {}
+# Values that describe the run, not the result.
+SKIPPED_JSON = ("date", "model.file", "generator", "provenance.date", "provenance.model_file")
+# A first line starting with '#' in a CSV carries provenance (file name, SHA-256, version).
+PROVENANCE_PREFIX = "#"
+
+
+def _examples() -> list[Path]:
+    return sorted((ROOT / "examples").glob("*.toml")) + sorted(
+        (ROOT / "examples" / "cranes").glob("*.toml"))
+
+
+def _run(example: Path, out: Path) -> None:
+    env = dict(os.environ, PYTHONPATH=str(ROOT / "src"))
+    subprocess.run([sys.executable, "-m", "trundle", "envelope", str(example), "--out", str(out),
+                    "--no-figure", "--no-report"], check=True, env=env, cwd=ROOT,
+                   stdout=subprocess.DEVNULL)
+
+
+def _flatten(value, path: str, into: dict[str, object]) -> None:
+    if isinstance(value, dict):
+        for key, item in value.items():
+            _flatten(item, f"{path}.{key}" if path else str(key), into)
+    elif isinstance(value, list):
+        for index, item in enumerate(value):
+            _flatten(item, f"{path}[{index}]", into)
+    else:
+        into[path] = value
+
+
+def _renamed_json_path(path: str, used: set[str]) -> str:
+    for old, new in JSON_RENAMES.items():
+        if path == old or path.startswith(old + ".") or path.startswith(old + "["):
+            used.add(f"JSON {old} -> {new}")
+            return new + path[len(old):]
+    return path
+
+
+def _number(text):
+    if isinstance(text, bool) or text is None:
+        return None
+    if isinstance(text, (int, float)):
+        return float(text)
+    try:
+        return float(text)
+    except (TypeError, ValueError):
+        return None
+
+
+def _same(a, b, rel: float) -> bool:
+    x, y = _number(a), _number(b)
+    if x is not None and y is not None:
+        if math.isnan(x) or math.isnan(y):
+            return math.isnan(x) and math.isnan(y)
+        return math.isclose(x, y, rel_tol=rel, abs_tol=rel)
+    return a == b
+
+
+def _compare_json(old_file: Path, new_file: Path, rel: float, used: set[str]) -> list[str]:
+    old: dict[str, object] = {}
+    new: dict[str, object] = {}
+    _flatten(json.loads(old_file.read_text()), "", old)
+    _flatten(json.loads(new_file.read_text()), "", new)
+    problems = []
+    for path, value in old.items():
+        if path.startswith(SKIPPED_JSON):
+            continue
+        target = _renamed_json_path(path, used)
+        if target not in new:
+            problems.append(f"{old_file.name}: {path} missing in the new output")
+        elif not _same(value, new[target], rel):
+            problems.append(f"{old_file.name}: {path}: {value!r} -> {new[target]!r}")
+    return problems
+
+
+def _read_csv(path: Path) -> list[dict[str, str]]:
+    lines = path.read_text().splitlines()
+    if lines and lines[0].startswith(PROVENANCE_PREFIX):
+        lines = lines[1:]
+    return list(csv.DictReader(lines))
+
+
+def _compare_csv(old_file: Path, new_dir: Path, rel: float, used: set[str]) -> list[str]:
+    new_name = old_file.name
+    if (old_file.name, None) in CSV_RENAMES:
+        new_name = CSV_RENAMES[(old_file.name, None)][0]
+        used.add(f"CSV file {old_file.name} -> {new_name}")
+    new_file = new_dir / new_name
+    if not new_file.exists():
+        return [f"{old_file.name}: not written by the new run"]
+    old_rows, new_rows = _read_csv(old_file), _read_csv(new_file)
+    if len(old_rows) != len(new_rows):
+        return [f"{old_file.name}: {len(old_rows)} rows -> {len(new_rows)} rows"]
+    problems = []
+    for index, (old_row, new_row) in enumerate(zip(old_rows, new_rows, strict=True)):
+        for column, value in old_row.items():
+            target = column
+            if (old_file.name, column) in CSV_RENAMES:
+                target = CSV_RENAMES[(old_file.name, column)][1]
+                used.add(f"CSV {old_file.name}: '{column}' -> '{target}'")
+            if target not in new_row:
+                problems.append(f"{old_file.name}: column '{column}' missing")
+                break
+            if not _same(value, new_row[target], rel):
+                problems.append(f"{old_file.name} row {index + 1} '{column}': "
+                                f"{value!r} -> {new_row[target]!r}")
+    return problems
+
+
+def main() -> int:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("baseline", type=Path)
+    parser.add_argument("--new", type=Path, default=None)
+    parser.add_argument("--rel", type=float, default=1e-12)
+    parser.add_argument("--only", default=None, help="compare only examples whose name has this")
+    args = parser.parse_args()
+    new_root = args.new or Path(tempfile.mkdtemp(prefix="trundle-compare-"))
+    used: set[str] = set()
+    failures = 0
+    for example in _examples():
+        name = example.stem
+        if args.only and args.only not in name:
+            continue
+        old_dir = args.baseline / name
+        if not old_dir.is_dir():
+            print(f"{name}: no baseline folder {old_dir}, skipped")
+            continue
+        new_dir = new_root / name
+        _run(example, new_dir)
+        problems = []
+        for old_file in sorted(old_dir.glob("*.json")):
+            problems += _compare_json(old_file, new_dir / old_file.name, args.rel, used)
+        for old_file in sorted(old_dir.glob("*.csv")):
+            problems += _compare_csv(old_file, new_dir, args.rel, used)
+        failures += bool(problems)
+        print(f"{name}: {'equal' if not problems else f'{len(problems)} differences'}")
+        for line in problems[:40]:
+            print("   ", line)
+    print("renames used:" if used else "renames used: none")
+    for line in sorted(used):
+        print("   ", line)
+    return 1 if failures else 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())

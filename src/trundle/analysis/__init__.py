@@ -1,0 +1,1 @@
+"""What the scan's numbers mean: envelopes, absolute extremes, checks with their verdicts."""

@@ -1,0 +1,1 @@
+"""The structure: the beam, its finite-element model, exact influence lines, fixed-load statics."""

@@ -1,0 +1,18 @@
+"""Reading and writing at the edges: units, the model file (one module per table kind), output sets.
+
+The model-file schema is composed here and only here: the ``[beam]``/``[sections]`` reader in
+:mod:`trundle.io.modelfile` knows no other table, and each table kind's module
+(:mod:`trundle.io.loads` for ``[[load]]``, :mod:`trundle.io.cranes` for ``[[crane]]`` and
+``[runway]``) knows nothing of the registry. A new table kind is a new module plus one line below.
+"""
+
+from trundle.io import cranes, loads, modelfile
+
+modelfile.register_table(loads.TABLE, loads.read_loads)
+modelfile.register_table(cranes.CRANE_TABLE, cranes.read_cranes)
+modelfile.register_table(cranes.RUNWAY_TABLE, cranes.read_runway)
+
+ModelFileError = modelfile.ModelFileError
+load_model = modelfile.load_model
+
+__all__ = ["ModelFileError", "cranes", "load_model", "loads", "modelfile"]

@@ -1,0 +1,1 @@
+"""One module per job: spec → run() → result (moving loads, crane runway)."""
