@@ -18,6 +18,7 @@ import csv
 import json
 import math
 import os
+import re
 import subprocess
 import sys
 import tempfile
@@ -25,11 +26,16 @@ from pathlib import Path
 
 ROOT = Path(__file__).resolve().parent.parent
 
-# Baseline JSON path prefix -> new JSON path prefix (dotted, list indices as [i]).
-JSON_RENAMES: dict[str, str] = {}
+# Baseline JSON path (regular expression on the dotted path, list indices as [i]) -> new path.
+JSON_RENAMES: dict[str, str] = {
+    # the fatigue check's basis ("threshold" / "finite life") is not its verdict
+    r"^(extra\.Crane runway\.fatigue\[\d+\])\.check$": r"\1.basis",
+}
 # (baseline CSV file name, baseline column header) -> (new file name, new column header);
 # a header of None renames the whole file.
-CSV_RENAMES: dict[tuple[str, str | None], tuple[str, str | None]] = {}
+CSV_RENAMES: dict[tuple[str, str | None], tuple[str, str | None]] = {
+    ("runway-fatigue.csv", "check"): ("runway-fatigue.csv", "basis"),
+}
 # Values that describe the run, not the result.
 SKIPPED_JSON = ("date", "model.file", "generator", "provenance.date", "provenance.model_file")
 # A first line starting with '#' in a CSV carries provenance (file name, SHA-256, version).
@@ -61,9 +67,10 @@ def _flatten(value, path: str, into: dict[str, object]) -> None:
 
 def _renamed_json_path(path: str, used: set[str]) -> str:
     for old, new in JSON_RENAMES.items():
-        if path == old or path.startswith(old + ".") or path.startswith(old + "["):
+        renamed, count = re.subn(old, new, path)
+        if count:
             used.add(f"JSON {old} -> {new}")
-            return new + path[len(old):]
+            return renamed
     return path
 
 

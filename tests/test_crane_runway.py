@@ -22,13 +22,12 @@ from numpy.typing import NDArray
 from scipy.optimize import minimize, minimize_scalar
 
 import trundle
+from trundle.analysis.checks import DETAIL_CATEGORIES, allowable_stress_range_ksi
 from trundle.core.statics import PointLoad
 from trundle.loads.cranes import Crane, buffer_gap
 from trundle.workflows.crane_runway import (
-    DETAIL_CATEGORIES,
     RunwayResult,
     RunwaySpec,
-    allowable_stress_range_ksi,
     analyse_runway,
     combination_load,
     crane_combinations,

@@ -21,6 +21,7 @@ import math
 
 import pytest
 
+from trundle.analysis.checks import DETAIL_CATEGORIES, allowable_stress_range_ksi
 from trundle.loads.cranes import (
     IMPACT_BY_OPERATION,
     LATERAL_FRACTION,
@@ -29,13 +30,11 @@ from trundle.loads.cranes import (
 )
 from trundle.workflows.crane_runway import (
     COMBINATIONS,
-    DETAIL_CATEGORIES,
     FATIGUE_CYCLES,
     LATERAL_DEFLECTION_RATIO,
     SERVICE_CLASSES,
     VERTICAL_DEFLECTION_RATIO,
     RunwaySpec,
-    allowable_stress_range_ksi,
 )
 
 

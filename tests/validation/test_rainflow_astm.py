@@ -27,7 +27,8 @@ import trundle
 from trundle.core.statics import PointLoad
 from trundle.loads.cranes import Crane
 from trundle.scan.engine import LineBatch
-from trundle.workflows.crane_runway import RunwayResult, RunwaySpec, analyse_runway, passage_history
+from trundle.scan.passages import passage_history
+from trundle.workflows.crane_runway import RunwayResult, RunwaySpec, analyse_runway
 
 ASTM_HISTORY = [-2.0, 1.0, -3.0, 5.0, -1.0, 3.0, -4.0, 4.0, -2.0]
 ASTM_COUNTS = {3.0: 0.5, 4.0: 1.5, 6.0: 0.5, 8.0: 1.0, 9.0: 0.5}
@@ -203,7 +204,7 @@ def test_cycles_of_the_passage_against_static_solves_and_the_twin(two_spans) -> 
     beam = two_spans.beam
     batch = LineBatch.from_set(beam.influence_set(
         [trundle.Effect("moment", at=float(x)) for x in SECTIONS]))
-    xis, history = passage_history(batch, _crane().vehicle("loaded"))
+    xis, history = passage_history(batch, _crane().vehicle("loaded").group())
     # the sampled history is the static response (checked on every 25th position)
     pick = np.arange(0, xis.size, 25)
     reference = _static_history(beam, xis[pick], SECTIONS)

@@ -23,16 +23,12 @@ from dataclasses import dataclass, field
 from types import MappingProxyType
 from typing import Any
 
+from trundle.analysis.checks import DETAIL_CATEGORIES
 from trundle.core.beam import ModelError
 from trundle.io.modelfile import _MISSING, Model, ModelFileError, Reader
 from trundle.io.units import UnitError, UnitSystem, parse_quantity, registry, show_value
 from trundle.loads.cranes import OPERATIONS, Crane
-from trundle.workflows.crane_runway import (
-    COMBINATIONS,
-    DETAIL_CATEGORIES,
-    SERVICE_CLASSES,
-    RunwaySpec,
-)
+from trundle.workflows.crane_runway import COMBINATIONS, SERVICE_CLASSES, RunwaySpec
 
 CRANE_TABLE = "crane"
 RUNWAY_TABLE = "runway"

@@ -209,17 +209,35 @@ class Crane:
         return WheelLoads(maximum, minimum, unloaded, lateral, longitudinal,
                           self.impact_fraction)
 
-    def vehicle(self, state: str = "loaded") -> Vehicle:
-        """The crane's wheels on this rail as a moving group: "loaded" (maximum wheel loads),
-        "unloaded", "far" (minimum wheel loads) or "lateral" (lateral wheel forces)."""
+    def vehicle(self, state: str = "loaded", with_impact: bool = False, lateral: bool = False,
+                confined: bool = False) -> Vehicle:
+        """The crane's wheels on this rail as a moving group — the one crane → wheels builder.
+
+        ``state``: "loaded" (maximum wheel loads), "unloaded", "far" (minimum wheel loads) or
+        "lateral" (the loaded crane's lateral wheel forces). ``with_impact``: vertical loads
+        times (1 + impact). ``lateral``: the lateral wheel forces of the crane in ``state``
+        (an unloaded crane still pushes sideways with its trolley: the same fraction of the
+        trolley weight alone). ``confined``: every wheel stays on the beam (end stops).
+        """
         w = self.wheels()
-        load = {"loaded": w.maximum, "unloaded": w.unloaded, "far": w.minimum,
-                "lateral": w.lateral}.get(state)
-        if load is None:
+        label = state
+        if state == "lateral":
+            state, lateral = "loaded", True
+        vertical = {"loaded": w.maximum, "unloaded": w.unloaded, "far": w.minimum}.get(state)
+        if vertical is None or (lateral and state == "far"):
             raise ModelError(f"crane {self.name!r}: state: expected loaded, unloaded, far or "
-                             f"lateral, found {state!r}")
+                             f"lateral, found {label!r}")
+        if lateral:
+            load = w.lateral
+            if state == "unloaded":
+                load = w.lateral * self.trolley_weight / max(self.capacity
+                                                             + self.trolley_weight, 1e-300)
+        else:
+            load = vertical
+            if with_impact:
+                load *= 1.0 + w.impact
         return Vehicle([load] * self.wheels_per_rail, list(self.wheel_spacings),
-                       name=f"{self.name} ({state})")
+                       name=f"{self.name} ({label})", confined=confined)
 
 
 def buffer_gap(leading: Crane, following: Crane) -> float:

@@ -19,6 +19,7 @@ from typing import Any
 import numpy as np
 from numpy.typing import NDArray
 
+from trundle.analysis.checks import DETAIL_CATEGORIES, FatigueSection
 from trundle.analysis.envelope import Envelope, Governing, absolute_extremes
 from trundle.core.beam import Beam
 from trundle.io.cranes import CraneEntry, cranes_of, runway_settings_of, runway_spec
@@ -33,12 +34,10 @@ from trundle.loads.cranes import (
 from trundle.loads.vehicles import Train
 from trundle.report.envelope_data import EnvelopeResults, Extreme, describe_extreme
 from trundle.workflows.crane_runway import (
-    DETAIL_CATEGORIES,
     FATIGUE_CYCLES,
     LATERAL_DEFLECTION_RATIO,
     VERTICAL_DEFLECTION_RATIO,
     CraneCombination,
-    FatigueSection,
     RunwayResult,
     RunwaySpec,
     analyse_runway,

@@ -14,6 +14,7 @@ import math
 from collections.abc import Sequence
 from typing import Any
 
+from trundle.analysis.checks import DeflectionCheck, FatigueSection
 from trundle.io.cranes import CraneEntry, cranes_of, given_text, mass_given
 from trundle.io.modelfile import Model
 from trundle.io.units import UnitSystem
@@ -46,12 +47,8 @@ from trundle.report.envelope_tables import (
     _position,
     extreme_json,
 )
-from trundle.workflows.crane_runway import (
-    COMBINATIONS,
-    DeflectionCheck,
-    FatigueSection,
-    lateral_extremes,
-)
+from trundle.report.format import verdict_cell
+from trundle.workflows.crane_runway import COMBINATIONS, lateral_extremes
 
 # ------------------------------------------------------------------------------------------
 # cells
@@ -323,8 +320,7 @@ def _check_rows(checks: Sequence[DeflectionCheck], kind: str, to_display: float,
         rows.append((str(c.span + 1), kind, _length(c.span_length),
                      _fixed(c.deflection * to_display, decimals), _position(c.x),
                      _ratio(c.ratio), _fixed(c.allowable * to_display, decimals),
-                     f"{c.utilisation:.3f}", "ok" if c.utilisation <= 1.0 else "EXCEEDS",
-                     c.governing))
+                     f"{c.utilisation:.3f}", verdict_cell(c.verdict), c.governing))
     return rows
 
 
@@ -341,7 +337,7 @@ def deflection_table(report: RunwayReport) -> TableData:
     return TableData(
         f"Deflection per span against the limits [{D}], wheel loads without impact",
         ("span", "direction", f"span\n[{L}]", f"δ\n[{D}]", f"at x\n[{L}]", "limit",
-         f"allowable\n[{D}]", "utilisation", "check", "combination"), tuple(rows),
+         f"allowable\n[{D}]", "utilisation", "verdict", "combination"), tuple(rows),
         (True, False, True, True, True, False, True, True, False, False), groups=groups,
         note="Vertical: downward deflection under the vertical wheel loads; lateral: the top "
              "flange under the lateral wheel forces acting either way. The worst section of "
@@ -404,7 +400,7 @@ def fatigue_table(report: RunwayReport) -> TableData | None:
         "Fatigue per span and crane, the worst section (loaded passages, no impact)"
         + (f" [{S}]" if report.spec.section_modulus is not None else
            " (give section_modulus in [runway] for stress ranges)"),
-        _fatigue_headers(M, L, S), tuple(rows), (False,) + (True,) * 8 + (False, True),
+        _fatigue_headers(M, L, S), tuple(rows), (False,) + (True,) * 8 + (False, True, False),
         groups=tuple(groups),
         note="Rainflow count of one passage (half cycles count ½); Δσ equivalent = "
              "(Σ n·Δσ³ / Σ n)^(1/3). A detail passes by 'threshold' (Δσ max / the detail's "
@@ -416,7 +412,7 @@ def fatigue_table(report: RunwayReport) -> TableData | None:
 def _fatigue_headers(M: str, L: str, S: str) -> tuple[str, ...]:
     return ("crane", "span", f"x\n[{L}]", f"ΔM per\npassage [{M}]", "cycles per\npassage",
             f"Δσ max\n[{S}]", f"Δσ\nequivalent [{S}]", "cycles over\nthe life",
-            f"allowable\n[{S}]", "check", "utilisation")
+            f"allowable\n[{S}]", "basis", "utilisation", "verdict")
 
 
 def _fatigue_cells(report: RunwayReport, span: int, item: FatigueSection, d: int, ds: int
@@ -432,7 +428,8 @@ def _fatigue_cells(report: RunwayReport, span: int, item: FatigueSection, d: int
             stress(item.equivalent_range),
             "unlimited" if math.isinf(life) else f"{life:,.0f}", stress(item.allowable),
             item.check or "—",
-            "—" if item.utilisation is None else f"{item.utilisation:.3f}")
+            "—" if item.utilisation is None else f"{item.utilisation:.3f}",
+            verdict_cell(item.verdict))
 
 
 def fatigue_sections_table(report: RunwayReport) -> TableData | None:
@@ -453,7 +450,7 @@ def fatigue_sections_table(report: RunwayReport) -> TableData | None:
             rows.append(_fatigue_cells(report, span, item, d, ds))
     return TableData(
         f"Fatigue at every section [{S}]",
-        _fatigue_headers(M, L, S), tuple(rows), (False,) + (True,) * 8 + (False, True),
+        _fatigue_headers(M, L, S), tuple(rows), (False,) + (True,) * 8 + (False, True, False),
         groups=tuple(groups))
 
 
@@ -572,7 +569,7 @@ def deflection_csv(report: RunwayReport) -> str:
     L, D = units.ascii_label("length"), units.deflection
     to_display = units.factor(units.length, units.deflection)
     header = ["direction", "span", f"span length [{L}]", f"deflection [{D}]", f"x [{L}]",
-              "limit span ratio", f"allowable [{D}]", "utilisation", "combination"]
+              "limit span ratio", f"allowable [{D}]", "utilisation", "verdict", "combination"]
     rows = []
     for kind, checks in (("vertical", report.runway.vertical_checks),
                          ("lateral either way", report.runway.lateral_checks)):
@@ -580,7 +577,7 @@ def deflection_csv(report: RunwayReport) -> str:
             rows.append([kind, str(c.span + 1), _number(c.span_length),
                          _number(c.deflection * to_display), _number(c.x), _number(c.ratio),
                          _number(c.allowable * to_display), _number(c.utilisation),
-                         c.governing])
+                         verdict_cell(c.verdict), c.governing])
     return _csv(header, rows)
 
 
@@ -592,7 +589,8 @@ def fatigue_csv(report: RunwayReport) -> str:
     header = ["crane", "span", f"x [{L}]", f"moment range per passage [{M}]",
               "cycles per passage", f"rainflow cycles of one passage (range [{M}] x count)",
               f"stress range max [{S}]", f"equivalent stress range [{S}]",
-              "cycles over the life", f"allowable stress range [{S}]", "check", "utilisation"]
+              "cycles over the life", f"allowable stress range [{S}]", "basis", "utilisation",
+              "verdict"]
     rows = []
     for item in report.runway.fatigue:
         span, _ = span_of_section(report.beam, item.x)
@@ -607,7 +605,8 @@ def fatigue_csv(report: RunwayReport) -> str:
                      stress(item.stress_range), stress(item.equivalent_range),
                      "unlimited" if math.isinf(life) else _number(life),
                      stress(item.allowable), item.check or "",
-                     "" if item.utilisation is None else _number(item.utilisation)])
+                     "" if item.utilisation is None else _number(item.utilisation),
+                     verdict_cell(item.verdict)])
     return _csv(header, rows)
 
 
@@ -649,7 +648,8 @@ def _check_json(c: DeflectionCheck, to_display: float) -> dict[str, Any]:
     return {"span": c.span + 1, "span_length": _num(c.span_length),
             "deflection": _num(c.deflection * to_display), "x": _num(c.x),
             "limit_span_ratio": _num(c.ratio), "allowable": _num(c.allowable * to_display),
-            "utilisation": _num(c.utilisation), "combination": c.governing}
+            "utilisation": _num(c.utilisation), "verdict": c.verdict,
+            "combination": c.governing}
 
 
 def _crane_json(report: RunwayReport, entry: CraneEntry) -> dict[str, Any]:
@@ -724,8 +724,9 @@ def runway_json(report: RunwayReport, cautions: Sequence[str]) -> dict[str, Any]
                                      else item.equivalent_range * factor),
             "cycles_over_life": None if math.isinf(life) else life,
             "allowable": _num(None if item.allowable is None else item.allowable * factor),
-            "check": item.check,
+            "basis": item.check,
             "utilisation": _num(item.utilisation),
+            "verdict": item.verdict,
         })
     return {
         "cautions": list(cautions),

@@ -6,7 +6,8 @@ their vertical impact; for deflection, reactions "without impact" and fatigue th
 flange, in either direction. Two cranes can meet at their buffers or stand any distance apart.
 
 Defaults below are from memory of common practice and widely used guides; each is marked and
-can be overridden; every one must be verified against the governing guide and code.
+can be overridden; every one must be verified against the governing guide and code. The checks
+themselves (utilisation and verdict) are in :mod:`trundle.analysis.checks`.
 """
 
 from __future__ import annotations
@@ -17,15 +18,22 @@ from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
-import rainflow
 from numpy.typing import NDArray
 
-from trundle.analysis.envelope import Envelope, absolute_extremes, envelope
+from trundle.analysis.checks import (
+    DeflectionCheck,
+    FatigueSection,
+    allowable_stress_range_ksi,
+    deflection_checks,
+    fatigue_allowable,
+    rainflow_ranges,
+)
+from trundle.analysis.envelope import Envelope, envelope
 from trundle.core.beam import Beam, ModelError
 from trundle.loads.cases import LoadCase
 from trundle.loads.cranes import Crane, WheelLoads, buffer_gap
 from trundle.loads.vehicles import Train, Vehicle
-from trundle.scan.engine import LineBatch
+from trundle.scan.passages import passage_history
 
 SERVICE_CLASSES = ("A", "B", "C", "D", "E", "F")
 # span / limit for the vertical deflection by crane service class, and for lateral
@@ -39,27 +47,7 @@ LATERAL_DEFLECTION_RATIO = 400.0
 # from memory of the same guide; verify
 FATIGUE_CYCLES = {"A": 100_000.0, "B": 500_000.0, "C": 2_000_000.0, "D": math.inf,
                   "E": math.inf, "F": math.inf}
-# detail category -> (C_f, threshold F_TH [ksi]); allowable range F_SR = (C_f / n)^(1/3) ≥ F_TH
-# [ksi]: from memory of the fatigue appendix of a widely used steel specification; verify
-# (C' is the usual category of stiffener welds on crane girders; F, shear on welds, follows
-# another exponent and is not offered)
-DETAIL_CATEGORIES = {"A": (250e8, 24.0), "B": (120e8, 16.0), "B'": (61e8, 12.0),
-                     "C": (44e8, 10.0), "C'": (44e8, 12.0), "D": (22e8, 7.0), "E": (11e8, 4.5),
-                     "E'": (3.9e8, 2.6)}
 COMBINATIONS = ("each alone", "all loaded", "one loaded, others unloaded")
-
-
-def allowable_stress_range_ksi(category: str, cycles: float) -> float:
-    """Allowable stress range [ksi] of a detail category for a number of cycles."""
-    if category not in DETAIL_CATEGORIES:
-        raise ModelError(f"detail category: expected one of {', '.join(DETAIL_CATEGORIES)}, "
-                         f"found {category!r}")
-    c_f, threshold = DETAIL_CATEGORIES[category]
-    if not cycles > 0:
-        raise ModelError(f"fatigue cycles: expected a positive number, found {cycles!r}")
-    if math.isinf(cycles):
-        return threshold
-    return max((c_f / cycles) ** (1.0 / 3.0), threshold)
 
 
 @dataclass(frozen=True)
@@ -93,32 +81,13 @@ def crane_combinations(cranes: Sequence[Crane], wanted: Sequence[str] = COMBINAT
     return out
 
 
-def _crane_vehicle(crane: Crane, state: str, with_impact: bool, lateral: bool,
-                   confined: bool = False) -> Vehicle:
-    w = crane.wheels()
-    if lateral:
-        # an unloaded crane still pushes sideways with its trolley: the same fraction of the
-        # trolley weight alone
-        if state == "loaded":
-            load = w.lateral
-        else:
-            load = w.lateral * crane.trolley_weight / max(crane.capacity + crane.trolley_weight,
-                                                          1e-300)
-    else:
-        load = w.maximum if state == "loaded" else w.unloaded
-        if with_impact:
-            load *= 1.0 + w.impact
-    return Vehicle([load] * crane.wheels_per_rail, list(crane.wheel_spacings),
-                   name=f"{crane.name} ({state})", confined=confined)
-
-
 def combination_load(combo: CraneCombination, runway_length: float, with_impact: bool = False,
                      lateral: bool = False, confined: bool = False) -> Vehicle | Train:
     """The moving load of a combination: one crane, or a train of cranes whose clear gap runs
     from buffers touching to a runway length apart (searched). ``confined``: the beam is the
     whole runway between its end stops, so every wheel stays on it; otherwise wheels may
     stand beyond the beam's ends (on the next girders of a longer runway)."""
-    vehicles = [_crane_vehicle(c, state, with_impact, lateral, confined)
+    vehicles = [c.vehicle(state, with_impact=with_impact, lateral=lateral, confined=confined)
                 for c, state in combo.members]
     if len(vehicles) == 1:
         return Vehicle(vehicles[0].loads, vehicles[0].spacings, name=combo.name,
@@ -128,66 +97,6 @@ def combination_load(combo: CraneCombination, runway_length: float, with_impact:
         touching = buffer_gap(a, b)
         gaps.append((touching, touching + runway_length))
     return Train(tuple(vehicles), tuple(gaps), name=combo.name, confined=confined)
-
-
-@dataclass(frozen=True)
-class DeflectionCheck:
-    """Worst deflection in one span against span / ratio.
-
-    Fields: span index, span length, deflection [length], x where it occurs, ratio, allowable
-    deflection [length], utilisation (deflection / allowable), governing combination name.
-    """
-
-    span: int
-    span_length: float
-    deflection: float
-    x: float
-    ratio: float
-    allowable: float
-    utilisation: float
-    governing: str
-
-
-@dataclass(frozen=True)
-class FatigueSection:
-    """Moment range at one section under one passage of one loaded crane (no impact).
-
-    Fields
-    ------
-    x : section [length]
-    crane : crane name
-    moment_range : max − min moment over the passage, the empty runway included [moment]
-    cycles : rainflow cycles of one passage as (range [moment], count) pairs (ASTM E1049)
-    stress_range, equivalent_range : ΔM / S and (Σ n ΔM³ / n_passage)^(1/3) / S [stress],
-        None without a section modulus
-    allowable : allowable stress range [stress], or None without a detail category
-    check : "threshold" (the largest range against the detail's constant-amplitude
-        threshold) or "finite life" (the equivalent range against the allowable range for all
-        the cycles), whichever gives the lower utilisation
-    """
-
-    x: float
-    crane: str
-    moment_range: float
-    cycles: tuple[tuple[float, float], ...]
-    stress_range: float | None = None
-    equivalent_range: float | None = None
-    allowable: float | None = None
-    check: str | None = None
-
-    @property
-    def cycles_per_passage(self) -> float:
-        return float(sum(n for _, n in self.cycles))
-
-    @property
-    def utilisation(self) -> float | None:
-        """The largest range over the threshold, or (finite life) the damage-equivalent range
-        over the allowable range for all the cycles (Miner's rule, slope 3), whichever is
-        lower; inf where unlimited cycles meet a range above the threshold."""
-        if self.equivalent_range is None or self.allowable is None:
-            return None
-        demand = self.stress_range if self.check == "threshold" else self.equivalent_range
-        return math.inf if self.allowable == 0.0 else demand / self.allowable
 
 
 @dataclass(frozen=True)
@@ -326,78 +235,16 @@ def lateral_extremes(result: RunwayResult, kind: str = "moment"
     return both, -both
 
 
-def _deflection_checks(env: Envelope, ratio: float, both_ways: bool
-                       ) -> tuple[DeflectionCheck, ...]:
-    """Per span: the worst deflection at the envelope's sections, then refined over every
-    section of the span for the combination that governs there."""
-    beam = env.beam
-    out = []
-    ends = beam.support_positions
-    high, low = env.max("deflection"), env.min("deflection")
-    for span in range(beam.n_spans):
-        inside = np.flatnonzero((env.sections >= ends[span]) & (env.sections <= ends[span + 1]))
-        value, x, name = 0.0, 0.5 * (ends[span] + ends[span + 1]), "none"
-        searches: list[tuple[int, str]] = []
-        if inside.size:
-            candidates = [(high[i], i, "max") for i in inside]
-            if both_ways:
-                candidates += [(-low[i], i, "min") for i in inside]
-            value, i, which = max(candidates)
-            governing = env.governing("deflection", which)[i]
-            x = float(env.sections[i])
-            if governing.case >= 0:
-                name = env.cases[governing.case].name
-                searches.append((governing.case, which))
-        if not searches:  # no loaded section asked for in this span: try every combination
-            searches = [(c, w) for c in range(len(env.cases))
-                        for w in (("max", "min") if both_ways else ("max",))]
-        for case, which in searches:
-            for extreme in absolute_extremes(beam, env.cases[case], span, "deflection",
-                                             extremes=(which,)):
-                if abs(extreme.value) > value:
-                    value, x, name = abs(extreme.value), extreme.x, env.cases[case].name
-        length = beam.spans[span]
-        allowable = length / ratio
-        out.append(DeflectionCheck(span, length, float(value), x, ratio, allowable,
-                                   float(value) / allowable, name))
-    return tuple(out)
-
-
-def passage_history(batch: LineBatch, vehicle: Vehicle, samples: int = 2001
-                    ) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
-    """Every line's response as the vehicle crosses once: (ξ (N,), values (N, n_lines)).
-
-    Sampled at every break (an axle over a knot) and on a fine even grid in between. A
-    confined vehicle (a crane) travels from one end of the beam to the other with every
-    wheel on it; another enters and leaves.
-    """
-    group = vehicle.group()
-    weights, offsets, kinds, constant = group.terms()
-    lo, hi = offsets.min(), batch.length + offsets.max()
-    if group.confined:
-        lo, hi = offsets.max(), batch.length + offsets.min()
-    breaks = (batch.knots[None, :] + offsets[:, None]).ravel()
-    xi = np.unique(np.concatenate([np.linspace(lo, hi, samples), breaks[(breaks >= lo)
-                                                                        & (breaks <= hi)]]))
-    values = np.zeros((xi.size, batch.n_lines))
-    for w, d in zip(weights, offsets, strict=True):
-        values += w * batch.ordinates(xi - d, "right")
-    return xi, values
-
-
 def _fatigue(beam: Beam, sections: NDArray[np.float64], spec: RunwaySpec
              ) -> tuple[FatigueSection, ...]:
     out = []
     for crane in spec.cranes:
-        vehicle = _crane_vehicle(crane, "loaded", with_impact=False, lateral=False,
-                                 confined=spec.end_stops)
+        vehicle = crane.vehicle("loaded", confined=spec.end_stops)
         env = envelope(beam, [vehicle], sections=sections, effects=("moment",))
         ranges = env.max("moment") - env.min("moment")
-        _, history = passage_history(env.batch, vehicle)  # the envelope's moment lines
+        _, history = passage_history(env.batch, vehicle.group())  # the envelope's moment lines
         for i, x in enumerate(sections):
-            series = np.concatenate([[0.0], history[:, i], [0.0]])
-            cycles = tuple((float(r), float(n)) for r, n in rainflow.count_cycles(series)
-                           if r > 1e-12 * max(1.0, ranges[i]))
+            cycles = rainflow_ranges(history[:, i], ranges[i])
             stress = equivalent = allowable = check = None
             if spec.section_modulus is not None:
                 stress = ranges[i] / spec.section_modulus
@@ -418,24 +265,10 @@ def _fatigue(beam: Beam, sections: NDArray[np.float64], spec: RunwaySpec
 
 def _allowable(spec: RunwaySpec, largest: float, equivalent: float, per_passage: float
                ) -> tuple[float, str]:
-    """(allowable range [stress], which check) for a section's stress ranges.
-
-    A detail passes either way (from memory of the fatigue appendix named above; verify):
-    every range below the constant-amplitude threshold ("threshold": the largest range
-    against F_TH), or the damage-equivalent range (Miner's rule, slope 3) within the finite-life
-    range (C_f / n)^(1/3) for all the cycles ("finite life", no threshold floor). The check
-    reported is the one with the lower utilisation, so the utilisation does not jump at the
-    threshold.
-    """
-    c_f, threshold = DETAIL_CATEGORIES[spec.detail_category]
-    cycles = spec.cycles * max(per_passage, 1.0)
-    finite = spec.ksi * (c_f / cycles) ** (1.0 / 3.0)  # 0 for unlimited cycles
-    floor = threshold * spec.ksi
-    by_threshold = largest / floor
-    by_life = equivalent / finite if finite > 0.0 else math.inf
-    if by_threshold <= by_life:
-        return floor, "threshold"
-    return finite, "finite life"
+    """(allowable range [stress], which check): :func:`trundle.analysis.checks.fatigue_allowable`
+    for the spec's detail and the cycles over the life."""
+    return fatigue_allowable(spec.detail_category, spec.ksi,
+                             spec.cycles * max(per_passage, 1.0), largest, equivalent)
 
 
 def analyse_runway(beam: Beam, spec: RunwaySpec, sections: NDArray[np.float64] | None = None
@@ -466,8 +299,8 @@ def analyse_runway(beam: Beam, spec: RunwaySpec, sections: NDArray[np.float64] |
                          for c in combos]
         lateral = envelope(lateral_beam, lateral_loads, sections=sections,
                            effects=("moment", "deflection"))
-        lateral_checks = _deflection_checks(lateral, spec.lateral_limit_ratio, both_ways=True)
-    vertical_checks = _deflection_checks(service, spec.vertical_limit_ratio, both_ways=False)
+        lateral_checks = deflection_checks(lateral, spec.lateral_limit_ratio, both_ways=True)
+    vertical_checks = deflection_checks(service, spec.vertical_limit_ratio, both_ways=False)
     wheels = {c.name: c.wheels() for c in spec.cranes}
     longitudinal = {name: w.longitudinal for name, w in wheels.items()}
     fatigue = _fatigue(beam, sections, spec)

@@ -1,0 +1,190 @@
+"""Checks: utilisation and verdict of every check, decided here and only here.
+
+A check compares a demand with a capacity: utilisation = demand / allowable, and its verdict is
+:data:`PASS` when the utilisation is at most 1 and :data:`EXCEEDS` otherwise (also for a
+utilisation that is not a number: never unconservative). Every output (terminal, CSV, JSON,
+HTML) shows :attr:`verdict` as it is computed here; none decides again.
+
+Deflection against span / ratio (vertical and lateral), and fatigue of a detail under rainflow
+counted stress ranges. Defaults are from memory of widely used guides; each must be verified.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+import rainflow
+from numpy.typing import NDArray
+
+from trundle.analysis.envelope import Envelope, absolute_extremes
+from trundle.core.beam import ModelError
+
+PASS = "PASS"
+EXCEEDS = "EXCEEDS"
+
+
+def verdict(utilisation: float) -> str:
+    """PASS for a utilisation ≤ 1, EXCEEDS above 1 — or when it is not a number."""
+    return PASS if float(utilisation) <= 1.0 else EXCEEDS
+
+
+# detail category -> (C_f, threshold F_TH [ksi]); allowable range F_SR = (C_f / n)^(1/3) ≥ F_TH
+# [ksi]: from memory of the fatigue appendix of a widely used steel specification; verify
+# (C' is the usual category of stiffener welds on crane girders; F, shear on welds, follows
+# another exponent and is not offered)
+DETAIL_CATEGORIES = {"A": (250e8, 24.0), "B": (120e8, 16.0), "B'": (61e8, 12.0),
+                     "C": (44e8, 10.0), "C'": (44e8, 12.0), "D": (22e8, 7.0), "E": (11e8, 4.5),
+                     "E'": (3.9e8, 2.6)}
+def allowable_stress_range_ksi(category: str, cycles: float) -> float:
+    """Allowable stress range [ksi] of a detail category for a number of cycles."""
+    if category not in DETAIL_CATEGORIES:
+        raise ModelError(f"detail category: expected one of {', '.join(DETAIL_CATEGORIES)}, "
+                         f"found {category!r}")
+    c_f, threshold = DETAIL_CATEGORIES[category]
+    if not cycles > 0:
+        raise ModelError(f"fatigue cycles: expected a positive number, found {cycles!r}")
+    if math.isinf(cycles):
+        return threshold
+    return max((c_f / cycles) ** (1.0 / 3.0), threshold)
+
+
+
+@dataclass(frozen=True)
+class DeflectionCheck:
+    """Worst deflection in one span against span / ratio.
+
+    Fields: span index, span length, deflection [length], x where it occurs, ratio, allowable
+    deflection [length], utilisation (deflection / allowable), governing combination name.
+    """
+
+    span: int
+    span_length: float
+    deflection: float
+    x: float
+    ratio: float
+    allowable: float
+    utilisation: float
+    governing: str
+
+    @property
+    def verdict(self) -> str:
+        """PASS or EXCEEDS (:func:`verdict`)."""
+        return verdict(self.utilisation)
+
+
+
+@dataclass(frozen=True)
+class FatigueSection:
+    """Moment range at one section under one passage of one loaded crane (no impact).
+
+    Fields
+    ------
+    x : section [length]
+    crane : crane name
+    moment_range : max − min moment over the passage, the empty runway included [moment]
+    cycles : rainflow cycles of one passage as (range [moment], count) pairs (ASTM E1049)
+    stress_range, equivalent_range : ΔM / S and (Σ n ΔM³ / n_passage)^(1/3) / S [stress],
+        None without a section modulus
+    allowable : allowable stress range [stress], or None without a detail category
+    check : "threshold" (the largest range against the detail's constant-amplitude
+        threshold) or "finite life" (the equivalent range against the allowable range for all
+        the cycles), whichever gives the lower utilisation
+    """
+
+    x: float
+    crane: str
+    moment_range: float
+    cycles: tuple[tuple[float, float], ...]
+    stress_range: float | None = None
+    equivalent_range: float | None = None
+    allowable: float | None = None
+    check: str | None = None
+
+    @property
+    def cycles_per_passage(self) -> float:
+        return float(sum(n for _, n in self.cycles))
+
+    @property
+    def utilisation(self) -> float | None:
+        """The largest range over the threshold, or (finite life) the damage-equivalent range
+        over the allowable range for all the cycles (Miner's rule, slope 3), whichever is
+        lower; inf where unlimited cycles meet a range above the threshold."""
+        if self.equivalent_range is None or self.allowable is None:
+            return None
+        demand = self.stress_range if self.check == "threshold" else self.equivalent_range
+        return math.inf if self.allowable == 0.0 else demand / self.allowable
+
+    @property
+    def verdict(self) -> str | None:
+        """PASS or EXCEEDS (:func:`verdict`); None without a detail category (no check)."""
+        return None if self.utilisation is None else verdict(self.utilisation)
+
+
+
+def deflection_checks(env: Envelope, ratio: float, both_ways: bool
+                       ) -> tuple[DeflectionCheck, ...]:
+    """Per span: the worst deflection at the envelope's sections, then refined over every
+    section of the span for the combination that governs there."""
+    beam = env.beam
+    out = []
+    ends = beam.support_positions
+    high, low = env.max("deflection"), env.min("deflection")
+    for span in range(beam.n_spans):
+        inside = np.flatnonzero((env.sections >= ends[span]) & (env.sections <= ends[span + 1]))
+        value, x, name = 0.0, 0.5 * (ends[span] + ends[span + 1]), "none"
+        searches: list[tuple[int, str]] = []
+        if inside.size:
+            candidates = [(high[i], i, "max") for i in inside]
+            if both_ways:
+                candidates += [(-low[i], i, "min") for i in inside]
+            value, i, which = max(candidates)
+            governing = env.governing("deflection", which)[i]
+            x = float(env.sections[i])
+            if governing.case >= 0:
+                name = env.cases[governing.case].name
+                searches.append((governing.case, which))
+        if not searches:  # no loaded section asked for in this span: try every combination
+            searches = [(c, w) for c in range(len(env.cases))
+                        for w in (("max", "min") if both_ways else ("max",))]
+        for case, which in searches:
+            for extreme in absolute_extremes(beam, env.cases[case], span, "deflection",
+                                             extremes=(which,)):
+                if abs(extreme.value) > value:
+                    value, x, name = abs(extreme.value), extreme.x, env.cases[case].name
+        length = beam.spans[span]
+        allowable = length / ratio
+        out.append(DeflectionCheck(span, length, float(value), x, ratio, allowable,
+                                   float(value) / allowable, name))
+    return tuple(out)
+
+
+def rainflow_ranges(history: NDArray[np.float64], scale: float
+                    ) -> tuple[tuple[float, float], ...]:
+    """Rainflow cycles (range, count) of one passage's history, from and back to the empty
+    runway (ASTM E1049); ranges below 1e-12 of ``scale`` are rounding and dropped."""
+    series = np.concatenate([[0.0], history, [0.0]])
+    return tuple((float(r), float(n)) for r, n in rainflow.count_cycles(series)
+                 if r > 1e-12 * max(1.0, scale))
+
+
+def fatigue_allowable(category: str, ksi: float, cycles: float, largest: float,
+                      equivalent: float) -> tuple[float, str]:
+    """(allowable range [stress], which check) for a section's stress ranges.
+
+    A detail passes either way (from memory of the fatigue appendix named above; verify):
+    every range below the constant-amplitude threshold ("threshold": the largest range
+    against F_TH), or the damage-equivalent range (Miner's rule, slope 3) within the finite-life
+    range (C_f / n)^(1/3) for all the ``cycles`` ("finite life", no threshold floor). The check
+    reported is the one with the lower utilisation, so the utilisation does not jump at the
+    threshold. ``ksi``: one ksi in the model's stress units.
+    """
+    c_f, threshold = DETAIL_CATEGORIES[category]
+    finite = ksi * (c_f / cycles) ** (1.0 / 3.0)  # 0 for unlimited cycles
+    floor = threshold * ksi
+    by_threshold = largest / floor
+    by_life = equivalent / finite if finite > 0.0 else math.inf
+    if by_threshold <= by_life:
+        return floor, "threshold"
+    return finite, "finite life"
