@@ -44,7 +44,8 @@ def expected_key(path: Path) -> str:
 def read_csv(path: Path) -> tuple[list[str], list[list[str]]]:
     """(header, rows) of a CSV file written by the CLI."""
     with open(path, newline="", encoding="utf-8") as handle:
-        rows = list(csv.reader(handle))
+        lines = [line for line in handle if not line.startswith("#")]  # provenance comment
+    rows = list(csv.reader(lines))
     return rows[0], rows[1:]
 
 

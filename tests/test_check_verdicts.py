@@ -148,3 +148,18 @@ def test_a_passing_check_shows_pass_everywhere(tmp_path):
                for line in result.output.splitlines())
     crane = json.loads((out / "envelope.json").read_text())["extra"]["Crane runway"]
     assert all(item["verdict"] == PASS for item in crane["vertical_deflection"])
+
+
+def test_every_csv_names_the_model_file_its_hash_and_the_version(failing):
+    import hashlib
+
+    import trundle
+
+    _, out = failing
+    digest = hashlib.sha256((out.parent / "failing.toml").read_bytes()).hexdigest()
+    csvs = sorted(out.glob("*.csv"))
+    assert len(csvs) == 4
+    for path in csvs:
+        first = path.read_text().splitlines()[0]
+        assert first.startswith(f"# trundle {trundle.__version__};"), path.name
+        assert "failing.toml" in first and digest in first, path.name

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import csv
+import hashlib
 import json
 import os
 import subprocess
@@ -56,7 +57,8 @@ def test_a_real_process_succeeds_on_an_example(tmp_path):
                           capture_output=True, text=True, timeout=300)
     assert done.returncode == 0, done.stderr
     assert "moment at 33 ft" in done.stdout
-    assert {p.name for p in tmp_path.iterdir()} == {"lines.csv", "lines.json", "lines.png"}
+    assert {p.name for p in tmp_path.iterdir()} == {"lines.csv", "lines.json", "lines.png",
+                                                     _io.MANIFEST}
 
 
 @pytest.mark.parametrize("args", [
@@ -95,7 +97,10 @@ def test_lines_writes_outputs_matching_the_library(tmp_path):
     beam = model.beam
 
     with open(tmp_path / "lines.csv", newline="") as handle:
+        first = handle.readline()
         rows = list(csv.reader(handle))
+    assert first.startswith("# trundle ") and SI_EXAMPLE.name in first
+    assert hashlib.sha256(SI_EXAMPLE.read_bytes()).hexdigest() in first
     header, body = rows[0], rows[1:]
     assert header[:2] == ["x [m]", "limit"]
     expected_columns = {
@@ -242,3 +247,43 @@ def test_written_files_get_ordinary_permissions(tmp_path):
     mask = os.umask(0)
     os.umask(mask)
     assert path.stat().st_mode & 0o777 == 0o666 & ~mask
+
+
+# --- --out: a folder holds one run's results ----------------------------------------------
+
+
+def test_a_second_run_into_a_used_folder_leaves_only_its_own_files(tmp_path):
+    from trundle.io.outputs import MANIFEST
+
+    root = Path(__file__).resolve().parents[1]
+    crane_model = root / "examples" / "cranes" / "hall_kestrel_quay_si.toml"
+    floor_model = root / "examples" / "harbour_lane_floor_girder_si.toml"
+    out = tmp_path / "results"
+    out.mkdir()
+    (out / "my notes.txt").write_text("the user's own file")
+    first = run("envelope", crane_model, "--out", out, "--no-figure", "--no-report")
+    assert first.exit_code == 0, first.output
+    assert (out / "runway-fatigue.csv").is_file()
+    second = run("envelope", floor_model, "--out", out, "--no-figure")
+    assert second.exit_code == 0, second.output
+    present = {p.name for p in out.iterdir()}
+    assert present == {"envelope.csv", "reactions.csv", "envelope.json", "report.html",
+                       MANIFEST, "my notes.txt"}
+    assert "removed the earlier run's" in second.output and "runway-fatigue.csv" in second.output
+    assert (out / "my notes.txt").read_text() == "the user's own file"  # never touched
+    for name in ("envelope.csv", "reactions.csv"):  # and the CSVs say where they come from
+        assert floor_model.name in (out / name).read_text().splitlines()[0]
+
+
+def test_a_damaged_manifest_never_reaches_outside_the_folder(tmp_path):
+    from trundle.io.outputs import MANIFEST, write_output_set
+
+    outside = tmp_path / "keep.txt"
+    outside.write_text("x")
+    out = tmp_path / "out"
+    out.mkdir()
+    (out / MANIFEST).write_text('{"files": ["../keep.txt", "/etc/passwd", 3, "old.csv"]}')
+    (out / "old.csv").write_text("old")
+    written, removed = write_output_set(out, {"new.csv": "a\n"})
+    assert [p.name for p in removed] == ["old.csv"] and outside.is_file()
+    assert {p.name for p in out.iterdir()} == {"new.csv", MANIFEST}

@@ -17,6 +17,7 @@ import pytest
 from cli_helpers import assert_one_line_error, column, expected_key, read_csv, run
 from trundle.io.cranes import cranes_of, runway_spec
 from trundle.io.modelfile import load_model
+from trundle.io.outputs import MANIFEST
 from trundle.workflows.crane_runway import RunwayResult, analyse_runway, lateral_extremes
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -60,7 +61,7 @@ def test_crane_examples_write_every_file(which, request):
     result, out, _ = request.getfixturevalue(which)
     assert result.exit_code == 0, result.stderr
     # a crane-only model has no [[load]] envelope: no envelope.csv or reactions.csv
-    assert {p.name for p in out.iterdir()} == CRANE_FILES
+    assert {p.name for p in out.iterdir()} == CRANE_FILES | {MANIFEST}
     for name in CRANE_FILES:
         if name.endswith(".png"):
             assert (out / name).read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
@@ -275,7 +276,7 @@ service_class = "A"
     assert result.exit_code == 0, result.stderr
     assert {p.name for p in out.iterdir()} == {
         "envelope.csv", "reactions.csv", "envelope.json", "runway-reactions.csv",
-        "runway-sections.csv", "runway-deflection.csv", "runway-fatigue.csv"}
+        "runway-sections.csv", "runway-deflection.csv", "runway-fatigue.csv", MANIFEST}
     document = json.loads((out / "envelope.json").read_text())
     assert document["loads"][0]["name"] == "walkway" and TITLE in document["extra"]
     assert "Loads" in result.output and "Cranes as given" in result.output

@@ -18,9 +18,11 @@ import trundle
 from cli_helpers import assert_one_line_error, column, expected_key, read_csv, run
 from trundle.io.loads import loads_of
 from trundle.io.modelfile import load_model
+from trundle.io.outputs import MANIFEST, Provenance
 from trundle.report.envelope_data import ExtraSection, TableData, collect
 from trundle.report.envelope_report import envelope_files, envelope_html
 from trundle.report.envelope_tables import envelope_document
+from trundle.workflows import moving_loads
 
 ROOT = Path(__file__).resolve().parents[1]
 SI_EXAMPLE = ROOT / "examples" / "harbour_lane_floor_girder_si.toml"
@@ -30,6 +32,11 @@ ALL_FILES = {"envelope.csv", "reactions.csv", "envelope.json", "report.html",
              "envelope-moment.png", "envelope-shear.png", "envelope-deflection.png",
              "reactions.png"}
 
+
+
+def _moving(model):
+    return moving_loads.run(moving_loads.MovingLoadsSpec(
+        model.beam, [e.case for e in loads_of(model)], sections=model.sections))
 
 def library_envelope(path: Path) -> trundle.Envelope:
     """The envelope computed directly with the library, for comparison with the files."""
@@ -51,7 +58,7 @@ def si_run(tmp_path_factory):
 def test_envelope_writes_every_file(si_run):
     result, out = si_run
     assert result.exit_code == 0, result.stderr
-    assert {p.name for p in out.iterdir()} == ALL_FILES
+    assert {p.name for p in out.iterdir()} == ALL_FILES | {MANIFEST}
     for name in ALL_FILES - {"envelope.csv", "reactions.csv", "envelope.json", "report.html"}:
         assert (out / name).read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
     assert not [p for p in out.iterdir() if p.name.endswith(".part")]
@@ -176,7 +183,8 @@ def test_us_units_and_svg_figures_without_report(tmp_path):
     assert result.exit_code == 0, result.stderr
     names = {p.name for p in tmp_path.iterdir()}
     assert names == {"envelope.csv", "reactions.csv", "envelope.json", "envelope-moment.svg",
-                     "envelope-shear.svg", "envelope-deflection.svg", "reactions.svg"}
+                     "envelope-shear.svg", "envelope-deflection.svg", "reactions.svg",
+                     MANIFEST}
     env = library_envelope(US_EXAMPLE)
     header, body = read_csv(tmp_path / "envelope.csv")
     # deflection in inches; the core gives ft. Source: NIST SP 811 (2008), B.8: 1 ft = 12 in.
@@ -191,7 +199,7 @@ def test_no_figure_and_no_report_write_the_tables_only(tmp_path):
     result = run("envelope", SI_EXAMPLE, "-o", tmp_path, "--no-figure", "--no-report")
     assert result.exit_code == 0, result.stderr
     assert {p.name for p in tmp_path.iterdir()} == {"envelope.csv", "reactions.csv",
-                                                   "envelope.json"}
+                                                   "envelope.json", MANIFEST}
 
 
 def test_without_out_nothing_is_written(tmp_path, monkeypatch):
@@ -256,7 +264,8 @@ def test_extra_sections_reach_the_json_and_the_report():
         return ExtraSection("Crane runway checks", tables=(table,), notes=("A note.",),
                             files={"extra.txt": "hello\n"}, data={"wheels": [12.5]})
 
-    results = collect(model, str(SI_EXAMPLE), providers=[provider, lambda r: None])
+    results = collect(model, Provenance.of_file(SI_EXAMPLE), _moving(model),
+                      providers=[provider, lambda r: None])
     assert [s.title for s in results.extra] == ["Crane runway checks"]
     document = envelope_document(results)
     assert document["extra"] == {"Crane runway checks": {"wheels": [12.5]}}
@@ -309,7 +318,8 @@ def test_cautions_name_invented_load_models_inside_trains(tmp_path):
                      'EI = 1e5\n[[load]]\nname = "two trucks"\n'
                      'vehicles = ["demo-service-truck", "demo-service-truck"]\n'
                      'gaps = ["10 m"]\n')
-    results = collect(load_model(model), str(model))
+    read = load_model(model)
+    results = collect(read, Provenance.of_file(model), _moving(read))
     assert results.loads[0].source == ""  # a train of library vehicles has no source itself
     assert any("demo-service-truck" in c and "not code load models" in c
                for c in cautions(results))

@@ -22,7 +22,7 @@ from trundle.core.influence import Effect, InfluenceSet
 from trundle.io.cranes import cranes_of
 from trundle.io.loads import loads_of
 from trundle.io.modelfile import Model, ModelFileError, load_model
-from trundle.io.outputs import write_all_atomic
+from trundle.io.outputs import write_output_set
 from trundle.io.units import UnitError, parse_quantity
 from trundle.report import CAUTION, LOAD_MODEL_CAUTION
 
@@ -179,7 +179,8 @@ def summary_command(model_file: str) -> None:
               help="Shear just left or right of the section; auto gives both sides at "
                    "interior supports (and both rotations at hinges).")
 @click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False, path_type=Path),
-              help="Write lines.csv, lines.json and a figure into this folder.")
+              help="Write lines.csv, lines.json and a figure into this folder; files of an "
+                   "earlier trundle run there that this run does not write are removed.")
 @click.option("--format", "figure_format", type=click.Choice(["png", "svg", "pdf"]),
               default="png", show_default=True, help="Figure format.")
 @click.option("--no-figure", is_flag=True, help="With --out: write the tables only.")
@@ -316,8 +317,11 @@ def _write_outputs(model: Model, model_file: str, lines: InfluenceSet, out_dir: 
         raise UserError(f"--out {out_dir}: expected a folder, found a file")
     generator = f"trundle {__version__}"
     sampled = sample(lines, beam, units, per_span=40, extra=beam.tenth_points())
+    from trundle.io.outputs import Provenance
+
     files: dict[str, bytes | str] = {
-        "lines.csv": lines_csv(lines, beam, units, sampled),
+        "lines.csv": Provenance.of_file(model_file).csv_comment() + "\n"
+        + lines_csv(lines, beam, units, sampled),
         "lines.json": lines_json(lines, beam, units, sampled, model.title, model_file,
                                  generator),
     }
@@ -328,7 +332,7 @@ def _write_outputs(model: Model, model_file: str, lines: InfluenceSet, out_dir: 
                                 generator=generator)
         files[f"lines.{figure_format}"] = figure_bytes(axes[0].figure, figure_format)
     try:
-        return write_all_atomic(out_dir, files)
+        return write_output_set(out_dir, files)[0]
     except OSError as error:
         raise UserError(f"--out {out_dir}: cannot write ({error.strerror or error})") from None
 
@@ -341,7 +345,8 @@ def _write_outputs(model: Model, model_file: str, lines: InfluenceSet, out_dir: 
 @click.argument("model_file", metavar="MODEL")
 @click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False, path_type=Path),
               help="Write envelope.csv, reactions.csv, envelope.json, the figures and "
-                   "report.html into this folder.")
+                   "report.html into this folder; files of an earlier trundle run there "
+                   "that this run does not write again are removed.")
 @click.option("--format", "figure_format", type=click.Choice(["png", "svg"]), default="png",
               show_default=True, help="Format of the figure files (the report embeds PNG).")
 @click.option("--no-figure", is_flag=True, help="With --out: write no figure files.")
@@ -370,13 +375,21 @@ def envelope_command(model_file: str, out_dir: Path | None, figure_format: str,
       trundle envelope examples/millrace_access_bridge_us.toml -o results --format svg
       trundle envelope examples/cranes/hall_kestrel_quay_si.toml --out results/
     """
+    from trundle.io.loads import loads_of
+    from trundle.io.outputs import Provenance
     from trundle.report.envelope_data import collect
     from trundle.report.sections import SECTIONS
+    from trundle.workflows import moving_loads
 
     model = _load(model_file)
     if out_dir is not None and out_dir.exists() and not out_dir.is_dir():
         raise UserError(f"--out {out_dir}: expected a folder, found a file")
-    results = collect(model, model_file, providers=SECTIONS)
+    entries = loads_of(model)
+    moving = None
+    if entries:
+        moving = moving_loads.run(moving_loads.MovingLoadsSpec(
+            model.beam, [entry.case for entry in entries], sections=model.sections))
+    results = collect(model, Provenance.of_file(model_file), moving, providers=SECTIONS)
     console = _console()
     for renderable in _envelope_summary(results):
         console.print(renderable)
@@ -386,11 +399,13 @@ def envelope_command(model_file: str, out_dir: Path | None, figure_format: str,
         files = envelope_files(results, figure_format, with_figures=not no_figure,
                                with_report=not no_report)
         try:
-            written = write_all_atomic(out_dir, files)
+            written, removed = write_output_set(out_dir, files)
         except OSError as error:
             raise UserError(f"--out {out_dir}: cannot write ({error.strerror or error})") \
                 from None
         console.print("wrote " + ", ".join(str(p) for p in written))
+        if removed:
+            console.print("removed the earlier run's " + ", ".join(p.name for p in removed))
     for caution in _envelope_cautions(results):
         console.print(caution, style="dim")
 

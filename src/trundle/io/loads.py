@@ -18,6 +18,7 @@ from __future__ import annotations
 
 import dataclasses
 import difflib
+import hashlib
 import math
 import re
 import tomllib
@@ -107,6 +108,8 @@ class LoadEntry:
     given : the entry as written in the model file
     files : every load-model file the entry reads (its ``use``, a train's library vehicles;
         for loads acting together, those of its parts)
+    file_facts : per file, (path, SHA-256, its ``source``), recorded when the model is read so
+        that no output has to read a file again
     """
 
     name: str
@@ -117,6 +120,11 @@ class LoadEntry:
     source: str = ""
     given: Mapping[str, Any] = field(default_factory=dict, repr=False)
     files: tuple[Path, ...] = ()
+    file_facts: tuple[tuple[Path, str, str], ...] = field(default=(), repr=False)
+
+    def __post_init__(self) -> None:
+        if self.files and not self.file_facts:
+            object.__setattr__(self, "file_facts", tuple(_file_fact(p) for p in self.files))
 
     @property
     def load(self) -> Any:
@@ -127,6 +135,16 @@ class LoadEntry:
     def parts(self) -> tuple[str, ...]:
         """For loads acting together: the names of the entries that act together."""
         return tuple(p.name for p in self.case.parts) if isinstance(self.case, Together) else ()
+
+
+def _file_fact(path: Path) -> tuple[Path, str, str]:
+    """(path, SHA-256, source) of a load-model file that has just been read."""
+    try:
+        data = path.read_bytes()
+        source = str(tomllib.loads(data.decode("utf-8")).get("source", ""))
+    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
+        return path, "(not readable)", ""
+    return path, hashlib.sha256(data).hexdigest(), source
 
 
 def loads_of(model: Model) -> tuple[LoadEntry, ...]:

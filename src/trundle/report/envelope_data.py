@@ -12,29 +12,26 @@ every output renders the extra sections it is given.
 from __future__ import annotations
 
 import dataclasses
-import datetime as _datetime
-import hashlib
 import math
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
-from pathlib import Path
 from typing import Any
 
 import numpy as np
 from numpy.typing import NDArray
 
-from trundle._version import __version__
-from trundle.analysis.envelope import AbsoluteExtreme, Envelope, Governing, envelope
+from trundle.analysis.envelope import AbsoluteExtreme, Envelope, Governing
 from trundle.core.beam import Beam, Spring
 from trundle.io.cranes import cranes_of
 from trundle.io.loads import LoadEntry, loads_of
 from trundle.io.modelfile import Model, ModelFileError
+from trundle.io.outputs import Provenance
 from trundle.io.units import UnitSystem
 from trundle.loads.cases import Together
 from trundle.loads.patterns import UniformLoad
 from trundle.loads.vehicles import Train, Vehicle
+from trundle.workflows.moving_loads import MovingLoadsResult
 
-EFFECTS = ("moment", "shear", "deflection", "reaction", "support_moment")
 # The section families of the envelope, in the order of the CSV columns.
 SECTION_FAMILIES = ("moment", "shear_left", "shear_right", "deflection")
 FAMILY_NAMES = {"moment": "moment", "shear_left": "shear left", "shear_right": "shear right",
@@ -158,14 +155,20 @@ class EnvelopeResults:
         return self.env.sections if self.env is not None else self.model.sections
 
     @property
+    def provenance(self) -> Provenance:
+        return Provenance(self.model_file, self.sha256, self.version, self.date)
+
+    @property
     def has_loads(self) -> bool:
         """Whether the model has [[load]] tables (and so an envelope of them)."""
         return self.env is not None
 
 
-def collect(model: Model, model_file: str | Path, date: str | None = None,
+def collect(model: Model, provenance: Provenance, moving: MovingLoadsResult | None = None,
             providers: Sequence[SectionProvider] = ()) -> EnvelopeResults:
-    """Run every load of ``model`` over its sections and gather the results.
+    """Gather what the outputs show: the model, where it comes from, the moving-load result
+    (computed by :func:`trundle.workflows.moving_loads.run`; None for a model without
+    ``[[load]]`` tables) and the sections the ``providers`` add. Runs no analysis of its own.
 
     Raises ModelFileError if the model has neither ``[[load]]`` nor ``[[crane]]`` tables.
     """
@@ -175,33 +178,19 @@ def collect(model: Model, model_file: str | Path, date: str | None = None,
                              "vehicle, a train, a placed uniform load or a library load "
                              "model) or [[crane]] tables with a [runway] table, see "
                              "docs/model-file.md; found nothing")
-    env = None
-    absolute: tuple[dict[str, AbsoluteExtreme | None], ...] = ()
-    if entries:
-        env = envelope(model.beam, [entry.case for entry in entries],
-                       sections=model.sections, effects=EFFECTS)
-        absolute = _worst_absolute(env, model.beam.n_spans)
-    digest = hashlib.sha256(Path(model_file).read_bytes()).hexdigest()
-    when = date or _datetime.datetime.now(_datetime.UTC).isoformat(timespec="seconds")
-    results = EnvelopeResults(model, str(model_file), digest, when, __version__, entries, env,
-                              absolute)
+    if bool(entries) != (moving is not None):
+        raise ValueError("collect: a moving-load result is needed exactly when the model has "
+                         "[[load]] tables")
+    env = moving.env if moving is not None else None
+    absolute = moving.absolute if moving is not None else ()
+    results = EnvelopeResults(model, provenance.model_file, provenance.sha256, provenance.date,
+                              provenance.version, entries, env, absolute)
     extra = tuple(s for s in (p(results) for p in providers) if s is not None)
     if extra:
-        results = EnvelopeResults(model, str(model_file), digest, when, __version__, entries,
-                                  env, absolute, extra)
+        results = EnvelopeResults(model, provenance.model_file, provenance.sha256,
+                                  provenance.date, provenance.version, entries, env, absolute,
+                                  extra)
     return results
-
-
-def _worst_absolute(env: Envelope, n_spans: int) -> tuple[dict[str, AbsoluteExtreme | None],
-                                                          ...]:
-    worst: list[dict[str, AbsoluteExtreme | None]] = [{"max": None, "min": None}
-                                                      for _ in range(n_spans)]
-    for extreme in env.absolute("moment"):
-        current = worst[extreme.span][extreme.which]
-        sign = 1.0 if extreme.which == "max" else -1.0
-        if current is None or sign * extreme.value > sign * current.value:
-            worst[extreme.span][extreme.which] = extreme
-    return tuple(worst)
 
 
 # ------------------------------------------------------------------------------------------

@@ -13,15 +13,13 @@ from typing import Any
 from jinja2 import Environment, PackageLoader, StrictUndefined, select_autoescape
 from markupsafe import Markup
 
-from trundle.io.loads import read_load_model_file
-from trundle.io.modelfile import ModelFileError
+from trundle.io.outputs import Provenance
 from trundle.report import CAUTION, LOAD_MODEL_CAUTION
 from trundle.report.envelope_data import SIGN_CONVENTIONS, EnvelopeResults, quantity_unit
 from trundle.report.envelope_figures import envelope_figures
 from trundle.report.envelope_tables import (
     envelope_csv,
     envelope_json,
-    file_sha256,
     input_tables,
     loads_table,
     reactions_csv,
@@ -37,11 +35,8 @@ def cautions(results: EnvelopeResults) -> list[str]:
     """The cautions every envelope output carries, most important first."""
     out = [CAUTION, LOAD_MODEL_CAUTION]
     invented = []
-    for path in dict.fromkeys(p for entry in results.loads for p in entry.files):
-        try:
-            source = read_load_model_file(path).source
-        except ModelFileError:  # changed since the model was read: the footer hashes tell
-            continue
+    facts = {path: source for entry in results.loads for path, _, source in entry.file_facts}
+    for path, source in facts.items():
         if source.lower().startswith("invented"):
             invented.append(path.stem)
     if invented:
@@ -90,9 +85,8 @@ def envelope_html(results: EnvelopeResults, pngs: dict[str, bytes] | None = None
     load_notes = [{"name": entry.name, "description": entry.description.rstrip("."),
                    "source": entry.source}
                   for entry in results.loads if entry.description or entry.source]
-    files = {path for entry in results.loads for path in entry.files}
-    load_files = [{"path": str(path), "sha256": file_sha256(path) or "(not readable)"}
-                  for path in sorted(files)]
+    files = {path: sha for entry in results.loads for path, sha, _ in entry.file_facts}
+    load_files = [{"path": str(path), "sha256": files[path]} for path in sorted(files)]
     L = units.label("length")
     sections = ", ".join(f"{round(float(x), 9) + 0.0:.6g}" for x in results.sections)
     description = " ".join(str(results.model.raw.get("description", "")).split())
@@ -155,4 +149,12 @@ def envelope_files(results: EnvelopeResults, figure_format: str = "png",
         files["report.html"] = envelope_html(results, pngs)
     for section in results.extra:
         files.update(section.files)
-    return files
+    return stamp_csv_files(files, results.provenance)
+
+
+def stamp_csv_files(files: dict[str, bytes | str], provenance: Provenance
+                    ) -> dict[str, bytes | str]:
+    """Every CSV of an output set, with the provenance comment as its first line."""
+    comment = provenance.csv_comment() + "\n"
+    return {name: comment + data if name.endswith(".csv") and isinstance(data, str) else data
+            for name, data in files.items()}

@@ -7,12 +7,10 @@ HTML report show the same numbers; writers return finished text for atomic writi
 from __future__ import annotations
 
 import csv
-import hashlib
 import io
 import json
 import math
 from collections.abc import Sequence
-from pathlib import Path
 from typing import Any
 
 import numpy as np
@@ -555,7 +553,7 @@ def envelope_document(results: EnvelopeResults) -> dict[str, Any]:
             "searched": parameter_labels(entry.load),
             "load": load_json(entry.load),
             "as_given": _plain(dict(entry.given)),
-            "files": [{"path": str(p), "sha256": file_sha256(p)} for p in entry.files],
+            "files": [{"path": str(p), "sha256": sha} for p, sha, _ in entry.file_facts],
         })
     extra_cautions = [c for s in results.extra for c in s.cautions]
     return {
@@ -662,11 +660,6 @@ def load_json(load: Any) -> dict[str, Any]:
     return {}
 
 
-def file_sha256(path: Any) -> str | None:
-    try:
-        return hashlib.sha256(Path(path).read_bytes()).hexdigest()
-    except OSError:
-        return None
 
 
 def envelope_json(results: EnvelopeResults) -> str:

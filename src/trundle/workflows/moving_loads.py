@@ -1,0 +1,66 @@
+"""The moving-load workflow: loads over a beam's sections → envelope and absolute extremes.
+
+spec → :func:`run` → result. The result carries the :class:`~trundle.Envelope` (every value
+with its governing load by name, position, spacings found and concurrent effects) and, per
+span, the worst absolute moment over all loads (found between the sections too).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass, field
+
+import numpy as np
+from numpy.typing import NDArray
+
+from trundle.analysis.envelope import AbsoluteExtreme, Envelope, envelope
+from trundle.core.beam import Beam
+from trundle.loads.cases import LoadCase, Together
+
+EFFECTS = ("moment", "shear", "deflection", "reaction", "support_moment")
+
+
+@dataclass(frozen=True)
+class MovingLoadsSpec:
+    """What the workflow runs.
+
+    Fields
+    ------
+    beam : the beam
+    loads : load cases (a Vehicle, Train or UniformLoad is taken as a case of factor 1)
+    sections : x of the sections [length] (default: the tenth points)
+    effects : effects enveloped
+    """
+
+    beam: Beam
+    loads: Sequence[LoadCase | Together | object]
+    sections: NDArray[np.float64] | None = None
+    effects: tuple[str, ...] = EFFECTS
+
+
+@dataclass(frozen=True, eq=False)
+class MovingLoadsResult:
+    """The envelope and, per span and per "max"/"min", the worst absolute moment."""
+
+    spec: MovingLoadsSpec
+    env: Envelope
+    absolute: tuple[dict[str, AbsoluteExtreme | None], ...] = field(default=())
+
+
+def run(spec: MovingLoadsSpec) -> MovingLoadsResult:
+    """Envelope every load over the sections; the absolute moment extremes per span."""
+    env = envelope(spec.beam, list(spec.loads), sections=spec.sections, effects=spec.effects)
+    absolute = worst_absolute(env) if "moment" in spec.effects else ()
+    return MovingLoadsResult(spec, env, absolute)
+
+
+def worst_absolute(env: Envelope) -> tuple[dict[str, AbsoluteExtreme | None], ...]:
+    """Per span, the worst absolute moment max and min over all loads (None: none found)."""
+    worst: list[dict[str, AbsoluteExtreme | None]] = [{"max": None, "min": None}
+                                                      for _ in range(env.beam.n_spans)]
+    for extreme in env.absolute("moment"):
+        current = worst[extreme.span][extreme.which]
+        sign = 1.0 if extreme.which == "max" else -1.0
+        if current is None or sign * extreme.value > sign * current.value:
+            worst[extreme.span][extreme.which] = extreme
+    return tuple(worst)
