@@ -19,7 +19,7 @@ from rich.text import Text
 from trundle._version import __version__
 from trundle.core.beam import Beam, ModelError, Spring
 from trundle.core.influence import Effect, InfluenceSet
-from trundle.io.cranes import cranes_of
+from trundle.io.cranes import cranes_of, runway_spec
 from trundle.io.loads import loads_of
 from trundle.io.modelfile import Model, ModelFileError, load_model
 from trundle.io.outputs import write_output_set
@@ -380,6 +380,7 @@ def envelope_command(model_file: str, out_dir: Path | None, figure_format: str,
     from trundle.report.envelope_data import collect
     from trundle.report.sections import SECTIONS
     from trundle.workflows import moving_loads
+    from trundle.workflows.crane_runway import analyse_runway
 
     model = _load(model_file)
     if out_dir is not None and out_dir.exists() and not out_dir.is_dir():
@@ -389,7 +390,11 @@ def envelope_command(model_file: str, out_dir: Path | None, figure_format: str,
     if entries:
         moving = moving_loads.run(moving_loads.MovingLoadsSpec(
             model.beam, [entry.case for entry in entries], sections=model.sections))
-    results = collect(model, Provenance.of_file(model_file), moving, providers=SECTIONS)
+    spec = runway_spec(model)
+    runway = (analyse_runway(model.beam, spec, sections=model.sections)
+              if spec is not None else None)
+    results = collect(model, Provenance.of_file(model_file), moving, providers=SECTIONS,
+                      runway=runway)
     console = _console()
     for renderable in _envelope_summary(results):
         console.print(renderable)

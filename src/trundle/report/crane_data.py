@@ -1,11 +1,11 @@
 """The crane runway of a model file, gathered for presentation: one place that decides what
 the crane tables, figures, CSV files and the JSON part show.
 
-:func:`runway_report` runs :func:`trundle.workflows.crane_runway.analyse_runway` on the model's
-beam and sections and keeps what the outputs read: per support the worst reactions with and
-without impact, per span the governing moment and shear with impact (also the worst section
-between the sections), the deflection checks, the lateral moments (wheel forces either way), the
-fatigue ranges, and every default in use with where it comes from.
+:func:`runway_report` takes the result of :func:`trundle.workflows.crane_runway.analyse_runway`
+(run by the caller, not here) and keeps what the outputs read: per support the worst reactions
+with and without impact, per span the governing moment and shear with impact (also the worst
+section between the sections), the deflection checks, the lateral moments (wheel forces either
+way), the fatigue ranges, and every default in use with where it comes from.
 """
 
 from __future__ import annotations
@@ -20,9 +20,9 @@ import numpy as np
 from numpy.typing import NDArray
 
 from trundle.analysis.checks import DETAIL_CATEGORIES, FatigueSection
-from trundle.analysis.envelope import Envelope, Governing, absolute_extremes
+from trundle.analysis.envelope import Envelope, Governing
 from trundle.core.beam import Beam
-from trundle.io.cranes import CraneEntry, cranes_of, runway_settings_of, runway_spec
+from trundle.io.cranes import CraneEntry, cranes_of, runway_settings_of
 from trundle.io.units import UnitSystem
 from trundle.loads.cranes import (
     IMPACT_BY_OPERATION,
@@ -40,7 +40,6 @@ from trundle.workflows.crane_runway import (
     CraneCombination,
     RunwayResult,
     RunwaySpec,
-    analyse_runway,
 )
 
 VERIFY = "verify against the governing guide/code in force"
@@ -173,14 +172,13 @@ class RunwayReport:
 
 
 def runway_report(results: EnvelopeResults) -> RunwayReport | None:
-    """The runway analysis of the results' model, or None if it has no cranes."""
+    """The crane runway part of the results, or None if the model has no cranes."""
     model = results.model
-    spec = runway_spec(model)
     settings = runway_settings_of(model)
-    if spec is None or settings is None:
+    if results.runway is None or settings is None:
         return None
-    runway = analyse_runway(model.beam, spec, sections=model.sections)
-    return RunwayReport(results, cranes_of(model), settings, spec, runway)
+    runway = results.runway
+    return RunwayReport(results, cranes_of(model), settings, runway.spec, runway)
 
 
 # ------------------------------------------------------------------------------------------
@@ -322,21 +320,11 @@ def runway_spans(report: RunwayReport) -> list[RunwaySpan]:
 
 
 def _moment_anywhere(report: RunwayReport) -> dict[int, CranePlacement]:
-    """Per span: the worst sagging moment with impact over every section of the span (a
-    bounded search between the sections), if it is worse than at the sections."""
+    """Per span: the worst sagging moment with impact over every section of the span, as the
+    workflow found it (:attr:`RunwayResult.moment_anywhere`)."""
     env = report.runway.strength
-    beam = report.beam
-    out = {}
-    for span in range(beam.n_spans):
-        best = None
-        for c, case in enumerate(env.cases):
-            for extreme in absolute_extremes(beam, case, span, "moment", case_index=c,
-                                             extremes=("max",)):
-                if best is None or extreme.value > best.value:
-                    best = extreme
-        if best is not None and best.governing.case >= 0:
-            out[span] = placement(report, env, "moment", "max", best.governing, best.x)
-    return out
+    return {span: placement(report, env, "moment", "max", best.governing, best.x)
+            for span, best in enumerate(report.runway.moment_anywhere) if best is not None}
 
 
 # ------------------------------------------------------------------------------------------

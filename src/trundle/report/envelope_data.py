@@ -30,6 +30,7 @@ from trundle.io.units import UnitSystem
 from trundle.loads.cases import Together
 from trundle.loads.patterns import UniformLoad
 from trundle.loads.vehicles import Train, Vehicle
+from trundle.workflows.crane_runway import RunwayResult
 from trundle.workflows.moving_loads import MovingLoadsResult
 
 # The section families of the envelope, in the order of the CSV columns.
@@ -128,7 +129,8 @@ class EnvelopeResults:
         the model has cranes
     env : the envelope of the loads over the model's sections (None without loads)
     absolute : per span and per "max"/"min", the worst absolute moment over all loads
-    extra : sections added by other features
+    extra : sections added by other workflows
+    runway : the crane runway result (analyse_runway, run by the caller) or None
     """
 
     model: Model
@@ -140,6 +142,7 @@ class EnvelopeResults:
     env: Envelope | None
     absolute: tuple[dict[str, AbsoluteExtreme | None], ...]
     extra: tuple[ExtraSection, ...] = ()
+    runway: RunwayResult | None = None
     cache: dict[Any, Any] = field(default_factory=dict, repr=False, compare=False)
 
     @property
@@ -165,7 +168,8 @@ class EnvelopeResults:
 
 
 def collect(model: Model, provenance: Provenance, moving: MovingLoadsResult | None = None,
-            providers: Sequence[SectionProvider] = ()) -> EnvelopeResults:
+            providers: Sequence[SectionProvider] = (), runway: RunwayResult | None = None
+            ) -> EnvelopeResults:
     """Gather what the outputs show: the model, where it comes from, the moving-load result
     (computed by :func:`trundle.workflows.moving_loads.run`; None for a model without
     ``[[load]]`` tables) and the sections the ``providers`` add. Runs no analysis of its own.
@@ -184,12 +188,10 @@ def collect(model: Model, provenance: Provenance, moving: MovingLoadsResult | No
     env = moving.env if moving is not None else None
     absolute = moving.absolute if moving is not None else ()
     results = EnvelopeResults(model, provenance.model_file, provenance.sha256, provenance.date,
-                              provenance.version, entries, env, absolute)
+                              provenance.version, entries, env, absolute, runway=runway)
     extra = tuple(s for s in (p(results) for p in providers) if s is not None)
     if extra:
-        results = EnvelopeResults(model, provenance.model_file, provenance.sha256,
-                                  provenance.date, provenance.version, entries, env, absolute,
-                                  extra)
+        results = dataclasses.replace(results, extra=extra)
     return results
 
 

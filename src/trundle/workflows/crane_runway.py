@@ -28,7 +28,7 @@ from trundle.analysis.checks import (
     fatigue_allowable,
     rainflow_ranges,
 )
-from trundle.analysis.envelope import Envelope, envelope
+from trundle.analysis.envelope import AbsoluteExtreme, Envelope, absolute_extremes, envelope
 from trundle.core.beam import Beam, ModelError
 from trundle.loads.cases import LoadCase
 from trundle.loads.cranes import Crane, WheelLoads, buffer_gap
@@ -209,6 +209,8 @@ class RunwayResult:
     vertical_checks, lateral_checks : per-span deflection checks
     longitudinal : crane name -> tractive force on this rail [force]
     fatigue : per crane, per section moment range and rainflow cycles
+    moment_anywhere : per span, the worst sagging moment with impact over every section of
+        the span (a bounded search between the sections; None where no crane loads it)
     """
 
     spec: RunwaySpec
@@ -223,6 +225,7 @@ class RunwayResult:
     lateral_checks: tuple[DeflectionCheck, ...]
     longitudinal: dict[str, float]
     fatigue: tuple[FatigueSection, ...] = field(default=())
+    moment_anywhere: tuple[AbsoluteExtreme | None, ...] = field(default=())
 
 
 def lateral_extremes(result: RunwayResult, kind: str = "moment"
@@ -305,4 +308,20 @@ def analyse_runway(beam: Beam, spec: RunwaySpec, sections: NDArray[np.float64] |
     longitudinal = {name: w.longitudinal for name, w in wheels.items()}
     fatigue = _fatigue(beam, sections, spec)
     return RunwayResult(spec, beam, sections, wheels, combos, strength, service, lateral,
-                        vertical_checks, lateral_checks, longitudinal, fatigue)
+                        vertical_checks, lateral_checks, longitudinal, fatigue,
+                        _moment_anywhere(strength))
+
+
+def _moment_anywhere(env: Envelope) -> tuple[AbsoluteExtreme | None, ...]:
+    """Per span: the worst sagging moment over every section of the span, all combinations."""
+    beam = env.beam
+    out: list[AbsoluteExtreme | None] = []
+    for span in range(beam.n_spans):
+        best = None
+        for c, case in enumerate(env.cases):
+            for extreme in absolute_extremes(beam, case, span, "moment", case_index=c,
+                                             extremes=("max",)):
+                if best is None or extreme.value > best.value:
+                    best = extreme
+        out.append(best if best is not None and best.governing.case >= 0 else None)
+    return tuple(out)
