@@ -30,6 +30,8 @@ from trundle.io.units import UnitSystem
 from trundle.loads.cases import Together
 from trundle.loads.patterns import UniformLoad
 from trundle.loads.vehicles import Train, Vehicle
+from trundle.report.format import length as _length
+from trundle.report.format import position as _position
 from trundle.workflows.crane_runway import RunwayResult
 from trundle.workflows.moving_loads import MovingLoadsResult
 
@@ -386,16 +388,6 @@ def loaded_spans(loaded: Sequence[tuple[float, float]], beam: Beam) -> list[int]
         if any(x0 - tolerance <= middle <= x1 + tolerance for x0, x1 in loaded):
             out.append(i)
     return out
-
-
-def _length(x: float) -> str:
-    return f"{round(float(x), 9) + 0.0:.6g}"
-
-
-def _position(x: float) -> str:
-    """A load position for people: to a thousandth of the length unit (mm, 0.001 ft)."""
-    text = f"{float(x) + 0.0:.3f}".rstrip("0").rstrip(".")
-    return "0" if text in ("-0", "") else text
 
 
 def direction_arrow(direction: int) -> str:

@@ -50,35 +50,13 @@ from trundle.report.envelope_data import (
     support_extremes,
     support_kind_words,
 )
+from trundle.report.format import decimals as _decimals
+from trundle.report.format import fixed as _fixed
+from trundle.report.format import length as _length
+from trundle.report.format import number as _number
+from trundle.report.format import position as _position
 
 CAUTIONS = (CAUTION, LOAD_MODEL_CAUTION)
-
-
-def _length(x: float | None) -> str:
-    if x is None or (isinstance(x, float) and math.isnan(x)):
-        return "—"
-    return f"{round(float(x), 9) + 0.0:.6g}"
-
-
-def _decimals(values: Sequence[float], significant: int = 4) -> int:
-    finite = [abs(v) for v in values if v is not None and math.isfinite(v)]
-    biggest = max(finite, default=0.0)
-    if biggest == 0.0:
-        return 2
-    return int(min(6, max(0, significant - 1 - math.floor(math.log10(biggest)))))
-
-
-def _fixed(value: float, decimals: int) -> str:
-    text = f"{value + 0.0:.{decimals}f}"
-    return text[1:] if text.startswith("-") and not text.strip("-0.") else text
-
-
-def _position(x: float | None) -> str:
-    """A load position for people: to a thousandth of the length unit (mm, 0.001 ft)."""
-    if x is None or not math.isfinite(x):
-        return "—"
-    text = f"{float(x) + 0.0:.3f}".rstrip("0").rstrip(".")
-    return "0" if text in ("-0", "") else text
 
 
 def _where(extreme: Extreme, length_unit: str) -> str:
@@ -401,12 +379,6 @@ def to_rich(table: TableData) -> Table:
 
 # ------------------------------------------------------------------------------------------
 # envelope.csv and reactions.csv
-
-
-def _number(value: float | None) -> str:
-    if value is None or not math.isfinite(value):
-        return ""
-    return format(float(value) + 0.0, ".12g")
 
 
 def _stretches(extreme: Extreme) -> str:

@@ -24,19 +24,15 @@ from trundle.core.beam import Beam, Spring
 from trundle.core.influence import Effect, InfluenceSet
 from trundle.io.units import UnitSystem
 from trundle.report import CAUTION
+from trundle.report.format import fixed as _cell
+from trundle.report.format import length as format_length
+from trundle.report.format import number as _number
 
 if TYPE_CHECKING:
     from trundle.io.modelfile import Model
 
 _KIND_NAMES = {"reaction": "reaction", "support_moment": "support moment", "moment": "moment",
                "shear": "shear", "deflection": "deflection", "rotation": "rotation"}
-
-
-def format_length(x: float | None) -> str:
-    """A position or length for labels: at most 6 significant digits, no trailing zeros."""
-    if x is None:
-        return "—"
-    return f"{round(float(x), 9) + 0.0:.6g}"
 
 
 def effect_label(effect: Effect, beam: Beam, units: UnitSystem) -> str:
@@ -160,10 +156,6 @@ def sample(lines: InfluenceSet, beam: Beam, units: UnitSystem, per_span: int = 4
     return Sampled(np.asarray(xs), tuple(limits), np.asarray(rows) + 0.0)
 
 
-def _number(value: float) -> str:
-    return format(float(value) + 0.0, ".12g")
-
-
 def lines_csv(lines: InfluenceSet, beam: Beam, units: UnitSystem, sampled: Sampled) -> str:
     """CSV text: a position column, a limit column, one column per line (unit in the header)."""
     buffer = io.StringIO()
@@ -261,11 +253,6 @@ def _decimals(values: NDArray[np.float64], significant: int = 5) -> int:
     if biggest == 0.0 or not math.isfinite(biggest):
         return 3
     return int(min(8, max(0, significant - 1 - math.floor(math.log10(biggest)))))
-
-
-def _cell(value: float, decimals: int) -> str:
-    text = f"{value + 0.0:.{decimals}f}"
-    return text[1:] if text.startswith("-") and not text.strip("-0.") else text
 
 
 def extremes_table(lines: InfluenceSet, beam: Beam, units: UnitSystem) -> Table:
