@@ -744,3 +744,10 @@ def _renumbered(g: Governing, keep: NDArray[np.int64]) -> Governing:
         return g
     return Governing(g.value, g.case, g.direction, g.reference, g.side, g.searched, pattern,
                      parts)
+
+
+def kind_and_side(family: str) -> tuple[str, str | None]:
+    """A result family as (effect kind, side): "shear_left" -> ("shear", "left")."""
+    if family in ("shear_left", "shear_right"):
+        return "shear", family[6:]
+    return family, None

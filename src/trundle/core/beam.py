@@ -11,7 +11,7 @@ from functools import cached_property
 from typing import TYPE_CHECKING, Any, Literal
 
 import numpy as np
-from numpy.typing import NDArray
+from numpy.typing import ArrayLike, NDArray
 
 if TYPE_CHECKING:
     from trundle.core.influence import InfluenceLine, InfluenceSet
@@ -225,6 +225,14 @@ class Beam:
         ends = self.support_positions
         i = int(np.searchsorted(ends, x, side="left")) - 1
         return min(max(i, 0), self.n_spans - 1)
+
+    def sections_in_span(self, x: ArrayLike, span: int) -> NDArray[np.int64]:
+        """Indices of the sections ``x`` [length] in ``span``, both its supports included
+        (to 1e-9 of the beam's length)."""
+        x = np.asarray(x, dtype=float)
+        a, b = self.support_positions[span], self.support_positions[span + 1]
+        tolerance = 1e-9 * self.length
+        return np.flatnonzero((x >= a - tolerance) & (x <= b + tolerance))
 
     def tenth_points(self) -> NDArray[np.float64]:
         """Tenth points of every span, each support included once [length]."""

@@ -20,7 +20,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from trundle.analysis.checks import DETAIL_CATEGORIES, FatigueSection
-from trundle.analysis.envelope import Envelope, Governing
+from trundle.analysis.envelope import Envelope, Governing, kind_and_side
 from trundle.core.beam import Beam
 from trundle.io.cranes import CraneEntry, cranes_of, runway_settings_of
 from trundle.io.units import UnitSystem
@@ -213,7 +213,7 @@ def _extremes(report: RunwayReport, env: Envelope, family: str, which: str
               ) -> list[CranePlacement]:
     key = (id(env), family, which)
     if key not in report.cache:
-        kind, side = (("shear", family[6:]) if family.startswith("shear") else (family, None))
+        kind, side = kind_and_side(family)
         governing = env.governing(kind, which, side)
         report.cache[key] = [placement(report, env, family, which, g, float(x))
                              for g, x in zip(governing, env.sections, strict=True)]
@@ -277,12 +277,6 @@ def lateral_placements(report: RunwayReport, kind: str = "moment") -> list[Crane
 # per span
 
 
-def _inside(report: RunwayReport, a: float, b: float) -> NDArray[np.int64]:
-    tolerance = 1e-9 * report.beam.length
-    x = report.sections
-    return np.flatnonzero((x >= a - tolerance) & (x <= b + tolerance))
-
-
 def _worst(candidates: list[CranePlacement], which: str) -> CranePlacement:
     sign = 1.0 if which == "max" else -1.0
     return max(candidates, key=lambda p: sign * p.extreme.value)
@@ -302,7 +296,7 @@ def runway_spans(report: RunwayReport) -> list[RunwaySpan]:
     anywhere = _moment_anywhere(report)
     out = []
     for span, (a, b) in enumerate(zip(ends[:-1], ends[1:], strict=True)):
-        inside = _inside(report, a, b)
+        inside = beam.sections_in_span(x, span)
         if inside.size == 0:
             continue
         rights = [i for i in inside if x[i] < b - tolerance]
@@ -350,13 +344,11 @@ def fatigue_score(item: FatigueSection) -> float:
 def fatigue_worst_per_span(report: RunwayReport) -> list[tuple[int, FatigueSection]]:
     """Per crane, per span: the section with the largest utilisation (or range)."""
     out = []
-    ends = report.beam.support_positions
     for crane in report.cranes:
         items = fatigue_by_crane(report)[crane.name]
-        xs = np.array([item.x for item in items])
-        for span, (a, b) in enumerate(zip(ends[:-1], ends[1:], strict=True)):
-            tolerance = 1e-9 * report.beam.length
-            inside = np.flatnonzero((xs >= a - tolerance) & (xs <= b + tolerance))
+        xs = [item.x for item in items]
+        for span in range(report.beam.n_spans):
+            inside = report.beam.sections_in_span(xs, span)
             if inside.size:
                 out.append((span, max((items[i] for i in inside), key=fatigue_score)))
     return out

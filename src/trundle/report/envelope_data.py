@@ -20,7 +20,7 @@ from typing import Any
 import numpy as np
 from numpy.typing import NDArray
 
-from trundle.analysis.envelope import AbsoluteExtreme, Envelope, Governing
+from trundle.analysis.envelope import AbsoluteExtreme, Envelope, Governing, kind_and_side
 from trundle.core.beam import Beam, Spring
 from trundle.io.cranes import cranes_of
 from trundle.io.loads import LoadEntry, loads_of
@@ -411,7 +411,7 @@ def section_extremes(results: EnvelopeResults, family: str, which: str) -> list[
     """One Extreme per section for a section family (computed once per results)."""
     key = ("sections", family, which)
     if key not in results.cache:
-        kind, side = _kind_side(family)
+        kind, side = kind_and_side(family)
         governing = results.env.governing(kind, which, side)
         results.cache[key] = [describe_extreme(results, family, which, g, float(x))
                               for g, x in zip(governing, results.sections, strict=True)]
@@ -429,14 +429,6 @@ def support_extremes(results: EnvelopeResults, family: str, which: str
         x = float(beam.support_positions[support])
         out[support] = describe_extreme(results, family, which, source[line], x)
     return out
-
-
-def _kind_side(family: str) -> tuple[str, str | None]:
-    if family == "shear_left":
-        return "shear", "left"
-    if family == "shear_right":
-        return "shear", "right"
-    return family, None
 
 
 def span_of_section(beam: Beam, x: float) -> tuple[int, int | None]:
@@ -488,7 +480,7 @@ def span_summaries(results: EnvelopeResults) -> list[SpanSummary]:
                   for w in ("max", "min")}
     out = []
     for span, (a, b) in enumerate(zip(ends[:-1], ends[1:], strict=True)):
-        inside = np.flatnonzero((x >= a - tolerance) & (x <= b + tolerance))
+        inside = beam.sections_in_span(x, span)
         if inside.size == 0:  # sections chosen elsewhere: nothing to report for this span
             continue
         # shear inside the span: right of its left support, left of its right support

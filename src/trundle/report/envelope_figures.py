@@ -106,9 +106,10 @@ def _label_extremes(ax: Axes, results: EnvelopeResults, x: np.ndarray, top: np.n
     done: set[tuple[float, str]] = set()
     for span, (a, b) in enumerate(zip(ends[:-1], ends[1:], strict=True)):
         # inside the span: right of its left support, left of its right support
-        inside = np.flatnonzero((x >= a - tolerance) & (x <= b + tolerance)
-                                & ~((np.abs(x - a) <= tolerance) & (limit == "left"))
-                                & ~((np.abs(x - b) <= tolerance) & (limit == "right")))
+        inside = np.array([i for i in results.beam.sections_in_span(x, span)
+                           if not ((abs(x[i] - a) <= tolerance and limit[i] == "left")
+                                   or (abs(x[i] - b) <= tolerance and limit[i] == "right"))],
+                          dtype=np.int64)
         if inside.size == 0:
             continue
         for values, color, sign, which in ((top, MAX_COLOR, 1.0, "max"),

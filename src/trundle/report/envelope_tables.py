@@ -17,6 +17,7 @@ import numpy as np
 from rich.table import Table
 from rich.text import Text
 
+from trundle.analysis.envelope import kind_and_side
 from trundle.core.beam import Spring
 from trundle.io.loads import LoadEntry, LoadModelFile, loads_of
 from trundle.io.modelfile import Model
@@ -641,7 +642,7 @@ def envelope_json(results: EnvelopeResults) -> str:
 
 def max_min_arrays(results: EnvelopeResults, family: str) -> tuple[np.ndarray, np.ndarray]:
     """Max and min per section (or per support) in display units."""
-    kind, side = (("shear", family[6:]) if family.startswith("shear") else (family, None))
+    kind, side = kind_and_side(family)
     factor = display_factor(family, results.units)
     return (results.env.max(kind, side) * factor + 0.0,
             results.env.min(kind, side) * factor + 0.0)
