@@ -22,6 +22,7 @@ from numpy.typing import NDArray
 from scipy.optimize import minimize, minimize_scalar
 
 import trundle
+from conftest import make_crane
 from trundle.analysis.checks import DETAIL_CATEGORIES, allowable_stress_range_ksi
 from trundle.core.statics import PointLoad
 from trundle.loads.cranes import Crane, buffer_gap
@@ -42,11 +43,7 @@ XI_STEP = 0.1  # brute-force grid of crane positions [m]
 
 
 def _crane(**changes: object) -> Crane:
-    data = dict(name="foundry crane", capacity=200.0, bridge_weight=300.0,
-                trolley_weight=50.0, span=20.0, hook_approach=1.0, wheel_spacings=(3.6,),
-                buffer_length=4.4)
-    data.update(changes)
-    return Crane(**data)
+    return make_crane(**{"name": "foundry crane", **changes})
 
 
 def _runway() -> trundle.Beam:

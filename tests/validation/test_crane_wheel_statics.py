@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import pytest
 
+from conftest import make_crane
 from trundle.loads.cranes import Crane
 
 REL = 1e-12
@@ -21,10 +22,7 @@ REL = 1e-12
 
 def _bay_crane(**changes: object) -> Crane:
     """An invented 20 t cab-operated crane (capacity 200 kN) with two wheels per rail."""
-    data = dict(name="bay crane", capacity=200.0, bridge_weight=300.0, trolley_weight=50.0,
-                span=20.0, hook_approach=1.0, wheel_spacings=(3.6,), buffer_length=4.4)
-    data.update(changes)
-    return Crane(**data)
+    return make_crane(**{"name": "bay crane", **changes})
 
 
 def _near_rail_by_moments(bridge: float, lifted: float, span: float, distance: float) -> float:

@@ -24,6 +24,7 @@ import pytest
 import rainflow
 
 import trundle
+from conftest import make_crane
 from trundle.core.statics import PointLoad
 from trundle.loads.cranes import Crane
 from trundle.scan.engine import LineBatch
@@ -108,8 +109,7 @@ L, A = 12.0, 3.6
 
 def _crane() -> Crane:
     """Cab crane, maximum wheel load (150 + 250·19/20)/2 = 193.75 kN, wheels 3.6 m apart."""
-    return Crane("shop crane", capacity=200.0, bridge_weight=300.0, trolley_weight=50.0,
-                 span=20.0, hook_approach=1.0, wheel_spacings=(A,), buffer_length=4.4)
+    return make_crane("shop crane", wheel_spacings=(A,))
 
 
 P = 193.75
