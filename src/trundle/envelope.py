@@ -645,13 +645,8 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
         raise ModelError("loads: at least one load is needed")
     sections = beam.tenth_points() if sections is None else np.atleast_1d(
         np.asarray(sections, dtype=float))
-    line_effects, index = _line_effects(beam, sections, effects)
-    # each line on its own breaks: memory and work grow with lines x structural pieces
-    full_batch = LineBatch.from_pieces(line_pieces(beam, line_effects))
-    # identical lines (shear just left and right of a section inside a span, zero lines) are
-    # scanned once; `index` below is in terms of the distinct lines
-    keep, inverse, index_all, index = _distinct_lines(full_batch.identity, index)
-    batch = full_batch if keep.size == full_batch.n_lines else full_batch.subset(keep)
+    line_effects, index_all, full_batch, keep, inverse, index, batch = _prepared_lines(
+        beam, sections, tuple(effects))
     n = batch.n_lines
     # largest and smallest ordinate of every line: where a placed load's point load stands
     placed = any(isinstance(p.load, UniformLoad) for c in cases
@@ -707,8 +702,34 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
                 g = EMPTY
             distinct.append(_renumbered(g, keep))
         governing[w] = [distinct[u] for u in inverse]
-    return Envelope(beam, sections, cases, tuple(line_effects), index_all,
+    return Envelope(beam, sections, cases, line_effects, index_all,
                     tuple(governing[0]), tuple(governing[1]), full_batch)
+
+
+# lines ready to scan, by beam, sections and families (values, not identities): a beam
+# checked again, under other loads, reuses them
+_PREPARED: dict[tuple, tuple] = {}
+_PREPARED_KEEP = 8
+
+
+def _prepared_lines(beam: Beam, sections: NDArray[np.float64], families: tuple[str, ...]
+                    ) -> tuple:
+    """(effects, index, every line, keep, inverse, distinct index, distinct lines)."""
+    key = (beam, np.ascontiguousarray(sections, dtype=float).tobytes(), families)
+    found = _PREPARED.get(key)
+    if found is None:
+        line_effects, index = _line_effects(beam, sections, families)
+        # each line on its own breaks: memory and work grow with lines x structural pieces
+        full_batch = LineBatch.from_pieces(line_pieces(beam, line_effects))
+        # identical lines (shear just left and right of a section inside a span, zero lines)
+        # are scanned once; the distinct index is in terms of the distinct lines
+        keep, inverse, index_all, distinct = _distinct_lines(full_batch.identity, index)
+        batch = full_batch if keep.size == full_batch.n_lines else full_batch.subset(keep)
+        found = (tuple(line_effects), index_all, full_batch, keep, inverse, distinct, batch)
+        if len(_PREPARED) >= _PREPARED_KEEP:
+            _PREPARED.pop(next(iter(_PREPARED)))
+        _PREPARED[key] = found
+    return found
 
 
 def _distinct_lines(identity: NDArray[np.int64], index: dict[str, NDArray[np.int64]]

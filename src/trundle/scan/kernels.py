@@ -303,12 +303,10 @@ def _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, 
         line_offsets = offsets[0] if shared else offsets[row]
         lo = line_offsets[0]
         hi = line_offsets[0]
-        trailing = 0
-        leading = 0
+        trailing = np.int64(0)
         for t in range(1, n_terms):
             if line_offsets[t] < lo:
                 lo = line_offsets[t]
-                leading = t
             if line_offsets[t] > hi:
                 hi = line_offsets[t]
                 trailing = t
@@ -322,14 +320,15 @@ def _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, 
         best[0], best[1], best[2] = 0.0, np.nan, 0.0
         best[3], best[4], best[5] = 0.0, np.nan, 0.0
         constant = constant_weight * running_end[line]
-        if prune:
-            # first sweep: from where the leading load reaches the largest piece
-            split = min(max(line_knots[peak[line]] + line_offsets[leading], lo), hi)
-            _sweep(split, hi, line_knots, coef[line], running[line], running_end[line],
-                   weight, kind, line_offsets, constant, degree, best, tail[line, :m + 1],
-                   tail_weight, trailing, piece, upcoming, poly, crit, work, scratch)
-            # second sweep: positions with every load left of knot p read at most
-            # tail_weight · head[p]; skip the longest such stretch
+        # with ``prune``, first from where the leading load reaches the largest piece
+        split = min(max(line_knots[peak[line]] + lead, lo), hi) if prune else lo
+        _sweep(split, hi, line_knots, coef[line], running[line], running_end[line], weight,
+               kind, line_offsets, constant, degree, best,
+               tail[line, :m + 1] if prune else no_bound, tail_weight, trailing, piece,
+               upcoming, poly, crit, work, scratch)
+        if split > lo:
+            # then the positions before: with every load left of knot p the response is at
+            # most tail_weight · head[p]; skip the longest such stretch
             line_head = head[line]
             a, b = 0, m
             while a < b:
@@ -345,10 +344,6 @@ def _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, 
                        running_end[line], weight, kind, line_offsets, constant, degree, best,
                        no_bound, tail_weight, trailing, piece, upcoming, poly, crit, work,
                        scratch)
-        else:
-            _sweep(lo, hi, line_knots, coef[line], running[line], running_end[line], weight,
-                   kind, line_offsets, constant, degree, best, no_bound, tail_weight,
-                   trailing, piece, upcoming, poly, crit, work, scratch)
         for k in range(6):
             result[row, k] = best[k]
 
@@ -427,11 +422,13 @@ def scan_rows(knots, n_pieces, coef, running, running_end, head, tail, peak, wei
     args = (knots, n_pieces, coef, running, running_end, head, tail, peak, weight, kind,
             offsets, lines, float(constant_weight), int(degree), bool(confined), bool(prune))
     if threads is None:
-        threads = _threads()
-        if threads > 1:
-            work = row_work(n_pieces, lines, weight.shape[0], prune)
-            total = float(work.sum())
-            threads = int(min(threads, total // PARALLEL_FROM_WORK_PER_THREAD))
+        threads = 1
+        n_terms = weight.shape[0]
+        # an upper bound first: most calls are far too small to ask about threads at all
+        most = lines.shape[0] * (int(n_pieces.max()) + n_terms) * float(n_terms * n_terms)
+        if most >= 2 * PARALLEL_FROM_WORK_PER_THREAD and _threads() > 1:
+            total = float(row_work(n_pieces, lines, n_terms, prune).sum())
+            threads = int(min(_threads(), total // PARALLEL_FROM_WORK_PER_THREAD))
     if threads <= 1 or lines.shape[0] < 2:
         return scan_rows_serial(*args)
     work = np.cumsum(row_work(n_pieces, lines, weight.shape[0], prune))
