@@ -65,7 +65,8 @@ def test_grid_of_dense_solves_never_exceeds_the_envelope(job) -> None:
         worst_min = np.full(len(xs), np.inf)
         for direction in (1, -1):
             start = [reach - s if direction == 1 else s for s in shifts]
-            total = sum(P * padded[a:a + len(grid) + reach] for a, P in zip(start, AXLES, strict=True))
+            total = sum(P * padded[a:a + len(grid) + reach]
+                        for a, P in zip(start, AXLES, strict=True))
             worst_max = np.fmax(worst_max, np.nanmax(total, axis=0))
             worst_min = np.fmin(worst_min, np.nanmin(total, axis=0))
         side = "left" if kind == "shear" else None
