@@ -17,6 +17,8 @@ slice of rows, and both kernels run the same loop body.
 
 from __future__ import annotations
 
+import os
+
 import numpy as np
 from numba import njit, prange
 
@@ -71,12 +73,13 @@ def _quadratic_roots(a, b, c, out):
 @njit(**JIT_OPTIONS)
 def _bisect_root(d, lo, hi):
     """A root of the cubic d (low first) in [lo, hi] where d changes sign."""
-    f_lo = _horner(d, 3, lo)
+    degree = d.shape[0] - 1  # 3; not a literal, so _horner compiles once for every caller
+    f_lo = _horner(d, degree, lo)
     for _ in range(200):
         mid = 0.5 * (lo + hi)
         if mid <= lo or mid >= hi:
             break
-        f_mid = _horner(d, 3, mid)
+        f_mid = _horner(d, degree, mid)
         if (f_mid < 0.0) == (f_lo < 0.0):
             lo, f_lo = mid, f_mid
         else:
@@ -107,6 +110,7 @@ def _critical_points(poly, degree, width, out, scratch):
                 n += 1
         return n
     # split (0, width) where the derivative turns, then bracket each sign change
+    cubic = d.shape[0] - 1  # 3, typed as a plain integer: _horner compiles once
     cuts = scratch[6:10]
     cuts[0] = 0.0
     n_cuts = 1
@@ -121,7 +125,7 @@ def _critical_points(poly, degree, width, out, scratch):
     n_cuts += 1
     for i in range(n_cuts - 1):
         lo, hi = cuts[i], cuts[i + 1]
-        f_lo, f_hi = _horner(d, 3, lo), _horner(d, 3, hi)
+        f_lo, f_hi = _horner(d, cubic, lo), _horner(d, cubic, hi)
         if f_lo == 0.0 and 0.0 < lo:
             out[n] = lo
             n += 1
@@ -181,117 +185,35 @@ def _next_break(knots, piece, offset, next_node, own):
 
 
 @njit(**JIT_OPTIONS)
-def _next_knot(knots, piece, offset):
-    """Where the term in ``piece`` of a line (knots of that line only) reaches its next break."""
-    m = knots.shape[0] - 1
-    if piece < 0:
-        return offset + knots[0]
-    if piece < m:
-        return offset + knots[piece + 1]
-    return np.inf
-
-
-@njit(**JIT_OPTIONS)
-def _sweep(xi, hi, knots, coef, running, running_end, weight, kind, offsets, constant,
-           degree, best, tail, tail_weight, trailing, piece, upcoming, poly, crit, work,
-           scratch):
-    """Sweep the reference position from ξ = xi to hi over one line (its own knots only),
-    keeping the extremes in ``best`` = (max, ξ, side, min, ξ, side).
-
-    With ``tail`` given (a bound on |IL| over each piece and every piece after it), the sweep
-    stops as soon as no position still ahead can beat both extremes: every load then stands
-    at or beyond the trailing load's piece, where the response is at most tail_weight · tail.
-    """
-    m = knots.shape[0] - 1
-    n_terms = weight.shape[0]
-    for t in range(n_terms):
-        piece[t] = _locate(knots, xi - offsets[t])
-        upcoming[t] = _next_knot(knots, piece[t], offsets[t])
-    while xi < hi:
-        if tail.shape[0] > 0:
-            p = piece[trailing]
-            if p >= 0:
-                limit = tail_weight * tail[min(p, m)]
-                if limit <= best[0] and -limit >= best[3]:
-                    return
-        nxt = hi
-        for t in range(n_terms):
-            if upcoming[t] < nxt:
-                nxt = upcoming[t]
-        width = nxt - xi
-        if width > 0.0:
-            for i in range(5):
-                poly[i] = 0.0
-            poly[0] = constant
-            for t in range(n_terms):
-                e = piece[t]
-                if e < 0:
-                    continue
-                if kind[t] == KIND_POINT:
-                    if e < m:
-                        _shift_add(poly, coef[e], 4, xi - offsets[t] - knots[e], weight[t],
-                                   work)
-                elif e < m:
-                    _shift_add(poly, running[e], 5, xi - offsets[t] - knots[e], weight[t],
-                               work)
-                else:
-                    poly[0] += weight[t] * running_end
-            v0 = poly[0]
-            v1 = _horner(poly, degree, width)
-            if v0 > best[0]:
-                best[0], best[1], best[2] = v0, xi, 1.0
-            if v0 < best[3]:
-                best[3], best[4], best[5] = v0, xi, 1.0
-            if v1 > best[0]:
-                best[0], best[1], best[2] = v1, nxt, -1.0
-            if v1 < best[3]:
-                best[3], best[4], best[5] = v1, nxt, -1.0
-            n_crit = _critical_points(poly, degree, width, crit, scratch)
-            for k in range(n_crit):
-                v = _horner(poly, degree, crit[k])
-                if v > best[0]:
-                    best[0], best[1], best[2] = v, xi + crit[k], 0.0
-                if v < best[3]:
-                    best[3], best[4], best[5] = v, xi + crit[k], 0.0
-        if nxt == np.inf:
-            break
-        for t in range(n_terms):
-            if upcoming[t] <= nxt:
-                piece[t] = piece[t] + 1 if piece[t] < m else m
-                upcoming[t] = _next_knot(knots, piece[t], offsets[t])
-        xi = nxt
-
-
-@njit(**JIT_OPTIONS)
 def _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, tail, peak,
                 weight, kind, offsets, lines, constant_weight, degree, confined, prune,
                 result):
     """Rows start … stop − 1 into their own slice of ``result``: the one loop body that both
     the serial and the parallel kernel run.
 
-    A row sweeps the reference position ξ over every piece of its line's response. The group
-    enters at the left (first term at x = 0) and leaves at the right. A ``confined`` group
-    (a crane between its end stops) only stands where every concentrated load is on the beam.
-    The row gets (max, ξ at max, side at max, min, ξ at min, side at min); side +1 is the
-    limit from above (ξ → b⁺), −1 from below, 0 an interior point. The empty beam counts
-    (value 0, ξ NaN).
+    A row sweeps the reference position ξ over every piece of its line's response (the line's
+    own knots only). The group enters at the left (first term at x = 0) and leaves at the
+    right. A ``confined`` group (a crane between its end stops) only stands where every
+    concentrated load is on the beam. The row gets (max, ξ at max, side at max, min, ξ at
+    min, side at min); side +1 is the limit from above (ξ → b⁺), −1 from below, 0 an interior
+    point. The empty beam counts (value 0, ξ NaN).
 
     With ``prune`` (concentrated loads only), a row first sweeps from where its leading load
-    reaches the line's largest piece to the right, stopping once the bound ``tail`` says
-    nothing ahead can matter; then from the first position the bound ``head`` cannot rule out
-    up to where the first sweep began. Far from its section an influence line of a continuous
-    beam dies away, so the work per line stops growing with the number of spans.
+    reaches the line's largest piece to the right, and stops as soon as every load stands at
+    or beyond a piece p where the response is at most Σ|w| · tail[p] and that cannot beat
+    either extreme; then it sweeps the positions before, from the first one the bound
+    ``head`` cannot rule out. Far from its section an influence line of a continuous beam
+    dies away, so the work per line stops growing with the number of spans.
     """
     n_terms = weight.shape[0]
     shared = offsets.shape[0] == 1
     piece = np.empty(n_terms, dtype=np.int64)
     upcoming = np.empty(n_terms)
-    poly = np.empty(5)
-    crit = np.empty(3)
-    work = np.empty(5)
-    scratch = np.empty(10)
-    best = np.empty(6)
-    no_bound = np.empty(0)
+    scratch = np.empty(23)  # one allocation for the small work arrays
+    poly = scratch[0:5]
+    crit = scratch[5:8]
+    work = scratch[8:13]
+    roots = scratch[13:23]
     tail_weight = 0.0
     for t in range(n_terms):
         tail_weight += abs(weight[t])
@@ -299,56 +221,118 @@ def _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, 
     for row in range(start, stop):
         line = lines[row]
         m = n_pieces[line]
-        line_knots = knots[line, :m + 1]
-        line_offsets = offsets[0] if shared else offsets[row]
-        lo = line_offsets[0]
-        hi = line_offsets[0]
-        trailing = np.int64(0)
+        line_knots = knots[line]
+        line_coef = coef[line]
+        line_running = running[line]
+        end_value = running_end[line]
+        off = offsets[0] if shared else offsets[row]
+        lo = off[0]
+        hi = off[0]
+        trailing = 0
         for t in range(1, n_terms):
-            if line_offsets[t] < lo:
-                lo = line_offsets[t]
-            if line_offsets[t] > hi:
-                hi = line_offsets[t]
+            if off[t] < lo:
+                lo = off[t]
+            if off[t] > hi:
+                hi = off[t]
                 trailing = t
         lead = lo  # the leading load's offset: it stands at ξ − lead
         hi += line_knots[m]
         if confined:
             for t in range(n_terms):
                 if kind[t] == KIND_POINT:
-                    lo = max(lo, line_offsets[t])
-                    hi = min(hi, line_knots[m] + line_offsets[t])
-        best[0], best[1], best[2] = 0.0, np.nan, 0.0
-        best[3], best[4], best[5] = 0.0, np.nan, 0.0
-        constant = constant_weight * running_end[line]
-        # with ``prune``, first from where the leading load reaches the largest piece
+                    lo = max(lo, off[t])
+                    hi = min(hi, line_knots[m] + off[t])
+        best_max, pos_max, side_max = 0.0, np.nan, 0.0
+        best_min, pos_min, side_min = 0.0, np.nan, 0.0
+        constant = constant_weight * end_value
         split = min(max(line_knots[peak[line]] + lead, lo), hi) if prune else lo
-        _sweep(split, hi, line_knots, coef[line], running[line], running_end[line], weight,
-               kind, line_offsets, constant, degree, best,
-               tail[line, :m + 1] if prune else no_bound, tail_weight, trailing, piece,
-               upcoming, poly, crit, work, scratch)
-        if split > lo:
-            # then the positions before: with every load left of knot p the response is at
-            # most tail_weight · head[p]; skip the longest such stretch
-            line_head = head[line]
-            a, b = 0, m
-            while a < b:
-                mid = (a + b + 1) // 2
-                limit = tail_weight * line_head[mid]
-                if limit <= best[0] and -limit >= best[3]:
-                    a = mid
-                else:
-                    b = mid - 1
-            start_at = min(max(lo, line_knots[a] + lead), split) if a > 0 else lo
-            if start_at < split:
-                _sweep(start_at, split, line_knots, coef[line], running[line],
-                       running_end[line], weight, kind, line_offsets, constant, degree, best,
-                       no_bound, tail_weight, trailing, piece, upcoming, poly, crit, work,
-                       scratch)
-        for k in range(6):
-            result[row, k] = best[k]
+        for phase in range(2):
+            if phase == 0:
+                xi, until, bounded = split, hi, prune
+            else:
+                if split <= lo:
+                    break
+                # with every load left of knot p the response is at most Σ|w| · head[p]:
+                # skip the longest such stretch
+                a, b = 0, m
+                while a < b:
+                    mid = (a + b + 1) // 2
+                    limit = tail_weight * head[line, mid]
+                    if limit <= best_max and -limit >= best_min:
+                        a = mid
+                    else:
+                        b = mid - 1
+                xi = min(max(lo, line_knots[a] + lead), split) if a > 0 else lo
+                until, bounded = split, False
+                if xi >= split:
+                    break
+            for t in range(n_terms):
+                p = _locate(line_knots[:m + 1], xi - off[t])
+                piece[t] = p
+                upcoming[t] = (off[t] + line_knots[0] if p < 0 else
+                               off[t] + line_knots[p + 1] if p < m else np.inf)
+            while xi < until:
+                if bounded:
+                    p = piece[trailing]
+                    if p >= 0:
+                        limit = tail_weight * tail[line, min(p, m)]
+                        if limit <= best_max and -limit >= best_min:
+                            break
+                nxt = until
+                for t in range(n_terms):
+                    if upcoming[t] < nxt:
+                        nxt = upcoming[t]
+                width = nxt - xi
+                if width > 0.0:
+                    for i in range(5):
+                        poly[i] = 0.0
+                    poly[0] = constant
+                    for t in range(n_terms):
+                        e = piece[t]
+                        if e < 0:
+                            continue
+                        if kind[t] == KIND_POINT:
+                            if e < m:
+                                _shift_add(poly, line_coef[e], 4, xi - off[t] - line_knots[e],
+                                           weight[t], work)
+                        elif e < m:
+                            _shift_add(poly, line_running[e], 5, xi - off[t] - line_knots[e],
+                                       weight[t], work)
+                        else:
+                            poly[0] += weight[t] * end_value
+                    v0 = poly[0]
+                    v1 = _horner(poly, degree, width)
+                    if v0 > best_max:
+                        best_max, pos_max, side_max = v0, xi, 1.0
+                    if v0 < best_min:
+                        best_min, pos_min, side_min = v0, xi, 1.0
+                    if v1 > best_max:
+                        best_max, pos_max, side_max = v1, nxt, -1.0
+                    if v1 < best_min:
+                        best_min, pos_min, side_min = v1, nxt, -1.0
+                    n_crit = _critical_points(poly, degree, width, crit, roots)
+                    for k in range(n_crit):
+                        v = _horner(poly, degree, crit[k])
+                        if v > best_max:
+                            best_max, pos_max, side_max = v, xi + crit[k], 0.0
+                        if v < best_min:
+                            best_min, pos_min, side_min = v, xi + crit[k], 0.0
+                if nxt == np.inf:
+                    break
+                for t in range(n_terms):
+                    if upcoming[t] <= nxt:
+                        p = piece[t] + 1 if piece[t] < m else m
+                        piece[t] = p
+                        upcoming[t] = off[t] + line_knots[p + 1] if p < m else np.inf
+                xi = nxt
+        result[row, 0] = best_max
+        result[row, 1] = pos_max
+        result[row, 2] = side_max
+        result[row, 3] = best_min
+        result[row, 4] = pos_min
+        result[row, 5] = side_min
 
 
-@njit(**JIT_OPTIONS)
 def scan_rows_serial(knots, n_pieces, coef, running, running_end, head, tail, peak, weight,
                      kind, offsets, lines, constant_weight, degree, confined, prune):
     """Exact extremes of a load group's response, one row per (line, arrangement).
@@ -379,10 +363,12 @@ def scan_rows_serial(knots, n_pieces, coef, running, running_end, head, tail, pe
     -------
     (n_rows, 6): max, ξ at max, side at max, min, ξ at min, side at min
     """
+    # the compiled loop body is called straight from Python: a compiled wrapper around it
+    # would cost a second compilation of the whole body on the first run, and nothing else
     result = np.empty((lines.shape[0], 6))
     _scan_chunk(0, lines.shape[0], knots, n_pieces, coef, running, running_end, head, tail,
-                peak, weight, kind, offsets, lines, constant_weight, degree, confined, prune,
-                result)
+                peak, weight, kind, offsets, lines, float(constant_weight), int(degree),
+                bool(confined), bool(prune), result)
     return result
 
 
@@ -428,7 +414,8 @@ def scan_rows(knots, n_pieces, coef, running, running_end, head, tail, peak, wei
         most = lines.shape[0] * (int(n_pieces.max()) + n_terms) * float(n_terms * n_terms)
         if most >= 2 * PARALLEL_FROM_WORK_PER_THREAD and _threads() > 1:
             total = float(row_work(n_pieces, lines, n_terms, prune).sum())
-            threads = int(min(_threads(), total // PARALLEL_FROM_WORK_PER_THREAD))
+            threads = int(min(_threads(), _idle_cores(),
+                              total // PARALLEL_FROM_WORK_PER_THREAD))
     if threads <= 1 or lines.shape[0] < 2:
         return scan_rows_serial(*args)
     work = np.cumsum(row_work(n_pieces, lines, weight.shape[0], prune))
@@ -441,6 +428,18 @@ def _threads() -> int:
     import numba
 
     return int(numba.get_num_threads())
+
+
+def _idle_cores() -> int:
+    """Cores not busy with other work (this process's own thread counted as idle): on a
+    machine already loaded a second thread waits for a core, and the slice it holds makes
+    the whole call wait with it (measured: 2 threads slower than 1 at a load of 8 on 2
+    cores)."""
+    try:
+        load = os.getloadavg()[0]
+    except OSError:
+        return _threads()
+    return max(1, int((os.cpu_count() or 1) - load + 1.0))
 
 
 @njit(**JIT_OPTIONS)
