@@ -68,7 +68,8 @@ def sections_of(beam: trundle.Beam, per_span: int) -> np.ndarray:
 
 
 def timed(fn, repeat: int = 5, budget: float = 2.0) -> float:
-    """Median time of fn() [s]; fewer repeats when one call is slow."""
+    """Shortest time of fn() over the repeats [s] (on a shared machine the other runs measure
+    the neighbours); fewer repeats when one call is slow."""
     times = []
     start = time.perf_counter()
     for _ in range(repeat):
@@ -77,7 +78,7 @@ def timed(fn, repeat: int = 5, budget: float = 2.0) -> float:
         times.append(time.perf_counter() - t0)
         if time.perf_counter() - start > budget:
             break
-    return float(np.median(times))
+    return float(np.min(times))
 
 
 def run(beam, sections, load, effects=("moment",)):
@@ -254,8 +255,8 @@ def standard_job(quick: bool) -> None:
 
 
 def growth(quick: bool) -> None:
-    print("\n2. growth (median times; exponent = d log t / d log n over the whole range, and "
-          "over the last step)")
+    print("\n2. growth (shortest of repeated runs; exponent = d log t / d log n over the "
+          "whole range, and over the last step)")
     load = truck()
     cases = {
         "sections (3 spans)": [(trundle.Beam([24.0, 30.0, 24.0]), per)

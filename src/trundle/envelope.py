@@ -715,7 +715,8 @@ _PREPARED_KEEP = 8
 def _prepared_lines(beam: Beam, sections: NDArray[np.float64], families: tuple[str, ...]
                     ) -> tuple:
     """(effects, index, every line, keep, inverse, distinct index, distinct lines)."""
-    key = (beam, np.ascontiguousarray(sections, dtype=float).tobytes(), families)
+    # a Beam compares by identity; its repr spells out every value that defines it
+    key = (repr(beam), np.ascontiguousarray(sections, dtype=float).tobytes(), families)
     found = _PREPARED.get(key)
     if found is None:
         line_effects, index = _line_effects(beam, sections, families)

@@ -21,7 +21,7 @@ from trundle.scan.kernels import KIND_POINT, KIND_RUNNING_INTEGRAL, evaluate_lin
 # lines with at least this many pieces are swept from their largest piece outwards and stop
 # where a bound proves nothing further can matter (see kernels._scan_chunk); shorter lines
 # are swept once from left to right
-PRUNE_FROM_PIECES = 12
+PRUNE_FROM_PIECES = 8
 
 
 @dataclass(frozen=True, eq=False)
@@ -128,6 +128,46 @@ class LineBatch:
     def running(self) -> NDArray[np.float64]:
         """(5, m, n) the running integrals on the shared ``knots``."""
         return self._shared(self.line_running)
+
+    @cached_property
+    def _shared_breaks(self) -> tuple[NDArray[np.int64], NDArray[np.int64], NDArray[np.int64]]:
+        """(prev_node, next_node, own) of the shared layout: for each shared knot the
+        structural node at or before it and the next one after it, and each line's own
+        section as a shared knot (−1 for none); a knot is structural when every line breaks
+        there."""
+        m = len(self.knots) - 1
+        is_node = np.ones(m + 1, dtype=bool)
+        own = np.full(self.n_lines, -1, dtype=np.int64)
+        for j in range(self.n_lines):
+            mine = np.isin(self.knots, self.line_knots[j, :self.n_pieces[j] + 1])
+            is_node &= mine
+        is_node[[0, -1]] = True
+        nodes = np.flatnonzero(is_node)
+        for j in range(self.n_lines):
+            extra = np.setdiff1d(self.line_knots[j, :self.n_pieces[j] + 1], self.knots[nodes])
+            if extra.size:
+                own[j] = int(np.searchsorted(self.knots, extra[0]))
+        index = np.arange(m + 1)
+        prev_node = nodes[np.searchsorted(nodes, index, side="right") - 1].astype(np.int64)
+        after = np.searchsorted(nodes, index, side="right")
+        next_node = np.where(after < len(nodes), nodes[np.minimum(after, len(nodes) - 1)],
+                             m).astype(np.int64)
+        return prev_node, next_node, own
+
+    @property
+    def prev_node(self) -> NDArray[np.int64]:
+        """Shared layout (with ``coef``): the structural node at or before each knot."""
+        return self._shared_breaks[0]
+
+    @property
+    def next_node(self) -> NDArray[np.int64]:
+        """Shared layout: the structural node after each knot."""
+        return self._shared_breaks[1]
+
+    @property
+    def own(self) -> NDArray[np.int64]:
+        """Shared layout: the knot of each line's own section (−1 for none)."""
+        return self._shared_breaks[2]
 
     def _shared(self, coef: NDArray[np.float64]) -> NDArray[np.float64]:
         starts = self.knots[:-1]
