@@ -702,7 +702,7 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
                 g = EMPTY
             distinct.append(_renumbered(g, keep))
         governing[w] = [distinct[u] for u in inverse]
-    return Envelope(beam, sections, cases, line_effects, index_all,
+    return Envelope(beam, sections, cases, tuple(line_effects), index_all,
                     tuple(governing[0]), tuple(governing[1]), full_batch)
 
 
