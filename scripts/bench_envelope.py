@@ -1,26 +1,32 @@
-"""Benchmark: the exact moving-load envelope against fixed-step scans.
+"""Benchmark: the exact moving-load envelope against a static solve per position, a vectorised
+numpy fixed-step scan and a floor estimate; how the cost grows; large jobs; the first run.
 
-Standard job (invented): three continuous spans 24 + 30 + 24 m, EI constant; 31 sections
-(tenth points) x (moment, shear left, shear right) + every reaction; a five-axle vehicle
-(axles 50, 110, 110, 90, 90 kN; spacings 3.6, 1.4, (4.0 .. 9.0), 1.4 m — the third searched),
-both directions; plus a uniform load of 9 kN/m placed anywhere.
+Jobs (all invented): continuous beams of equal EI; a three-axle truck (35, 145, 145 kN at
+4.3 m, both directions); an 80-axle train (20 four-axle cars) over 10 spans.
 
-Printed:
-  (a) time of the exact envelope (numba kernels warm);
-  (b) one static solve per load position at a step of span/1000, for a grid of 17 values of
-      the searched spacing and both directions, the way a general finite-element program is
-      scripted for moving loads: (b1) stiffness factorised once and reused, (b2) assembled and
-      factorised again for every position. Both are timed on a sample of positions and scaled
-      to the full count; the accuracy of each is measured on the full scan of (b1);
-  (c) a vectorised numpy fixed-step scan over the same influence lines at span/1000;
-  a scaling table (sections, axles, spans) and the first-run compile time with a cold and a
-  warm numba cache.
+Printed, in one run (ratios are what to read; absolute times depend on the machine and on
+how loaded it is, so the load average is printed at the start and at the end):
+  1. the standard job (3 spans 24 + 30 + 24 m, 31 sections, moment, the truck): the whole
+     envelope call against (a) the scan kernel's own time, (b) one static solve per position
+     at a step of L/1000, (c) the best numpy fixed-step scan at L/1000 (each line sampled once
+     on the grid, axles shifted and added; with its error), (d) a floor estimate
+     (pieces of the response to visit × 10 flops at 2 Gflop/s);
+  2. growth exponents of the whole call (first call for a beam, lines built; and a repeat
+     call, lines reused) and of the kernel over sections (31 → 3,001), spans (1 → 100, tenth
+     points) and axles (3 → 80);
+  3. large jobs: 3 spans and 3,001 sections, moment + shear left/right + deflection, the truck
+     (time; peak memory of a fresh process); the 80-axle train over 10 spans at tenth points
+     (time, ratio to the floor); kernel efficiency on 2 threads;
+  4. the first run in a fresh process with a cold and a warm numba cache.
 
-Run: .venv/bin/python scripts/bench_envelope.py  [--quick]
+Run: PYTHONPATH=src python scripts/bench_envelope.py [--quick]
+``--quick`` runs every part at tiny sizes (the test suite runs it so the benchmark cannot rot);
+its numbers mean nothing.
 """
 
 from __future__ import annotations
 
+import importlib
 import os
 import subprocess
 import sys
@@ -32,57 +38,112 @@ import numpy as np
 import trundle
 from trundle.analysis.envelope import _line_effects
 from trundle.core.fem import assemble, build_mesh, element_stiffness
+from trundle.scan import kernels
 
-SPANS = [24.0, 30.0, 24.0]
-AXLES = [50.0, 110.0, 110.0, 90.0, 90.0]
-SPACINGS = [3.6, 1.4, (4.0, 9.0), 1.4]
-LANE = 9.0
-BASELINE_SPACINGS = 17
+# the module that holds envelope(), wherever it lives
+envelope_module = importlib.import_module(trundle.envelope.__module__)
+TRUCK = ([35.0, 145.0, 145.0], [4.3, 4.3])
+FLOPS_PER_PIECE = 10.0
+FLOP_RATE = 2e9  # a nominal scalar core [flop/s] for the floor estimate
 
 
-def job(spans=SPANS, axles=AXLES, spacings=SPACINGS, sections_per_span=10):
-    beam = trundle.Beam(spans)
+def truck() -> trundle.Vehicle:
+    return trundle.Vehicle(*TRUCK, name="three-axle truck")
+
+
+def train(cars: int = 20) -> trundle.Vehicle:
+    """Four-axle cars, 200 kN axles: 1.8 m bogie spacing, 7.2 m between bogies, 3.0 m
+    between cars (invented)."""
+    spacings = []
+    for c in range(cars):
+        spacings += [1.8, 7.2, 1.8]
+        if c < cars - 1:
+            spacings.append(3.0)
+    return trundle.Vehicle([200.0] * (4 * cars), spacings, name=f"{4 * cars}-axle train")
+
+
+def sections_of(beam: trundle.Beam, per_span: int) -> np.ndarray:
     ends = beam.support_positions
-    sections = np.unique(np.concatenate([np.linspace(a, b, sections_per_span + 1)
-                                         for a, b in zip(ends[:-1], ends[1:], strict=True)]))
-    loads = [trundle.Vehicle(axles, spacings, name="five-axle"),
-             trundle.UniformLoad(LANE, name="lane")]
-    return beam, sections, loads
+    return np.unique(np.concatenate([np.linspace(a, b, per_span + 1)
+                                     for a, b in zip(ends[:-1], ends[1:], strict=True)]))
 
 
-def exact(beam, sections, loads):
-    return trundle.envelope(beam, loads, sections=sections,
-                            effects=("moment", "shear", "reaction"))
-
-
-def _timed(fn, repeat=3):
-    best = np.inf
-    result = None
+def timed(fn, repeat: int = 5, budget: float = 2.0) -> float:
+    """Shortest time of fn() over the repeats [s] (on a shared machine the other runs measure
+    the neighbours); fewer repeats when one call is slow."""
+    times = []
+    start = time.perf_counter()
     for _ in range(repeat):
         t0 = time.perf_counter()
-        result = fn()
-        best = min(best, time.perf_counter() - t0)
-    return best, result
+        fn()
+        times.append(time.perf_counter() - t0)
+        if time.perf_counter() - start > budget:
+            break
+    return float(np.min(times))
+
+
+def run(beam, sections, load, effects=("moment",)):
+    return trundle.envelope(beam, [load], sections=sections, effects=effects)
+
+
+def first_call(beam, sections, load, effects=("moment",)) -> float:
+    """The whole call for a beam seen for the first time (lines built, not reused)."""
+    def fresh():
+        envelope_module._PREPARED.clear()
+        trundle.core.fem._cached_assembly.cache_clear()
+        run(beam, sections, load, effects)
+    return timed(fresh, repeat=3)
+
+
+def kernel_args(env, load, mirrored: bool):
+    """The arguments the envelope passes the kernel for one direction (its distinct lines)."""
+    batch = env.batch.subset(np.unique(env.batch.identity))
+    group = load.group() if not mirrored else load.group().mirrored()
+    weights, offsets, kinds, _ = group.terms()
+    prune = int(batch.n_pieces.max()) >= trundle.scan.engine.PRUNE_FROM_PIECES
+    return batch, (batch.line_knots, batch.n_pieces, batch.line_coef, batch.line_running,
+                   batch.running_end, batch.head, batch.tail, batch.peak, weights, kinds,
+                   np.ascontiguousarray(offsets[None, :]), np.arange(batch.n_lines), 0.0, 3,
+                   False, prune)
+
+
+def kernel_time(env, load, threads: int | None = 1) -> float:
+    """The scan kernel's own time, both directions, on ``threads`` threads."""
+    calls = [kernel_args(env, load, m)[1] for m in (False, True)]
+
+    def go():
+        for args in calls:
+            kernels.scan_rows(*args, threads=threads)
+    go()
+    return timed(go, repeat=7)
+
+
+def response_pieces(env, load) -> int:
+    """Pieces of the response a sweep visits without pruning: per line and direction, every
+    line piece once for every axle, plus the entry and exit."""
+    batch, _ = kernel_args(env, load, False)
+    n_axles = len(load.loads)
+    return int(2 * ((batch.n_pieces + 1) * n_axles).sum())
+
+
+def floor(env, load) -> float:
+    return response_pieces(env, load) * FLOPS_PER_PIECE / FLOP_RATE
 
 
 class StaticScan:
-    """A plain finite-element moving-load scan: one static solve per load position."""
+    """A plain finite-element moving-load scan: the beam meshed with every section as a node,
+    factorised once, one static solve per load position; moments read at the sections."""
 
     def __init__(self, beam, sections):
         self.beam = beam
-        self.sections = sections
         self.mesh = build_mesh(beam, tuple(sections))
         self.k_el = element_stiffness(self.mesh.element_EI, self.mesh.lengths)
-        self._factorise()
+        self.asm = assemble(self.mesh)
+        x = self.mesh.x
+        self.nodes = np.clip(np.searchsorted(x, sections - 1e-9 * beam.length), 0, len(x) - 1)
 
-    def _factorise(self):
-        asm = assemble(self.mesh)
-        self.asm = asm
-
-    def solve_position(self, xs, ps, reassemble=False):
+    def moments(self, xs, ps):
         mesh = self.mesh
-        if reassemble:
-            self._factorise()
         F = np.zeros(mesh.n_dof)
         q = np.zeros((len(mesh.lengths), 4))
         for x, p in zip(xs, ps, strict=True):
@@ -97,138 +158,255 @@ class StaticScan:
             F[mesh.element_dofs[e]] += n
         u = self.asm.expand(self.asm.solve(F[self.asm.free]))
         Q = np.einsum("eij,ej->ei", self.k_el, u[mesh.element_dofs]) - q
-        nodes = np.array([mesh.node_at(x) for x in self.sections])
-        right = np.minimum(nodes, len(mesh.lengths) - 1)
-        left = np.maximum(nodes - 1, 0)
-        moment = np.where(nodes < len(mesh.lengths), Q[right, 1], -Q[left, 3])
-        shear_right = np.where(nodes < len(mesh.lengths), -Q[right, 0], 0.0)
-        shear_left = np.where(nodes > 0, Q[left, 2], 0.0)
-        R = self.asm.K @ u - F
-        reactions = -R[mesh.v_dof[mesh.support_nodes]]
-        return np.concatenate([moment, shear_left, shear_right, reactions])
+        n_el = len(mesh.lengths)
+        right = np.minimum(self.nodes, n_el - 1)
+        left = np.maximum(self.nodes - 1, 0)
+        return np.where(self.nodes < n_el, Q[right, 1], -Q[left, 3])
 
 
-def positions_for(beam, offsets, step):
-    return np.arange(offsets.min(), beam.length + offsets.max() + step, step)
+def numpy_scan_setup(env, step: float):
+    """Every line sampled once on the grid x = k·step (outside the timing, as trundle's lines
+    are reused between calls)."""
+    length = env.beam.length
+    x = np.arange(0.0, length + 0.5 * step, step)
+    return env.batch.ordinates(np.minimum(x, length), "right")
+
+
+def numpy_scan(ordinates, load, step: float):
+    """Fixed-step scan by shift and add: axle offsets rounded to the grid; both directions."""
+    shifts = np.round(np.cumsum([0.0, *load.spacings]) / step).astype(int)
+    reach = int(shifts.max())
+    n_x, n_lines = ordinates.shape
+    padded = np.zeros((n_x + 2 * reach, n_lines))
+    padded[reach:reach + n_x] = ordinates
+    best_max = np.zeros(n_lines)
+    best_min = np.zeros(n_lines)
+    n_pos = n_x + reach
+    for direction in (1, -1):
+        total = np.zeros((n_pos, n_lines))
+        for s, p in zip(shifts, load.loads, strict=True):
+            # position i puts the reference axle at grid point i (− reach); the axle s steps
+            # behind (direction +1) or ahead (−1) of it
+            start = reach - s if direction == 1 else s
+            total += p * padded[start:start + n_pos]
+        np.maximum(best_max, total.max(axis=0), out=best_max)
+        np.minimum(best_min, total.min(axis=0), out=best_min)
+    return best_max, best_min
+
+
+def exponent(sizes, times) -> tuple[float, float]:
+    """(overall, last step) growth exponents d log t / d log n."""
+    sizes, times = np.asarray(sizes, float), np.asarray(times, float)
+    whole = np.log(times[-1] / times[0]) / np.log(sizes[-1] / sizes[0])
+    last = np.log(times[-1] / times[-2]) / np.log(sizes[-1] / sizes[-2])
+    return float(whole), float(last)
+
+
+def load_average() -> str:
+    try:
+        return " ".join(f"{v:.2f}" for v in os.getloadavg())
+    except OSError:
+        return "n/a"
+
+
+def standard_job(quick: bool) -> None:
+    beam = trundle.Beam([24.0, 30.0, 24.0])
+    sections = beam.tenth_points()
+    load = truck()
+    env = run(beam, sections, load)
+    t_call = timed(lambda: run(beam, sections, load), repeat=20 if not quick else 2)
+    t_kernel = kernel_time(env, load)
+    t_floor = floor(env, load)
+    exact_max, exact_min = env.max("moment"), env.min("moment")
+    scale = max(np.abs(exact_max).max(), np.abs(exact_min).max())
+
+    step = beam.length / 1000
+    ordinates = numpy_scan_setup(env, step)
+    lines = env.lines_of("moment")
+    t_numpy = timed(lambda: numpy_scan(ordinates, load, step), repeat=20 if not quick else 2)
+    n_max, n_min = numpy_scan(ordinates, load, step)
+    err_numpy = max(np.abs(n_max[lines] - exact_max).max(),
+                    np.abs(n_min[lines] - exact_min).max()) / scale
+
+    static = StaticScan(beam, sections)
+    offsets = np.cumsum([0.0, *load.spacings])
+    xi = np.arange(offsets.min(), beam.length + offsets.max() + step, step)
+    n_positions = 2 * len(xi)
+    sample = xi[np.linspace(0, len(xi) - 1, 20 if quick else 200).astype(int)]
+    t0 = time.perf_counter()
+    worst = np.zeros(len(sections))
+    for x in sample:
+        worst = np.maximum(worst, static.moments(x - offsets, load.loads))
+    t_static = (time.perf_counter() - t0) / len(sample) * n_positions
+
+    print(f"1. standard job: spans 24 + 30 + 24 m, {len(sections)} sections, moment, "
+          f"{load.name} both ways ({response_pieces(env, load)} response pieces)")
+    print(f"   {'':38s} {'time':>10s} {'ratio to trundle':>17s}")
+    rows = [("trundle, whole envelope call", t_call),
+            ("(a) its scan kernel alone", t_kernel),
+            (f"(b) static solve per position, L/1000 ({n_positions})", t_static),
+            ("(c) numpy shift-and-add scan, L/1000", t_numpy),
+            (f"(d) floor ({FLOPS_PER_PIECE:g} flops/piece, {FLOP_RATE / 1e9:g} Gflop/s)",
+             t_floor)]
+    for label, t in rows:
+        print(f"   {label:38s} {t * 1e3:8.3f} ms {t / t_call:16.3g}x")
+    print(f"   whole call / kernel: {t_call / t_kernel:.1f};  numpy scan / whole call: "
+          f"{t_numpy / t_call:.2f};  worst error of the numpy scan: {err_numpy:.1e} of the "
+          "largest moment (trundle: exact)")
+
+
+def growth(quick: bool) -> None:
+    print("\n2. growth (shortest of repeated runs; exponent = d log t / d log n over the "
+          "whole range, and over the last step)")
+    load = truck()
+    cases = {
+        "sections (3 spans)": [(trundle.Beam([24.0, 30.0, 24.0]), per)
+                               for per in ((2, 5, 10) if quick else (10, 30, 100, 300, 1000))],
+        "spans (tenth points)": [(trundle.Beam([25.0] * n), 10)
+                                 for n in ((1, 2, 3) if quick else (1, 3, 10, 30, 100))],
+    }
+    for name, jobs in cases.items():
+        sizes, first, repeat, kernel = [], [], [], []
+        for beam, per in jobs:
+            sections = sections_of(beam, per)
+            env = run(beam, sections, load)
+            sizes.append(len(sections) if name.startswith("sections") else beam.n_spans)
+            first.append(first_call(beam, sections, load))
+            repeat.append(timed(lambda b=beam, s=sections: run(b, s, load)))
+            kernel.append(kernel_time(env, load))
+        _growth_table(name, sizes, first, repeat, kernel)
+    beam = trundle.Beam([24.0, 30.0, 24.0])
+    sections = beam.tenth_points()
+    sizes, first, repeat, kernel = [], [], [], []
+    for cars in ((1, 2) if quick else (1, 3, 8, 20)):
+        vehicle = train(cars)
+        env = run(beam, sections, vehicle)
+        sizes.append(len(vehicle.loads))
+        first.append(first_call(beam, sections, vehicle))
+        repeat.append(timed(lambda v=vehicle: run(beam, sections, v)))
+        kernel.append(kernel_time(env, vehicle))
+    _growth_table("axles (3 spans, 31 sections)", sizes, first, repeat, kernel)
+
+
+def _growth_table(name, sizes, first, repeat, kernel) -> None:
+    print(f"   {name}")
+    print(f"   {'n':>8s} {'first call':>12s} {'repeat call':>12s} {'kernel':>12s}")
+    for n, a, b, c in zip(sizes, first, repeat, kernel, strict=True):
+        print(f"   {n:8d} {a * 1e3:9.2f} ms {b * 1e3:9.2f} ms {c * 1e3:9.3f} ms")
+    for label, t in (("first call", first), ("repeat call", repeat), ("kernel", kernel)):
+        whole, last = exponent(sizes, t)
+        print(f"   exponent {label:12s} {whole:5.2f} (last step {last:5.2f})")
+
+
+BIG_CODE = """
+import resource, sys, time
+import numpy as np
+import trundle
+per, effects = int(sys.argv[1]), tuple(sys.argv[2].split(","))
+beam = trundle.Beam([24.0, 30.0, 24.0])
+ends = beam.support_positions
+sections = np.unique(np.concatenate([np.linspace(a, b, per + 1)
+                                     for a, b in zip(ends[:-1], ends[1:])]))
+truck = trundle.Vehicle([35.0, 145.0, 145.0], [4.3, 4.3])
+trundle.envelope(trundle.Beam([10.0]), [truck], effects=effects)  # kernels loaded
+before = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
+t0 = time.perf_counter()
+env = trundle.envelope(beam, [truck], sections=sections, effects=effects)
+t = time.perf_counter() - t0
+after = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
+print(len(sections), len(env.effects), t, before / 1024, after / 1024)
+"""
+
+
+def large_jobs(quick: bool) -> None:
+    print("\n3. large jobs")
+    per = 3 if quick else 1000
+    effects = "moment,shear,deflection"
+    out = subprocess.run([sys.executable, "-c", BIG_CODE, str(per), effects],
+                         capture_output=True, text=True, check=True, env=os.environ.copy())
+    n_sec, n_lines, t, before, after = out.stdout.split()
+    print(f"   3 spans, {n_sec} sections, moment + shear L/R + deflection ({n_lines} lines), "
+          f"three-axle truck, fresh process, first call: {float(t):.3f} s; peak memory "
+          f"{float(after):.0f} MB (before the call {float(before):.0f} MB: interpreter, "
+          "numpy, scipy, numba)")
+
+    beam = trundle.Beam([30.0] * (2 if quick else 10))
+    sections = beam.tenth_points()
+    vehicle = train(2 if quick else 20)
+    env = run(beam, sections, vehicle)
+    t_call = timed(lambda: run(beam, sections, vehicle), repeat=3)
+    t_first = first_call(beam, sections, vehicle)
+    t_floor = floor(env, vehicle)
+    t_kernel = kernel_time(env, vehicle)
+    print(f"   {len(vehicle.loads)}-axle train over {beam.n_spans} spans of 30 m, "
+          f"{len(sections)} tenth points, moment: whole call {t_call * 1e3:.1f} ms (first call "
+          f"{t_first * 1e3:.1f} ms), kernel {t_kernel * 1e3:.1f} ms, floor "
+          f"{t_floor * 1e3:.2f} ms; whole call / floor {t_call / t_floor:.1f}")
+
+    print("   kernel on 1 and 2 threads (efficiency = t1 / (2 · t2)):")
+    big_beam = trundle.Beam([24.0, 30.0, 24.0])
+    jobs = [("3 spans, 3,001 sections, moment + shear + deflection, truck", big_beam,
+             sections_of(big_beam, 3 if quick else 1000), truck(),
+             ("moment", "shear", "deflection")),
+            ("10 spans, tenth points, 80-axle train", beam, sections, vehicle, ("moment",)),
+            ("100 spans, tenth points, truck", trundle.Beam([25.0] * (3 if quick else 100)),
+             None, truck(), ("moment",))]
+    for label, b, s, ld, eff in jobs:
+        s = sections_of(b, 10) if s is None else s
+        env = run(b, s, ld, eff)
+        one = kernel_time(env, ld, threads=1)
+        two = kernel_time(env, ld, threads=2)
+        auto = kernel_time(env, ld, threads=None)
+        print(f"     {label:62s} 1: {one * 1e3:8.2f} ms  2: {two * 1e3:8.2f} ms  "
+              f"efficiency {one / (2 * two):.2f}  (chosen automatically: {auto * 1e3:.2f} ms)")
+
+
+FIRST_CODE = """
+import time
+t0 = time.perf_counter()
+import trundle
+t1 = time.perf_counter()
+beam = trundle.Beam([24.0, 30.0, 24.0])
+truck = trundle.Vehicle([35.0, 145.0, 145.0], [4.3, 4.3])
+trundle.envelope(beam, [truck], effects=("moment",))
+t2 = time.perf_counter()
+env = trundle.envelope(trundle.Beam([25.0] * 100), [truck], effects=("moment", "shear"))
+from trundle.scan import kernels
+import numpy as np
+b = env.batch
+w, o, k, _ = truck.group().terms()
+kernels.scan_rows(b.line_knots, b.n_pieces, b.line_coef, b.line_running, b.running_end,
+                  b.head, b.tail, b.peak, w, k, o[None, :], np.arange(b.n_lines), 0.0, 3,
+                  threads=2)
+t3 = time.perf_counter()
+print(t1 - t0, t2 - t1, t3 - t2)
+"""
+
+
+def first_run(quick: bool) -> None:
+    print("\n4. first run in a fresh process [s]: import trundle; first envelope (3 spans, "
+          "moment, truck); first use of the parallel kernel")
+    if quick:
+        print("   (skipped in --quick: compiling takes seconds)")
+        return
+    with tempfile.TemporaryDirectory() as cache:
+        env = {**os.environ, "NUMBA_CACHE_DIR": cache}
+        for label in ("cold numba cache (compiles)", "warm numba cache"):
+            out = subprocess.run([sys.executable, "-c", FIRST_CODE], env=env,
+                                 capture_output=True, text=True, check=True)
+            a, b, c = (float(v) for v in out.stdout.split())
+            print(f"   {label:28s} import {a:6.2f}  first envelope {b:6.2f}  "
+                  f"parallel kernel {c:6.2f}")
 
 
 def main(quick: bool = False) -> None:
-    beam, sections, loads = job()
-    exact(beam, sections, loads)  # compile / load kernels
-    t_exact, env = _timed(lambda: exact(beam, sections, loads))
-    exact_max = np.concatenate([env.max("moment"), env.max("shear", "left"),
-                                env.max("shear", "right"), env.max("reaction")])
-    exact_min = np.concatenate([env.min("moment"), env.min("shear", "left"),
-                                env.min("shear", "right"), env.min("reaction")])
-    n_lines = len(env.effects)
-    print(f"job: spans {SPANS} m, {len(sections)} sections x (moment, shear L/R) + "
-          f"{len(beam.supports)} reactions = {n_lines} lines; five-axle vehicle with one "
-          "searched spacing, both directions; uniform load anywhere")
-    print(f"(a) exact envelope                      : {t_exact * 1e3:9.1f} ms")
-
-    step = min(SPANS) / 1000
-    vehicle = loads[0]
-    grid = np.linspace(4.0, 9.0, BASELINE_SPACINGS)
-    scan = StaticScan(beam, sections)
-    n_positions = 0
-    for g in grid:
-        u = vehicle.axle_offsets([g])
-        n_positions += 2 * len(positions_for(beam, u, step))
-    sample = 60 if quick else 200
-    u = vehicle.axle_offsets([grid[0]])
-    xi = positions_for(beam, u, step)
-    pick = xi[np.linspace(0, len(xi) - 1, sample).astype(int)]
-    t0 = time.perf_counter()
-    for x in pick:
-        scan.solve_position(x - u, vehicle.loads)
-    per_reused = (time.perf_counter() - t0) / sample
-    t0 = time.perf_counter()
-    for x in pick[: sample // 4]:
-        scan.solve_position(x - u, vehicle.loads, reassemble=True)
-    per_reassembled = (time.perf_counter() - t0) / (sample // 4)
-    t_b1 = per_reused * n_positions
-    t_b2 = per_reassembled * n_positions
-
-    # accuracy of the fixed-step static scan: run it in full on the vehicle part only
-    vehicle_env = trundle.envelope(beam, [vehicle], sections=sections,
-                                   effects=("moment", "shear", "reaction"))
-    v_max = np.concatenate([vehicle_env.max("moment"), vehicle_env.max("shear", "left"),
-                            vehicle_env.max("shear", "right"), vehicle_env.max("reaction")])
-    if quick:
-        err_b = float("nan")
-    else:
-        best = np.zeros_like(v_max)
-        for g in grid[:: 4 if quick else 1]:
-            u = vehicle.axle_offsets([g])
-            for direction in (1, -1):
-                uu = u if direction == 1 else -u
-                for x in positions_for(beam, uu, step):
-                    best = np.maximum(best, scan.solve_position(x - uu, vehicle.loads))
-        err_b = np.max(np.abs(best - v_max) / np.abs(v_max).max())
-
-    # (c) vectorised numpy scan over the same lines
-    effects, _ = _line_effects(beam, sections, ("moment", "shear", "reaction"))
-    lines = beam.influence_set(effects)
-
-    def numpy_scan():
-        best_max = np.zeros(n_lines)
-        best_min = np.zeros(n_lines)
-        for g in grid:
-            u = vehicle.axle_offsets([g])
-            for uu in (u, -u):
-                xi = positions_for(beam, uu, step)
-                total = np.zeros((len(xi), n_lines))
-                for d, p in zip(uu, vehicle.loads, strict=True):
-                    x = xi - d
-                    on = (x >= 0) & (x <= beam.length)
-                    total[on] += p * lines(x[on])
-                best_max = np.maximum(best_max, total.max(axis=0))
-                best_min = np.minimum(best_min, total.min(axis=0))
-        x = np.arange(0.0, beam.length + step, step)
-        ordinates = lines(np.minimum(x, beam.length))
-        pos = np.trapezoid(np.maximum(ordinates, 0), x, axis=0) * LANE
-        neg = np.trapezoid(np.minimum(ordinates, 0), x, axis=0) * LANE
-        return np.maximum(best_max, pos), np.minimum(best_min, neg)
-
-    t_c, (c_max, c_min) = _timed(numpy_scan, repeat=1 if quick else 2)
-    order = np.concatenate([env.lines_of("moment"), env.lines_of("shear", "left"),
-                            env.lines_of("shear", "right"), env.lines_of("reaction")])
-    scale = max(np.abs(exact_max).max(), np.abs(exact_min).max())
-    err_c = max(np.max(np.abs(c_max[order] - exact_max)), np.max(np.abs(c_min[order] - exact_min)))
-    print(f"(b1) static solve per position, reused : {t_b1:9.2f} s  "
-          f"({n_positions} positions; x{t_b1 / t_exact:,.0f} slower; "
-          f"worst error {err_b:.1e} of the largest value, vehicle part)")
-    print(f"(b2) static solve per position, rebuilt: {t_b2:9.2f} s  "
-          f"(x{t_b2 / t_exact:,.0f} slower)")
-    print(f"(c)  numpy fixed-step scan, same lines : {t_c:9.3f} s  "
-          f"(x{t_c / t_exact:,.1f} slower; worst error {err_c / scale:.1e} of the largest value)")
-
-    print("\nscaling of (a) [ms]:")
-    rows = []
-    for n in (5, 10, 30, 100):
-        b, s, ld = job(sections_per_span=n)
-        rows.append((f"sections {len(s)}", _timed(lambda b=b, s=s, ld=ld: exact(b, s, ld))[0]))
-    for k in (2, 5, 10, 20):
-        ax = [100.0] * k
-        sp = [1.5] * (k - 1)
-        b, s, ld = job(axles=ax, spacings=sp)
-        rows.append((f"axles {k} (fixed spacing)",
-                     _timed(lambda b=b, s=s, ld=ld: exact(b, s, ld))[0]))
-    for n in (1, 3, 10):
-        b, s, ld = job(spans=[25.0] * n)
-        rows.append((f"spans {n}", _timed(lambda b=b, s=s, ld=ld: exact(b, s, ld))[0]))
-    for label, t in rows:
-        print(f"  {label:28s} {t * 1e3:9.1f}")
-
-    print("\nfirst run in a new process (import + one envelope) [s]:")
-    code = ("import time; t=time.perf_counter(); import sys; sys.path.insert(0, 'scripts'); "
-            "import bench_envelope as b; b.exact(*b.job()); print(time.perf_counter()-t)")
-    with tempfile.TemporaryDirectory() as cache:
-        envvars = {**os.environ, "NUMBA_CACHE_DIR": cache}
-        for label in ("cold numba cache (compiles)", "warm numba cache"):
-            out = subprocess.run([sys.executable, "-c", code], env=envvars, capture_output=True,
-                                 text=True, check=True, cwd=os.path.dirname(__file__) + "/..")
-            print(f"  {label:28s} {float(out.stdout.strip()):9.2f}")
+    print(f"load average at start (1, 5, 15 min): {load_average()}; "
+          f"{os.cpu_count()} cpus; numba threads {kernels._threads()}")
+    standard_job(quick)
+    growth(quick)
+    large_jobs(quick)
+    first_run(quick)
+    print(f"\nload average at end: {load_average()}")
 
 
 if __name__ == "__main__":

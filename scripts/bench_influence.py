@@ -13,23 +13,25 @@ re-meshes and factorises per load case but is banded (cost linear in the number 
 (b) a dense solve of the same stiffness per load case (numpy.linalg.solve), the way a
 straightforward script built on a general matrix library does it.
 
-Run: .venv/bin/python scripts/bench_influence.py
+Run: PYTHONPATH=src python scripts/bench_influence.py [--quick]
+``--quick`` runs it on 40 sections (the test suite runs it so the benchmark cannot rot).
 """
 
 from __future__ import annotations
 
+import sys
 import time
 
 import numpy as np
 
 import trundle
-from trundle.core.influence import Effect
+from trundle.core.influence import Effect, line_pieces
 from trundle.core.statics import PointLoad, PointMoment
 
 
-def job() -> tuple[trundle.Beam, list[Effect], np.ndarray]:
+def job(quick: bool = False) -> tuple[trundle.Beam, list[Effect], np.ndarray]:
     beam = trundle.Beam([20.0] * 10, supports=["fixed"] + ["pin"] * 10, hinges=[30.0, 50.0])
-    sections = np.linspace(0.0, beam.length, 1000)
+    sections = np.linspace(0.0, beam.length, 40 if quick else 1000)
     effects = [Effect(kind, at=float(x), side=side) for x in sections
                for kind, side in (("moment", None), ("shear", "left"), ("shear", "right"),
                                   ("deflection", None))]
@@ -41,8 +43,8 @@ def read_all(result, sections: np.ndarray) -> np.ndarray:
                            result.shear(sections, "right"), result.deflection(sections)])
 
 
-def main() -> None:
-    beam, effects, sections = job()
+def main(quick: bool = False) -> None:
+    beam, effects, sections = job(quick)
     beam.influence_set(effects[:4])  # warm imports
     runs = []
     for _ in range(3):
@@ -51,8 +53,15 @@ def main() -> None:
         lines = beam.influence_set(effects)
         runs.append(time.perf_counter() - t0)
     ours = min(runs)
+    runs = []
+    for _ in range(3):
+        trundle.core.fem._cached_assembly.cache_clear()
+        t0 = time.perf_counter()
+        line_pieces(beam, effects)
+        runs.append(time.perf_counter() - t0)
+    own_breaks = min(runs)
     knots = lines.knots
-    sample = knots[np.linspace(1, len(knots) - 2, 40).astype(int)]
+    sample = knots[np.linspace(1, len(knots) - 2, 5 if quick else 40).astype(int)]
     t0 = time.perf_counter()
     worst = 0.0
     n_sec = len(sections)
@@ -78,6 +87,8 @@ def main() -> None:
     print(f"job: {beam.n_spans} spans, {len(sections)} sections x 4 effects = {len(effects)} "
           f"lines, {len(knots) - 1} cubic pieces each")
     print(f"one factorisation, all lines       : {ours:8.3f} s")
+    print(f"each line on its own breaks        : {own_breaks:8.3f} s "
+          f"(what envelopes use; shared knots / own: {ours / own_breaks:.1f})")
     print(f"static solve per knot (value+slope): {baseline:8.3f} s "
           f"(timed on {len(sample)} knots, scaled to {len(knots)})")
     print(f"  ratio                            : {baseline / ours:8.1f} x")
@@ -88,4 +99,4 @@ def main() -> None:
 
 
 if __name__ == "__main__":
-    main()
+    main(quick="--quick" in sys.argv)

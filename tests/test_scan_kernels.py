@@ -14,6 +14,7 @@ import math
 import numpy as np
 import pytest
 
+import trundle
 from naive_scan import (
     Arrangement,
     PlainLine,
@@ -25,7 +26,7 @@ from naive_scan import (
     random_sections,
     taylor_shift,
 )
-from trundle.scan import LineBatch, TermGroup, kernels, scan_group
+from trundle.scan import LineBatch, TermGroup, group_response, kernels, scan_group
 
 # --- helpers -------------------------------------------------------------------------------------
 
@@ -39,20 +40,30 @@ def _close_sets(found: list[float], expected: list[float], rel: float) -> bool:
 
 
 def _run_kernel(parallel: bool, batch: LineBatch, group: TermGroup,
-                lines: np.ndarray | None = None, offsets: np.ndarray | None = None
-                ) -> np.ndarray:
+                lines: np.ndarray | None = None, offsets: np.ndarray | None = None,
+                prune: bool = False) -> np.ndarray:
     """Call the compiled kernel directly: one row per line (all lines by default), the
-    group's offsets shared by every row unless ``offsets`` gives them per row; with the
-    batch's record of where each line really breaks, as the engine passes it."""
+    group's offsets shared by every row unless ``offsets`` gives them per row; the parallel
+    kernel with the rows cut into three uneven slices."""
     weights, own_offsets, kinds, constant = group.terms()
     degree = 4 if (kinds == kernels.KIND_RUNNING_INTEGRAL).any() else 3
     lines = np.arange(batch.n_lines) if lines is None else lines
     offsets = own_offsets[None, :] if offsets is None else offsets
-    kernel = kernels.scan_rows_parallel if parallel else kernels.scan_rows_serial
-    return kernel(batch.knots, batch.coef, batch.running, batch.running_end, weights, kinds,
-                  np.ascontiguousarray(offsets, dtype=float), np.ascontiguousarray(lines),
-                  float(constant), degree, group.confined, batch.prev_node, batch.next_node,
-                  batch.own)
+    args = (batch.line_knots, batch.n_pieces, batch.line_coef, batch.line_running,
+            batch.running_end, batch.head, batch.tail, batch.peak, weights, kinds,
+            np.ascontiguousarray(offsets, dtype=float), np.ascontiguousarray(lines),
+            float(constant), degree, group.confined, prune)
+    if not parallel:
+        return kernels.scan_rows_serial(*args)
+    n = len(lines)
+    bounds = np.array([0, n // 5, n // 2, n], dtype=np.int64)
+    return kernels.scan_rows_parallel(*args, bounds)
+
+
+def _own_line(batch: LineBatch, j: int) -> PlainLine:
+    """Line j of the batch as its plain twin, on its own knots."""
+    m = batch.n_pieces[j]
+    return PlainLine.from_ppoly(batch.line_knots[j, :m + 1], batch.line_coef[j, :m].T)
 
 
 def _random_group(rng: np.random.Generator, length: float, uniform: str
@@ -251,21 +262,79 @@ def test_rows_with_their_own_arrangements_match_plain_scan(seed: int) -> None:
         assert serial[r, 3] == pytest.approx(expected[r, 3], abs=1e-10 * scale)
 
 
+@pytest.mark.parametrize("seed", range(3))
+def test_own_breaks_equal_every_knot(seed: int) -> None:
+    # A line is one cubic between structural nodes and its own section; the batch stores it
+    # on those breaks only. Reference: the same lines on every section's knot (the shared
+    # layout of influence_set), scanned by the same kernel, which the plain twin above checks.
+    rng, beam, lines = _lines_of_random_beam(seed)
+    own = LineBatch.from_set(lines)
+    n, knots = len(lines), lines.knots
+    every = LineBatch.from_arrays(np.ascontiguousarray(np.broadcast_to(knots, (n, len(knots)))),
+                                  np.full(n, len(knots) - 1), lines.coefficients.transpose(2, 1, 0),
+                                  knots, np.arange(n))
+    assert own.line_knots.shape[1] < len(knots) or len(knots) <= 3
+    group, _ = _random_group(rng, beam.length, "both")
+    a, b = _run_kernel(False, own, group), _run_kernel(False, every, group)
+    size = np.abs(b[:, [0, 3]]).max()
+    np.testing.assert_allclose(a[:, [0, 3]], b[:, [0, 3]], rtol=0, atol=1e-12 * size)
+
+
+def _long_beam_lines(rng: np.random.Generator, spans: int):
+    lengths = np.round(rng.uniform(8.0, 30.0, spans), 1)
+    beam = trundle.Beam(list(lengths))
+    ends = beam.support_positions
+    sections = np.unique(np.concatenate([np.linspace(a, b, 6)
+                                         for a, b in zip(ends[:-1], ends[1:], strict=True)]))
+    return beam, beam.influence_set(effects_at(beam, list(sections)))
+
+
+@pytest.mark.parametrize("seed", range(4))
+def test_pruned_sweep_matches_plain_scan(seed: int) -> None:
+    """Sweeping from a line's largest piece outwards and stopping where the bound on |IL|
+    rules the rest out gives the extremes of the full sweep (twin: plain_scan)."""
+    rng = np.random.default_rng(seed)
+    beam, lines = _long_beam_lines(rng, int(rng.integers(6, 12)))
+    batch = LineBatch.from_set(lines)
+    n_axles = int(rng.integers(1, 6))
+    u = np.concatenate([[0.0], np.cumsum(np.round(rng.uniform(1.0, 9.0, n_axles - 1), 2))])
+    P = np.round(rng.uniform(20.0, 150.0, n_axles), 1)
+    group = TermGroup(tuple(u.tolist()), tuple(P.tolist()))
+    arrangement = Arrangement(tuple(zip(u.tolist(), P.tolist(), strict=True)), ())
+    pruned = _run_kernel(False, batch, group, prune=True)
+    np.testing.assert_array_equal(pruned, _run_kernel(True, batch, group, prune=True))
+    full = _run_kernel(False, batch, group)
+    kinds = np.array([e.kind for e in lines.effects])
+    for j in rng.choice(len(lines), 12, replace=False):
+        expected = plain_scan(_own_line(batch, j), arrangement)
+        scale = max(np.abs(full[kinds == kinds[j]][:, [0, 3]]).max(), 1e-300)
+        for col in (0, 3):
+            assert pruned[j, col] == pytest.approx(expected[col], abs=1e-10 * scale)
+            assert full[j, col] == pytest.approx(expected[col], abs=1e-10 * scale)
+            if not np.isnan(pruned[j, col + 1]):  # the position reproduces the value
+                # (read by the engine, which puts a load missing a knot by rounding on it)
+                again = group_response(batch, group, pruned[j, col + 1],
+                                       pruned[j, col + 2])[j]
+                assert again == pytest.approx(pruned[j, col], abs=1e-10 * scale)
+    size = np.abs(full[:, [0, 3]]).max()
+    np.testing.assert_allclose(pruned[:, [0, 3]], full[:, [0, 3]], rtol=0, atol=1e-12 * size)
+
 
 @pytest.mark.parametrize("seed", range(3))
-def test_skipping_other_sections_knots_changes_nothing_but_rounding(seed: int) -> None:
-    # A line is one cubic between structural nodes and its own section; the kernel may walk
-    # only those breaks. Reference: the same kernel breaking at every knot (no structure
-    # given), which the plain twin above checks.
+def test_evaluate_lines_matches_plain_lines(seed: int) -> None:
     rng, beam, lines = _lines_of_random_beam(seed)
     batch = LineBatch.from_set(lines)
-    group, _ = _random_group(rng, beam.length, "both")
-    weights, offsets, kinds, constant = group.terms()
-    args = (batch.knots, batch.coef, batch.running, batch.running_end, weights, kinds,
-            np.ascontiguousarray(offsets[None, :]), np.arange(batch.n_lines), float(constant), 4)
-    every_knot = kernels.scan_rows_serial(*args)
-    real_breaks = kernels.scan_rows_serial(*args, False, batch.prev_node, batch.next_node,
-                                           batch.own)
-    size = np.abs(every_knot[:, [0, 3]]).max()
-    np.testing.assert_allclose(real_breaks[:, [0, 3]], every_knot[:, [0, 3]], rtol=0,
-                               atol=1e-12 * size)
+    x = np.concatenate([rng.uniform(0.0, beam.length, 20), lines.knots])
+    for side in ("left", "right"):
+        found = batch.ordinates(x, side)
+        for j in range(batch.n_lines):
+            twin = _own_line(batch, j)
+            expected = [twin.ordinate(float(v), side) for v in x]
+            np.testing.assert_allclose(found[:, j], expected, rtol=1e-12,
+                                       atol=1e-12 * max(1.0, np.abs(expected).max()))
+    running = batch.running_at(x)
+    for j in range(batch.n_lines):
+        twin = _own_line(batch, j)
+        expected = [twin.running(float(v)) for v in x]
+        np.testing.assert_allclose(running[:, j], expected, rtol=1e-12,
+                                   atol=1e-12 * max(1.0, np.abs(expected).max()))

@@ -18,7 +18,7 @@ from numpy.typing import ArrayLike, NDArray
 from scipy.optimize import minimize_scalar
 
 from trundle.core.beam import Beam, ModelError, Spring
-from trundle.core.influence import Effect, influence_set, piece_sign_intervals, signed_areas
+from trundle.core.influence import Effect, line_pieces, piece_sign_intervals, signed_areas
 from trundle.loads.cases import LoadCase, Together, as_case
 from trundle.loads.patterns import UniformLoad
 from trundle.scan.engine import (
@@ -645,13 +645,8 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
         raise ModelError("loads: at least one load is needed")
     sections = beam.tenth_points() if sections is None else np.atleast_1d(
         np.asarray(sections, dtype=float))
-    line_effects, index = _line_effects(beam, sections, effects)
-    lines = influence_set(beam, line_effects)
-    full_batch = LineBatch.from_set(lines)
-    # identical lines (shear just left and right of a section inside a span, zero lines) are
-    # scanned once; `index` below is in terms of the distinct lines
-    keep, inverse, index_all, index = _distinct_lines(lines.coefficients, index)
-    batch = full_batch if keep.size == full_batch.n_lines else full_batch.subset(keep)
+    line_effects, index_all, full_batch, keep, inverse, index, batch = _prepared_lines(
+        beam, sections, tuple(effects))
     n = batch.n_lines
     # largest and smallest ordinate of every line: where a placed load's point load stands
     placed = any(isinstance(p.load, UniformLoad) for c in cases
@@ -711,27 +706,54 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
                     tuple(governing[0]), tuple(governing[1]), full_batch)
 
 
-def _distinct_lines(coefficients: NDArray[np.float64], index: dict[str, NDArray[np.int64]]
+# lines ready to scan, by beam, sections and families (values, not identities): a beam
+# checked again, under other loads, reuses them
+_PREPARED: dict[tuple, tuple] = {}
+_PREPARED_KEEP = 8
+
+
+def _prepared_lines(beam: Beam, sections: NDArray[np.float64], families: tuple[str, ...]
+                    ) -> tuple:
+    """(effects, index, every line, keep, inverse, distinct index, distinct lines)."""
+    # a Beam compares by identity; its repr spells out every value that defines it
+    key = (repr(beam), np.ascontiguousarray(sections, dtype=float).tobytes(), families)
+    found = _PREPARED.get(key)
+    if found is None:
+        line_effects, index = _line_effects(beam, sections, families)
+        # each line on its own breaks: memory and work grow with lines x structural pieces
+        full_batch = LineBatch.from_pieces(line_pieces(beam, line_effects))
+        # identical lines (shear just left and right of a section inside a span, zero lines)
+        # are scanned once; the distinct index is in terms of the distinct lines
+        keep, inverse, index_all, distinct = _distinct_lines(full_batch.identity, index)
+        batch = full_batch if keep.size == full_batch.n_lines else full_batch.subset(keep)
+        found = (tuple(line_effects), index_all, full_batch, keep, inverse, distinct, batch)
+        if len(_PREPARED) >= _PREPARED_KEEP:
+            _PREPARED.pop(next(iter(_PREPARED)))
+        _PREPARED[key] = found
+    return found
+
+
+def _distinct_lines(identity: NDArray[np.int64], index: dict[str, NDArray[np.int64]]
                     ) -> tuple[NDArray[np.int64], NDArray[np.int64], dict, dict]:
-    """Lines of the same family with identical coefficients, found once.
+    """Lines of the same family built the same way (``LinePieces.identity``), kept once.
 
     Returns (keep, inverse, index, distinct index): line ``keep[u]`` stands for distinct line
     u, line j is distinct line ``inverse[j]``, and the family index in both numberings.
     """
-    n = coefficients.shape[2]
-    family = np.zeros(n)
+    n = identity.size
+    family = np.zeros(n, dtype=np.int64)
     for code, (name, lines) in enumerate(index.items()):
         # shear just left and just right of a section inside a span are the same line
         family[lines] = -1 if name.startswith("shear") else code
-    keys = np.concatenate([family[None, :], coefficients.reshape(-1, n)], axis=0).T
-    _, keep, inverse = np.unique(keys, axis=0, return_index=True, return_inverse=True)
+    key = (family + 1) * n + identity
+    _, keep, inverse = np.unique(key, return_index=True, return_inverse=True)
     # number the distinct lines in the order they first appear
     order = np.argsort(keep)
     rank = np.empty_like(order)
     rank[order] = np.arange(order.size)
-    keep, inverse = keep[order], rank[np.asarray(inverse).ravel()]
+    keep, inverse = keep[order].astype(np.int64), rank[np.asarray(inverse).ravel()]
     distinct = {f: np.unique(inverse[lines]).astype(np.int64) for f, lines in index.items()}
-    return keep.astype(np.int64), inverse, index, distinct
+    return keep, inverse, index, distinct
 
 
 def _renumbered(g: Governing, keep: NDArray[np.int64]) -> Governing:

@@ -16,7 +16,6 @@ from dataclasses import dataclass
 from typing import Literal
 
 import numpy as np
-from numba import njit
 from numpy.typing import ArrayLike, NDArray
 from scipy.interpolate import PPoly
 
@@ -157,7 +156,8 @@ class InfluenceSet:
 
     def __init__(self, knots: NDArray[np.float64], coefficients: NDArray[np.float64],
                  effects: Sequence[Effect], node_knots: NDArray[np.int64] | None = None,
-                 own_knots: NDArray[np.int64] | None = None):
+                 own_knots: NDArray[np.int64] | None = None,
+                 pieces: LinePieces | None = None):
         self.knots = np.ascontiguousarray(knots, dtype=float)
         self.coefficients = np.ascontiguousarray(coefficients, dtype=float)
         self.effects = tuple(effects)
@@ -165,6 +165,8 @@ class InfluenceSet:
         # section (own_knots, −1 for none); None when not known
         self.node_knots = node_knots
         self.own_knots = own_knots
+        # the same lines each on its own breaks, when built by influence_set
+        self.pieces = pieces
         self.ppoly = PPoly.construct_fast(self.coefficients, self.knots, extrapolate=False)
 
     def __len__(self) -> int:
@@ -245,25 +247,6 @@ _ROW_AT_LEFT_END = {"moment": (0.0, 1.0, 0.0, 0.0), "shear": (-1.0, 0.0, 0.0, 0.
 _ROW_AT_RIGHT_END = {"moment": (0.0, 0.0, 0.0, -1.0), "shear": (0.0, 0.0, 1.0, 0.0)}
 
 
-@njit(**JIT_OPTIONS)
-def _spread_pieces(coarse, piece_element, offset, out):
-    """out[:, i, j] = coarse cubic of piece i's element for line j, re-expanded at knot i."""
-    n_pieces = piece_element.shape[0]
-    n_lines = coarse.shape[2]
-    for i in range(n_pieces):
-        e = piece_element[i]
-        d = offset[i]
-        for j in range(n_lines):
-            c3 = coarse[0, e, j]
-            c2 = coarse[1, e, j]
-            c1 = coarse[2, e, j]
-            c0 = coarse[3, e, j]
-            out[0, i, j] = c3
-            out[1, i, j] = c2 + 3.0 * c3 * d
-            out[2, i, j] = c1 + (2.0 * c2 + 3.0 * c3 * d) * d
-            out[3, i, j] = c0 + (c1 + (c2 + c3 * d) * d) * d
-
-
 def _taylor_shift(c: NDArray[np.float64], d: NDArray[np.float64]) -> NDArray[np.float64]:
     """Cubics c (4, …; highest power first) re-expanded about a point d further along."""
     c3, c2, c1, c0 = c
@@ -271,8 +254,47 @@ def _taylor_shift(c: NDArray[np.float64], d: NDArray[np.float64]) -> NDArray[np.
                      c0 + (c1 + (c2 + c3 * d) * d) * d])
 
 
-def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
-    """Influence lines of many effects from one factorisation; all share the same knots.
+@dataclass(frozen=True, eq=False)
+class LinePieces:
+    """Influence lines stored as what they are: a line is one cubic per structural element
+    (between supports, hinges, stiffness changes), and a line whose section lies inside an
+    element has that element split in two at the section. Memory is lines x elements, not
+    lines x every section's knot.
+
+    Fields
+    ------
+    knots : (n, K) each line's own breakpoints, K = n_elements + 2; row j uses the first
+        ``n_pieces[j] + 1`` entries, the rest repeat the beam's length [length]
+    n_pieces : (n,) pieces of each line (n_elements, or n_elements + 1 when split)
+    coefficients : (n, K − 1, 4) cubic of each piece, highest power first, in x − knot
+    effects : the effect of each line
+    nodes : (n_elements + 1,) x of the structural nodes [length]
+    sections : (n_sections,) x of the sections that split an element [length]
+    identity : (n,) for each line the first line built the same way: the two lines are
+        identical (shear just left and right of a section inside an element; every line that
+        is zero by construction shares the identity of the first such line)
+    split_at : (n,) index in the line's knots of its own section, −1 where it splits nothing
+    """
+
+    knots: NDArray[np.float64]
+    n_pieces: NDArray[np.int64]
+    coefficients: NDArray[np.float64]
+    effects: tuple[Effect, ...]
+    nodes: NDArray[np.float64]
+    sections: NDArray[np.float64]
+    identity: NDArray[np.int64]
+    split_at: NDArray[np.int64]
+
+    def __len__(self) -> int:
+        return len(self.effects)
+
+    @property
+    def length(self) -> float:
+        return float(self.nodes[-1])
+
+
+def line_pieces(beam: Beam, effects: Iterable[Effect]) -> LinePieces:
+    """Influence lines of many effects from one factorisation, each on its own breaks only.
 
     The structure is solved on its own nodes only (supports, hinges, stiffness changes), which
     keeps the stiffness well conditioned however many sections are asked for. A section inside
@@ -303,11 +325,21 @@ def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
     recovery: list[tuple[int, int, NDArray[np.float64]]] = []  # (line, element, r)
     zero_lines: list[int] = []
     inner: list[tuple[int, int, float, Effect]] = []  # sections inside elements
+    # how each line is built; equal keys give identical lines
+    built: dict[tuple, int] = {}
+    identity = np.empty(n_lines, dtype=np.int64)
+
+    def same_as(j: int, key: tuple) -> None:
+        identity[j] = built.setdefault(key, j)
 
     def add_element_load(j: int, element: int, g: NDArray[np.float64]) -> None:
         for local, dof in enumerate(mesh.element_dofs[element]):
             if free_pos[dof] >= 0:
                 rhs[free_pos[dof], j] += g[local]
+
+    def zero(j: int) -> None:
+        zero_lines.append(j)
+        same_as(j, ("zero",))
 
     for j, e in enumerate(effects):
         if e.kind in ("reaction", "support_moment"):
@@ -321,6 +353,7 @@ def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
             ):
                 raise ModelError(f"support {e.support} does not restrain rotation: "
                                  "it has no reaction couple")
+            same_as(j, (e.kind, e.support))
             if isinstance(support, Spring):
                 stiffness = support.k if e.kind == "reaction" else support.kr
                 rhs[free_pos[dof], j] += stiffness
@@ -332,6 +365,8 @@ def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
         x = min(max(float(e.at), 0.0), length)
         node = int(np.argmin(np.abs(xc - x)))
         if abs(xc[node] - x) > tol:
+            # inside an element neither side counts: no point force or couple acts there
+            same_as(j, (e.kind, x))
             inner.append((j, int(np.searchsorted(xc, x, side="right")) - 1, x, e))
             continue
         if e.kind in ("deflection", "rotation"):
@@ -340,9 +375,12 @@ def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
             else:
                 dof = mesh.theta_left_dof[node] if e.side == "left" else mesh.theta_right_dof[node]
             if mesh.constrained[dof]:
-                zero_lines.append(j)
+                zero(j)
             elif free_pos[dof] >= 0:
+                same_as(j, ("dof", dof))
                 rhs[free_pos[dof], j] += 1.0
+            else:
+                same_as(j, ("dof", dof))
             continue
         # moment or shear at a node, read from the element on the chosen side of the node;
         # the moment jumps too where a support holds rotation (its couple), so side= counts
@@ -352,9 +390,10 @@ def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
         else:
             use_right = e.side == "right"
             if (use_right and node == n_el) or (not use_right and node == 0):
-                zero_lines.append(j)  # nothing beyond the beam's end: V = 0 there
+                zero(j)  # nothing beyond the beam's end: V = 0 there
                 continue
         element = node if use_right else node - 1
+        same_as(j, (e.kind, node, use_right))
         r = np.array(_ROW_AT_LEFT_END[e.kind] if use_right else _ROW_AT_RIGHT_END[e.kind])
         add_element_load(j, element, k_el[element] @ r)
         recovery.append((j, element, r))
@@ -372,26 +411,71 @@ def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
     values = u[mesh.element_dofs]  # (n_el, 4, n_lines)
     for j, element, r in recovery:
         values[element, :, j] -= r
-    for j in zero_lines:
-        values[:, :, j] = 0.0
+    if zero_lines:
+        values[:, :, zero_lines] = 0.0
     coarse = hermite_coefficients(values, h)  # (4, n_el, n_lines)
 
-    # shared knots: the structure's nodes and every section
-    sections = np.array([x for _, _, x, _ in inner])
-    knots = np.unique(np.concatenate([xc, sections]))
+    # every line on the structural pieces; a padding piece of zero width at the end
+    coefficients = np.zeros((n_lines, n_el + 1, 4))
+    coefficients[:, :n_el] = coarse.transpose(2, 1, 0)
+    knots = np.empty((n_lines, n_el + 2))
+    knots[:, :n_el + 1] = xc
+    knots[:, n_el + 1] = length
+    n_pieces = np.full(n_lines, n_el, dtype=np.int64)
+    sections = np.zeros(0)
+    split_at = np.full(n_lines, -1, dtype=np.int64)
+    if inner_data is not None:
+        lines_in, elements_in = inner_data[0], inner_data[1]
+        sections = inner_data[4]
+        left_coef, right_coef = _inner_pieces(values, h, inner_data)
+        # the element of the section splits: pieces after it move one place along
+        piece = np.arange(n_el + 1)
+        source = np.where(piece[None, :] <= elements_in[:, None], piece, piece - 1)
+        coefficients[lines_in] = coarse.transpose(2, 1, 0)[lines_in[:, None], source]
+        coefficients[lines_in, elements_in] = left_coef.T
+        coefficients[lines_in, elements_in + 1] = right_coef.T
+        knot = np.arange(n_el + 2)
+        knot_source = np.where(knot[None, :] <= elements_in[:, None], knot, knot - 1)
+        knots[lines_in] = xc[knot_source]
+        knots[lines_in, elements_in + 1] = sections
+        n_pieces[lines_in] = n_el + 1
+        split_at[lines_in] = elements_in + 1
+    return LinePieces(knots, n_pieces, coefficients, tuple(effects), xc.copy(), sections,
+                      identity, split_at)
+
+
+def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
+    """Influence lines of many effects from one factorisation; all share the same knots
+    (the structure's nodes and every section), the layout of ``scipy.interpolate.PPoly``.
+
+    Sharing knots costs lines x sections; the envelope works on ``line_pieces`` instead.
+    """
+    pieces = line_pieces(beam, effects)
+    length = beam.length
+    tol = 1e-9 * length
+    xc = pieces.nodes
+    knots = np.unique(np.concatenate([xc, pieces.sections]))
     knots = knots[np.concatenate([[True], np.diff(knots) > tol])]
     knots[-1] = length
-    piece_element = np.clip(np.searchsorted(xc, 0.5 * (knots[:-1] + knots[1:])) - 1, 0, n_el - 1)
-    offset = knots[:-1] - xc[piece_element]
-    coefficients = np.empty((4, len(knots) - 1, n_lines))
-    _spread_pieces(np.ascontiguousarray(coarse), piece_element, offset, coefficients)
-    if inner_data is not None:
-        _fill_inner_sections(coefficients, knots, piece_element, values, xc, h, inner_data, tol)
+    n_el = len(xc) - 1
+    n_lines = len(pieces)
+    element = np.clip(np.searchsorted(xc, 0.5 * (knots[:-1] + knots[1:])) - 1, 0, n_el - 1)
+    # which of its own pieces each line reads on each shared piece: the element, one
+    # further along behind a line's own split
+    which = np.broadcast_to(element[:, None], (len(element), n_lines)).copy()
+    split = np.flatnonzero(pieces.n_pieces > n_el)
+    if split.size:
+        own = pieces.knots[split, pieces.split_at[split]]
+        behind = knots[:-1, None] >= own[None, :] - tol
+        which[:, split] += behind
+    start = np.take_along_axis(pieces.knots.T, which, axis=0)  # (m, n)
+    source = pieces.coefficients[np.arange(n_lines)[None, :], which].transpose(2, 0, 1)
+    coefficients = _taylor_shift(source, knots[:-1, None] - start)
     node_knots = np.flatnonzero(np.isin(knots, xc))
     own_knots = np.full(n_lines, -1, dtype=np.int64)
-    for j, _, x, _ in inner:
-        own_knots[j] = int(np.argmin(np.abs(knots - x)))
-    return InfluenceSet(knots, coefficients, effects, node_knots, own_knots)
+    if split.size:
+        own_knots[split] = np.argmin(np.abs(knots[None, :] - own[:, None]), axis=1)
+    return InfluenceSet(knots, coefficients, pieces.effects, node_knots, own_knots, pieces)
 
 
 def _condense_inner_sections(inner: list, mesh, h: NDArray[np.float64]) -> tuple | None:
@@ -441,24 +525,16 @@ def _condense_inner_sections(inner: list, mesh, h: NDArray[np.float64]) -> tuple
     return lines, elements, dofs, loads, x, c, solved, rows, sub
 
 
-def _fill_inner_sections(coefficients, knots, piece_element, values, xc, h, inner_data, tol):
-    """Write the exact sub-element cubics of lines whose section lies inside an element."""
+def _inner_pieces(values: NDArray[np.float64], h: NDArray[np.float64], inner_data: tuple
+                  ) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
+    """The exact sub-element cubics (4, n_inner) left and right of sections inside elements,
+    each local to its own start (the element's left node, the section)."""
     lines, elements, _, _, x, c, solved, rows, sub = inner_data
     z_end = values[elements, :, lines]  # (n, 4)
     z_s = solved[:, :, 0] - np.einsum("nij,nj->ni", solved[:, :, 1:], z_end)
     left = np.concatenate([z_end[:, :2], z_s], axis=1) - rows * (sub == 0)[:, None]
     right = np.concatenate([z_s, z_end[:, 2:]], axis=1) - rows * (sub == 1)[:, None]
-    left_coef = hermite_coefficients(left, c)  # (4, n)
-    right_coef = hermite_coefficients(right, h[elements] - c)
-    start = np.searchsorted(piece_element, elements, side="left")
-    count = np.searchsorted(piece_element, elements, side="right") - start
-    owner = np.repeat(np.arange(len(lines)), count)
-    first = np.repeat(np.cumsum(count) - count, count)
-    pieces = start[owner] + np.arange(owner.size) - first
-    on_left = knots[pieces] < x[owner] - tol
-    origin = np.where(on_left, xc[elements][owner], x[owner])
-    source = np.where(on_left, left_coef[:, owner], right_coef[:, owner])
-    coefficients[:, pieces, lines[owner]] = _taylor_shift(source, knots[pieces] - origin)
+    return hermite_coefficients(left, c), hermite_coefficients(right, h[elements] - c)
 
 
 def influence_batch(beam: Beam, kind: str, at: ArrayLike | None = None,

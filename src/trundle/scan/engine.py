@@ -8,91 +8,192 @@ exact evaluation of the group's response at a given ξ for concurrent effects.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from functools import cached_property
 
 import numpy as np
 from numpy.typing import NDArray
-from scipy.interpolate import PPoly
 
-from trundle.core.influence import InfluenceSet, _eval_sided
-from trundle.scan.kernels import KIND_POINT, KIND_RUNNING_INTEGRAL, scan_rows
+from trundle.core.influence import InfluenceSet, LinePieces
+from trundle.scan.kernels import KIND_POINT, KIND_RUNNING_INTEGRAL, evaluate_lines, scan_rows
+
+# lines with at least this many pieces are swept from their largest piece outwards and stop
+# where a bound proves nothing further can matter (see kernels._scan_chunk); shorter lines
+# are swept once from left to right
+PRUNE_FROM_PIECES = 8
 
 
 @dataclass(frozen=True, eq=False)
 class LineBatch:
-    """Influence lines prepared for scanning: cubics, their running integrals, shared knots.
+    """Influence lines prepared for scanning, each on its own breaks: cubics, their running
+    integrals and bounds, in the layout the kernels read (see ``scan_rows_serial``).
 
     Fields
     ------
-    knots : (m + 1,) shared breakpoints [length]
-    coef : (4, m, n) cubic coefficients, highest power first
-    running : (5, m, n) quartic coefficients of F(x) = ∫₀ˣ IL
+    line_knots : (n, K) each line's breakpoints; row j uses the first n_pieces[j] + 1 [length]
+    n_pieces : (n,)
+    line_coef : (n, K − 1, 4) cubic coefficients per piece, highest power first
+    line_running : (n, K − 1, 5) quartic coefficients of F(x) = ∫₀ˣ IL per piece
     running_end : (n,) F at the right end of the beam
-    prev_node, next_node, own : where each line really breaks (see scan_rows_parallel);
-        None: at every knot
+    head, tail : (n, K) bounds on |IL| before knot p and from piece p on; peak : (n,) the
+        piece with the largest bound
+    knots : every point where some line breaks (structural nodes and sections), sorted
+    identity : (n,) lines built the same way share it (see ``LinePieces.identity``)
     """
 
-    knots: NDArray[np.float64]
-    coef: NDArray[np.float64]
-    running: NDArray[np.float64]
+    line_knots: NDArray[np.float64]
+    n_pieces: NDArray[np.int64]
+    line_coef: NDArray[np.float64]
+    line_running: NDArray[np.float64]
     running_end: NDArray[np.float64]
-    prev_node: NDArray[np.int64] | None = None
-    next_node: NDArray[np.int64] | None = None
-    own: NDArray[np.int64] | None = None
+    head: NDArray[np.float64]
+    tail: NDArray[np.float64]
+    peak: NDArray[np.int64]
+    knots: NDArray[np.float64]
+    identity: NDArray[np.int64]
+
+    @classmethod
+    def from_pieces(cls, pieces: LinePieces) -> LineBatch:
+        return cls.from_arrays(pieces.knots, pieces.n_pieces, pieces.coefficients,
+                               np.unique(np.concatenate([pieces.nodes, pieces.sections])),
+                               pieces.identity)
 
     @classmethod
     def from_set(cls, lines: InfluenceSet) -> LineBatch:
-        knots = lines.knots
-        c = lines.coefficients
-        h = np.diff(knots)
-        running = np.zeros((5, *c.shape[1:]))
-        running[0] = c[0] / 4.0
-        running[1] = c[1] / 3.0
-        running[2] = c[2] / 2.0
-        running[3] = c[3]
-        piece_integrals = (((running[0] * h[:, None] + running[1]) * h[:, None] + running[2])
-                           * h[:, None] + running[3]) * h[:, None]
-        cumulative = np.cumsum(piece_integrals, axis=0)
-        running[4, 1:] = cumulative[:-1]
-        prev_node = next_node = own = None
-        if lines.node_knots is not None:
-            is_node = np.zeros(len(knots), dtype=bool)
-            is_node[lines.node_knots] = True
-            is_node[[0, -1]] = True
-            nodes = np.flatnonzero(is_node)
-            prev_node = nodes[np.searchsorted(nodes, np.arange(len(knots)), side="right") - 1]
-            after = np.searchsorted(nodes, np.arange(len(knots)), side="right")
-            next_node = np.where(after < len(nodes), nodes[np.minimum(after, len(nodes) - 1)],
-                                 len(knots) - 1).astype(np.int64)
-            own = np.ascontiguousarray(lines.own_knots, dtype=np.int64)
-        return cls(knots, np.ascontiguousarray(c), np.ascontiguousarray(running),
-                   np.ascontiguousarray(cumulative[-1]), prev_node, next_node, own)
+        """From lines on shared knots: each on its own breaks when the set knows them
+        (built by ``influence_set``), else every line on every shared knot."""
+        if lines.pieces is not None:
+            return cls.from_pieces(lines.pieces)
+        n = len(lines)
+        knots = np.ascontiguousarray(np.broadcast_to(lines.knots, (n, len(lines.knots))))
+        return cls.from_arrays(knots, np.full(n, len(lines.knots) - 1, dtype=np.int64),
+                               lines.coefficients.transpose(2, 1, 0), lines.knots,
+                               np.arange(n, dtype=np.int64))
+
+    @classmethod
+    def from_arrays(cls, knots: NDArray[np.float64], n_pieces: NDArray[np.int64],
+                    coef: NDArray[np.float64], all_knots: NDArray[np.float64],
+                    identity: NDArray[np.int64]) -> LineBatch:
+        n, n_knots = knots.shape
+        h = np.diff(knots, axis=1)  # zero on the padding
+        running = np.zeros((n, n_knots - 1, 5))
+        running[:, :, 0] = coef[:, :, 0] / 4.0
+        running[:, :, 1] = coef[:, :, 1] / 3.0
+        running[:, :, 2] = coef[:, :, 2] / 2.0
+        running[:, :, 3] = coef[:, :, 3]
+        piece_integrals = ((((running[:, :, 0] * h + running[:, :, 1]) * h + running[:, :, 2])
+                            * h + running[:, :, 3]) * h)
+        cumulative = np.cumsum(piece_integrals, axis=1)
+        running[:, 1:, 4] = cumulative[:, :-1]
+        # a bound on |IL| over each closed piece: Σ |c_k| h^k
+        bound = (((np.abs(coef[:, :, 0]) * h + np.abs(coef[:, :, 1])) * h
+                  + np.abs(coef[:, :, 2])) * h + np.abs(coef[:, :, 3]))
+        valid = np.arange(n_knots - 1)[None, :] < n_pieces[:, None]
+        bound = np.where(valid, bound, 0.0)
+        head = np.zeros((n, n_knots))
+        head[:, 1:] = np.maximum.accumulate(bound, axis=1)
+        tail = np.zeros((n, n_knots))
+        tail[:, :-1] = np.maximum.accumulate(bound[:, ::-1], axis=1)[:, ::-1]
+        return cls(np.ascontiguousarray(knots, dtype=float),
+                   np.ascontiguousarray(n_pieces, dtype=np.int64),
+                   np.ascontiguousarray(coef, dtype=float), running,
+                   np.ascontiguousarray(cumulative[:, -1]), head, tail,
+                   np.argmax(bound, axis=1).astype(np.int64),
+                   np.ascontiguousarray(all_knots, dtype=float),
+                   np.ascontiguousarray(identity, dtype=np.int64))
 
     def subset(self, lines: NDArray[np.int64]) -> LineBatch:
         """The same batch restricted to some lines."""
-        return LineBatch(self.knots, np.ascontiguousarray(self.coef[:, :, lines]),
-                         np.ascontiguousarray(self.running[:, :, lines]),
-                         np.ascontiguousarray(self.running_end[lines]), self.prev_node,
-                         self.next_node, None if self.own is None
-                         else np.ascontiguousarray(self.own[lines]))
+        return LineBatch(self.line_knots[lines], self.n_pieces[lines], self.line_coef[lines],
+                         self.line_running[lines], self.running_end[lines], self.head[lines],
+                         self.tail[lines], self.peak[lines], self.knots,
+                         self.identity[lines])
 
     @property
     def n_lines(self) -> int:
-        return self.coef.shape[2]
+        return self.line_coef.shape[0]
 
     @property
     def length(self) -> float:
         return float(self.knots[-1])
 
+    @cached_property
+    def coef(self) -> NDArray[np.float64]:
+        """(4, m, n) the lines on the shared ``knots`` (PPoly layout). Costs lines × every
+        knot: for a few lines or for output, not for the scan."""
+        return self._shared(self.line_coef)
+
+    @cached_property
+    def running(self) -> NDArray[np.float64]:
+        """(5, m, n) the running integrals on the shared ``knots``."""
+        return self._shared(self.line_running)
+
+    @cached_property
+    def _shared_breaks(self) -> tuple[NDArray[np.int64], NDArray[np.int64], NDArray[np.int64]]:
+        """(prev_node, next_node, own) of the shared layout: for each shared knot the
+        structural node at or before it and the next one after it, and each line's own
+        section as a shared knot (−1 for none); a knot is structural when every line breaks
+        there."""
+        m = len(self.knots) - 1
+        is_node = np.ones(m + 1, dtype=bool)
+        own = np.full(self.n_lines, -1, dtype=np.int64)
+        for j in range(self.n_lines):
+            mine = np.isin(self.knots, self.line_knots[j, :self.n_pieces[j] + 1])
+            is_node &= mine
+        is_node[[0, -1]] = True
+        nodes = np.flatnonzero(is_node)
+        for j in range(self.n_lines):
+            extra = np.setdiff1d(self.line_knots[j, :self.n_pieces[j] + 1], self.knots[nodes])
+            if extra.size:
+                own[j] = int(np.searchsorted(self.knots, extra[0]))
+        index = np.arange(m + 1)
+        prev_node = nodes[np.searchsorted(nodes, index, side="right") - 1].astype(np.int64)
+        after = np.searchsorted(nodes, index, side="right")
+        next_node = np.where(after < len(nodes), nodes[np.minimum(after, len(nodes) - 1)],
+                             m).astype(np.int64)
+        return prev_node, next_node, own
+
+    @property
+    def prev_node(self) -> NDArray[np.int64]:
+        """Shared layout (with ``coef``): the structural node at or before each knot."""
+        return self._shared_breaks[0]
+
+    @property
+    def next_node(self) -> NDArray[np.int64]:
+        """Shared layout: the structural node after each knot."""
+        return self._shared_breaks[1]
+
+    @property
+    def own(self) -> NDArray[np.int64]:
+        """Shared layout: the knot of each line's own section (−1 for none)."""
+        return self._shared_breaks[2]
+
+    def _shared(self, coef: NDArray[np.float64]) -> NDArray[np.float64]:
+        starts = self.knots[:-1]
+        which = np.empty((len(starts), self.n_lines), dtype=np.int64)
+        for j in range(self.n_lines):
+            own = self.line_knots[j, :self.n_pieces[j] + 1]
+            which[:, j] = np.clip(np.searchsorted(own, starts, side="right") - 1, 0,
+                                  self.n_pieces[j] - 1)
+        lines = np.arange(self.n_lines)[None, :]
+        d = starts[:, None] - self.line_knots[lines, which]
+        source = coef[lines, which]  # (m, n, c), highest power first
+        degree = coef.shape[2] - 1
+        out = np.zeros((degree + 1, *which.shape))
+        # Taylor shift by d: Horner's scheme on the derivatives
+        for k in range(degree + 1):  # coefficient of t^k after the shift
+            total = np.zeros(which.shape)
+            for i in range(k, degree + 1):  # from the term c_i t^i (i = power)
+                total += source[:, :, degree - i] * math.comb(i, k) * d ** (i - k)
+            out[degree - k] = total
+        return out
+
     def running_at(self, x: NDArray[np.float64]) -> NDArray[np.float64]:
         """F(x) for every line, (len(x), n); F = 0 left of the beam and F(L) right of it."""
         x = np.asarray(x, dtype=float)
-        idx = np.clip(np.searchsorted(self.knots, x, side="right") - 1, 0, len(self.knots) - 2)
-        s = np.clip(x, 0.0, self.length) - self.knots[idx]
-        out = np.zeros((len(x), self.n_lines))
-        for power in range(5):
-            out = out * s[:, None] + self.running[power, idx]
+        out = evaluate_lines(self.line_knots, self.n_pieces, self.line_running,
+                             np.clip(x, 0.0, self.length), False)
         out[x <= 0.0] = 0.0
         out[x >= self.length] = self.running_end
         return out
@@ -111,16 +212,13 @@ class LineBatch:
                            nearest - 1, nearest)
         close = np.abs(self.knots[nearest] - x) <= 1e-12 * max(1.0, self.length)
         x = np.where(close, self.knots[nearest], x)
-        out = _eval_sided(self._ppoly, x, side)
+        out = evaluate_lines(self.line_knots, self.n_pieces, self.line_coef,
+                             np.ascontiguousarray(x), side == "left")
         if side == "left":
             out[(x <= 0.0) | (x > self.length)] = 0.0
         else:
             out[(x < 0.0) | (x >= self.length)] = 0.0
         return out
-
-    @cached_property
-    def _ppoly(self) -> PPoly:
-        return PPoly.construct_fast(self.coef, self.knots)
 
 
 @dataclass(frozen=True)
@@ -194,13 +292,16 @@ def scan_arrangements(batch: LineBatch, weights: NDArray[np.float64], kinds: NDA
                       offsets: NDArray[np.float64], lines: NDArray[np.int64],
                       constant: float = 0.0, confined: bool = False) -> NDArray[np.float64]:
     """One row per (line, arrangement): ``offsets`` (n_rows or 1, n_terms), ``lines`` (n_rows,)."""
-    degree = 4 if (kinds == KIND_RUNNING_INTEGRAL).any() else 3
-    return scan_rows(batch.knots, batch.coef, batch.running, batch.running_end,
+    uniform = bool((kinds == KIND_RUNNING_INTEGRAL).any())
+    # bounds on |IL| only hold concentrated loads in check
+    prune = not uniform and constant == 0.0 and int(batch.n_pieces.max()) >= PRUNE_FROM_PIECES
+    return scan_rows(batch.line_knots, batch.n_pieces, batch.line_coef, batch.line_running,
+                     batch.running_end, batch.head, batch.tail, batch.peak,
                      np.ascontiguousarray(weights, dtype=float),
                      np.ascontiguousarray(kinds, dtype=np.int64),
                      np.ascontiguousarray(offsets, dtype=float),
-                     np.ascontiguousarray(lines, dtype=np.int64), constant, degree, confined,
-                     batch.prev_node, batch.next_node, batch.own)
+                     np.ascontiguousarray(lines, dtype=np.int64), constant,
+                     4 if uniform else 3, confined, prune)
 
 
 def group_response(batch: LineBatch, group: TermGroup, xi: float, side: float = 0.0

@@ -9,11 +9,15 @@ polynomial of degree ≤ 4 in ξ; its extremes lie at the piece ends or where it
 vanishes, found in closed form (quadratic) or by bracketing (cubic). The result is exact to
 rounding, not to a step.
 
-Kernels take plain arrays only. Each line is independent, so lines run in parallel and each
-writes only its own output slot.
+Kernels take plain arrays only. Each line is stored on its own breaks (the structural nodes
+and its own section), so a row's work is the number of structural pieces, however many other
+sections there are. Rows are independent: the parallel kernel gives each thread a contiguous
+slice of rows, and both kernels run the same loop body.
 """
 
 from __future__ import annotations
+
+import os
 
 import numpy as np
 from numba import njit, prange
@@ -69,12 +73,13 @@ def _quadratic_roots(a, b, c, out):
 @njit(**JIT_OPTIONS)
 def _bisect_root(d, lo, hi):
     """A root of the cubic d (low first) in [lo, hi] where d changes sign."""
-    f_lo = _horner(d, 3, lo)
+    degree = d.shape[0] - 1  # 3; not a literal, so _horner compiles once for every caller
+    f_lo = _horner(d, degree, lo)
     for _ in range(200):
         mid = 0.5 * (lo + hi)
         if mid <= lo or mid >= hi:
             break
-        f_mid = _horner(d, 3, mid)
+        f_mid = _horner(d, degree, mid)
         if (f_mid < 0.0) == (f_lo < 0.0):
             lo, f_lo = mid, f_mid
         else:
@@ -105,6 +110,7 @@ def _critical_points(poly, degree, width, out, scratch):
                 n += 1
         return n
     # split (0, width) where the derivative turns, then bracket each sign change
+    cubic = d.shape[0] - 1  # 3, typed as a plain integer: _horner compiles once
     cuts = scratch[6:10]
     cuts[0] = 0.0
     n_cuts = 1
@@ -119,7 +125,7 @@ def _critical_points(poly, degree, width, out, scratch):
     n_cuts += 1
     for i in range(n_cuts - 1):
         lo, hi = cuts[i], cuts[i + 1]
-        f_lo, f_hi = _horner(d, 3, lo), _horner(d, 3, hi)
+        f_lo, f_hi = _horner(d, cubic, lo), _horner(d, cubic, hi)
         if f_lo == 0.0 and 0.0 < lo:
             out[n] = lo
             n += 1
@@ -179,118 +185,169 @@ def _next_break(knots, piece, offset, next_node, own):
 
 
 @njit(**JIT_OPTIONS)
-def _scan_row(row, line, knots, coef, running, running_end, weight, kind, offsets,
-              constant, degree, result, confined, prev_node, next_node, own):
-    """Sweep the reference position ξ over every piece of one line's response.
+def _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, tail, peak,
+                weight, kind, offsets, lines, constant_weight, degree, confined, prune,
+                result):
+    """Rows start … stop − 1 into their own slice of ``result``: the one loop body that both
+    the serial and the parallel kernel run.
 
-    The group enters at the left (first term at x = 0) and leaves at the right; the breaks
-    are merged on the fly from each term's own walk along the knots. A ``confined`` group
-    (a crane between its end stops) only stands where every concentrated load is on the
-    beam. Result row gets
-    (max, ξ at max, side at max, min, ξ at min, side at min); side +1 is the limit from above
-    (ξ → b⁺), −1 from below, 0 an interior point. The empty beam counts (value 0, ξ NaN).
+    A row sweeps the reference position ξ over every piece of its line's response (the line's
+    own knots only). The group enters at the left (first term at x = 0) and leaves at the
+    right. A ``confined`` group (a crane between its end stops) only stands where every
+    concentrated load is on the beam. The row gets (max, ξ at max, side at max, min, ξ at
+    min, side at min); side +1 is the limit from above (ξ → b⁺), −1 from below, 0 an interior
+    point. The empty beam counts (value 0, ξ NaN).
+
+    With ``prune`` (concentrated loads only), a row first sweeps from where its leading load
+    reaches the line's largest piece to the right, and stops as soon as every load stands at
+    or beyond a piece p where the response is at most Σ|w| · tail[p] and that cannot beat
+    either extreme; then it sweeps the positions before, from the first one the bound
+    ``head`` cannot rule out. Far from its section an influence line of a continuous beam
+    dies away, so the work per line stops growing with the number of spans.
     """
-    m = knots.shape[0] - 1
     n_terms = weight.shape[0]
-    lo = offsets[0]
-    hi = offsets[0]
-    for t in range(1, n_terms):
-        lo = min(lo, offsets[t])
-        hi = max(hi, offsets[t])
-    hi += knots[m]
-    if confined:
-        for t in range(n_terms):
-            if kind[t] == KIND_POINT:
-                lo = max(lo, offsets[t])
-                hi = min(hi, knots[m] + offsets[t])
+    shared = offsets.shape[0] == 1
     piece = np.empty(n_terms, dtype=np.int64)
     upcoming = np.empty(n_terms)
+    scratch = np.empty(23)  # one allocation for the small work arrays
+    poly = scratch[0:5]
+    crit = scratch[5:8]
+    work = scratch[8:13]
+    roots = scratch[13:23]
+    tail_weight = 0.0
     for t in range(n_terms):
-        k = _locate(knots, lo - offsets[t])
-        piece[t] = _real_start(k, prev_node, own) if 0 <= k < m else k
-        upcoming[t] = _next_break(knots, piece[t], offsets[t], next_node, own)
-    best_max, pos_max, side_max = 0.0, np.nan, 0.0
-    best_min, pos_min, side_min = 0.0, np.nan, 0.0
-    poly = np.empty(5)
-    crit = np.empty(3)
-    work = np.empty(5)
-    scratch = np.empty(10)
-    xi = lo
-    while xi < hi:
-        nxt = hi
-        for t in range(n_terms):
-            if upcoming[t] < nxt:
-                nxt = upcoming[t]
-        width = nxt - xi
-        if width > 0.0:
-            for i in range(5):
-                poly[i] = 0.0
-            poly[0] = constant
+        tail_weight += abs(weight[t])
+    tail_weight *= 1.0 + 1e-12  # the bound stays a bound after rounding
+    for row in range(start, stop):
+        line = lines[row]
+        m = n_pieces[line]
+        line_knots = knots[line]
+        line_coef = coef[line]
+        line_running = running[line]
+        end_value = running_end[line]
+        off = offsets[0] if shared else offsets[row]
+        lo = off[0]
+        hi = off[0]
+        trailing = 0
+        for t in range(1, n_terms):
+            if off[t] < lo:
+                lo = off[t]
+            if off[t] > hi:
+                hi = off[t]
+                trailing = t
+        lead = lo  # the leading load's offset: it stands at ξ − lead
+        hi += line_knots[m]
+        if confined:
             for t in range(n_terms):
-                e = piece[t]
-                if e < 0:
-                    continue
                 if kind[t] == KIND_POINT:
-                    if e < m:
-                        _shift_add(poly, coef[:, e, line], 4, xi - offsets[t] - knots[e],
-                                   weight[t], work)
-                elif e < m:
-                    _shift_add(poly, running[:, e, line], 5, xi - offsets[t] - knots[e],
-                               weight[t], work)
-                else:
-                    poly[0] += weight[t] * running_end[line]
-            v0 = poly[0]
-            v1 = _horner(poly, degree, width)
-            if v0 > best_max:
-                best_max, pos_max, side_max = v0, xi, 1.0
-            if v0 < best_min:
-                best_min, pos_min, side_min = v0, xi, 1.0
-            if v1 > best_max:
-                best_max, pos_max, side_max = v1, nxt, -1.0
-            if v1 < best_min:
-                best_min, pos_min, side_min = v1, nxt, -1.0
-            n_crit = _critical_points(poly, degree, width, crit, scratch)
-            for k in range(n_crit):
-                v = _horner(poly, degree, crit[k])
-                if v > best_max:
-                    best_max, pos_max, side_max = v, xi + crit[k], 0.0
-                if v < best_min:
-                    best_min, pos_min, side_min = v, xi + crit[k], 0.0
-        if nxt == np.inf:
-            break
-        for t in range(n_terms):
-            if upcoming[t] <= nxt:
-                piece[t] = _next_real(piece[t], m, next_node, own)
-                upcoming[t] = _next_break(knots, piece[t], offsets[t], next_node, own)
-        xi = nxt
-    result[row, 0] = best_max
-    result[row, 1] = pos_max
-    result[row, 2] = side_max
-    result[row, 3] = best_min
-    result[row, 4] = pos_min
-    result[row, 5] = side_min
+                    lo = max(lo, off[t])
+                    hi = min(hi, line_knots[m] + off[t])
+        best_max, pos_max, side_max = 0.0, np.nan, 0.0
+        best_min, pos_min, side_min = 0.0, np.nan, 0.0
+        constant = constant_weight * end_value
+        split = min(max(line_knots[peak[line]] + lead, lo), hi) if prune else lo
+        for phase in range(2):
+            if phase == 0:
+                xi, until, bounded = split, hi, prune
+            else:
+                if split <= lo:
+                    break
+                # with every load left of knot p the response is at most Σ|w| · head[p]:
+                # skip the longest such stretch
+                a, b = 0, m
+                while a < b:
+                    mid = (a + b + 1) // 2
+                    limit = tail_weight * head[line, mid]
+                    if limit <= best_max and -limit >= best_min:
+                        a = mid
+                    else:
+                        b = mid - 1
+                xi = min(max(lo, line_knots[a] + lead), split) if a > 0 else lo
+                until, bounded = split, False
+                if xi >= split:
+                    break
+            for t in range(n_terms):
+                p = _locate(line_knots[:m + 1], xi - off[t])
+                piece[t] = p
+                upcoming[t] = (off[t] + line_knots[0] if p < 0 else
+                               off[t] + line_knots[p + 1] if p < m else np.inf)
+            while xi < until:
+                if bounded:
+                    p = piece[trailing]
+                    if p >= 0:
+                        limit = tail_weight * tail[line, min(p, m)]
+                        if limit <= best_max and -limit >= best_min:
+                            break
+                nxt = until
+                for t in range(n_terms):
+                    if upcoming[t] < nxt:
+                        nxt = upcoming[t]
+                width = nxt - xi
+                if width > 0.0:
+                    for i in range(5):
+                        poly[i] = 0.0
+                    poly[0] = constant
+                    for t in range(n_terms):
+                        e = piece[t]
+                        if e < 0:
+                            continue
+                        if kind[t] == KIND_POINT:
+                            if e < m:
+                                _shift_add(poly, line_coef[e], 4, xi - off[t] - line_knots[e],
+                                           weight[t], work)
+                        elif e < m:
+                            _shift_add(poly, line_running[e], 5, xi - off[t] - line_knots[e],
+                                       weight[t], work)
+                        else:
+                            poly[0] += weight[t] * end_value
+                    v0 = poly[0]
+                    v1 = _horner(poly, degree, width)
+                    if v0 > best_max:
+                        best_max, pos_max, side_max = v0, xi, 1.0
+                    if v0 < best_min:
+                        best_min, pos_min, side_min = v0, xi, 1.0
+                    if v1 > best_max:
+                        best_max, pos_max, side_max = v1, nxt, -1.0
+                    if v1 < best_min:
+                        best_min, pos_min, side_min = v1, nxt, -1.0
+                    n_crit = _critical_points(poly, degree, width, crit, roots)
+                    for k in range(n_crit):
+                        v = _horner(poly, degree, crit[k])
+                        if v > best_max:
+                            best_max, pos_max, side_max = v, xi + crit[k], 0.0
+                        if v < best_min:
+                            best_min, pos_min, side_min = v, xi + crit[k], 0.0
+                if nxt == np.inf:
+                    break
+                for t in range(n_terms):
+                    if upcoming[t] <= nxt:
+                        p = piece[t] + 1 if piece[t] < m else m
+                        piece[t] = p
+                        upcoming[t] = off[t] + line_knots[p + 1] if p < m else np.inf
+                xi = nxt
+        result[row, 0] = best_max
+        result[row, 1] = pos_max
+        result[row, 2] = side_max
+        result[row, 3] = best_min
+        result[row, 4] = pos_min
+        result[row, 5] = side_min
 
 
-@njit(**JIT_OPTIONS)
-def _breaks(m, n_lines, prev_node, next_node, own):
-    """Where the lines really break; with no structure given, at every knot."""
-    if own is None:
-        return np.arange(m + 1), np.arange(1, m + 2), np.full(n_lines, -1)
-    return prev_node, next_node, own
-
-
-@njit(**PARALLEL_OPTIONS)
-def scan_rows_parallel(knots, coef, running, running_end, weight, kind, offsets, lines,
-                       constant_weight, degree, confined=False, prev_node=None,
-                       next_node=None, own=None):
+def scan_rows_serial(knots, n_pieces, coef, running, running_end, head, tail, peak, weight,
+                     kind, offsets, lines, constant_weight, degree, confined, prune):
     """Exact extremes of a load group's response, one row per (line, arrangement).
 
     Parameters
     ----------
-    knots : (m + 1,) shared breakpoints of the lines [length]
-    coef : (4, m, n_lines) influence-line cubics (PPoly layout, highest power first)
-    running : (5, m, n_lines) running integrals F(x) = ∫₀ˣ IL of the lines (quartics)
+    knots : (n_lines, K) each line's own breakpoints (structural nodes and its own section);
+        row j uses the first n_pieces[j] + 1 [length]
+    n_pieces : (n_lines,)
+    coef : (n_lines, K − 1, 4) cubic of each piece, highest power first, local to its start
+    running : (n_lines, K − 1, 5) running integral F(x) = ∫₀ˣ IL on each piece (quartics)
     running_end : (n_lines,) F at the right end of the beam
+    head, tail : (n_lines, K) bounds on |IL|: over the pieces before knot p, and over piece p
+        and every piece after it (used with ``prune``)
+    peak : (n_lines,) the piece with the largest bound
     weight, kind : (n_terms,) weight of each term and its kind (KIND_POINT or
         KIND_RUNNING_INTEGRAL)
     offsets : (n_rows, n_terms) or (1, n_terms) offset of each term behind the reference
@@ -300,59 +357,114 @@ def scan_rows_parallel(knots, coef, running, running_end, weight, kind, offsets,
     degree : 3 when only concentrated terms, else 4
     confined : only positions with every concentrated load on the beam (a crane between the
         end stops of its runway); otherwise the group enters and leaves the beam
-    prev_node, next_node : (m + 1,) for each knot, the structural node at or before it and the
-        next one after it (knots between are sections, where most lines do not break)
-    own : (n_lines,) the knot of each line's own section (−1 for none). A line is one cubic
-        from a structural node or its own section to the next, so the sweep skips the other
-        sections' knots. Without these every knot is a break (same result, more pieces).
+    prune : skip positions that provably cannot beat the extremes (concentrated terms only)
 
     Returns
     -------
     (n_rows, 6): max, ξ at max, side at max, min, ξ at min, side at min
     """
-    n_rows = lines.shape[0]
-    shared = offsets.shape[0] == 1
-    result = np.empty((n_rows, 6))
-    prev_node_, next_node_, own_ = _breaks(knots.shape[0] - 1, coef.shape[2], prev_node,
-                                           next_node, own)
-    for row in prange(n_rows):
-        line = lines[row]
-        _scan_row(row, line, knots, coef, running, running_end, weight, kind,
-                  offsets[0] if shared else offsets[row], constant_weight * running_end[line],
-                  degree, result, confined, prev_node_, next_node_, own_[line])
+    # the compiled loop body is called straight from Python: a compiled wrapper around it
+    # would cost a second compilation of the whole body on the first run, and nothing else
+    result = np.empty((lines.shape[0], 6))
+    _scan_chunk(0, lines.shape[0], knots, n_pieces, coef, running, running_end, head, tail,
+                peak, weight, kind, offsets, lines, float(constant_weight), int(degree),
+                bool(confined), bool(prune), result)
     return result
+
+
+@njit(**PARALLEL_OPTIONS)
+def scan_rows_parallel(knots, n_pieces, coef, running, running_end, head, tail, peak, weight,
+                       kind, offsets, lines, constant_weight, degree, confined, prune,
+                       bounds):
+    """``scan_rows_serial`` split into contiguous slices of rows, ``bounds`` (n_chunks + 1,),
+    one slice per thread, each writing only its own rows."""
+    result = np.empty((lines.shape[0], 6))
+    for c in prange(bounds.shape[0] - 1):
+        _scan_chunk(bounds[c], bounds[c + 1], knots, n_pieces, coef, running, running_end,
+                    head, tail, peak, weight, kind, offsets, lines, constant_weight, degree,
+                    confined, prune, result)
+    return result
+
+
+# Measured on 2 cores: a thread slice must hold about this many piece visits (rows × pieces
+# × terms²) before splitting pays for starting the pool and waking the threads.
+PARALLEL_FROM_WORK_PER_THREAD = 200_000
+
+
+def row_work(n_pieces: np.ndarray, lines: np.ndarray, n_terms: int, prune: bool
+             ) -> np.ndarray:
+    """Estimated cost of each row: pieces it visits × terms²."""
+    pieces = n_pieces[lines]
+    if prune:
+        pieces = np.minimum(pieces, 12)  # a pruned row visits a few spans around its section
+    return (pieces + n_terms) * float(n_terms * n_terms)
+
+
+def scan_rows(knots, n_pieces, coef, running, running_end, head, tail, peak, weight, kind,
+              offsets, lines, constant_weight, degree, confined=False, prune=False,
+              threads: int | None = None):
+    """Exact extremes per row; see ``scan_rows_serial`` for the arguments. Rows go to
+    threads only when each thread gets enough work to pay for it."""
+    args = (knots, n_pieces, coef, running, running_end, head, tail, peak, weight, kind,
+            offsets, lines, float(constant_weight), int(degree), bool(confined), bool(prune))
+    if threads is None:
+        threads = 1
+        n_terms = weight.shape[0]
+        # an upper bound first: most calls are far too small to ask about threads at all
+        most = lines.shape[0] * (int(n_pieces.max()) + n_terms) * float(n_terms * n_terms)
+        if most >= 2 * PARALLEL_FROM_WORK_PER_THREAD and _threads() > 1:
+            total = float(row_work(n_pieces, lines, n_terms, prune).sum())
+            threads = int(min(_threads(), _idle_cores(),
+                              total // PARALLEL_FROM_WORK_PER_THREAD))
+    if threads <= 1 or lines.shape[0] < 2:
+        return scan_rows_serial(*args)
+    work = np.cumsum(row_work(n_pieces, lines, weight.shape[0], prune))
+    cuts = np.searchsorted(work, work[-1] * np.arange(1, threads) / threads)
+    bounds = np.concatenate([[0], cuts, [lines.shape[0]]]).astype(np.int64)
+    return scan_rows_parallel(*args, bounds)
+
+
+def _threads() -> int:
+    import numba
+
+    return int(numba.get_num_threads())
+
+
+def _idle_cores() -> int:
+    """Cores not busy with other work (this process's own thread counted as idle): on a
+    machine already loaded a second thread waits for a core, and the slice it holds makes
+    the whole call wait with it (measured: 2 threads slower than 1 at a load of 8 on 2
+    cores)."""
+    try:
+        load = os.getloadavg()[0]
+    except OSError:
+        return _threads()
+    return max(1, int((os.cpu_count() or 1) - load + 1.0))
 
 
 @njit(**JIT_OPTIONS)
-def scan_rows_serial(knots, coef, running, running_end, weight, kind, offsets, lines,
-                     constant_weight, degree, confined=False, prev_node=None,
-                     next_node=None, own=None):
-    """``scan_rows_parallel`` on one thread: cheaper for a handful of rows, where starting
-    the thread pool costs more than the work."""
-    n_rows = lines.shape[0]
-    shared = offsets.shape[0] == 1
-    result = np.empty((n_rows, 6))
-    prev_node_, next_node_, own_ = _breaks(knots.shape[0] - 1, coef.shape[2], prev_node,
-                                           next_node, own)
-    for row in range(n_rows):
-        line = lines[row]
-        _scan_row(row, line, knots, coef, running, running_end, weight, kind,
-                  offsets[0] if shared else offsets[row], constant_weight * running_end[line],
-                  degree, result, confined, prev_node_, next_node_, own_[line])
-    return result
-
-
-# Below this much work (rows x pieces x terms) starting the thread pool costs more than it
-# saves; measured on 2 cores, where a busy machine makes the pool slower still.
-PARALLEL_FROM_WORK = 1_000_000
-
-
-def scan_rows(knots, coef, running, running_end, weight, kind, offsets, lines,
-              constant_weight, degree, confined=False, prev_node=None, next_node=None,
-              own=None):
-    """Exact extremes per row; see ``scan_rows_parallel`` for the arguments."""
-    n_terms = weight.shape[0]
-    work = lines.shape[0] * knots.shape[0] * n_terms * n_terms
-    kernel = scan_rows_parallel if work >= PARALLEL_FROM_WORK else scan_rows_serial
-    return kernel(knots, coef, running, running_end, weight, kind, offsets, lines,
-                  float(constant_weight), int(degree), bool(confined), prev_node, next_node, own)
+def evaluate_lines(knots, n_pieces, coef, x, from_left):
+    """(len(x), n_lines): every line's piecewise polynomial at every x (each line on its own
+    knots, ``coef`` highest power first); at a knot the piece on the left if ``from_left``,
+    else the piece on the right; the end pieces extend beyond the ends."""
+    n_lines = knots.shape[0]
+    degree = coef.shape[2] - 1
+    out = np.empty((x.shape[0], n_lines))
+    for j in range(n_lines):
+        m = n_pieces[j]
+        for i in range(x.shape[0]):
+            # the piece k with knots[k] < x ≤ knots[k + 1] (left) or knots[k] ≤ x < … (right)
+            lo, hi = 0, m - 1
+            while lo < hi:
+                mid = (lo + hi + 1) // 2
+                k = knots[j, mid]
+                if (k < x[i]) if from_left else (k <= x[i]):
+                    lo = mid
+                else:
+                    hi = mid - 1
+            s = x[i] - knots[j, lo]
+            value = coef[j, lo, 0]
+            for p in range(1, degree + 1):
+                value = value * s + coef[j, lo, p]
+            out[i, j] = value
+    return out
