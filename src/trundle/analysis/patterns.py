@@ -184,6 +184,41 @@ class LaneIntensity:
                            if a <= L <= b]
         return max(candidates)
 
+    def upper_line(self, a: float, b: float) -> tuple[list[float], list[float]]:
+        """A piecewise-linear function ≥ w(L) on a ≤ L ≤ b, as (breakpoints, values).
+
+        A table is its own bound. A power law is bounded by its chord where it is convex
+        (exponent ≤ 0 or ≥ 1) and by its tangent at the middle where it is concave; the
+        bounds ``lower``/``upper`` clip that line (crossings become breakpoints)."""
+        if self.lengths:
+            points = [a, *[L for L in self.lengths if a < L < b], b]
+            return points, [self(L) for L in points]
+        assert self.coefficient is not None
+        e, c = self.exponent, self.coefficient
+
+        def raw(L: float) -> float:
+            return c * L**e if L > 0 else (c if e == 0 else (0.0 if e > 0 else math.inf))
+
+        if e <= 0 or e >= 1 or a <= 0:
+            p, q = raw(a), raw(b)
+        else:
+            m = 0.5 * (a + b)
+            slope = c * e * m ** (e - 1)
+            p, q = raw(m) + slope * (a - m), raw(m) + slope * (b - m)
+        points, values = [a, b], [p, q]
+        for level in (self.upper, self.lower):
+            if level is None or not (math.isfinite(p) and math.isfinite(q)):
+                continue
+            if (p - level) * (q - level) < 0:
+                s = (level - p) / (q - p)
+                points.insert(1, a + s * (b - a))
+                values.insert(1, level)
+        if self.upper is not None:
+            values = [min(v, self.upper) for v in values]
+        if self.lower is not None:
+            values = [max(v, self.lower) for v in values]
+        return points, values
+
     def describe(self) -> str:
         if self.lengths:
             return "w(L) from a table: " + ", ".join(
@@ -266,9 +301,41 @@ def worst_loaded_set(pp: PPoly, intensity: LaneIntensity, tolerance: float = 1e-
     best = value(best_t)
 
     def bound(a: float, b: float) -> float:
+        """An upper bound of w(L(t))·A(t) for a ≤ t ≤ b, second order in b − a.
+
+        As a function of the loaded length, the best area A*(L) (the level set's) is concave
+        with slope t = the level (the line's decreasing rearrangement), so it lies below its
+        tangents at both ends: A ≤ A_b + b·(L − L_b) and A ≤ A_a + a·(L − L_a). With a
+        piecewise-linear bound of w, the product is maximised piece by piece exactly."""
         la, aa, _ = at(a)
-        lb, _, _ = at(b)
-        return intensity.max_between(lb, la) * aa
+        lb, ab, _ = at(b)
+        if not la > lb:
+            return intensity.max_between(lb, la) * aa
+        points, values = intensity.upper_line(lb, la)
+        if not all(math.isfinite(v) for v in values):
+            return math.inf
+
+        def area_bound(L: float) -> float:
+            return min(ab + b * (L - lb), aa + a * (L - la), aa)
+
+        # the two tangents cross where their values are equal
+        if b != a:
+            cross = (aa - ab - a * la + b * lb) / (b - a)
+            if lb < cross < la:
+                w_cross = float(np.interp(cross, points, values))
+                order = np.argsort([*points, cross])
+                points = list(np.asarray([*points, cross])[order])
+                values = list(np.asarray([*values, w_cross])[order])
+        best_bound = -math.inf
+        for p, q, wp, wq in zip(points[:-1], points[1:], values[:-1], values[1:], strict=True):
+            ap, aq = area_bound(p), area_bound(q)
+            best_bound = max(best_bound, wp * ap, wq * aq)
+            dw, da = wq - wp, aq - ap
+            if dw * da < 0:  # an interior maximum of the quadratic
+                s_star = -(wp * da + ap * dw) / (2 * dw * da)
+                if 0 < s_star < 1:
+                    best_bound = max(best_bound, (wp + dw * s_star) * (ap + da * s_star))
+        return best_bound
 
     heap = [(-bound(low, top), low, top)]
     evaluations = 0
