@@ -255,6 +255,11 @@ def _read_entry(item: dict[str, Any], key: str, reader: Reader, base: Path
                         "(the load model defines the rest), found "
                         f"{extra[0]} = {show_value(table[extra[0]])}")
         found = _use(table["use"], _sub(key, "use"), reader, base)
+        if found.kind == "design case":
+            reader.fail(_sub(key, "use"), f'expected a vehicle, train or placed uniform load, '
+                        f'found "{found.name}", a design case (the worst of its alternatives, '
+                        "with rules), which [[load]] cannot run yet: use its parts (see "
+                        f"'trundle library {found.name}') until the design envelope is wired in")
         name = reader.text(table["name"], _sub(key, "name")) if "name" in table else found.name
         _nonblank(name, _sub(key, "name"), reader)
         impact = (_impact(table["impact"], _sub(key, "impact"), reader) if "impact" in table
