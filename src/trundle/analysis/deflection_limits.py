@@ -14,8 +14,6 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import Any
 
-import numpy as np
-
 from trundle.analysis.design_checks import verdict
 from trundle.envelope import absolute_extremes
 from trundle.loads.cases import LoadCase, Together, as_case

@@ -63,7 +63,9 @@ def contraflexure_points(beam: Beam) -> NDArray[np.float64]:
     roots = roots[np.isfinite(roots)]
     L = beam.length
     tol = 1e-9 * L
-    roots = np.unique(np.round(roots[(roots > tol) & (roots < L - tol)] / tol) * tol)
+    roots = np.sort(roots[(roots > tol) & (roots < L - tol)])
+    if roots.size:  # a root at a knot may come twice (once from each piece)
+        roots = roots[np.concatenate([[True], np.diff(roots) > tol])]
     probe = 1e-6 * L
     keep = [r for r in roots
             if np.sign(result.moment(r - probe)[0]) * np.sign(result.moment(r + probe)[0]) < 0]
