@@ -1,6 +1,6 @@
 """Readers of the design tables of a model file: ``[[permanent]]``, ``[[combination]]``,
-``[[live_pattern]]``, ``[[lane_length_load]]`` and ``[design]`` (see docs/model-file.md,
-"Design envelopes").
+``[[design_load]]``, ``[[live_pattern]]``, ``[[lane_length_load]]`` and ``[design]``
+(see docs/model-file.md, "Design envelopes").
 
 Each reader takes the parsed TOML value and a :class:`trundle.modelfile.Reader` (which knows
 the file, the units and the beam length) and returns analysis objects; every problem is a
@@ -21,6 +21,7 @@ from trundle.analysis.combinations import SHIPPED, Combination
 from trundle.analysis.critical_sections import parse_from_supports
 from trundle.analysis.patterns import LaneIntensity
 from trundle.analysis.permanent import PermanentLoad
+from trundle.loads.design_cases import Alternative, DesignCase
 from trundle.model import ModelError
 from trundle.modelfile import _MISSING, ModelFileError, Reader
 from trundle.units import show_value
@@ -325,3 +326,159 @@ def read_design_settings(value: Any, reader: Reader) -> DesignSettings:
                 reader.expected(jkey, '"d from supports" or "<length> from supports"', item)
             distances.append(distance)
     return DesignSettings(ratio, tuple(distances), face)
+
+
+# ------------------------------------------------------------------------------------------
+# [[design_load]]: a design case (or any library load model) as a live case of the envelope
+
+_DESIGN_LOAD_KEYS = ("use", "name", "parameters", "factors")
+
+
+def read_design_loads(value: Any, reader: Reader) -> tuple[DesignCase, ...]:
+    """``[[design_load]]``: ``use`` = a library name or a path (a design case, or a plain load
+    model taken as a case of one alternative), optional ``name``, ``parameters`` (overriding
+    those the design case declares, e.g. ``{ lane_width = "3.5 m", alpha_Q = 0.9 }``) and
+    ``factors`` (named multipliers on every alternative, e.g. ``{ "per rail" = 0.5 }``)."""
+    from pathlib import Path
+
+    from trundle.loadfile import read_design_case_file, read_load_model_file
+    from trundle.loads import library
+
+    out = []
+    seen: dict[str, int] = {}
+    base = Path(reader.file).parent if not reader.file.startswith("<") else Path.cwd()
+    for i, item in enumerate(_array_of_tables(value, "design_load", reader, "design loads")):
+        key = f"design_load[{i}]"
+        table = reader.table(item, key, _DESIGN_LOAD_KEYS, required=("use",))
+        text = reader.text(table["use"], f"{key}.use").strip()
+        if "/" in text or text.endswith(".toml"):
+            path = (base / text) if not Path(text).is_absolute() else Path(text)
+            if not path.is_file():
+                reader.fail(f"{key}.use", f'expected an existing load-model file, found "{text}"'
+                            f" ({path} does not exist)")
+        else:
+            names = library.names()
+            if text not in names:
+                hint = difflib.get_close_matches(text, names, n=1, cutoff=0.5)
+                extra = f' (did you mean "{hint[0]}"?)' if hint else ""
+                reader.fail(f"{key}.use", f"expected a load model from the library "
+                            f'({", ".join(names)}) or a path, found "{text}"{extra}')
+            path = library.path_of(text)
+        parameters = table.get("parameters", {})
+        if not isinstance(parameters, dict):
+            reader.expected(f"{key}.parameters", "a table of parameters such as { lane = 2 }",
+                            parameters)
+        import tomllib
+
+        raw = tomllib.loads(path.read_text(encoding="utf-8"))
+        if "alternative" in raw:
+            found = read_design_case_file(path, reader.units, parameters)
+            case = found.load
+        else:
+            if parameters:
+                reader.fail(f"{key}.parameters", f'expected no parameters for "{text}" (it '
+                            "declares none), found "
+                            f"{show_value(parameters)}")
+            found = read_load_model_file(path, reader.units)
+            single = _as_single_case(found)
+            case = DesignCase(found.name, (Alternative(found.name, single),))
+        factor = 1.0
+        named: list[tuple[str, float]] = []
+        if "factors" in table:
+            if not isinstance(table["factors"], dict):
+                reader.expected(f"{key}.factors", 'a table of named multipliers such as '
+                                '{ "per rail" = 0.5 }', table["factors"])
+            for fname, number in table["factors"].items():
+                if isinstance(number, bool) or not isinstance(number, int | float) or \
+                        not math.isfinite(number) or number <= 0:
+                    reader.expected(f'{key}.factors."{fname}"', "a positive number (a plain "
+                                    "multiplier)", number)
+                factor *= float(number)
+                named.append((fname, float(number)))
+        name = case.name
+        if "name" in table:
+            name = reader.text(table["name"], f"{key}.name").strip()
+        if name in seen:
+            reader.fail(f"{key}.name", f'expected a name different from that of design_load['
+                        f'{seen[name]}], found "{name}" again')
+        seen[name] = i
+        alternatives = tuple(Alternative(a.name, a.case, a.factor * factor, a.rule,
+                                         a.unlimited_gaps) for a in case.alternatives)
+        out.append(DesignCase(name, alternatives, (*case.parameters, *named)))
+    return tuple(out)
+
+
+def _as_single_case(found: Any) -> Any:
+    from trundle.loads.cases import LoadCase
+
+    return LoadCase(found.load, impact=found.impact, factors=found.factors, name=found.name)
+
+
+# ------------------------------------------------------------------------------------------
+# a whole model file with its design tables (until the model-file reader knows them)
+
+DESIGN_TABLES = ("permanent", "combination", "design_load", "live_pattern", "lane_length_load",
+                 "design")
+
+
+@dataclass(frozen=True)
+class DesignModel:
+    """A model file read with its design tables.
+
+    Fields
+    ------
+    model : the :class:`trundle.modelfile.Model` (beam, sections, [[load]] entries)
+    permanent, combinations, design_loads : as read
+    live_patterns : (name, w, placement) tuples; lane_length_loads : (name, w(L), whole?)
+    settings : ``[design]``
+    """
+
+    model: Any
+    permanent: tuple[PermanentLoad, ...] = ()
+    combinations: tuple[Combination, ...] = ()
+    design_loads: tuple[DesignCase, ...] = ()
+    live_patterns: tuple[tuple[str, float, str], ...] = ()
+    lane_length_loads: tuple[tuple[str, LaneIntensity, bool], ...] = ()
+    settings: DesignSettings = DesignSettings()
+
+
+def _categories(reader: Reader) -> tuple[str, ...]:
+    if "permanent" not in reader.raw:
+        return ()
+    return tuple(dict.fromkeys(p.category for p in read_permanent(reader.raw["permanent"],
+                                                                  reader)))
+
+
+_READERS = {
+    "permanent": read_permanent,
+    "combination": lambda value, reader: read_combinations(value, reader, _categories(reader)),
+    "design_load": read_design_loads,
+    "live_pattern": read_live_patterns,
+    "lane_length_load": read_lane_length_loads,
+    "design": read_design_settings,
+}
+
+
+def read_design_model(path: Any) -> DesignModel:
+    """Read a model file with its design tables.
+
+    The design readers are registered with the model-file reader only for the duration of
+    this call (the wiring phase registers them for good), so the beam, sections and loads are
+    read exactly as ``trundle.load_model`` reads them, and errors are the same one-liners.
+    """
+    import trundle.loadfile  # noqa: F401  (registers [[load]])
+    from trundle import modelfile
+
+    added = [name for name in _READERS if name not in modelfile._EXTRA_TABLES]
+    for name in added:
+        modelfile.register_table(name, _READERS[name])
+    try:
+        model = modelfile.load_model(path)
+    finally:
+        for name in added:
+            modelfile._EXTRA_TABLES.pop(name, None)
+    tables = model.tables
+    return DesignModel(model, tables.get("permanent", ()), tables.get("combination", ()),
+                       tables.get("design_load", ()), tables.get("live_pattern", ()),
+                       tables.get("lane_length_load", ()), tables.get("design",
+                                                                      DesignSettings()))
