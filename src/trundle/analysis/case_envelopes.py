@@ -19,7 +19,7 @@ from numpy.typing import ArrayLike, NDArray
 
 from trundle.analysis.rules import FAMILIES, applicability
 from trundle.envelope import Envelope, envelope
-from trundle.loads.cases import as_case
+from trundle.loads.cases import Together, as_case
 from trundle.loads.design_cases import DesignCase, for_beam
 from trundle.model import Beam, ModelError
 
@@ -89,43 +89,94 @@ def load_case_envelope(beam: Beam, load: Any, sections: ArrayLike,
     return from_envelope(env, name or case.name)
 
 
+def _family_effects(families: Sequence[str]) -> tuple[str, ...]:
+    kinds = {"moment": "moment", "shear_left": "shear", "shear_right": "shear",
+             "deflection": "deflection", "reaction": "reaction"}
+    return tuple(dict.fromkeys(kinds[f] for f in families))
+
+
+def _part_values(beam: Beam, case: Any, sections: NDArray[np.float64],
+                 families: Sequence[str]) -> dict[Key, NDArray[np.float64]]:
+    """One load case's extremes of ``families`` at ``sections`` (reactions: every support)."""
+    env = envelope(beam, [case], sections=sections, effects=_family_effects(families))
+    return {(f, w): _family_values(env, f, w) for f in families for w in ("max", "min")}
+
+
 def design_case_envelope(beam: Beam, design_case: DesignCase, sections: ArrayLike
                          ) -> CaseEnvelope:
     """A design case: at each line the worst of the alternatives whose rule applies there.
 
-    Each alternative is enveloped on its own (exact scan), multiplied by its factor and masked
-    by its rule; an alternative that does not apply does not govern, and ``excluded`` names its
-    rule at that line.
+    Each alternative is the sum of its parts' own extremes (loads acting together, each at its
+    own worst), multiplied by its factor and masked by its rule; an alternative that does not
+    apply does not govern, and ``excluded`` names its rule at that line. A part shared by
+    several alternatives (the lane load of HL-93) is enveloped once; an alternative restricted
+    by a rule is enveloped only for the effects and at the sections its rule names.
     """
     sections = np.atleast_1d(np.asarray(sections, dtype=float))
+    n_supports = len(beam.supports)
     values: dict[Key, NDArray[np.float64]] = {}
     governing: dict[Key, list[str]] = {}
     excluded: dict[Key, list[list[str]]] = {}
+    for family in FAMILIES:
+        size = n_supports if family == "reaction" else sections.size
+        for which in ("max", "min"):
+            values[family, which] = np.full(size, np.nan)
+            governing[family, which] = [""] * size
+            excluded[family, which] = [[] for _ in range(size)]
+    shared: dict[Any, dict[Key, NDArray[np.float64]]] = {}
+
+    def full(part: Any) -> dict[Key, NDArray[np.float64]]:
+        try:
+            hash(part)
+        except TypeError:
+            return _part_values(beam, part, sections, FAMILIES)
+        if part not in shared:
+            shared[part] = _part_values(beam, part, sections, FAMILIES)
+        return shared[part]
+
     for alternative in design_case.alternatives:
         case = for_beam(alternative, beam.length)
-        env = envelope(beam, [case], sections=sections, effects=ENVELOPE_EFFECTS)
+        parts = case.parts if isinstance(case, Together) else (case,)
         masks = applicability(alternative.rule, beam, sections)
-        for family in FAMILIES:
-            for which in ("max", "min"):
-                key = (family, which)
-                mine = alternative.factor * _family_values(env, family, which)
-                applies = masks[key]
-                if key not in values:
-                    values[key] = np.full(mine.size, np.nan)
-                    governing[key] = [""] * mine.size
-                    excluded[key] = [[] for _ in range(mine.size)]
-                sign = 1.0 if which == "max" else -1.0
-                current = values[key]
-                for j in range(mine.size):
-                    if np.isnan(mine[j]):
-                        continue
-                    if not applies[j]:
-                        assert alternative.rule is not None
-                        excluded[key][j].append(f"{alternative.name}: {alternative.rule.name}")
-                        continue
-                    if np.isnan(current[j]) or sign * mine[j] > sign * current[j]:
-                        current[j] = mine[j]
-                        governing[key][j] = alternative.name
+        if alternative.rule is None:
+            mine = {k: sum(full(p)[k] for p in parts) for k in values}
+        else:
+            # only what the rule names: the sections and families where it applies
+            families = [f for f in FAMILIES if masks[f, "max"].any() or masks[f, "min"].any()]
+            used = np.zeros(sections.size, dtype=bool)
+            for f in families:
+                if f != "reaction":
+                    used |= masks[f, "max"] | masks[f, "min"]
+            mine = {k: np.full(v.size, np.nan) for k, v in values.items()}
+            if families:
+                subset = sections[used] if used.any() else sections[:1]
+                for p in parts:
+                    if p in shared:
+                        got = {k: (v if k[0] == "reaction" else v[used])
+                               for k, v in shared[p].items() if k[0] in families}
+                    else:
+                        got = _part_values(beam, p, subset, families)
+                    for k, v in got.items():
+                        target = mine[k]
+                        if k[0] == "reaction":
+                            target[:] = np.where(np.isnan(target), 0.0, target) + v
+                        elif used.any():
+                            target[used] = np.where(np.isnan(target[used]), 0.0,
+                                                    target[used]) + v
+        for key, applies in masks.items():
+            factored = alternative.factor * mine[key]
+            sign = 1.0 if key[1] == "max" else -1.0
+            current = values[key]
+            for j in range(factored.size):
+                if not applies[j]:  # only a rule excludes (without one, all applies)
+                    assert alternative.rule is not None
+                    excluded[key][j].append(f"{alternative.name}: {alternative.rule.name}")
+                    continue
+                if np.isnan(factored[j]):
+                    continue
+                if np.isnan(current[j]) or sign * factored[j] > sign * current[j]:
+                    current[j] = factored[j]
+                    governing[key][j] = alternative.name
     return CaseEnvelope(
         design_case.name, sections, values,
         {k: tuple(v) for k, v in governing.items()},
