@@ -711,6 +711,9 @@ def _case_part(item: Any, key: str, reader: Reader, base: Path, parameters: Mapp
                         "found none")
         values = table.pop("pressure")
         values = values if isinstance(values, list) else [values]
+        if not values:
+            reader.expected(_sub(key, "pressure"), 'a pressure or a list of them per lane such '
+                            'as ["9 kN/m^2", "2.5 kN/m^2"]', values)
         pressure = reader.positive(values[min(lane, len(values)) - 1], _sub(key, "pressure"),
                                    "modulus")
         table["uniform"] = pressure * parameters["lane_width"]
@@ -754,9 +757,12 @@ def read_design_case(raw: Mapping[str, Any], name: str, reader: Reader, base: Pa
         Rule,
     )
 
-    parameters = _case_parameters(reader.table(raw.get("parameters", {}), "parameters",
-                                               list(raw.get("parameters", {}))),
-                                  overrides or {}, reader)
+    declared = raw.get("parameters", {})
+    if not isinstance(declared, dict):
+        reader.expected("parameters", "a [parameters] table of named values", declared)
+    if not isinstance(overrides or {}, Mapping):
+        reader.expected("parameters", "a table of parameters such as { lane = 2 }", overrides)
+    parameters = _case_parameters(declared, overrides or {}, reader)
     items = raw["alternative"]
     if not isinstance(items, list) or not items or not all(isinstance(i, dict) for i in items):
         reader.expected("alternative", "one or more [[alternative]] tables", items)

@@ -151,7 +151,11 @@ def design_case_envelope(beam: Beam, design_case: DesignCase, sections: ArrayLik
             if families:
                 subset = sections[used] if used.any() else sections[:1]
                 for p in parts:
-                    if p in shared:
+                    try:
+                        known = p in shared
+                    except TypeError:  # an unhashable part is never shared
+                        known = False
+                    if known:
                         got = {k: (v if k[0] == "reaction" else v[used])
                                for k, v in shared[p].items() if k[0] in families}
                     else:

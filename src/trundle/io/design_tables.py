@@ -368,18 +368,16 @@ def read_design_loads(value: Any, reader: Reader) -> tuple[DesignCase, ...]:
         if not isinstance(parameters, dict):
             reader.expected(f"{key}.parameters", "a table of parameters such as { lane = 2 }",
                             parameters)
-        import tomllib
-
-        raw = tomllib.loads(path.read_text(encoding="utf-8"))
-        if "alternative" in raw:
-            found = read_design_case_file(path, reader.units, parameters)
+        found = read_load_model_file(path, reader.units)
+        if found.kind == "design case":
+            if parameters:
+                found = read_design_case_file(path, reader.units, parameters)
             case = found.load
         else:
             if parameters:
                 reader.fail(f"{key}.parameters", f'expected no parameters for "{text}" (it '
                             "declares none), found "
                             f"{show_value(parameters)}")
-            found = read_load_model_file(path, reader.units)
             single = _as_single_case(found)
             case = DesignCase(found.name, (Alternative(found.name, single),))
         factor = 1.0

@@ -12,7 +12,7 @@ from trundle.analysis.design_checks import PASS
 from trundle.io.design_tables import read_design_model
 from trundle.workflows.design_envelope import run
 
-ROOT = Path(__file__).resolve().parents[2]
+ROOT = Path(__file__).resolve().parents[1]
 EXAMPLES = sorted((ROOT / "examples" / "design").glob("*.toml"))
 
 

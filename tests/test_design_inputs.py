@@ -209,3 +209,39 @@ def test_lm1_parameters_lane_and_width() -> None:
     with pytest.raises(ModelFileError) as caught:
         read_design_case_file(path, parameters={"alpha_X": 1.0})
     _one_line(caught.value, "parameters.alpha_X", "alpha_Q")
+
+
+def test_bad_parameters_and_pressures() -> None:
+    from trundle.loadfile import read_design_case
+
+    base = {"units": "SI", "description": "d", "source": "s"}
+    part = {"name": "udl", "pressure": [], "placement": "anywhere"}
+    for raw, key in (
+            ({**base, "parameters": 5, "alternative": [{"name": "a", "parts": ["hl93-lane"]}]},
+             "parameters"),
+            ({**base, "parameters": {"lane_width": "3 kN"},
+              "alternative": [{"name": "a", "parts": ["hl93-lane"]}]}, "parameters.lane_width"),
+            ({**base, "parameters": {"lane_width": "3 m"},
+              "alternative": [{"name": "a", "parts": [part]}]}, "alternative[0].parts[0].pressure"),
+            ({**base, "alternative": [{"name": "a", "parts": [{**part, "pressure": "9 kN/m^2"}]}]},
+             "alternative[0].parts[0].pressure")):
+        with pytest.raises(ModelFileError) as caught:
+            read_design_case(raw, "x", _reader("SI"), library.folder())
+        _one_line(caught.value, key)
+
+
+def test_design_load_table(tmp_path: Path) -> None:
+    from trundle.io.design_tables import read_design_loads
+
+    (case,) = read_design_loads([{"use": "cooper-e80", "factors": {"per rail": 0.5}}], _reader())
+    assert [a.factor for a in case.alternatives] == [0.5, 0.5]
+    (lane,) = read_design_loads([{"use": "hl93-lane", "name": "lane only"}], _reader())
+    assert lane.name == "lane only" and lane.alternatives[0].case.load.w == 0.64
+    for bad, key in (({"use": "hl-93"}, "design_load[0].use"),
+                     ({"use": "hl93-lane", "parameters": {"lane": 2}}, "design_load[0].parameters"),
+                     ({"use": "en1991-2-lm1", "parameters": {"lane": 0}},
+                      "parameters.lane"),
+                     ({"use": "hl93", "factors": {"x": -1}}, 'design_load[0].factors."x"')):
+        with pytest.raises(ModelFileError) as caught:
+            read_design_loads([bad], _reader())
+        _one_line(caught.value, key)
