@@ -61,9 +61,9 @@ def test_end_shear_per_track_and_per_rail(span: float) -> None:
 
 
 def test_alternate_load_governs_short_spans_moment() -> None:
-    """10 ft span: two 100 kip axles 5 ft apart stand on it at most... the rule of the axle
-    nearest the resultant: axles 0 and 5 ft, resultant midway; axle at L/2 − 1.25: M =
-    200·(L/2 − 1.25)²/L = 200·3.75²/10 = 281.25 kip-ft (three axles cannot fit with 11 ft)."""
+    """10 ft span: at most two 100 kip axles (5 ft apart) fit on it. By the rule of the axle
+    nearest the resultant (2.5 ft from each), the worst section is L/2 − 1.25 ft with an axle
+    there: M = 200·(L/2 − 1.25)²/L = 200·3.75²/10 = 281.25 kip-ft."""
     span = 10.0
     beam = trundle.Beam(spans=[span])
     e80 = library.read("cooper-e80").load
