@@ -617,7 +617,7 @@ def product_words(entry: LoadEntry) -> str:
 
 def kind_words(kind: str) -> str:
     return {"vehicle": "vehicle", "train": "train", "uniform": "placed uniform",
-            "together": "acting together"}[kind]
+            "together": "acting together", "design case": "design case"}[kind]
 
 
 def support_kind_words(support: Any) -> str:
