@@ -72,9 +72,24 @@ def contraflexure_points(beam: Beam) -> NDArray[np.float64]:
     return np.asarray(keep, dtype=float)
 
 
+# hogging regions by beam (keyed on its values, as the envelope's prepared lines): every
+# rule-restricted alternative and every call on the same beam reuses them
+_HOGGING: dict[str, list[tuple[float, float]]] = {}
+_HOGGING_KEEP = 8
+
+
 def hogging_region(beam: Beam) -> list[tuple[float, float]]:
     """Stretches between points of contraflexure where uniform load on every span causes
     hogging moment, as closed intervals [(a, b), …] [length]."""
+    key = repr(beam)  # a Beam compares by identity; its repr spells out every value
+    if key not in _HOGGING:
+        if len(_HOGGING) >= _HOGGING_KEEP:
+            _HOGGING.pop(next(iter(_HOGGING)))
+        _HOGGING[key] = _hogging_region(beam)
+    return list(_HOGGING[key])
+
+
+def _hogging_region(beam: Beam) -> list[tuple[float, float]]:
     L = beam.length
     cuts = np.concatenate([[0.0], contraflexure_points(beam), [L]])
     result = _uniform_moment(beam)
