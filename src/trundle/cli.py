@@ -369,17 +369,27 @@ def envelope_command(model_file: str, out_dir: Path | None, figure_format: str,
     Crane defaults (impact, lateral and longitudinal fractions, limits, cycles) must be
     verified against the governing guide/code.
 
+    A model with design tables ([[design_load]] such as use = "hl93", [[permanent]],
+    [[live_pattern]], [[lane_length_load]], [[combination]], [design]) also gets the design
+    envelope: every live case's own envelope, the factored design envelope of every
+    combination with the governing case and the rule that excluded a case, critical shear
+    sections and the live-load deflection check (design-*.csv and design-*.png with --out).
+    Published load models are transcribed from memory: verify them against the edition in
+    force.
+
     \b
     Example:
       trundle envelope examples/harbour_lane_floor_girder_si.toml --out results/
       trundle envelope examples/millrace_access_bridge_us.toml -o results --format svg
       trundle envelope examples/cranes/hall_kestrel_quay_si.toml --out results/
+      trundle envelope examples/design/alder_creek_overpass_hl93_us.toml --out results/
     """
+    from trundle.io.design_tables import design_model_of, design_spec_of, has_design_tables
     from trundle.io.loads import loads_of
     from trundle.io.outputs import Provenance
     from trundle.report.envelope_data import collect
     from trundle.report.sections import SECTIONS
-    from trundle.workflows import moving_loads
+    from trundle.workflows import design_envelope, moving_loads
     from trundle.workflows.crane_runway import analyse_runway
 
     model = _load(model_file)
@@ -393,8 +403,10 @@ def envelope_command(model_file: str, out_dir: Path | None, figure_format: str,
     spec = runway_spec(model)
     runway = (analyse_runway(model.beam, spec, sections=model.sections)
               if spec is not None else None)
+    design = (design_envelope.run(design_spec_of(design_model_of(model)))
+              if has_design_tables(model) else None)
     results = collect(model, Provenance.of_file(model_file), moving, providers=SECTIONS,
-                      runway=runway)
+                      runway=runway, design=design)
     console = _console()
     for renderable in _envelope_summary(results):
         console.print(renderable)
@@ -420,6 +432,7 @@ def _envelope_summary(results: Any) -> list[Any]:
 
     units = results.units
     values = ("values include impact and factors" if results.has_loads
+              else "design envelope (no [[load]] tables)" if results.design is not None
               else "crane runway only (no [[load]] tables)")
     header = [results.model.title, f"model file {results.model_file}; units {units.name}; "
               f"{len(results.sections)} sections; {values}; "

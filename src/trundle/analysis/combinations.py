@@ -193,13 +193,17 @@ def design_envelope(combination: Combination, permanent: Sequence[PermanentEffec
             names = [PERMANENT_ONLY] * size
             sign = 1.0 if which == "max" else -1.0
             if combination.live > 0:
-                for case in cases:
-                    mine = p + combination.live * case.values[key]
+                combined = [p + combination.live * case.values[key] for case in cases]
+                finite = [np.abs(m[~np.isnan(m)]) for m in combined]
+                # a later case governs only where it is worse beyond rounding (1e-10 of the
+                # family's largest value), so equal cases do not take turns on noise
+                tie = 1e-10 * max([float(f.max()) for f in finite if f.size] or [0.0])
+                for case, mine in zip(cases, combined, strict=True):
                     by_case[case.name][key] = mine
                     # the first case that applies replaces the permanent part alone (its live
                     # extreme includes the empty beam); later ones only where they are worse
                     for j in np.flatnonzero(~np.isnan(mine)):
-                        if names[j] == PERMANENT_ONLY or sign * mine[j] > sign * best[j]:
+                        if names[j] == PERMANENT_ONLY or sign * (mine[j] - best[j]) > tie:
                             best[j] = mine[j]
                             names[j] = case.name
             values[key] = best
