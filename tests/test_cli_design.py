@@ -12,8 +12,8 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from cli_helpers import assert_one_line_error, read_csv, run
 
+from cli_helpers import assert_one_line_error, read_csv, run
 from trundle.io.design_tables import design_spec_of, read_design_model
 from trundle.workflows.design_envelope import run as run_design
 

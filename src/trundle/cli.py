@@ -463,13 +463,17 @@ def _envelope_cautions(results: Any) -> list[str]:
 def library_command(name: str | None) -> None:
     """List the built-in load models, or show one in detail.
 
-    A model file uses one with `use = "NAME"` in a [[load]] table (see docs/model-file.md).
-    The models shipped now are invented examples, not code load models.
+    A model file uses a vehicle, train or lane load with `use = "NAME"` in a [[load]] table,
+    and a design case (kind "design case": hl93, cooper-e80, en1991-2-lm1, ...) with
+    `use = "NAME"` in a [[design_load]] table (see docs/model-file.md). The demo-* models
+    are invented examples; the published ones are transcribed from memory: verify them
+    against the edition in force.
 
     \b
     Examples:
       trundle library
       trundle library demo-heavy-vehicle-5-axle
+      trundle library hl93
     """
     from trundle.io.loads import read_library, read_library_model
     from trundle.loads import library

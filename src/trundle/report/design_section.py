@@ -65,27 +65,25 @@ def _excluded_at(result: Any, family: str, which: str, j: int) -> str:
 
 
 def _governing_words(result: Any, name: str, family: str, which: str, j: int) -> str:
-    """The governing case at a line, with what governs inside it ("hl93 (truck + lane)")."""
+    """The governing case at a line, with what governs inside it ("hl93 / truck + lane")."""
     case_name = result.designs[name].governing[family, which][j]
     case = result.cases.get(case_name)
     if case is None:
         return case_name
     inner = case.governing.get((family, which), ())
-    return f"{case_name} ({inner[j]})" if j < len(inner) and inner[j] else case_name
+    return f"{case_name} / {inner[j]}" if j < len(inner) and inner[j] else case_name
 
 
 def _excluded_short(result: Any, j: int) -> str:
-    """Which alternatives a rule excluded from the moment at section j, by side."""
-    out = []
+    """Which alternatives a rule excluded from the moment at section j, and on which side."""
+    sides: dict[str, list[str]] = {}
     for which in ("max", "min"):
-        names = []
         for case in result.cases.values():
             text = case.excluded.get(("moment", which), ())
             if j < len(text) and text[j]:
-                names += [f"{case.name} / {e.split(': ')[0]}" for e in text[j].split("; ")]
-        if names:
-            out.append(f"{which}: " + ", ".join(names))
-    return "; ".join(out) or "—"
+                for e in text[j].split("; "):
+                    sides.setdefault(f"{case.name} / {e.split(': ')[0]}", []).append(which)
+    return "; ".join(f"{name} ({', '.join(w)})" for name, w in sides.items()) or "—"
 
 
 def _rules_note(result: Any) -> str:
