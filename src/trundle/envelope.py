@@ -626,9 +626,61 @@ def _together(batch: LineBatch, together: Together, c: int, single: Any,
     return result
 
 
+ALL_EFFECTS = ("moment", "shear", "deflection", "reaction", "support_moment")
+
+
+@dataclass(frozen=True, eq=False)
+class PreparedLines:
+    """The influence lines an envelope scans: they depend on the beam, the sections and the
+    effects only, not on the loads, so work that changes only the loads (a what-if sweep of
+    an axle spacing) builds them once and passes them to :func:`envelope`.
+
+    Fields
+    ------
+    beam, sections, effects : what they were built for
+    line_effects : one Effect per line; ``index_all[family]`` its lines
+    full_batch : every line; ``batch`` the distinct ones (``keep``/``inverse`` map between
+        them, ``index`` is the family index among the distinct lines)
+    """
+
+    beam: Beam
+    sections: NDArray[np.float64]
+    effects: tuple[str, ...]
+    line_effects: list[Effect]
+    index_all: dict[str, NDArray[np.int64]]
+    index: dict[str, NDArray[np.int64]]
+    full_batch: LineBatch
+    batch: LineBatch
+    keep: NDArray[np.int64]
+    inverse: NDArray[np.int64]
+    _ordinates: list = field(default_factory=list, repr=False)
+
+    def ordinate_extremes(self) -> NDArray[np.float64]:
+        """Largest and smallest ordinate of every distinct line (computed once)."""
+        if not self._ordinates:
+            self._ordinates.append(scan_group(self.batch, TermGroup((0.0,), (1.0,))))
+        return self._ordinates[0]
+
+
+def prepare_lines(beam: Beam, sections: ArrayLike | None = None,
+                  effects: Sequence[str] = ALL_EFFECTS) -> PreparedLines:
+    """The influence lines :func:`envelope` needs for these sections and effects."""
+    sections = beam.tenth_points() if sections is None else np.atleast_1d(
+        np.asarray(sections, dtype=float))
+    line_effects, index = _line_effects(beam, sections, effects)
+    lines = influence_set(beam, line_effects)
+    full_batch = LineBatch.from_set(lines)
+    # identical lines (shear just left and right of a section inside a span, zero lines) are
+    # scanned once; `index` below is in terms of the distinct lines
+    keep, inverse, index_all, index = _distinct_lines(lines.coefficients, index)
+    batch = full_batch if keep.size == full_batch.n_lines else full_batch.subset(keep)
+    return PreparedLines(beam, sections, tuple(effects), line_effects, index_all, index,
+                         full_batch, batch, keep, inverse)
+
+
 def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None,
-             effects: Sequence[str] = ("moment", "shear", "deflection", "reaction",
-                                       "support_moment"), refine: bool = True) -> Envelope:
+             effects: Sequence[str] = ALL_EFFECTS, refine: bool = True,
+             prepared: PreparedLines | None = None) -> Envelope:
     """Exact envelopes of the requested effects over every load case.
 
     Parameters
@@ -639,24 +691,26 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
     effects : families to compute; "shear" gives both sides of every section
     refine : search spacings and gaps beyond their coarse grid (default); without it the
         values are those of the best grid point, lower bounds of the exact extremes
+    prepared : lines from :func:`prepare_lines` for this very ``beam`` (the same object);
+        its sections and effects are used (``sections`` must be left out)
     """
     cases = tuple(as_case(item) for item in loads)
     if not cases:
         raise ModelError("loads: at least one load is needed")
-    sections = beam.tenth_points() if sections is None else np.atleast_1d(
-        np.asarray(sections, dtype=float))
-    line_effects, index = _line_effects(beam, sections, effects)
-    lines = influence_set(beam, line_effects)
-    full_batch = LineBatch.from_set(lines)
-    # identical lines (shear just left and right of a section inside a span, zero lines) are
-    # scanned once; `index` below is in terms of the distinct lines
-    keep, inverse, index_all, index = _distinct_lines(lines.coefficients, index)
-    batch = full_batch if keep.size == full_batch.n_lines else full_batch.subset(keep)
+    if prepared is None:
+        prepared = prepare_lines(beam, sections, effects)
+    elif prepared.beam is not beam or sections is not None:
+        raise ModelError("envelope: prepared lines belong to one beam object, with their own "
+                         "sections; pass that beam and no sections")
+    sections, line_effects = prepared.sections, prepared.line_effects
+    full_batch, batch = prepared.full_batch, prepared.batch
+    keep, inverse, index_all, index = (prepared.keep, prepared.inverse, prepared.index_all,
+                                       prepared.index)
     n = batch.n_lines
     # largest and smallest ordinate of every line: where a placed load's point load stands
     placed = any(isinstance(p.load, UniformLoad) for c in cases
                  for p in (c.parts if isinstance(c, Together) else (c,)))
-    ordinate_extremes = scan_group(batch, TermGroup((0.0,), (1.0,))) if placed else None
+    ordinate_extremes = prepared.ordinate_extremes() if placed else None
     results: list[_CaseResult] = []
     moving: list[tuple[LoadCase, _CaseResult, dict[int, _Arrangement]]] = []
 

@@ -1,0 +1,1 @@
+"""Input and output at the edges: model-file paths and the like."""

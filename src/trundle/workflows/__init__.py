@@ -1,0 +1,1 @@
+"""Workflows: one module per job, spec -> run() -> result."""
