@@ -37,8 +37,8 @@ from typing import Any
 import numpy as np
 from numpy.typing import NDArray
 
-from trundle.cranefile import cranes_of, runway_spec
 from trundle.crane_runway import combination_load, crane_combinations
+from trundle.cranefile import cranes_of, runway_spec
 from trundle.envelope import Envelope, PreparedLines, absolute_extremes, envelope, prepare_lines
 from trundle.io.model_paths import (
     MAX_POINTS_PER_AXIS,
@@ -417,7 +417,7 @@ def run(spec: SweepSpec, progress: Progress | None = None) -> SweepResult:
     for p, point in enumerate(points):
         model = _model_at(spec, tuple(float(v) for v in point))
         found = _evaluate(model, spec.effects, cache)
-        for e, (value, x, support, name) in enumerate(found):
+        for e, (value, x, support, _load) in enumerate(found):
             values[p, e], xs[p, e], supports[p, e] = value, x, support
         names.append(tuple(f[3] for f in found))
         if progress is not None:
