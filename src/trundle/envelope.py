@@ -270,7 +270,10 @@ def _refine(batch: LineBatch, case: LoadCase, result: _CaseResult,
 
 
 def _uniform_case(batch: LineBatch, case: LoadCase, case_index: int,
-                  ordinate_extremes: NDArray[np.float64], beam: Beam) -> _CaseResult:
+                  ordinate_extremes: NDArray[np.float64], beam: Beam,
+                  areas: tuple[NDArray[np.float64], NDArray[np.float64]] | None = None
+                  ) -> _CaseResult:
+    """``areas``: the lines' positive and negative areas when already known."""
     load: UniformLoad = case.load
     m = case.multiplier
     P = load.point_load
@@ -278,7 +281,7 @@ def _uniform_case(batch: LineBatch, case: LoadCase, case_index: int,
     result = _CaseResult(case_index, n)
     result.pattern = [[None] * n, [None] * n]
     if load.placement == "anywhere":
-        pos, neg = signed_areas(batch.knots, batch.coef)
+        pos, neg = areas if areas is not None else signed_areas(batch.knots, batch.coef)
         for w, area, col, sign in ((0, pos, 0, 1), (1, neg, 3, -1)):
             result.value[w] = m * (load.w * area + P * ordinate_extremes[:, col])
             for j in range(n):
@@ -654,12 +657,19 @@ class PreparedLines:
     keep: NDArray[np.int64]
     inverse: NDArray[np.int64]
     _ordinates: list = field(default_factory=list, repr=False)
+    _areas: list = field(default_factory=list, repr=False)
 
     def ordinate_extremes(self) -> NDArray[np.float64]:
         """Largest and smallest ordinate of every distinct line (computed once)."""
         if not self._ordinates:
             self._ordinates.append(scan_group(self.batch, TermGroup((0.0,), (1.0,))))
         return self._ordinates[0]
+
+    def signed_areas(self) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
+        """Positive and negative area of every distinct line (computed once)."""
+        if not self._areas:
+            self._areas.append(signed_areas(self.batch.knots, self.batch.coef))
+        return self._areas[0]
 
 
 def prepare_lines(beam: Beam, sections: ArrayLike | None = None,
@@ -716,7 +726,8 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
 
     def single(case: LoadCase, c: int) -> tuple[_CaseResult, dict | None]:
         if isinstance(case.load, UniformLoad):
-            return _uniform_case(batch, case, c, ordinate_extremes, beam), None
+            areas = prepared.signed_areas() if case.load.placement == "anywhere" else None
+            return _uniform_case(batch, case, c, ordinate_extremes, beam, areas), None
         arrangements = _arrangements(case)
         return _moving_grid(batch, case, c, arrangements), arrangements
 
