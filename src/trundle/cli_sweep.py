@@ -7,6 +7,7 @@ Bad paths, ranges and effects end with one line ``error: …`` and exit code 2 (
 
 from __future__ import annotations
 
+import os
 import sys
 from pathlib import Path
 
@@ -90,8 +91,10 @@ def sweep_command(model_file: str, vary: tuple[str, ...], effects: tuple[str, ..
     from trundle.report.sweep_section import displayed as shown_values
 
     model = load_model(model_file)
+    # a terminal, or COLUMNS when set, gives the width; piped output is 140 columns otherwise
+    free = sys.stdout.isatty() or os.environ.get("COLUMNS", "").isdigit()
     console = Console(highlight=False, markup=False, soft_wrap=False,
-                      width=None if sys.stdout.isatty() else 140)
+                      width=None if free else 140)
     if list_paths:
         paths = valid_paths(model.raw)
         console.print(f"{len(paths)} numbers of {model_file} can be varied:")
