@@ -252,3 +252,17 @@ def test_a_value_the_model_refuses_names_the_point_and_the_key() -> None:
         build_spec(model, {"load.truck.axles[1]": "-10:10:10"}, ["reaction max"])
     message = str(caught.value)
     assert "load.truck.axles[1] = -10 kN" in message and "load[0].axles[1]" in message
+
+
+def test_modulus_sweep_in_us_units_scales_deflection_only() -> None:
+    # one modulus for the whole beam: the moments of an indeterminate beam do not depend on
+    # its value and the deflections are inversely proportional to it (linear elasticity;
+    # common practice, no source)
+    path = ROOT / "examples" / "millrace_access_bridge_us.toml"
+    result = sweep(path, {"beam.E": "14500:29000:14500 ksi"},
+                   ["moment min at 30 ft", "deflection max span 1", "reaction max support 1"])
+    assert parse_effect("Moment MIN at 30 FT").at == "30 FT"  # units keep their case
+    half, full = result.values
+    assert half[0] == pytest.approx(full[0], rel=1e-9)
+    assert half[2] == pytest.approx(full[2], rel=1e-9)
+    assert half[1] == pytest.approx(2.0 * full[1], rel=1e-9)

@@ -51,7 +51,7 @@ from trundle.io.model_paths import (
 )
 from trundle.loadfile import loads_of
 from trundle.loads.cases import LoadCase
-from trundle.model import Beam, ModelError, Spring
+from trundle.model import Beam, Spring
 from trundle.modelfile import Model, ModelFileError, load_model, read_model_data
 from trundle.units import UnitError, parse_quantity
 
@@ -128,12 +128,14 @@ def parse_effect(text: str) -> EffectSelector:
     if not isinstance(text, str) or not text.strip():
         raise SweepError("--effect: expected e.g. \"moment max span 2\", found nothing")
     shown = " ".join(text.split())
-    words = [_ALIASES.get(w.lower(), w.lower()) for w in shown.replace(",", " ").split()]
+    original = shown.replace(",", " ").split()
+    words = [_ALIASES.get(w.lower(), w.lower()) for w in original]
     grammar = ("expected [loads|cranes] KIND WHICH [span N [anywhere] | support K | at X] "
                f"with KIND one of {', '.join(KINDS)} and WHICH max or min")
     source = ""
     if words and words[0] in SOURCES:
         source = words.pop(0)
+        original.pop(0)
     head = words[:2]
     kind = next((w for w in head if w in KINDS), None)
     which = next((w for w in head if w in ("max", "min")), None)
@@ -172,7 +174,8 @@ def parse_effect(text: str) -> EffectSelector:
         if kind not in SECTION_KINDS:
             raise SweepError(f'--effect "{shown}": expected "support K" with {kind}, found '
                              '"at"')
-        return EffectSelector(shown, kind, which, source, at=" ".join(tail))
+        # the position keeps its case: units are case-sensitive ("MN" is not "mN")
+        return EffectSelector(shown, kind, which, source, at=" ".join(original[3:]))
     raise SweepError(f'--effect "{shown}": {grammar}; found "{place}"')
 
 
@@ -219,6 +222,8 @@ def build_spec(model: Model, vary: Mapping[str, str] | Iterable[str],
 
     Raises SweepError (or ModelPathError) with one line.
     """
+    if isinstance(vary, str):
+        vary = [vary]
     pairs = list(vary.items()) if isinstance(vary, Mapping) else \
         [split_vary(item) for item in vary]
     if not pairs:
@@ -569,5 +574,5 @@ def effect_family(selector: EffectSelector) -> str:
 
 
 __all__ = ["DEFAULT_EFFECTS", "MAX_AXES", "MAX_POINTS", "MAX_POINTS_PER_AXIS", "EffectSelector",
-           "ModelError", "ModelPathError", "SweepError", "SweepResult", "SweepSpec",
-           "build_spec", "parse_effect", "run", "sweep"]
+           "ModelPathError", "SweepError", "SweepResult", "SweepSpec", "build_spec",
+           "parse_effect", "run", "sweep"]
