@@ -113,3 +113,15 @@ def test_the_sweep_benchmark_runs_in_quick_mode() -> None:
                           check=False)
     assert done.returncode == 0, done.stderr
     assert "ratio (c)/(a)" in done.stdout and "ratio (d)/(a)" in done.stdout
+
+
+def test_progress_bar_on_a_terminal_gives_the_same_result(monkeypatch) -> None:
+    import trundle.cli_sweep as cli_sweep
+    from trundle.modelfile import load_model
+    from trundle.workflows.sweep import build_spec
+    from trundle.workflows.sweep import run as run_sweep
+
+    spec = build_spec(load_model(FLOOR), {FORKLIFT: "1.2:1.8:0.3 m"}, ["moment max span 2"])
+    monkeypatch.setattr(cli_sweep.sys.stderr, "isatty", lambda: True, raising=False)
+    shown = cli_sweep._run_with_progress(spec)
+    np.testing.assert_array_equal(shown.values, run_sweep(spec).values)
