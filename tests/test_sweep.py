@@ -266,3 +266,12 @@ def test_modulus_sweep_in_us_units_scales_deflection_only() -> None:
     assert half[0] == pytest.approx(full[0], rel=1e-9)
     assert half[2] == pytest.approx(full[2], rel=1e-9)
     assert half[1] == pytest.approx(2.0 * full[1], rel=1e-9)
+
+
+def test_a_span_sweep_says_that_positions_written_in_the_file_stay_put() -> None:
+    path = ROOT / "examples" / "cranes" / "hall_kestrel_quay_si.toml"
+    spec = build_spec(load_model(path), {"beam.spans[1]": "7.5:7.5:1"}, ["reaction max"])
+    assert len(spec.notes) == 1 and "hinges" in spec.notes[0]
+    plain = read_model(THREE_SPAN.replace("SPACING", "6.0"))
+    assert build_spec(plain, {"beam.spans[1]": "28:30:2"}, ["reaction max"]).notes == ()
+    assert build_spec(plain, {"load.truck.spacings[1]": "5:6:1"}, ["reaction max"]).notes == ()

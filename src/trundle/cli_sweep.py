@@ -116,6 +116,8 @@ def sweep_command(model_file: str, vary: tuple[str, ...], effects: tuple[str, ..
     console.print(Text(model.title, style="bold"))
     for line in summary_lines(result):
         console.print(line)
+    for note in spec.notes:
+        console.print(Text(f"note: {note}"))
     table = Table(title=Text("the governing effects at each point", style="bold"),
                   title_justify="left")
     for r in result.ranges:

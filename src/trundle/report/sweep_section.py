@@ -188,3 +188,8 @@ def summary_lines(result: SweepResult) -> Sequence[str]:
     for effect, value, where in worst_points(result):
         lines.append(f"worst {effect}: {value} at {where}")
     return lines
+
+
+def notes(result: SweepResult) -> Sequence[str]:
+    """What the reader must know about the sweep (shown with its results)."""
+    return result.spec.notes

@@ -192,11 +192,14 @@ class SweepSpec:
     model : the model as read from its file
     ranges : one or two SweepRange (the first varies slowest)
     effects : the EffectSelector followed
+    notes : what the reader of the results must know about the sweep (e.g. that hinges
+        written as positions stay put while a span changes)
     """
 
     model: Model
     ranges: tuple[SweepRange, ...]
     effects: tuple[EffectSelector, ...]
+    notes: tuple[str, ...] = ()
 
     @property
     def shape(self) -> tuple[int, ...]:
@@ -245,7 +248,7 @@ def build_spec(model: Model, vary: Mapping[str, str] | Iterable[str],
     if len(effects) > MAX_EFFECTS:
         raise SweepError(f"--effect: expected at most {MAX_EFFECTS}, found {len(effects)}")
     selectors = tuple(parse_effect(e) for e in effects)
-    spec = SweepSpec(model, tuple(ranges), selectors)
+    spec = SweepSpec(model, tuple(ranges), selectors, _span_notes(model, ranges))
     for selector in selectors:
         _check_selector(model, selector)
     if check_points:
@@ -256,6 +259,30 @@ def build_spec(model: Model, vary: Mapping[str, str] | Iterable[str],
                 point[axis] = value
                 _model_at(spec, tuple(point))
     return spec
+
+
+def _span_notes(model: Model, ranges: Sequence[SweepRange]) -> tuple[str, ...]:
+    """A span sweep leaves positions written in the file where they are: say which."""
+    if not any(r.path.location[:2] == ("beam", "spans") for r in ranges):
+        return ()
+    beam = model.raw.get("beam", {})
+    fixed = []
+    if beam.get("hinges"):
+        fixed.append("hinges")
+    if any(isinstance(seg, Mapping) and ("from" in seg or "to" in seg)
+           for seg in beam.get("stiffness", []) or []):
+        fixed.append("stiffness segment ends")
+    sections = model.raw.get("sections", {})
+    at = sections.get("at", []) if isinstance(sections, Mapping) else []
+    if isinstance(at, list) and any(not (isinstance(a, str) and a.replace("-", " ").replace(
+            "_", " ").strip().lower() in ("tenth points", "quarter points", "midspans",
+                                          "supports")) for a in at):
+        fixed.append("sections given as positions")
+    if not fixed:
+        return ()
+    return (f"a span changes while the {', '.join(fixed)} of the model file stay at the "
+            "positions written there (measured from the left end): check that the structure "
+            "at each point is the one intended",)
 
 
 def _source(model: Model, selector: EffectSelector) -> str:
