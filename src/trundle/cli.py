@@ -538,7 +538,14 @@ def sweep_command(model_file: str, vary: tuple[str, ...], effects: tuple[str, ..
     from trundle.io.model_paths import ModelPathError, valid_paths
     from trundle.io.outputs import Provenance
     from trundle.io.sweeps import build_spec
-    from trundle.report.sweep_section import CAUTIONS, effect_title, summary_lines, sweep_files
+    from trundle.report.format import length as format_length
+    from trundle.report.sweep_section import (
+        CAUTIONS,
+        column_text,
+        effect_title,
+        summary_lines,
+        sweep_files,
+    )
     from trundle.report.sweep_section import displayed as shown_values
     from trundle.workflows.sweep import SweepError
 
@@ -577,15 +584,15 @@ def sweep_command(model_file: str, vary: tuple[str, ...], effects: tuple[str, ..
     for e in range(len(result.effects)):
         table.add_column(Text(effect_title(result, e)), justify="right", overflow="fold")
         table.add_column(Text("load"), overflow="fold")
-    columns = [shown_values(result, e) for e in range(len(result.effects))]
+    columns = [column_text(shown_values(result, e)) for e in range(len(result.effects))]
     rows = _rows_shown(len(result.points))
     for p in rows:
         if p < 0:
             table.add_row(*(["…"] * (len(result.axes) + 2 * len(result.effects))))
             continue
-        cells = [f"{v:.5g}" for v in result.points[p]]
+        cells = [format_length(v) for v in result.points[p]]
         for e in range(len(result.effects)):
-            cells += [f"{columns[e][p]:.5g}", result.load[p][e] or "—"]
+            cells += [columns[e][p], result.load[p][e] or "—"]
         table.add_row(*cells)
     console.print(table)
     if len(rows) < len(result.points):

@@ -28,7 +28,7 @@ from trundle.io.outputs import Provenance
 from trundle.report import CAUTION, LOAD_MODEL_CAUTION
 from trundle.report.envelope_data import display_factor, quantity_unit
 from trundle.report.figures import INK, MUTED, PALETTE, SEQUENTIAL, figure_bytes, new_figure
-from trundle.report.format import decimals, fixed, number
+from trundle.report.format import decimals, fixed, length, number
 from trundle.workflows.sweep import SweepResult, effect_family
 
 CAUTIONS = (CAUTION, LOAD_MODEL_CAUTION,
@@ -98,10 +98,16 @@ def worst_points(result: SweepResult) -> list[tuple[str, str, str]]:
     out = []
     for e in range(len(result.effects)):
         p = result.worst(e)
-        where = ", ".join(f"{r.name} = {_short(result.points[p, a])} {r.unit}"
+        where = ", ".join(f"{r.name} = {length(result.points[p, a])} {r.unit}"
                           for a, r in enumerate(result.axes))
         out.append((effect_title(result, e), _short(displayed(result, e)[p]), where))
     return out
+
+
+def column_text(values: Sequence[float], significant: int = 5) -> list[str]:
+    """A column of values for people: the same decimals for all (report/format.py)."""
+    places = decimals(values, significant=significant)
+    return [fixed(float(v), places) if math.isfinite(v) else "—" for v in values]
 
 
 def _short(value: float) -> str:
@@ -125,10 +131,10 @@ def sweep_figure(result: SweepResult, title: str = "") -> Figure:
             p = result.worst(e)
             ax.plot([x[p]], [y[p]], marker="D", color=INK, markersize=4, linestyle="none")
             right_half = x[p] > 0.5 * (x.min() + x.max())
-            ax.annotate(f"{_short(y[p])} at {_short(x[p])}", (x[p], y[p]),
+            ax.annotate(f"{_short(y[p])} at {length(x[p])}", (x[p], y[p]),
                         textcoords="offset points", xytext=(-6 if right_half else 6, -10),
                         ha="right" if right_half else "left", fontsize=7, color=INK)
-            ax.set_ylabel(_wrapped(effect_title(result, e)))
+            ax.set_ylabel(_wrapped(effect_title(result, e), 26))
         axes[-1].set_xlabel(_wrapped(axis_title(result, 0), 80))
     else:
         columns = 1 if n == 1 else 2
@@ -222,7 +228,7 @@ def sweep_html(result: SweepResult, provenance: Provenance | None = None,
     if png is not None:
         uri = "data:image/png;base64," + base64.b64encode(png).decode("ascii")
         figure = f"<figure><img src='{uri}' alt='sweep figure'></figure>"
-    swept = "; ".join(f"{a.name} from {_short(a.values[0])} to {_short(a.values[-1])} "
+    swept = "; ".join(f"{a.name} from {length(a.values[0])} to {length(a.values[-1])} "
                       f"{a.unit} ({len(a.values)} values)" for a in result.axes)
     return f"""<!DOCTYPE html>
 <html lang="en"><head><meta charset="utf-8">
@@ -272,7 +278,7 @@ def sweep_files(result: SweepResult, provenance: Provenance | None = None,
 def summary_lines(result: SweepResult) -> Sequence[str]:
     """Short lines for a terminal: what was swept and the worst point of each effect."""
     lines = [f"{len(result.points)} points: " + "; ".join(
-        f"{r.name} from {_short(r.values[0])} to {_short(r.values[-1])} {r.unit} "
+        f"{r.name} from {length(r.values[0])} to {length(r.values[-1])} {r.unit} "
         f"({len(r.values)} values)" for r in result.axes)]
     for effect, value, where in worst_points(result):
         lines.append(f"worst {effect}: {value} at {where}")
