@@ -294,3 +294,24 @@ def test_the_readme_scripting_example_runs_and_prints_what_the_readme_shows(caps
     model = read_model(THREE_SPAN.replace("SPACING", "4.3"))
     result = sweep(model, {"load.truck.spacings[1]": "4.3:9:0.7 m"}, ["reaction max support 1"])
     assert result.values[0, 0] == pytest.approx(318.8, abs=0.05)
+
+
+def test_what_is_kept_with_the_lines_equals_what_is_computed_afresh() -> None:
+    # a sweep of load numbers reuses the lines and, with them, a placed uniform load's areas
+    # and ordinates: each later envelope must equal one computed from nothing
+    from trundle.analysis import envelope as envelope_module
+
+    beam = trundle.Beam(SPANS)
+    loads = [trundle.Vehicle([35.0, 145.0, 145.0], [4.3, 6.0], name="truck"),
+             trundle.UniformLoad(9.3, point_load=80.0, name="lane")]
+    envelope_module._PREPARED.clear()
+    fresh = trundle.envelope(beam, loads)
+    again = trundle.envelope(trundle.Beam(SPANS), loads[::-1])  # lines, areas reused
+    for kind in ("moment", "deflection", "reaction"):
+        np.testing.assert_array_equal(fresh.max(kind), again.max(kind))
+        np.testing.assert_array_equal(fresh.min(kind), again.min(kind))
+    batch = envelope_module._prepared_lines(beam, beam.tenth_points(),
+                                            envelope_module.REQUESTABLE)[-1]
+    kept = envelope_module._MEMO[batch]
+    assert set(kept) == {"signed areas", "ordinate extremes"}
+    assert not kept["signed areas"][0].flags.writeable  # shared: nobody may change it

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import dataclasses
 import itertools
+import weakref
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, field
 from typing import Any
@@ -315,7 +316,7 @@ def _uniform_case(batch: LineBatch, case: LoadCase, case_index: int,
     result = _CaseResult(case_index, n)
     result.pattern = [[None] * n, [None] * n]
     if load.placement == "anywhere":
-        pos, neg = signed_areas(batch.knots, batch.coef)
+        pos, neg = _lines_memo(batch, "signed areas")
         for w, area, col, sign in ((0, pos, 0, 1), (1, neg, 3, -1)):
             result.value[w] = m * (load.w * area + P * ordinate_extremes[:, col])
             for j in range(n):
@@ -793,7 +794,7 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
     # largest and smallest ordinate of every line: where a placed load's point load stands
     placed = any(isinstance(p.load, UniformLoad) for c in cases
                  for p in (c.parts if isinstance(c, Together) else (c,)))
-    ordinate_extremes = scan_group(batch, TermGroup((0.0,), (1.0,))) if placed else None
+    ordinate_extremes = _lines_memo(batch, "ordinate extremes") if placed else None
     results: list[_CaseResult] = []
     moving: list[tuple[LoadCase, _CaseResult, dict[int, _Arrangement]]] = []
 
@@ -873,6 +874,25 @@ def _prepared_lines(beam: Beam, sections: NDArray[np.float64], families: tuple[s
             _PREPARED.pop(next(iter(_PREPARED)))
         _PREPARED[key] = found
     return found
+
+
+# what depends on the lines only (not on the loads), kept with the lines of the cache above
+# for as long as they live: a placed uniform load's areas and its point load's ordinates are
+# computed once for a beam checked again under other loads (a sweep of an axle spacing)
+_MEMO: weakref.WeakKeyDictionary[LineBatch, dict[str, Any]] = weakref.WeakKeyDictionary()
+
+
+def _lines_memo(batch: LineBatch, what: str) -> Any:
+    """``"signed areas"`` (positive, negative area of each line) or ``"ordinate extremes"``
+    (a unit load's scan of each line) of ``batch``, computed once per batch object."""
+    memo = _MEMO.setdefault(batch, {})
+    if what not in memo:
+        found = (signed_areas(batch.knots, batch.coef) if what == "signed areas"
+                 else scan_group(batch, TermGroup((0.0,), (1.0,))))
+        for array in (found if isinstance(found, tuple) else (found,)):
+            array.setflags(write=False)  # shared by every envelope of these lines
+        memo[what] = found
+    return memo[what]
 
 
 def _distinct_lines(identity: NDArray[np.int64], index: dict[str, NDArray[np.int64]]
