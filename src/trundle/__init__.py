@@ -12,6 +12,7 @@ from trundle.core.influence import (
 )
 from trundle.core.statics import DistributedLoad, PointLoad, PointMoment
 from trundle.io import ModelFileError, load_model
+from trundle.io.sweeps import sweep
 from trundle.loads import AttachedUniform, LoadCase, Together, Train, UniformLoad, Vehicle
 from trundle.loads.cranes import Crane, WheelLoads
 from trundle.workflows.crane_runway import RunwayResult, RunwaySpec, analyse_runway
@@ -20,4 +21,4 @@ __all__ = ["AttachedUniform", "Beam", "Crane", "DistributedLoad", "Effect", "Env
            "Governing", "InfluenceLine", "InfluenceSet", "LoadCase", "ModelError",
            "ModelFileError", "PointLoad", "PointMoment", "RunwayResult", "RunwaySpec", "Spring",
            "Together", "Train", "UniformLoad", "Vehicle", "WheelLoads", "__version__",
-           "analyse_runway", "envelope", "influence_batch", "influence_set", "load_model"]
+           "analyse_runway", "envelope", "influence_batch", "influence_set", "load_model", "sweep"]

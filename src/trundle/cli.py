@@ -7,6 +7,7 @@ stderr, ``error: …``, and exit code 2; never a traceback, never a half-written
 from __future__ import annotations
 
 import difflib
+import os
 import sys
 from collections.abc import Sequence
 from pathlib import Path
@@ -21,10 +22,12 @@ from trundle.core.beam import Beam, ModelError, Spring
 from trundle.core.influence import Effect, InfluenceSet
 from trundle.io.cranes import cranes_of, runway_spec
 from trundle.io.loads import loads_of
+from trundle.io.model_paths import MAX_POINTS_PER_AXIS
 from trundle.io.modelfile import Model, ModelFileError, load_model
 from trundle.io.outputs import write_output_set
 from trundle.io.units import UnitError, parse_quantity
 from trundle.report import CAUTION, LOAD_MODEL_CAUTION
+from trundle.workflows.sweep import DEFAULT_EFFECTS, MAX_POINTS
 
 EFFECT_CHOICES = ("moment", "shear", "reaction", "deflection", "rotation", "support-moment")
 _SECTION_KINDS = ("moment", "shear", "deflection", "rotation")
@@ -494,6 +497,159 @@ def library_command(name: str | None) -> None:
             console.print(to_rich(renderable) if not isinstance(renderable, str)
                           else Text(renderable))
     console.print(LOAD_MODEL_CAUTION, style="dim")
+
+
+# ------------------------------------------------------------------------------------------
+# trundle sweep
+
+_MAX_ROWS_SHOWN = 41
+
+
+@cli.command("sweep", epilog=_DESIGN_SAFETY_HELP)
+@click.argument("model_file", metavar="MODEL")
+@click.option("--vary", "vary", multiple=True, metavar="PATH=START:STOP:STEP",
+              help="A number of the model and its values, e.g. "
+                   "'load.truck.spacings[2]=4.3:9:0.1 m'; once or twice (a contour). "
+                   f"At most {MAX_POINTS_PER_AXIS:,} values each, {MAX_POINTS:,} points in all. "
+                   "See --paths for the numbers this model has.")
+@click.option("-e", "--effect", "effects", multiple=True, metavar="EFFECT",
+              help="What to follow: '[loads|cranes] KIND max|min [span N [anywhere] | "
+                   "support K | at X]', KIND one of moment, shear, deflection, reaction, "
+                   "support_moment; spans from 1, supports from 0; repeat for several. "
+                   f"Default: {', '.join(DEFAULT_EFFECTS)}.")
+@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False, path_type=Path),
+              help="Write sweep.csv (one row per point), sweep.json, a figure and sweep.html "
+                   "into this folder; files of an earlier trundle run there that this run "
+                   "does not write are removed.")
+@click.option("--format", "figure_format", type=click.Choice(["png", "svg", "pdf"]),
+              default="png", show_default=True, help="Figure format.")
+@click.option("--no-figure", is_flag=True, help="With --out: write no figure file.")
+@click.option("--no-report", is_flag=True, help="With --out: write no sweep.html.")
+@click.option("--paths", "list_paths", is_flag=True,
+              help="List the numbers of this model that can be varied, and stop.")
+def sweep_command(model_file: str, vary: tuple[str, ...], effects: tuple[str, ...],
+                  out_dir: Path | None, figure_format: str, no_figure: bool,
+                  no_report: bool, list_paths: bool) -> None:
+    """What-if: vary one or two numbers of a model and tabulate the governing effects.
+
+    At every point the model file is read again with the numbers replaced (so every value
+    is checked as in the file) and the exact envelope of the effects asked for is computed.
+    Paths are written like the keys in trundle's error messages (indices from 0); a
+    [[load]] or [[crane]] may be named by its name, quoted when it has spaces. A range is
+    START:STOP:STEP with the unit once at the end or on each number; without a unit the
+    values take the unit of the number they replace. A searched spacing {min, max} swept
+    becomes one value per point. When only loads change, the influence lines are reused.
+
+    \b
+    Examples:
+      trundle sweep examples/harbour_lane_floor_girder_si.toml --paths
+      trundle sweep examples/harbour_lane_floor_girder_si.toml \\
+          --vary 'load."pallet forklift".spacings[0]=1.2:3.0:0.1 m' \\
+          --effect "moment max span 2" --effect "reaction max support 1" --out results/
+      trundle sweep examples/cranes/hall_kestrel_quay_si.toml \\
+          --vary 'crane."20 t process crane".wheel_spacings[0]=3.0:5.0:0.25' \\
+          --vary 'beam.spans[1]=6.5:8.5:0.5 m' --effect "reaction max support 1"
+    """
+    from rich.table import Table
+
+    from trundle.io.model_paths import ModelPathError, valid_paths
+    from trundle.io.outputs import Provenance
+    from trundle.io.sweeps import build_spec
+    from trundle.report.format import length as format_length
+    from trundle.report.sweep_section import (
+        CAUTIONS,
+        column_text,
+        effect_title,
+        summary_lines,
+        sweep_files,
+    )
+    from trundle.report.sweep_section import displayed as shown_values
+    from trundle.workflows.sweep import SweepError
+
+    model = _load(model_file)
+    # a terminal, or COLUMNS when set, gives the width; piped output is 140 columns otherwise
+    free = sys.stdout.isatty() or os.environ.get("COLUMNS", "").isdigit()
+    console = Console(highlight=False, markup=False, soft_wrap=False,
+                      width=None if free else 140)
+    if list_paths:
+        paths = valid_paths(model.raw)
+        console.print(f"{len(paths)} numbers of {model_file} can be varied:")
+        for path in paths:
+            given = "" if path.given is None else f" = {path.given}"
+            note = f" ({path.note})" if path.note else ""
+            console.print(f"  {path.text}{given}  [{path.kind}]{note}")
+        return
+    if not vary:
+        raise UserError("--vary: expected one or two PATH=START:STOP:STEP (see --paths for "
+                          "the numbers of this model), found none")
+    if out_dir is not None and out_dir.exists() and not out_dir.is_dir():
+        raise UserError(f"--out {out_dir}: expected a folder, found a file")
+    try:
+        spec = build_spec(model, vary, effects or DEFAULT_EFFECTS)
+        result = _run_with_progress(spec)
+    except (ModelPathError, SweepError) as error:
+        raise UserError(str(error)) from None
+    console.print(Text(model.title, style="bold"))
+    for line in summary_lines(result):
+        console.print(line)
+    for note in spec.notes:
+        console.print(Text(f"note: {note}"))
+    table = Table(title=Text("the governing effects at each point", style="bold"),
+                  title_justify="left")
+    for r in result.axes:
+        table.add_column(Text(f"{r.name} [{r.unit}]"), justify="right", overflow="fold")
+    for e in range(len(result.effects)):
+        table.add_column(Text(effect_title(result, e)), justify="right", overflow="fold")
+        table.add_column(Text("load"), overflow="fold")
+    columns = [column_text(shown_values(result, e)) for e in range(len(result.effects))]
+    rows = _rows_shown(len(result.points))
+    for p in rows:
+        if p < 0:
+            table.add_row(*(["…"] * (len(result.axes) + 2 * len(result.effects))))
+            continue
+        cells = [format_length(v) for v in result.points[p]]
+        for e in range(len(result.effects)):
+            cells += [columns[e][p], result.load[p][e] or "—"]
+        table.add_row(*cells)
+    console.print(table)
+    if len(rows) < len(result.points):
+        console.print(f"({len(result.points)} points; every point is in sweep.csv with --out)",
+                      style="dim")
+    if out_dir is not None:
+        files = sweep_files(result, Provenance.of_file(model_file), figure_format,
+                            with_figure=not no_figure, with_report=not no_report)
+        try:
+            written, removed = write_output_set(out_dir, files)
+        except OSError as error:
+            raise UserError(f"--out {out_dir}: cannot write ({error.strerror or error})") \
+                from None
+        console.print("wrote " + ", ".join(str(p) for p in written))
+        if removed:
+            console.print("removed the earlier run's " + ", ".join(p.name for p in removed))
+    for caution in CAUTIONS:
+        console.print(caution, style="dim")
+
+
+def _rows_shown(n: int) -> list[int]:
+    """Every row of a short sweep; the first and last rows of a long one (−1: a gap)."""
+    if n <= _MAX_ROWS_SHOWN:
+        return list(range(n))
+    half = _MAX_ROWS_SHOWN // 2
+    return [*range(half), -1, *range(n - half, n)]
+
+
+def _run_with_progress(spec: Any) -> Any:
+    """Run the sweep with a progress bar on a terminal, silently otherwise."""
+    from trundle.workflows.sweep import run
+
+    if not sys.stderr.isatty() or spec.n_points < 2:
+        return run(spec)
+    from rich.progress import BarColumn, MofNCompleteColumn, Progress, TimeRemainingColumn
+
+    with Progress("sweep", BarColumn(), MofNCompleteColumn(), TimeRemainingColumn(),
+                  console=Console(stderr=True), transient=True) as bar:
+        task = bar.add_task("sweep", total=spec.n_points)
+        return run(spec, lambda done, total: bar.update(task, completed=done))
 
 
 def main() -> None:

@@ -8,7 +8,9 @@ which side the axle stood. Concurrent effects are evaluated exactly from that co
 
 from __future__ import annotations
 
+import dataclasses
 import itertools
+import weakref
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, field
 from typing import Any
@@ -17,6 +19,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 from scipy.optimize import minimize_scalar
 
+from trundle.core._repr import html_table, short
 from trundle.core.beam import Beam, ModelError, Spring
 from trundle.core.influence import Effect, line_pieces, piece_sign_intervals
 from trundle.loads.cases import LoadCase, Together, as_case
@@ -37,20 +40,35 @@ REFINE_WITHIN = 0.05  # refine cases whose grid extreme is within 5 % of the lin
 
 @dataclass(frozen=True)
 class Governing:
-    """What produced one extreme of one line.
+    """What produced one extreme of one line: which load, standing where.
 
     Fields
     ------
-    value : the extreme [effect units]
-    case : index into ``Envelope.cases`` (−1: the empty beam governs)
-    direction : +1 moving towards +x, −1 towards −x, 0 for placed (not moving) loads
-    reference : x of the group's reference point (its first axle as given) [length]
-    side : +1 the loads stand just right of a jump (limit from above), −1 just left, 0 exact
-    searched : values found for the searched spacings/gaps [length]
-    pattern : for placed uniform load: the loaded intervals [(x0, x1), …]; its
-        concentrated load (if any) stands at ``reference``, on ``side`` of a jump
+    value : the extreme [effect units], with the case's impact and factors (deflection
+        without the strength load factor)
+    case : index into ``Envelope.cases`` of the load case that produces it (−1: nothing
+        loads the line that way, the empty beam governs with 0)
+    direction : +1 the load travels towards +x, −1 towards −x, 0 for placed (not moving)
+        loads
+    reference : where the load stands [length]: x of the moving group's reference point,
+        which is its first concentrated load as listed (axle 1 of a vehicle; the wheels of
+        the other axles follow behind it, against the direction of travel); for a placed
+        uniform load, x of its concentrated load (NaN without one); NaN for the empty beam.
+        ``Envelope.axle_positions(g)`` gives x of every concentrated load
+    side : which one-sided limit ``value`` is when a load stands on a break of the line:
+        +1 the load stands just right of it (x → from above), −1 just left of it, 0 the value
+        is taken with the load inside a piece. It matters where the line jumps (a shear line
+        at its own section): there the extreme exists only as that limit, so the load stands
+        a hair's breadth to that side of ``reference``'s break; where the line is continuous
+        (moment, deflection, reactions) both limits are equal and ``side`` is only a record
+    searched : values found for the load's searched spacings and gaps, in the order the load
+        lists them [length] (empty when nothing is searched)
+    pattern : for a placed uniform load: the loaded intervals [(x0, x1), …] (or, inside an
+        envelope, a reference to the line whose sign decides them: read it with
+        ``Envelope.loaded_stretches(g)``)
     parts : for loads acting together: the Governing of each part, whose ``case`` is the
         part's index in the Together
+    load : the name of the load case (of the part, inside ``parts``); "" for the empty beam
     """
 
     value: float
@@ -61,6 +79,26 @@ class Governing:
     searched: tuple[float, ...] = ()
     pattern: tuple | None = None
     parts: tuple[Governing, ...] = ()
+    load: str = ""
+
+    def __repr__(self) -> str:
+        if self.case < 0:
+            return f"Governing({self.value:.6g}, empty beam)"
+        words = [f"{self.value:.6g}", f"load {self.load!r}" if self.load else
+                 f"case {self.case}"]
+        if self.direction:
+            words.append("towards +x" if self.direction > 0 else "towards -x")
+        if self.reference == self.reference:  # not NaN
+            words.append(f"reference at x = {self.reference:.6g}")
+        if self.side:
+            words.append("limit from the right" if self.side > 0 else "limit from the left")
+        if self.searched:
+            words.append("searched " + ", ".join(f"{v:.6g}" for v in self.searched))
+        if self.pattern is not None and self.pattern and self.pattern[0] != "sign of line":
+            words.append(f"{len(self.pattern)} loaded stretch(es)")
+        if self.parts:
+            words.append("parts: " + "; ".join(repr(p) for p in self.parts))
+        return f"Governing({', '.join(words)})"
 
 
 EMPTY = Governing(0.0)
@@ -468,6 +506,112 @@ class Envelope:
             self._cache[key] = tuple(extreme for *_, extreme in found)
         return self._cache[key]
 
+    # --- for people and for scripts (additive: nothing below is used by the search) ------
+
+    def _where(self, line: int) -> str:
+        effect = self.effects[line]
+        if effect.kind in ("reaction", "support_moment"):
+            return f"support {effect.support}"
+        return f"x = {effect.at:.6g}"
+
+    def _extreme_rows(self) -> list[list[str]]:
+        """Per family computed: the largest max and the smallest min, where, which load."""
+        rows = []
+        maximum, minimum = self.maximum, self.minimum
+        for family in FAMILIES:
+            lines = self.index[family]
+            if not lines.size:
+                continue
+            hi = int(lines[np.argmax(maximum[lines])])
+            lo = int(lines[np.argmin(minimum[lines])])
+            rows.append([family.replace("_", " "),
+                         short(maximum[hi]), self._where(hi),
+                         self.governing_max[hi].load or "—",
+                         short(minimum[lo]), self._where(lo),
+                         self.governing_min[lo].load or "—"])
+        return rows
+
+    def __repr__(self) -> str:
+        names = ", ".join(case.name for case in self.cases)
+        if len(names) > 60:
+            names = names[:57] + "..."
+        text = [f"{self.beam.n_spans} span(s)", f"{len(self.sections)} sections",
+                f"{len(self.cases)} load case(s) ({names})"]
+        for row in self._extreme_rows():
+            if row[0] in ("moment", "reaction"):
+                text.append(f"{row[0]} max {row[1]} at {row[2]} ({row[3]}), min {row[4]} at "
+                            f"{row[5]} ({row[6]})")
+        return "<Envelope " + "; ".join(text) + ">"
+
+    def _repr_html_(self) -> str:
+        """A small table for Jupyter: per effect the worst max and min, where, which load."""
+        names = ", ".join(case.name for case in self.cases)
+        return html_table(
+            f"Envelope: {self.beam.n_spans} span(s), {len(self.sections)} sections",
+            ["effect", "max", "where", "load", "min", "where", "load"], self._extreme_rows(),
+            f"load cases: {names}. Every section: env.records(); "
+            "pandas.DataFrame(env.records()) if pandas is installed.")
+
+    def records(self, kind: str | None = None) -> list[dict[str, Any]]:
+        """The envelope as plain records (one dict per row), e.g.
+        ``pandas.DataFrame(env.records())``; trundle does not need pandas.
+
+        kind None : one record per section: ``x`` [length], ``span`` (numbered from 1; a
+            section at a support belongs to the span on its left), then for every section
+            family computed (moment, shear_left, shear_right, deflection) ``<family>_max``,
+            ``<family>_max_load``, ``<family>_min``, ``<family>_min_load``
+        kind "moment", "shear" or "deflection" : one record per section (shear: two, ``side``
+            "left" and "right"): ``x``, ``span``, ``max``, ``max_load``, ``max_reference``,
+            ``min``, ``min_load``, ``min_reference`` (``reference``: see :class:`Governing`)
+        kind "reaction" or "support_moment" : one record per support that has one:
+            ``support`` (from 0), ``x``, then as above
+        Loads are named; "" where the empty beam governs.
+        """
+        if kind in ("reaction", "support_moment"):
+            out = []
+            ends = self.beam.support_positions
+            for line in self.index[kind]:
+                support = self.effects[line].support
+                out.append({"support": support, "x": float(ends[support]),
+                            **self._pair(int(line))})
+            return out
+        if kind is not None:
+            sides: tuple[str | None, ...] = ("left", "right") if kind == "shear" else (None,)
+            out = []
+            for side in sides:
+                lines = self.lines_of(kind, side)
+                if not lines.size:
+                    raise ModelError(f"the envelope was not asked for {kind}")
+                for row, line in enumerate(lines):
+                    x = float(self.sections[row])
+                    record: dict[str, Any] = {"x": x, "span": self.beam.span_of(x) + 1}
+                    if side is not None:
+                        record["side"] = side
+                    record.update(self._pair(int(line)))
+                    out.append(record)
+            if kind == "shear":
+                out.sort(key=lambda r: (r["x"], r["side"] == "right"))
+            return out
+        out = []
+        families = [f for f in ("moment", "shear_left", "shear_right", "deflection")
+                    if self.index[f].size]
+        for row, x in enumerate(self.sections):
+            record = {"x": float(x), "span": self.beam.span_of(float(x)) + 1}
+            for family in families:
+                line = int(self.index[family][row])
+                high, low = self.governing_max[line], self.governing_min[line]
+                record[f"{family}_max"] = high.value
+                record[f"{family}_max_load"] = high.load
+                record[f"{family}_min"] = low.value
+                record[f"{family}_min_load"] = low.load
+            out.append(record)
+        return out
+
+    def _pair(self, line: int) -> dict[str, Any]:
+        high, low = self.governing_max[line], self.governing_min[line]
+        return {"max": high.value, "max_load": high.load, "max_reference": high.reference,
+                "min": low.value, "min_load": low.load, "min_reference": low.reference}
+
     def concurrent(self, kind: str, which: str = "max", side: str | None = None
                    ) -> dict[str, NDArray[np.float64]]:
         """For each line of ``kind``: the values of every family under its governing load.
@@ -533,8 +677,7 @@ def _standalone(source: Envelope, g: Governing, case: int) -> Governing:
     if pattern is not None:
         pattern = tuple(source._stretches(g)[0])
     parts = tuple(_standalone(source, p, p.case) for p in g.parts)
-    return Governing(g.value, case, g.direction, g.reference, g.side, g.searched, pattern,
-                     parts)
+    return dataclasses.replace(g, case=case, pattern=pattern, parts=parts)
 
 
 ABSOLUTE_SAMPLES = 40  # sections per span searched before the bounded refinement
@@ -651,7 +794,7 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
     # largest and smallest ordinate of every line: where a placed load's point load stands
     placed = any(isinstance(p.load, UniformLoad) for c in cases
                  for p in (c.parts if isinstance(c, Together) else (c,)))
-    ordinate_extremes = scan_group(batch, TermGroup((0.0,), (1.0,))) if placed else None
+    ordinate_extremes = _lines_memo(batch, "ordinate extremes") if placed else None
     results: list[_CaseResult] = []
     moving: list[tuple[LoadCase, _CaseResult, dict[int, _Arrangement]]] = []
 
@@ -700,7 +843,7 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
             # rounding noise around an empty-beam zero is not a governing load
             if abs(g.value) <= 1e-12 * scale[j]:
                 g = EMPTY
-            distinct.append(_renumbered(g, keep))
+            distinct.append(_renumbered(g, keep, cases))
         governing[w] = [distinct[u] for u in inverse]
     return Envelope(beam, sections, cases, tuple(line_effects), index_all,
                     tuple(governing[0]), tuple(governing[1]), full_batch)
@@ -733,6 +876,25 @@ def _prepared_lines(beam: Beam, sections: NDArray[np.float64], families: tuple[s
     return found
 
 
+# what depends on the lines only (not on the loads), kept with the lines of the cache above
+# for as long as they live: a placed uniform load's areas and its point load's ordinates are
+# computed once for a beam checked again under other loads (a sweep of an axle spacing)
+_MEMO: weakref.WeakKeyDictionary[LineBatch, dict[str, Any]] = weakref.WeakKeyDictionary()
+
+
+def _lines_memo(batch: LineBatch, what: str) -> Any:
+    """``"signed areas"`` (positive, negative area of each line) or ``"ordinate extremes"``
+    (a unit load's scan of each line) of ``batch``, computed once per batch object."""
+    memo = _MEMO.setdefault(batch, {})
+    if what not in memo:
+        found = (signed_areas(batch.knots, batch.coef) if what == "signed areas"
+                 else scan_group(batch, TermGroup((0.0,), (1.0,))))
+        for array in (found if isinstance(found, tuple) else (found,)):
+            array.setflags(write=False)  # shared by every envelope of these lines
+        memo[what] = found
+    return memo[what]
+
+
 def _distinct_lines(identity: NDArray[np.int64], index: dict[str, NDArray[np.int64]]
                     ) -> tuple[NDArray[np.int64], NDArray[np.int64], dict, dict]:
     """Lines of the same family built the same way (``LinePieces.identity``), kept once.
@@ -756,16 +918,18 @@ def _distinct_lines(identity: NDArray[np.int64], index: dict[str, NDArray[np.int
     return keep, inverse, index, distinct
 
 
-def _renumbered(g: Governing, keep: NDArray[np.int64]) -> Governing:
-    """``g`` with a placed load's "sign of line" pattern pointing at the full set of lines."""
+def _renumbered(g: Governing, keep: NDArray[np.int64], cases: Sequence[Any]) -> Governing:
+    """``g`` with a placed load's "sign of line" pattern pointing at the full set of lines,
+    and named after its load case (``cases``: the envelope's, or a Together's parts)."""
+    if g.case < 0:
+        return g
+    case = cases[g.case]
     pattern = g.pattern
     if pattern and pattern[0] == "sign of line":
         pattern = ("sign of line", int(keep[pattern[1]]), pattern[2])
-    parts = tuple(_renumbered(p, keep) for p in g.parts)
-    if pattern is g.pattern and not parts:
-        return g
+    parts = tuple(_renumbered(p, keep, case.parts) for p in g.parts)
     return Governing(g.value, g.case, g.direction, g.reference, g.side, g.searched, pattern,
-                     parts)
+                     parts, case.name)
 
 
 def kind_and_side(family: str) -> tuple[str, str | None]:

@@ -13,6 +13,8 @@ from typing import TYPE_CHECKING, Any, Literal
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
+from trundle.core._repr import html_table, short
+
 if TYPE_CHECKING:
     from trundle.core.influence import InfluenceLine, InfluenceSet
     from trundle.core.statics import StaticResult
@@ -349,6 +351,24 @@ class Beam:
         from trundle.core.statics import solve_static
 
         return solve_static(self, loads)
+
+    # ``repr(beam)`` stays the dataclass repr: it spells out every value that defines the
+    # beam (short for any real beam) and the envelope's cache of lines is keyed on it
+
+    def _repr_html_(self) -> str:
+        """A small table for Jupyter: spans, supports, hinges, stiffness."""
+        ends = self.support_positions
+        rows = [[str(i), short(ends[i]), self.support_label(i)]
+                for i in range(len(self.supports))]
+        stiffness = ", ".join(
+            f"{short(seg.x0)}–{short(seg.x1)}: EI {short(seg.EI0)}"
+            + (f" to {short(seg.EI1)} ({seg.shape})" if seg.EI1 != seg.EI0 else "")
+            for seg in self.stiffness_segments)
+        note = (f"{self.n_spans} span(s) {', '.join(short(s) for s in self.spans)}; length "
+                f"{short(self.length)}; hinges at "
+                f"{', '.join(short(h) for h in self.hinges) or 'none'}; {stiffness}; degree "
+                f"of indeterminacy {self.degree_of_indeterminacy}")
+        return html_table("Beam", ["support", "x", "kind"], rows, note)
 
     def describe(self) -> str:
         parts = [f"{self.n_spans} span(s) = {', '.join(f'{s:g}' for s in self.spans)}"]

@@ -19,6 +19,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 from scipy.interpolate import PPoly
 
+from trundle.core._repr import html_table, short
 from trundle.core.beam import Beam, ModelError, Spring
 from trundle.core.fem import assembly_for, element_stiffness, hermite_coefficients
 
@@ -139,7 +140,21 @@ class InfluenceLine:
         return float(pos[0]), float(neg[0])
 
     def __repr__(self) -> str:
-        return f"InfluenceLine({self.effect.label}, {len(self.knots) - 1} pieces)"
+        (high, x_high), (low, x_low) = self.max(), self.min()
+        return (f"InfluenceLine({self.effect.label}, {len(self.knots) - 1} pieces; max "
+                f"{high:.5g} at x = {x_high:g}, min {low:.5g} at x = {x_low:g})")
+
+    def _repr_html_(self) -> str:
+        """A small table for Jupyter: the extremes and where they occur, the areas."""
+        (high, x_high), (low, x_low) = self.max(), self.min()
+        positive, negative = self.areas()
+        rows = [["max ordinate", short(high), short(x_high)],
+                ["min ordinate", short(low), short(x_low)],
+                ["area where positive", short(positive), ""],
+                ["area where negative", short(negative), ""]]
+        return html_table(f"Influence line: {self.effect.label}", ["", "value", "x"], rows,
+                          f"exact piecewise cubic, {len(self.knots) - 1} pieces; a unit "
+                          "downward load at x")
 
 
 class InfluenceSet:

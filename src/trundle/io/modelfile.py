@@ -262,6 +262,13 @@ def read_model(text: str, name: str = "<model>", source: Path | None = None) -> 
         raw = tomllib.loads(text)
     except tomllib.TOMLDecodeError as error:
         raise _syntax_error(name, error) from None
+    return read_model_data(raw, name, source)
+
+
+def read_model_data(raw: dict[str, Any], name: str = "<model>", source: Path | None = None
+                    ) -> Model:
+    """Read a model from parsed TOML (a dict as ``tomllib`` gives it; a what-if sweep passes
+    a copy with one number changed); ``name`` is used in error messages."""
     reader = Reader(name)
     reader.raw = raw
     for key in raw:

@@ -29,6 +29,7 @@ from trundle.analysis.checks import (
     rainflow_ranges,
 )
 from trundle.analysis.envelope import AbsoluteExtreme, Envelope, absolute_extremes, envelope
+from trundle.core._repr import html_table, short
 from trundle.core.beam import Beam, ModelError
 from trundle.loads.cases import LoadCase
 from trundle.loads.cranes import Crane, WheelLoads, buffer_gap
@@ -226,6 +227,45 @@ class RunwayResult:
     longitudinal: dict[str, float]
     fatigue: tuple[FatigueSection, ...] = field(default=())
     moment_anywhere: tuple[AbsoluteExtreme | None, ...] = field(default=())
+
+    def _check_rows(self) -> list[list[str]]:
+        rows = []
+        for name, checks in (("vertical", self.vertical_checks),
+                             ("lateral", self.lateral_checks)):
+            for check in checks:
+                rows.append([f"{name} deflection, span {check.span + 1}",
+                             short(check.deflection), f"L/{check.ratio:g} = "
+                             f"{short(check.allowable)}", short(check.utilisation),
+                             check.verdict, check.governing])
+        worst: dict[str, FatigueSection] = {}
+        for section in self.fatigue:  # per crane the section of largest utilisation
+            if section.utilisation is None:
+                continue
+            found = worst.get(section.crane)
+            if found is None or not section.utilisation <= found.utilisation:
+                worst[section.crane] = section
+        for section in worst.values():
+            if section.utilisation is not None:
+                rows.append([f"fatigue, worst section x = {section.x:.6g}",
+                             short(section.stress_range), short(section.allowable),
+                             short(section.utilisation), section.verdict or "—", section.crane])
+        return rows
+
+    def __repr__(self) -> str:
+        reactions = self.strength.max("reaction")
+        k = int(np.nanargmax(reactions))
+        verdicts = [row[4] for row in self._check_rows()]
+        failing = verdicts.count("EXCEEDS")
+        return (f"<RunwayResult {len(self.spec.cranes)} crane(s), "
+                f"{len(self.combinations)} combination(s); max reaction {reactions[k]:.5g} at "
+                f"support {k} (with impact); worst of {len(verdicts)} check(s): "
+                f"{failing} EXCEEDS>")
+
+    def _repr_html_(self) -> str:
+        return (self.strength._repr_html_()
+                + html_table("Checks (verdicts decided in trundle.analysis.checks)",
+                             ["check", "demand", "allowable", "utilisation", "verdict",
+                              "governing"], self._check_rows()))
 
 
 def lateral_extremes(result: RunwayResult, kind: str = "moment"

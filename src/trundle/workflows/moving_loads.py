@@ -14,6 +14,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from trundle.analysis.envelope import AbsoluteExtreme, Envelope, envelope
+from trundle.core._repr import html_table, short
 from trundle.core.beam import Beam
 from trundle.loads.cases import LoadCase, Together
 
@@ -45,6 +46,30 @@ class MovingLoadsResult:
     spec: MovingLoadsSpec
     env: Envelope
     absolute: tuple[dict[str, AbsoluteExtreme | None], ...] = field(default=())
+
+    def _absolute_rows(self) -> list[list[str]]:
+        rows = []
+        for span, found in enumerate(self.absolute):
+            for which in ("max", "min"):
+                extreme = found.get(which)
+                if extreme is not None:
+                    case = self.env.cases[extreme.case].name
+                    rows.append([f"span {span + 1}", f"moment {which}", short(extreme.value),
+                                 f"x = {extreme.x:.6g}", case])
+        return rows
+
+    def __repr__(self) -> str:
+        worst = [f"{row[1]} {row[2]} in {row[0]} at {row[3]} ({row[4]})"
+                 for row in self._absolute_rows()]
+        shown = "; ".join(worst[:4]) + ("; ..." if len(worst) > 4 else "")
+        return (f"<MovingLoadsResult {len(self.env.cases)} load case(s) over "
+                f"{len(self.env.sections)} sections; absolute: {shown or 'none'}>")
+
+    def _repr_html_(self) -> str:
+        return (self.env._repr_html_()
+                + html_table("Absolute moment extremes per span (between the sections too)",
+                             ["span", "effect", "value", "where", "load"],
+                             self._absolute_rows()))
 
 
 def run(spec: MovingLoadsSpec) -> MovingLoadsResult:

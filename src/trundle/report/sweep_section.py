@@ -1,0 +1,285 @@
+"""What a what-if sweep writes: the table (CSV, one row per point), JSON, a figure, a page.
+
+:func:`sweep_files` turns a :class:`trundle.workflows.sweep.SweepResult` and its
+:class:`~trundle.io.outputs.Provenance` into finished file contents (``sweep.csv`` with the
+provenance as its first comment line, ``sweep.json``, ``sweep.<format>`` and the report page
+``sweep.html`` with the cautions), for :func:`trundle.io.outputs.write_output_set`. One swept
+number gives a line figure (one panel per effect), two give contour plots. Every figure and
+table labels the swept numbers by their model path and unit and the effects by what they are
+and their unit; the figure carries the caution. Numbers are written by
+:mod:`trundle.report.format`. Runs no analysis and reads no file.
+"""
+
+from __future__ import annotations
+
+import base64
+import csv
+import html
+import io
+import json
+import math
+from collections.abc import Sequence
+from typing import Any
+
+import numpy as np
+from matplotlib.figure import Figure
+
+from trundle.io.outputs import Provenance
+from trundle.report import CAUTION, LOAD_MODEL_CAUTION
+from trundle.report.envelope_data import display_factor, quantity_unit
+from trundle.report.figures import INK, MUTED, PALETTE, SEQUENTIAL, figure_bytes, new_figure
+from trundle.report.format import decimals, fixed, length, number
+from trundle.workflows.sweep import SweepResult, effect_family
+
+CAUTIONS = (CAUTION, LOAD_MODEL_CAUTION,
+            "Each point is the model file with the swept numbers replaced; values at points "
+            "between those computed are not checked.")
+
+
+def effect_unit(result: SweepResult, effect: int, ascii_only: bool = False) -> str:
+    return quantity_unit(effect_family(result.effects[effect]), result.units, ascii_only)
+
+
+def displayed(result: SweepResult, effect: int) -> np.ndarray:
+    """The values of one effect in display units (deflection in mm or in)."""
+    factor = display_factor(effect_family(result.effects[effect]), result.units)
+    return result.values[:, effect] * factor
+
+
+def axis_title(result: SweepResult, axis: int) -> str:
+    a = result.axes[axis]
+    return f"{a.name} [{a.unit}]"
+
+
+def effect_title(result: SweepResult, effect: int, ascii_only: bool = False) -> str:
+    return f"{result.effects[effect].label} [{effect_unit(result, effect, ascii_only)}]"
+
+
+def sweep_rows(result: SweepResult) -> tuple[list[str], list[list[str]]]:
+    """(header, rows): per point the swept values, then per effect its value, where it
+    occurs (x of the section, or the support) and the governing load."""
+    length = result.units.ascii_label("length")
+    header = [axis_title(result, a) for a in range(len(result.axes))]
+    for e, selector in enumerate(result.effects):
+        header.append(effect_title(result, e, ascii_only=True))
+        if selector.kind in ("reaction", "support_moment"):
+            header.append(f"{selector.label}: support")
+        else:
+            header.append(f"{selector.label}: x [{length}]")
+        header.append(f"{selector.label}: load")
+    shown = [displayed(result, e) for e in range(len(result.effects))]
+    rows = []
+    for p, point in enumerate(result.points):
+        row = [number(v) for v in point]
+        for e, selector in enumerate(result.effects):
+            row.append(number(shown[e][p]))
+            if selector.kind in ("reaction", "support_moment"):
+                row.append(str(int(result.support[p, e])))
+            else:
+                row.append(number(result.x[p, e]))
+            row.append(result.load[p][e])
+        rows.append(row)
+    return header, rows
+
+
+def sweep_csv(result: SweepResult, provenance: Provenance | None = None) -> str:
+    """One row per point; the provenance comment as the first line."""
+    header, rows = sweep_rows(result)
+    buffer = io.StringIO()
+    buffer.write((provenance or Provenance()).csv_comment() + "\n")
+    writer = csv.writer(buffer, lineterminator="\n")
+    writer.writerow(header)
+    writer.writerows(rows)
+    return buffer.getvalue()
+
+
+def worst_points(result: SweepResult) -> list[tuple[str, str, str]]:
+    """Per effect: (effect with unit, its worst value, where in the sweep)."""
+    out = []
+    for e in range(len(result.effects)):
+        p = result.worst(e)
+        where = ", ".join(f"{r.name} = {length(result.points[p, a])} {r.unit}"
+                          for a, r in enumerate(result.axes))
+        out.append((effect_title(result, e), _short(displayed(result, e)[p]), where))
+    return out
+
+
+def column_text(values: Sequence[float], significant: int = 5) -> list[str]:
+    """A column of values for people: the same decimals for all (report/format.py)."""
+    places = decimals(values, significant=significant)
+    return [fixed(float(v), places) if math.isfinite(v) else "—" for v in values]
+
+
+def _short(value: float) -> str:
+    """A value for people: five significant digits, fixed-point (report/format.py)."""
+    if not math.isfinite(value):
+        return "—"
+    return fixed(float(value), decimals([value], significant=5))
+
+
+def sweep_figure(result: SweepResult, title: str = "") -> Figure:
+    """A line figure (one swept number) or contours (two), one panel per effect."""
+    n = len(result.effects)
+    if len(result.axes) == 1:
+        figure = new_figure(6.8, 1.0 + 1.9 * n)
+        axes = figure.subplots(n, 1, sharex=True, squeeze=False)[:, 0]
+        x = result.points[:, 0]
+        for e, ax in enumerate(axes):
+            y = displayed(result, e)
+            ax.plot(x, y, color=PALETTE[e % len(PALETTE)],
+                    marker="o" if len(x) <= 40 else None, markersize=2.5)
+            p = result.worst(e)
+            ax.plot([x[p]], [y[p]], marker="D", color=INK, markersize=4, linestyle="none")
+            right_half = x[p] > 0.5 * (x.min() + x.max())
+            ax.annotate(f"{_short(y[p])} at {length(x[p])}", (x[p], y[p]),
+                        textcoords="offset points", xytext=(-6 if right_half else 6, -10),
+                        ha="right" if right_half else "left", fontsize=7, color=INK)
+            ax.set_ylabel(_wrapped(effect_title(result, e), 26))
+        axes[-1].set_xlabel(_wrapped(axis_title(result, 0), 80))
+    else:
+        columns = 1 if n == 1 else 2
+        rows = math.ceil(n / columns)
+        figure = new_figure(3.6 * columns + 0.4, 0.9 + 3.0 * rows)
+        grid = figure.subplots(rows, columns, squeeze=False)
+        x1, x2 = (np.asarray(r.values) for r in result.axes)
+        for e in range(rows * columns):
+            ax = grid[e // columns, e % columns]
+            if e >= n:
+                ax.set_visible(False)
+                continue
+            z = displayed(result, e).reshape(result.shape)
+            filled = ax.contourf(x1, x2, z.T, levels=12, cmap=SEQUENTIAL)
+            ax.contour(x1, x2, z.T, levels=filled.levels, colors=MUTED, linewidths=0.3)
+            bar = figure.colorbar(filled, ax=ax)
+            bar.set_label(_wrapped(effect_title(result, e)))
+            p = result.worst(e)
+            ax.plot([result.points[p, 0]], [result.points[p, 1]], marker="D", color="white",
+                    markeredgecolor=INK, markersize=5, linestyle="none")
+            ax.set_xlabel(_wrapped(axis_title(result, 0), 36))
+            ax.set_ylabel(_wrapped(axis_title(result, 1), 36))
+    heading = title or result.spec.title
+    figure.suptitle(_wrapped(f"What-if sweep: {heading}", 90), fontsize=9)
+    # the caution sits in a strip the layout keeps free, so it never covers a label
+    figure.get_layout_engine().set(rect=(0.0, 0.03, 1.0, 0.97))
+    figure.text(0.01, 0.004, CAUTION, fontsize=6, color=MUTED, ha="left", va="bottom")
+    return figure
+
+
+def _wrapped(text: str, width: int = 44) -> str:
+    """Break a long label at spaces so it is never clipped."""
+    words, lines, line = text.split(), [], ""
+    for word in words:
+        if line and len(line) + 1 + len(word) > width:
+            lines.append(line)
+            line = word
+        else:
+            line = f"{line} {word}".strip()
+    lines.append(line)
+    return "\n".join(lines)
+
+
+def sweep_json(result: SweepResult, provenance: Provenance | None = None) -> str:
+    """Every point of the sweep with its units, notes and cautions."""
+    provenance = provenance or Provenance()
+    length = result.units.ascii_label("length") if result.units is not None else ""
+    shown = [displayed(result, e) for e in range(len(result.effects))]
+    document: dict[str, Any] = {
+        "generator": f"trundle {provenance.version}",
+        "model_file": provenance.model_file, "sha256": provenance.sha256,
+        "date": provenance.date, "title": result.spec.title,
+        "axes": [{"name": a.name, "unit": a.unit, "values": [float(v) for v in a.values]}
+                 for a in result.axes],
+        "effects": [{"label": s.label, "phrase": s.text, "kind": s.kind, "which": s.which,
+                     "unit": effect_unit(result, e, ascii_only=True),
+                     "values": [_json_number(v) for v in shown[e]],
+                     "x": None if s.kind in ("reaction", "support_moment")
+                     else [_json_number(v) for v in result.x[:, e]],
+                     "support": [int(k) for k in result.support[:, e]]
+                     if s.kind in ("reaction", "support_moment") else None,
+                     "load": [result.load[p][e] for p in range(len(result.points))],
+                     "worst_point": result.worst(e)}
+                    for e, s in enumerate(result.effects)],
+        "points": [[float(v) for v in point] for point in result.points],
+        "length_unit": length,
+        "notes": list(result.spec.notes),
+        "cautions": list(CAUTIONS),
+    }
+    return json.dumps(document, indent=1, ensure_ascii=False) + "\n"
+
+
+def _json_number(value: float) -> float | None:
+    return float(value) if math.isfinite(value) else None
+
+
+def sweep_html(result: SweepResult, provenance: Provenance | None = None,
+               png: bytes | None = None) -> str:
+    """The sweep's report page: what was swept, the worst points, the figure, every point,
+    the notes and the cautions (self-contained: the figure is a PNG data URI)."""
+    provenance = provenance or Provenance()
+    e = html.escape
+    cautions = "".join(f"<li>{e(c)}</li>" for c in CAUTIONS)
+    notes = "".join(f"<p class='note'>Note: {e(n)}</p>" for n in result.spec.notes)
+    worst = "".join(f"<tr><td>{e(effect)}</td><td class='num'>{e(value)}</td>"
+                    f"<td>{e(where)}</td></tr>" for effect, value, where in worst_points(result))
+    header, rows = sweep_rows(result)
+    head = "".join(f"<th>{e(h)}</th>" for h in header)
+    body = "".join("<tr>" + "".join(f"<td>{e(c)}</td>" for c in row) + "</tr>" for row in rows)
+    figure = ""
+    if png is not None:
+        uri = "data:image/png;base64," + base64.b64encode(png).decode("ascii")
+        figure = f"<figure><img src='{uri}' alt='sweep figure'></figure>"
+    swept = "; ".join(f"{a.name} from {length(a.values[0])} to {length(a.values[-1])} "
+                      f"{a.unit} ({len(a.values)} values)" for a in result.axes)
+    return f"""<!DOCTYPE html>
+<html lang="en"><head><meta charset="utf-8">
+<meta name="generator" content="trundle {e(provenance.version)}">
+<title>{e(result.spec.title)} — what-if sweep</title>
+<style>
+ body {{ margin: 0 auto; max-width: 64rem; padding: 2rem; color: #262b31;
+        font-family: "DejaVu Sans", Helvetica, Arial, sans-serif; line-height: 1.45; }}
+ .caution {{ border: 1px solid #8a6d1d; border-left-width: 6px; background: #fbf7ea;
+            padding: 0.6rem 1rem; font-weight: 600; }}
+ table {{ border-collapse: collapse; font-size: 0.85rem; margin: 0.5rem 0 1rem; }}
+ th, td {{ padding: 0.2rem 0.6rem; border-bottom: 1px solid #d9dde1; text-align: left; }}
+ td.num {{ text-align: right; }} img {{ max-width: 100%; }}
+ .wrap {{ overflow-x: auto; }}
+</style></head><body>
+<p>WHAT-IF SWEEP</p><h1>{e(result.spec.title)}</h1>
+<p>Model file {e(provenance.model_file or "(built in Python)")}; SHA-256
+{e(provenance.sha256 or "-")}; trundle {e(provenance.version)}; {e(provenance.date)}</p>
+<div class="caution"><ul>{cautions}</ul></div>
+<p>{len(result.points)} points: {e(swept)}. Each point is the model with the swept numbers
+replaced, enveloped exactly.</p>{notes}
+<h2>Worst point of each effect</h2>
+<table><tr><th>effect</th><th>worst value</th><th>where in the sweep</th></tr>{worst}</table>
+{figure}
+<h2>Every point</h2><div class="wrap"><table><tr>{head}</tr>{body}</table></div>
+</body></html>
+"""
+
+
+def sweep_files(result: SweepResult, provenance: Provenance | None = None,
+                figure_format: str = "png", with_figure: bool = True,
+                with_report: bool = True) -> dict[str, bytes | str]:
+    """Finished contents, by file name: ``sweep.csv``, ``sweep.json``, ``sweep.<format>``
+    and ``sweep.html`` (for :func:`trundle.io.outputs.write_output_set`)."""
+    files: dict[str, bytes | str] = {"sweep.csv": sweep_csv(result, provenance),
+                                     "sweep.json": sweep_json(result, provenance)}
+    figure = sweep_figure(result) if (with_figure or with_report) else None
+    png = figure_bytes(figure, "png") if figure is not None else None
+    if with_figure and figure is not None:
+        files[f"sweep.{figure_format}"] = png if figure_format == "png" else \
+            figure_bytes(figure, figure_format)
+    if with_report:
+        files["sweep.html"] = sweep_html(result, provenance, png)
+    return files
+
+
+def summary_lines(result: SweepResult) -> Sequence[str]:
+    """Short lines for a terminal: what was swept and the worst point of each effect."""
+    lines = [f"{len(result.points)} points: " + "; ".join(
+        f"{r.name} from {length(r.values[0])} to {length(r.values[-1])} {r.unit} "
+        f"({len(r.values)} values)" for r in result.axes)]
+    for effect, value, where in worst_points(result):
+        lines.append(f"worst {effect}: {value} at {where}")
+    return lines

@@ -1,0 +1,552 @@
+"""What-if sweeps: vary one or two numbers of a model and follow the governing effects.
+
+A sweep is a :class:`SweepSpec`: the swept numbers (:class:`SweepAxis`, one or two), the
+effects asked for (:class:`EffectSelector`) and a callable ``subject_at(point)`` that gives
+what to analyse at one point (:class:`SweepSubject`: beam, sections, named load cases, crane
+runway). :func:`run` turns it into a :class:`SweepResult`, computing at every point the exact
+envelope of the asked-for effects as ``trundle envelope`` would for that model. This module
+reads no file: :mod:`trundle.io.sweeps` builds the spec from a model file (its
+``subject_at`` reads the model again from its parsed TOML with the swept numbers replaced, so
+every value is checked exactly as in a model file) and offers ``trundle.sweep()``.
+
+Reuse: the influence lines depend on the beam, the sections and the effects only, and
+:func:`trundle.analysis.envelope.envelope` keeps them by their *values*; a sweep of a load
+parameter (an axle spacing, a crane's wheel base) therefore builds them once.
+
+Effects are chosen with a short phrase (:func:`parse_effect`)::
+
+    [loads|cranes] KIND WHICH [span N [anywhere] | support K | at X]
+
+KIND is moment, shear, deflection, reaction or support_moment; WHICH is max or min. ``span N``
+(spans numbered from 1, as in the tables) takes the model's sections in that span (shear just
+right of its left support to just left of its right one); ``anywhere`` adds a search between
+the sections (moment and deflection only; slower: no reuse). ``support K`` (supports numbered
+from 0) picks one reaction; ``at X`` one section (added to the sections if the model has none
+there). Without a place the worst over the whole beam (every section, or every support) is
+taken. Loads are the model's ``[[load]]`` entries, the worst of them governing, as in
+``trundle envelope``; with ``cranes`` (the default when the model has cranes only) the crane
+combinations of ``[runway]``: with vertical impact for moment, shear and reactions, without for
+deflection (as the runway results are reported).
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+from numpy.typing import NDArray
+
+from trundle.analysis.envelope import Envelope, absolute_extremes, envelope
+from trundle.core.beam import Beam, Spring
+from trundle.loads.cases import LoadCase
+from trundle.workflows.crane_runway import RunwaySpec, combination_load, crane_combinations
+
+MAX_AXES = 2
+MAX_POINTS = 20_000
+"""The most points of a two-parameter sweep."""
+MAX_EFFECTS = 24
+KINDS = ("moment", "shear", "deflection", "reaction", "support_moment")
+SECTION_KINDS = ("moment", "shear", "deflection")
+SUPPORT_KINDS = ("reaction", "support_moment")
+SOURCES = ("loads", "cranes")
+DEFAULT_EFFECTS = ("moment max", "moment min", "reaction max")
+
+Progress = Callable[[int, int], None]
+
+
+class SweepError(ValueError):
+    """A sweep that cannot run as asked; ``str()`` is one line."""
+
+
+# ------------------------------------------------------------------------------------------
+# effects asked for
+
+
+@dataclass(frozen=True)
+class EffectSelector:
+    """One governing effect followed over the sweep.
+
+    Fields
+    ------
+    text : as written
+    kind : moment, shear, deflection, reaction or support_moment
+    which : "max" or "min"
+    source : "loads", "cranes" or "" (the model's [[load]] entries if it has any, else its
+        cranes)
+    span : span number from 1, or None
+    anywhere : with ``span``: also search between the sections
+    support : support number from 0, or None
+    at : the text of a position, or None
+    position : ``at`` in the model's length unit [length] (set by whoever reads the units:
+        :func:`trundle.io.sweeps.build_spec`; None until then)
+    """
+
+    text: str
+    kind: str
+    which: str
+    source: str = ""
+    span: int | None = None
+    anywhere: bool = False
+    support: int | None = None
+    at: str | None = None
+    position: float | None = None
+
+    @property
+    def label(self) -> str:
+        """For tables and figures: "max moment, span 2"."""
+        kind = self.kind.replace("_", " ")
+        where = ""
+        if self.span is not None:
+            where = f", span {self.span}" + (" (anywhere)" if self.anywhere else "")
+        elif self.support is not None:
+            where = f", support {self.support}"
+        elif self.at is not None:
+            where = f", at {self.at}"
+        source = f" ({self.source})" if self.source else ""
+        return f"{self.which} {kind}{where}{source}"
+
+
+_ALIASES = {"support-moment": "support_moment", "support moment": "support_moment",
+            "moments": "moment", "reactions": "reaction", "crane": "cranes", "load": "loads",
+            "maximum": "max", "minimum": "min"}
+
+
+def parse_effect(text: str) -> EffectSelector:
+    """Read ``[loads|cranes] KIND WHICH [span N [anywhere] | support K | at X]``; KIND and
+    WHICH may come in either order. SweepError (one line) when it is not that."""
+    if not isinstance(text, str) or not text.strip():
+        raise SweepError("--effect: expected e.g. \"moment max span 2\", found nothing")
+    shown = " ".join(text.split())
+    original = shown.replace(",", " ").split()
+    words = [_ALIASES.get(w.lower(), w.lower()) for w in original]
+    grammar = ("expected [loads|cranes] KIND WHICH [span N [anywhere] | support K | at X] "
+               f"with KIND one of {', '.join(KINDS)} and WHICH max or min")
+    source = ""
+    if words and words[0] in SOURCES:
+        source = words.pop(0)
+        original.pop(0)
+    head = words[:2]
+    kind = next((w for w in head if w in KINDS), None)
+    which = next((w for w in head if w in ("max", "min")), None)
+    if kind is None or which is None or len(set(head)) != 2:
+        raise SweepError(f'--effect "{shown}": {grammar}')
+    rest = words[2:]
+    selector = EffectSelector(shown, kind, which, source)
+    if not rest:
+        return selector
+    place, *tail = rest
+    if place == "span":
+        if not tail or not tail[0].isdigit() or int(tail[0]) < 1:
+            raise SweepError(f'--effect "{shown}": expected a span number from 1 after "span"')
+        if kind in SUPPORT_KINDS:
+            raise SweepError(f'--effect "{shown}": expected "support K" with {kind}, found '
+                             '"span"')
+        anywhere = tail[1:] == ["anywhere"]
+        if tail[1:] and not anywhere:
+            raise SweepError(f'--effect "{shown}": expected nothing or "anywhere" after the '
+                             f'span number, found "{" ".join(tail[1:])}"')
+        if anywhere and kind not in ("moment", "deflection"):
+            raise SweepError(f'--effect "{shown}": "anywhere" is offered for moment and '
+                             f"deflection, found {kind}")
+        return EffectSelector(shown, kind, which, source, span=int(tail[0]), anywhere=anywhere)
+    if place == "support":
+        if len(tail) != 1 or not tail[0].isdigit():
+            raise SweepError(f'--effect "{shown}": expected a support number from 0 after '
+                             '"support"')
+        if kind not in SUPPORT_KINDS:
+            raise SweepError(f'--effect "{shown}": expected "span N" or "at X" with {kind}, '
+                             'found "support"')
+        return EffectSelector(shown, kind, which, source, support=int(tail[0]))
+    if place == "at":
+        if not tail:
+            raise SweepError(f'--effect "{shown}": expected a position after "at"')
+        if kind not in SECTION_KINDS:
+            raise SweepError(f'--effect "{shown}": expected "support K" with {kind}, found '
+                             '"at"')
+        # the position keeps its case: units are case-sensitive ("MN" is not "mN")
+        return EffectSelector(shown, kind, which, source, at=" ".join(original[3:]))
+    raise SweepError(f'--effect "{shown}": {grammar}; found "{place}"')
+
+
+# ------------------------------------------------------------------------------------------
+# the spec
+
+
+@dataclass(frozen=True)
+class SweepAxis:
+    """One swept number.
+
+    Fields
+    ------
+    name : how the user named it (a model path such as "load.truck.spacings[1]")
+    values : the values it takes, in ``unit``
+    unit : the unit of ``values`` for people ("m", "kN·m²")
+    """
+
+    name: str
+    values: tuple[float, ...]
+    unit: str
+
+
+@dataclass(frozen=True)
+class SweepSubject:
+    """What one point of a sweep analyses.
+
+    Fields
+    ------
+    beam : the Beam at this point
+    sections : x of the model's sections [length]
+    loads : the model's loads as named load cases (its ``[[load]]`` entries), the worst of
+        them governing
+    runway : the crane runway (cranes and combinations), or None
+    """
+
+    beam: Beam
+    sections: NDArray[np.float64]
+    loads: tuple[LoadCase, ...] = ()
+    runway: RunwaySpec | None = None
+
+
+@dataclass(frozen=True)
+class SweepSpec:
+    """What to sweep.
+
+    Fields
+    ------
+    axes : one or two SweepAxis (the first varies slowest)
+    effects : the EffectSelector followed (positions resolved)
+    subject_at : the subject at one point (a tuple with one value per axis, in each axis'
+        unit); raises SweepError (one line) when the point is not a valid model
+    title : the model's title
+    notes : what the reader of the results must know about the sweep (e.g. that hinges
+        written as positions stay put while a span changes)
+    units : the model's unit system (labels of the outputs; the sweep itself is unit-free)
+    """
+
+    axes: tuple[SweepAxis, ...]
+    effects: tuple[EffectSelector, ...]
+    subject_at: Callable[[tuple[float, ...]], SweepSubject]
+    title: str = ""
+    notes: tuple[str, ...] = ()
+    units: Any = None
+
+    @property
+    def shape(self) -> tuple[int, ...]:
+        return tuple(len(a.values) for a in self.axes)
+
+    @property
+    def n_points(self) -> int:
+        return math.prod(self.shape)
+
+
+def source_of(subject: SweepSubject, selector: EffectSelector) -> str:
+    """"loads" or "cranes": where the selector's loads come from."""
+    if selector.source:
+        return selector.source
+    return "loads" if subject.loads or subject.runway is None else "cranes"
+
+
+def check_selector(subject: SweepSubject, selector: EffectSelector, where: str = "this model"
+                   ) -> None:
+    """SweepError (one line) unless the subject can give the selector's effect."""
+    beam = subject.beam
+    source = source_of(subject, selector)
+    if source == "loads" and not subject.loads:
+        raise SweepError(f'--effect "{selector.text}": expected a model with [[load]] tables, '
+                         f"found none in {where}")
+    if source == "cranes" and subject.runway is None:
+        raise SweepError(f'--effect "{selector.text}": expected a model with [[crane]] and '
+                         f"[runway] tables, found none in {where}")
+    if selector.span is not None and selector.span > beam.n_spans:
+        raise SweepError(f'--effect "{selector.text}": expected a span number 1 to '
+                         f"{beam.n_spans}, found {selector.span}")
+    if selector.kind in SUPPORT_KINDS:
+        holding = [k for k, s in enumerate(beam.supports) if _has(selector.kind, s)]
+        if selector.support is not None and selector.support not in holding:
+            what = "supports" if selector.kind == "reaction" else "supports that restrain rotation"
+            raise SweepError(f'--effect "{selector.text}": expected one of the {what} '
+                             f"({', '.join(map(str, holding)) or 'none'}), found "
+                             f"{selector.support}")
+        if not holding:
+            raise SweepError(f'--effect "{selector.text}": expected a support with a '
+                             f"{selector.kind.replace('_', ' ')}, found none in this model")
+    _position(beam, selector)
+
+
+def _has(kind: str, support: Any) -> bool:
+    if kind == "reaction":
+        return support != "free"
+    return support == "fixed" or (isinstance(support, Spring) and support.kr is not None)
+
+
+def _position(beam: Beam, selector: EffectSelector) -> float | None:
+    if selector.at is None:
+        return None
+    x = selector.position
+    if x is None:
+        raise SweepError(f'--effect "{selector.text}": the position was not read (build the '
+                         "spec with trundle.io.sweeps.build_spec)")
+    tolerance = 1e-9 * beam.length
+    if not -tolerance <= x <= beam.length + tolerance:
+        raise SweepError(f'--effect "{selector.text}": expected a position on the beam (0 to '
+                         f'{beam.length:g}), found "{selector.at}"')
+    return min(max(x, 0.0), beam.length)
+
+
+# ------------------------------------------------------------------------------------------
+# the result
+
+
+@dataclass(frozen=True, eq=False)
+class SweepResult:
+    """The governing effects at every point of a sweep.
+
+    Fields
+    ------
+    spec : the SweepSpec run
+    points : (n_points, n_axes) values of the swept numbers, in each axis' unit; the first
+        axis varies slowest
+    values : (n_points, n_effects) the effects, in the model's base units (deflection in
+        length units, not yet in mm or in)
+    x : (n_points, n_effects) the section where each occurs [length] (NaN for reactions)
+    support : (n_points, n_effects) the support of a reaction (−1 for section effects)
+    load : per point and effect, the name of the governing load ("" when no load makes it
+        other than zero)
+    reused_lines : how many points found the influence lines of the point before them
+        already built (same beam, sections and effects: only loads changed)
+    """
+
+    spec: SweepSpec
+    points: NDArray[np.float64]
+    values: NDArray[np.float64]
+    x: NDArray[np.float64]
+    support: NDArray[np.int64]
+    load: tuple[tuple[str, ...], ...]
+    reused_lines: int = 0
+
+    @property
+    def axes(self) -> tuple[SweepAxis, ...]:
+        return self.spec.axes
+
+    @property
+    def effects(self) -> tuple[EffectSelector, ...]:
+        return self.spec.effects
+
+    @property
+    def units(self) -> Any:
+        return self.spec.units
+
+    @property
+    def shape(self) -> tuple[int, ...]:
+        return self.spec.shape
+
+    def grid(self, effect: int) -> NDArray[np.float64]:
+        """The values of one effect shaped like the axes (n1,) or (n1, n2)."""
+        return self.values[:, effect].reshape(self.shape)
+
+    def worst(self, effect: int) -> int:
+        """Index of the point where the effect is worst (largest max, smallest min)."""
+        sign = 1.0 if self.effects[effect].which == "max" else -1.0
+        return int(np.argmax(sign * self.values[:, effect]))
+
+    def records(self) -> list[dict[str, Any]]:
+        """One dict per point: the swept values by name, then per effect its value, where
+        it occurs and the governing load (``pandas.DataFrame(result.records())``)."""
+        out = []
+        for p, point in enumerate(self.points):
+            row: dict[str, Any] = {a.name: float(v) for a, v in zip(self.axes, point,
+                                                                    strict=True)}
+            for e, selector in enumerate(self.effects):
+                row[selector.label] = float(self.values[p, e])
+                if selector.kind in SUPPORT_KINDS:
+                    row[f"{selector.label}: support"] = int(self.support[p, e])
+                else:
+                    row[f"{selector.label}: x"] = float(self.x[p, e])
+                row[f"{selector.label}: load"] = self.load[p][e]
+            out.append(row)
+        return out
+
+    def __repr__(self) -> str:
+        swept = "; ".join(f"{a.name} {a.values[0]:g}..{a.values[-1]:g} {a.unit} "
+                          f"({len(a.values)})" for a in self.axes)
+        worst = "; ".join(f"{s.label} {self.values[self.worst(e), e]:.5g}"
+                          for e, s in enumerate(self.effects))
+        return f"<SweepResult {len(self.points)} points: {swept}; worst: {worst}>"
+
+    def _repr_html_(self) -> str:
+        from html import escape
+
+        rows = []
+        for e, selector in enumerate(self.effects):
+            p = self.worst(e)
+            where = ", ".join(f"{a.name} = {self.points[p, k]:g} {a.unit}"
+                              for k, a in enumerate(self.axes))
+            rows.append(f"<tr><td>{escape(selector.label)}</td>"
+                        f"<td style='text-align:right'>{self.values[p, e]:.5g}</td>"
+                        f"<td>{escape(where)}</td><td>{escape(self.load[p][e] or '—')}</td>"
+                        "</tr>")
+        swept = "; ".join(f"{a.name} from {a.values[0]:g} to {a.values[-1]:g} {a.unit}"
+                          for a in self.axes)
+        return (f"<div><b>What-if sweep</b>: {len(self.points)} points; {escape(swept)}"
+                "<table><tr><th>effect</th><th>worst value</th><th>at</th><th>load</th></tr>"
+                + "".join(rows) + "</table></div>")
+
+
+# ------------------------------------------------------------------------------------------
+# running
+
+
+def run(spec: SweepSpec, progress: Progress | None = None) -> SweepResult:
+    """Compute every point of a sweep; ``progress(done, total)`` is called after each."""
+    n_effects = len(spec.effects)
+    grids = np.meshgrid(*[np.asarray(a.values) for a in spec.axes], indexing="ij")
+    points = np.stack([g.ravel() for g in grids], axis=1)
+    total = len(points)
+    values = np.full((total, n_effects), np.nan)
+    xs = np.full((total, n_effects), np.nan)
+    supports = np.full((total, n_effects), -1, dtype=np.int64)
+    names: list[tuple[str, ...]] = []
+    reused = 0
+    previous: set[tuple] = set()
+    for p, point in enumerate(points):
+        subject = spec.subject_at(tuple(float(v) for v in point))
+        found, keys = _evaluate(subject, spec.effects)
+        reused += bool(keys) and keys <= previous
+        previous = keys
+        for e, (value, x, support, _load) in enumerate(found):
+            values[p, e], xs[p, e], supports[p, e] = value, x, support
+        names.append(tuple(f[3] for f in found))
+        if progress is not None:
+            progress(p + 1, total)
+    return SweepResult(spec, points, values, xs, supports, tuple(names), reused)
+
+
+_Found = tuple[float, float, int, str]
+
+
+def _evaluate(subject: SweepSubject, selectors: Sequence[EffectSelector]
+              ) -> tuple[list[_Found], set[tuple]]:
+    """Every selector's value at one point of the sweep, and the keys of the lines used
+    (the values the envelope's own cache of lines is keyed on)."""
+    beam = subject.beam
+    groups: dict[tuple[str, str], list[int]] = {}
+    for i, selector in enumerate(selectors):
+        source = source_of(subject, selector)
+        level = "service" if (source == "cranes" and selector.kind == "deflection") else ""
+        groups.setdefault((source, level), []).append(i)
+    out: list[_Found | None] = [None] * len(selectors)
+    keys: set[tuple] = set()
+    for (source, level), members in groups.items():
+        cases = _cases(subject, source, level)
+        chosen = [selectors[i] for i in members]
+        sections = _sections(subject, chosen)
+        kinds = tuple(k for k in KINDS if any(s.kind == k for s in chosen))
+        keys.add((repr(beam), sections.tobytes(), kinds))
+        env = envelope(beam, cases, sections=sections, effects=kinds)
+        for i in members:
+            out[i] = _pick(env, selectors[i], cases)
+    return [f for f in out if f is not None], keys
+
+
+def _cases(subject: SweepSubject, source: str, level: str) -> list[Any]:
+    if source == "loads":
+        return list(subject.loads)
+    spec = subject.runway
+    if spec is None:
+        raise SweepError("cranes: expected a model with [[crane]] and [runway] tables")
+    length = subject.beam.length
+    return [LoadCase(combination_load(c, length, with_impact=level != "service",
+                                      confined=spec.end_stops), name=c.name)
+            for c in crane_combinations(spec.cranes, spec.combinations)]
+
+
+def _sections(subject: SweepSubject, selectors: Sequence[EffectSelector]
+              ) -> NDArray[np.float64]:
+    """The model's sections the selectors look at, and any ``at`` positions."""
+    beam = subject.beam
+    if not any(s.kind in SECTION_KINDS for s in selectors):
+        return np.zeros(0)
+    chosen: list[NDArray[np.float64]] = []
+    for s in selectors:
+        if s.kind not in SECTION_KINDS:
+            continue
+        if s.at is not None:
+            chosen.append(np.array([_position(beam, s)]))
+        elif s.span is not None:
+            chosen.append(subject.sections[_in_span(beam, subject.sections, s.span - 1)])
+        else:
+            chosen.append(np.asarray(subject.sections, dtype=float))
+    points = np.sort(np.concatenate(chosen))
+    keep = np.concatenate([[True], np.diff(points) > 1e-9 * beam.length])
+    return points[keep]
+
+
+def _in_span(beam: Beam, x: NDArray[np.float64], span: int) -> NDArray[np.int64]:
+    a, b = beam.support_positions[span], beam.support_positions[span + 1]
+    tolerance = 1e-9 * beam.length
+    return np.flatnonzero((x >= a - tolerance) & (x <= b + tolerance))
+
+
+def _name(env: Envelope, g: Any) -> str:
+    return env.cases[g.case].name if g.case >= 0 else ""
+
+
+def _pick(env: Envelope, selector: EffectSelector, cases: Sequence[Any]) -> _Found:
+    beam = env.beam
+    which = selector.which
+    sign = 1.0 if which == "max" else -1.0
+    extreme = env.max if which == "max" else env.min
+    if selector.kind in SUPPORT_KINDS:
+        lines = env.lines_of(selector.kind)
+        governing = env.governing(selector.kind, which)
+        candidates = [(governing[j].value, env.effects[line].support, _name(env, governing[j]))
+                      for j, line in enumerate(lines)
+                      if selector.support is None or env.effects[line].support == selector.support]
+        value, support, name = max(candidates, key=lambda c: sign * c[0])
+        return float(value), math.nan, int(support), name
+    x = env.sections
+    tolerance = 1e-9 * beam.length
+    if selector.at is not None:
+        target = _position(beam, selector)
+        rows = np.flatnonzero(np.abs(x - target) <= tolerance)
+    elif selector.span is not None:
+        rows = _in_span(beam, x, selector.span - 1)
+    else:
+        rows = np.arange(len(x))
+    candidates: list[tuple[float, float, str]] = []
+    sides: Sequence[str | None] = ("left", "right") if selector.kind == "shear" else (None,)
+    for side in sides:
+        values = extreme(selector.kind, side)
+        governing = env.governing(selector.kind, which, side)
+        for r in rows:
+            if selector.span is not None and side is not None:
+                a = beam.support_positions[selector.span - 1]
+                b = beam.support_positions[selector.span]
+                # inside the span: right of its left support, left of its right support
+                if (side == "right" and x[r] >= b - tolerance) or \
+                        (side == "left" and x[r] <= a + tolerance):
+                    continue
+            candidates.append((float(values[r]), float(x[r]), _name(env, governing[r])))
+    value, where, name = max(candidates, key=lambda c: sign * c[0])
+    if selector.anywhere:
+        for c, case in enumerate(cases):
+            for found in absolute_extremes(beam, case, selector.span - 1, selector.kind,
+                                           case_index=c, extremes=(which,)):
+                # never less than at the sections: the search adds, it does not replace
+                if sign * found.value > sign * value:
+                    value, where = found.value, found.x
+                    name = case.name if found.governing.case >= 0 else ""
+    return value, where, -1, name
+
+
+def effect_family(selector: EffectSelector) -> str:
+    """The envelope family whose units the effect is in (for labels)."""
+    return "shear_left" if selector.kind == "shear" else selector.kind
+
+
+__all__ = ["DEFAULT_EFFECTS", "MAX_AXES", "MAX_EFFECTS", "MAX_POINTS", "EffectSelector",
+           "SweepAxis", "SweepError", "SweepResult", "SweepSpec", "SweepSubject",
+           "check_selector", "parse_effect", "run", "source_of"]
