@@ -316,7 +316,7 @@ def _uniform_case(batch: LineBatch, case: LoadCase, case_index: int,
     result = _CaseResult(case_index, n)
     result.pattern = [[None] * n, [None] * n]
     if load.placement == "anywhere":
-        pos, neg = batch.signed_areas
+        pos, neg = _lines_memo(batch, "signed areas")
         for w, area, col, sign in ((0, pos, 0, 1), (1, neg, 3, -1)):
             result.value[w] = m * (load.w * area + P * ordinate_extremes[:, col])
             for j in range(n):
@@ -887,7 +887,7 @@ def _lines_memo(batch: LineBatch, what: str) -> Any:
     (a unit load's scan of each line) of ``batch``, computed once per batch object."""
     memo = _MEMO.setdefault(batch, {})
     if what not in memo:
-        found = (signed_areas(batch.knots, batch.coef) if what == "signed areas"
+        found = (tuple(np.array(a) for a in batch.signed_areas) if what == "signed areas"
                  else scan_group(batch, TermGroup((0.0,), (1.0,))))
         for array in (found if isinstance(found, tuple) else (found,)):
             array.setflags(write=False)  # shared by every envelope of these lines
