@@ -4,23 +4,21 @@ Nothing here is measured or taken from any survey, code or real weigh-in-motion 
 numbers were chosen to look plausible for road trucks and to exercise the fleet workflow; do
 not use the output to assess a real bridge. Every output says "invented".
 
-The mixture (SI: kN, m; each truck is drawn independently):
+The mixture (SI: kN, m; each truck is drawn independently). Per class: share of trucks;
+gross weight [kN] as a mix of empty N(mean, sd) with probability p and loaded N(mean, sd);
+axle shares of the gross, front to back; spacings [m] as mean ± sd:
 
-====== ======= ============================ =================================== ============
-axles  share   gross weight [kN]            axle shares of the gross (front→back) spacings [m]
-====== ======= ============================ =================================== ============
-2      0.30    empty N(70, 12) p=0.4,       0.35, 0.65                          4.5 ± 0.6
-               loaded N(140, 25)
-3      0.20    empty N(110, 15) p=0.35,     0.28, 0.36, 0.36                    4.2 ± 0.5, 1.3 ± 0.05
-               loaded N(230, 35)
-4      0.10    empty N(150, 20) p=0.35,     0.22, 0.26, 0.26, 0.26              3.2 ± 0.4, 5.2 ± 0.6,
-               loaded N(300, 40)                                                1.3 ± 0.05
-5      0.33    empty N(160, 20) p=0.3,      0.13, 0.22, 0.22, 0.215, 0.215      3.6 ± 0.3, 1.3 ± 0.05,
-               loaded N(380, 50)                                                6.5 ± 0.9, 1.3 ± 0.05
-6      0.07    empty N(190, 25) p=0.3,      0.11, 0.18, 0.18, 0.18, 0.175,      3.6 ± 0.3, 1.3 ± 0.05,
-               loaded N(440, 50)            0.175                               6.0 ± 0.8, 1.3 ± 0.05,
-                                                                                1.3 ± 0.05
-====== ======= ============================ =================================== ============
+- 2 axles, share 0.30: empty N(70, 12) p = 0.40, loaded N(140, 25); shares 0.35, 0.65;
+  spacing 4.5 ± 0.6
+- 3 axles, share 0.20: empty N(110, 15) p = 0.35, loaded N(230, 35); shares 0.28, 0.36,
+  0.36; spacings 4.2 ± 0.5, 1.3 ± 0.05
+- 4 axles, share 0.10: empty N(150, 20) p = 0.35, loaded N(300, 40); shares 0.22, 0.26,
+  0.26, 0.26; spacings 3.2 ± 0.4, 5.2 ± 0.6, 1.3 ± 0.05
+- 5 axles, share 0.33: empty N(160, 20) p = 0.30, loaded N(380, 50); shares 0.13, 0.22,
+  0.22, 0.215, 0.215; spacings 3.6 ± 0.3, 1.3 ± 0.05, 6.5 ± 0.9, 1.3 ± 0.05
+- 6 axles, share 0.07: empty N(190, 25) p = 0.30, loaded N(440, 50); shares 0.11, 0.18,
+  0.18, 0.18, 0.175, 0.175; spacings 3.6 ± 0.3, 1.3 ± 0.05, 6.0 ± 0.8, 1.3 ± 0.05,
+  1.3 ± 0.05
 
 "± s" is a normal distribution's standard deviation. Gross weights are truncated to
 [0.5, 1.6] × the class's loaded mean; each axle share is multiplied by 1 + N(0, 0.05) and the
