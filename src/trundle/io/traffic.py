@@ -450,6 +450,11 @@ def traffic_bytes(traffic: Traffic, fmt: str) -> bytes:
         if traffic.invented:
             table = table.append_column("provenance", pa.array(
                 np.full(table.num_rows, "invented, not measured")))
+        # spacings come back as differences of offsets: 1e-10 of a length unit is kept, the
+        # rounding noise of the subtraction (3.3099999999999996) is not
+        for k, name in enumerate(table.column_names):
+            if name.startswith("spacing_"):
+                table = table.set_column(k, name, pc.round(table.column(name), 10))
         table = table.set_column(1, "timestamp", pc.strftime(table.column("timestamp"),
                                                              format="%Y-%m-%dT%H:%M:%S"))
         pacsv.write_csv(table, sink)

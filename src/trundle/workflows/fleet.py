@@ -459,8 +459,12 @@ def _summarise(spec: FleetSpec, paths: list[Path], design: list | None) -> list[
             if truck.size != n or (truck != np.arange(n)).any():
                 raise RuntimeError(f"bridge {bridge.name!r}, {effect.label}: expected one row "
                                    f"per truck ({n}), found {truck.size}")
-            vmax = rows.column("max").to_numpy()
-            vmin = rows.column("min").to_numpy()
+            vmax = rows.column("max").to_numpy().copy()
+            vmin = rows.column("min").to_numpy().copy()
+            # rounding noise around an empty-beam zero is not an effect (the envelope's rule)
+            scale = max(np.abs(vmax).max(), np.abs(vmin).max())
+            vmax[np.abs(vmax) <= 1e-12 * scale] = 0.0
+            vmin[np.abs(vmin) <= 1e-12 * scale] = 0.0
             i_max, i_min = int(np.argmax(vmax)), int(np.argmin(vmin))
             d_max, d_min = (design[b][j] if design is not None else (np.nan, np.nan))
             governs_max = abs(vmax[i_max]) >= abs(vmin[i_min])
