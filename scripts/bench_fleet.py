@@ -13,7 +13,7 @@ Printed:
       the LocalCluster;
   (d) the time for all trucks against a floor: pieces visited x flops per piece at the
       machine's measured rate of dependent multiply-adds (the kernel's inner operation);
-  (e) memory: peak resident set of each worker.
+  (e) memory: resident set of each worker after the run, and its peak.
 
 Run: PYTHONPATH=src python scripts/bench_fleet.py [--quick]   (quick: 5 000 trucks; full: 10^6)
 """
@@ -56,6 +56,14 @@ def scan_chunk(args):
     batch, start, weight, offset, direction = args
     out = scan_fleet(batch, start, weight, offset, direction, parallel=False)
     return float(np.nansum(out[:, :, 0]))
+
+
+def _worker_memory() -> tuple[int, int]:
+    """(resident set now [bytes], peak [kB]) of the calling worker process."""
+    import psutil
+
+    return psutil.Process().memory_info().rss, resource.getrusage(
+        resource.RUSAGE_SELF).ru_maxrss
 
 
 def chunks(traffic, size):
@@ -133,9 +141,10 @@ def main(quick: bool = False) -> None:
         assert abs(total - single) <= 1e-9 * abs(single), "cluster and single differ"
         print(f"(b) LocalCluster, 2 workers: {t_cluster:.2f} s, {rate_cluster:,.0f} "
               f"truck-effects/s, parallel efficiency {rate_cluster / (2 * rate_single):.2f}")
-        rss = client.run(lambda: resource.getrusage(resource.RUSAGE_SELF).ru_maxrss)
-        print("(e) peak resident set per worker: "
-              + ", ".join(f"{v / 1024:.0f} MB" for v in rss.values()))
+        rss = client.run(_worker_memory)
+        print("(e) per worker, resident set now / peak: "
+              + ", ".join(f"{now / 2**20:.0f} / {peak / 1024:.0f} MB"
+                          for now, peak in rss.values()))
         with tempfile.TemporaryDirectory() as folder:
             spec = dict(traffic=traffic, bridges=(b,), truck_chunk=CHUNK if not quick else 1_250,
                         progress=False, n_bootstrap=10 if quick else 50)

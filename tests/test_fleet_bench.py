@@ -16,5 +16,5 @@ def test_bench_fleet_quick_runs() -> None:
                           capture_output=True, text=True, env=env, timeout=600)
     assert done.returncode == 0, done.stderr[-2000:]
     for mark in ("(a) one process", "(b) LocalCluster, 2 workers", "parallel efficiency",
-                 "(c) whole workflow", "(d) pieces visited", "(e) peak resident set"):
+                 "(c) whole workflow", "(d) pieces visited", "(e) per worker, resident set"):
         assert mark in done.stdout, done.stdout

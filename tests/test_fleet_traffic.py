@@ -137,3 +137,13 @@ def test_the_generator_is_seeded_and_follows_its_stated_mixture() -> None:
                                rtol=1e-12)
     assert (np.diff(a.timestamp.astype(np.int64)) >= 0).all()
     assert "INVENTED" in a.source and a.invented
+
+
+def test_infinite_numbers_in_a_parquet_file_are_bad_rows(tmp_path: Path) -> None:
+    import pyarrow as pa
+    import pyarrow.parquet as pq
+
+    table = pa.table({"id": ["a", "b"], "gross": [10.0, float("inf")], "axle_1": [10.0, 5.0]})
+    pq.write_table(table, tmp_path / "t.parquet")
+    with pytest.raises(TrafficFileError, match=r"row 2 id 'b': gross: expected a finite"):
+        read_traffic(tmp_path / "t.parquet")

@@ -266,7 +266,12 @@ def _numbers(table: pa.Table, column: str, problems: _Problems) -> NDArray[np.fl
     """A numeric column with NaN for empty cells; cells that are no number are problems."""
     col = table.column(column)
     if pa.types.is_floating(col.type) or pa.types.is_integer(col.type):
-        return col.cast(pa.float64()).fill_null(np.nan).to_numpy(zero_copy_only=False)
+        values = col.cast(pa.float64()).fill_null(np.nan).to_numpy(zero_copy_only=False).copy()
+        infinite = np.isinf(values)
+        problems.add(infinite, lambda i: f"{column}: expected a finite number, found "
+                                         f"{values[i]!r}")
+        values[infinite] = np.nan
+        return values
     text = col.cast(pa.string())
     values = np.full(len(col), np.nan)
     cells = text.to_pylist()
