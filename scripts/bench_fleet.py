@@ -15,7 +15,8 @@ Printed:
       machine's measured rate of dependent multiply-adds (the kernel's inner operation);
   (e) memory: resident set of each worker after the run, and its peak.
 
-Run: PYTHONPATH=src python scripts/bench_fleet.py [--quick]   (quick: 5 000 trucks; full: 10^6)
+Run: PYTHONPATH=src python scripts/bench_fleet.py [--quick] [--trucks N]
+(quick: 5 000 trucks; full: 10^6)
 """
 
 from __future__ import annotations
@@ -52,10 +53,12 @@ def bridge() -> Bridge:
 
 
 def scan_chunk(args):
-    """A Dask task: scan one chunk, return a checksum (no result transfer)."""
+    """A Dask task: scan one chunk; return a checksum (no result transfer) and the CPU time
+    the task's thread used (wall time far above it means the core was shared)."""
     batch, start, weight, offset, direction = args
+    cpu = time.thread_time()
     out = scan_fleet(batch, start, weight, offset, direction, parallel=False)
-    return float(np.nansum(out[:, :, 0]))
+    return float(np.nansum(out[:, :, 0])), time.thread_time() - cpu
 
 
 def _worker_memory() -> tuple[int, int]:
@@ -107,8 +110,8 @@ def pieces_and_flops(batch: LineBatch, traffic) -> tuple[float, float]:
     return float(pieces.sum()), float(flops.sum())
 
 
-def main(quick: bool = False) -> None:
-    n_trucks = 5_000 if quick else 1_000_000
+def main(quick: bool = False, n_trucks: int | None = None) -> None:
+    n_trucks = n_trucks or (5_000 if quick else 1_000_000)
     b = bridge()
     batch = LineBatch.from_set(influence_set(b.beam, list(b.effects)))
     t = time.perf_counter()
@@ -119,10 +122,13 @@ def main(quick: bool = False) -> None:
     scan_chunk(work[0])  # compile / load the cache
     before = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
     t = time.perf_counter()
-    single = sum(scan_chunk(w) for w in work)
+    done = [scan_chunk(w) for w in work]
     t_single = time.perf_counter() - t
+    single = sum(d[0] for d in done)
+    cpu_single = sum(d[1] for d in done)
     rate_single = n_trucks * 10 / t_single
-    print(f"(a) one process, one thread: {t_single:.2f} s, {rate_single:,.0f} truck-effects/s")
+    print(f"(a) one process, one thread: {t_single:.2f} s ({cpu_single:.2f} s of CPU), "
+          f"{rate_single:,.0f} truck-effects/s")
     rss_single = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
     print(f"    peak resident set of this process {rss_single / 1024:.0f} MB "
           f"(before the scan {before / 1024:.0f} MB)")
@@ -135,12 +141,16 @@ def main(quick: bool = False) -> None:
         client.gather(client.map(scan_chunk, work[:2], pure=False))  # warm both workers
         t = time.perf_counter()
         futures = client.map(scan_chunk, work, pure=False)
-        total = sum(client.gather(futures))
+        done = client.gather(futures)
         t_cluster = time.perf_counter() - t
+        total = sum(d[0] for d in done)
+        cpu_cluster = sum(d[1] for d in done)
         rate_cluster = n_trucks * 10 / t_cluster
         assert abs(total - single) <= 1e-9 * abs(single), "cluster and single differ"
         print(f"(b) LocalCluster, 2 workers: {t_cluster:.2f} s, {rate_cluster:,.0f} "
-              f"truck-effects/s, parallel efficiency {rate_cluster / (2 * rate_single):.2f}")
+              f"truck-effects/s, parallel efficiency {rate_cluster / (2 * rate_single):.2f}; "
+              f"CPU used by the workers {cpu_cluster:.2f} s in {t_cluster:.2f} s of wall time "
+              f"(2 cores fully ours would allow {2 * t_cluster:.2f} s)")
         rss = client.run(_worker_memory)
         print("(e) per worker, resident set now / peak: "
               + ", ".join(f"{now / 2**20:.0f} / {peak / 1024:.0f} MB"
@@ -168,4 +178,7 @@ def main(quick: bool = False) -> None:
 
 
 if __name__ == "__main__":
-    main(quick="--quick" in sys.argv)
+    # --trucks N: another count (the quick mode's units are too small to show parallel
+    # efficiency; its purpose is to check that the benchmark runs)
+    count = int(sys.argv[sys.argv.index("--trucks") + 1]) if "--trucks" in sys.argv else None
+    main(quick="--quick" in sys.argv, n_trucks=count)
