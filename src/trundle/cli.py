@@ -479,6 +479,11 @@ def library_command(name: str | None) -> None:
     console.print(LOAD_MODEL_CAUTION, style="dim")
 
 
+from trundle.cli_fleet import register as _register_fleet  # noqa: E402 (needs cli above)
+
+_register_fleet(cli)
+
+
 def main() -> None:
     """Entry point of the ``trundle`` script and of ``python -m trundle``."""
     cli(prog_name="trundle")
