@@ -148,6 +148,11 @@ def main(quick: bool = False, n_trucks: int | None = None) -> None:
               f"truck-effects/s, parallel efficiency {rate_cluster / (2 * rate_single):.2f}; "
               f"CPU used by the workers {cpu_cluster:.2f} s in {t_cluster:.2f} s of wall time "
               f"(2 cores fully ours would allow {2 * t_cluster:.2f} s)")
+        # what a loaded machine cannot hide: the CPU the same work costs in the workers
+        # against one process (1.0: distribution adds no work; wall-time efficiency then
+        # follows when two cores are really free)
+        print(f"    CPU-time ratio one process / workers {cpu_single / cpu_cluster:.2f} x; load "
+              f"average now {os.getloadavg()[0]:.1f}")
         rss = client.run(_worker_memory)
         print("(e) per worker, resident set now / peak: "
               + ", ".join(f"{now / 2**20:.0f} / {peak / 1024:.0f} MB"

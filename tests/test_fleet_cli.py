@@ -101,9 +101,15 @@ def test_permit_command_flags_and_exit_codes(folder: Path) -> None:
     flagged = run(*args, "--limit", "1.0", "--out", folder / "permit")
     assert flagged.exit_code == 1, flagged.output + flagged.stderr
     assert "EXCEEDS" in flagged.output and "qualified engineer" in flagged.output
-    assert "EXCEEDS" in (folder / "permit" / "permit.csv").read_text()
-    passed = run(*args, "--limit", "1.2")
+    # the verdict (analysis.checks.verdict of ratio / limit) in every output
+    permit_csv = (folder / "permit" / "permit.csv").read_text().splitlines()
+    assert permit_csv[0].startswith("# trundle") and "permit.toml; SHA-256 " in permit_csv[0]
+    assert any("EXCEEDS" in r for r in permit_csv[2:])
+    assert "EXCEEDS" in (folder / "permit" / "report.html").read_text()
+    passed = run(*args, "--limit", "1.2", "--out", folder / "permit")
     assert passed.exit_code == 0 and "within the limit" in passed.output
+    assert "PASS" in passed.output and "EXCEEDS" not in passed.output
+    assert "EXCEEDS" not in (folder / "permit" / "permit.csv").read_text()
     assert_one_line_error(run("permit", "no-such-vehicle", folder / "inventory.csv", "--design",
                               folder / "design.toml", "--single-process"), "no-such-vehicle",
                           "vehicle")

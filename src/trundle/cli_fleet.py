@@ -43,11 +43,12 @@ def _check_out(out_dir: Path) -> None:
         raise click.ClickException(f"--out {out_dir}: expected a folder, found a file")
 
 
-def _provenance(**inputs: Path) -> str:
+def _provenance(*inputs: tuple[str, Path]) -> str:
     """The comment line every CSV of the run starts with: each input file and its SHA-256
-    (a folder of model files has none: "-")."""
+    (a folder of model files or a library name has none: "-")."""
     parts = []
-    for label, path in inputs.items():
+    found = Provenance()
+    for label, path in inputs:
         found = Provenance.of_file(path)
         parts.append(f"{label} {path}; SHA-256 {found.sha256 or '-'}")
     return (f"# trundle {found.version}; " + "; ".join(parts)
@@ -153,8 +154,8 @@ def fleet_command(trucks: Path, inventory: Path, units: str, bad_rows: str, desi
                       if rl else s.fit_note)
     console.print(table)
     written = _write(out_dir, fleet_files(result, figures=not no_figure,
-                                          provenance=_provenance(traffic=trucks,
-                                                                 inventory=inventory)))
+                                          provenance=_provenance(("traffic file", trucks),
+                                                                 ("inventory", inventory))))
     console.print(f"partitions: {result.written} written, {result.skipped} already there, in "
                   f"{out_dir / 'partitions'}")
     console.print("wrote " + ", ".join(str(p) for p in written[:6])
@@ -237,8 +238,8 @@ def permit_command(vehicle: str, route: Path, design: str, impact: float, limit:
     console.print(f"{result.exceeds} of {len(result.rows)} checks EXCEED the limit"
                   if result.exceeds else f"all {len(result.rows)} checks PASS (within the limit)")
     if out_dir is not None:
-        written = _write(out_dir, permit_files(result, _provenance(vehicle=Path(vehicles[0]),
-                                                                   route=route)))
+        inputs = [("vehicle", Path(v)) for v in vehicles] + [("route", route)]
+        written = _write(out_dir, permit_files(result, _provenance(*inputs)))
         console.print("wrote " + ", ".join(str(p) for p in written))
     console.print(CAUTION, style="dim")
     console.print(LOAD_MODEL_CAUTION, style="dim")

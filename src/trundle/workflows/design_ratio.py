@@ -2,9 +2,11 @@
 
 The design model is a parameter: a text naming load models from the library or load-model
 files (docs/model-file.md); ``a+b`` makes loads act together (each where it is worst, e.g. a
-design vehicle with its lane load), ``a,b`` envelopes alternatives. Each is read in the units
-of the bridge it is applied to. Once a published model exists in the library it is named the
-same way (e.g. ``hl93``); until then any library or file model serves.
+design vehicle with its lane load), ``a,b`` envelopes alternatives. The io layer
+(``trundle.io.design_models.design_model``) reads it into load cases in the units of each
+bridge; this module only takes the exact envelope of those cases. Once a published design
+case (e.g. ``hl93``) is in the library it is named the same way; until then any library or
+file model serves.
 """
 
 from __future__ import annotations

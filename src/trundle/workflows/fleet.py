@@ -66,7 +66,8 @@ class FleetSpec:
     fit : "gumbel" or "gev"
     return_period_years : e.g. 75
     confidence, n_bootstrap : of the return-level interval
-    fatigue : also compute rainflow damage sums of moment histories (sampled; slower)
+    fatigue : also compute rainflow damage sums of each truck's exact moment history (its
+        turning points, scan.passages.exact_turning_points; slower)
     fatigue_slope : S-N slope m
     progress : show a progress bar on stderr
     """
