@@ -46,6 +46,8 @@ def _layer(module: str) -> int:
     if len(parts) == 1 or parts[1] in ("__main__",):
         return len(LAYERS)  # the package root re-exports the public API: above everything
     name = parts[1]
+    if name.startswith("cli_"):
+        name = "cli"  # a command module registered by cli.py (cli_fleet.py) is the cli layer
     assert name in LAYERS, f"{module} is in no layer; add it to a layer package"
     return LAYERS.index(name)
 

@@ -652,6 +652,11 @@ def _run_with_progress(spec: Any) -> Any:
         return run(spec, lambda done, total: bar.update(task, completed=done))
 
 
+from trundle.cli_fleet import register as _register_fleet  # noqa: E402 (needs cli above)
+
+_register_fleet(cli)
+
+
 def main() -> None:
     """Entry point of the ``trundle`` script and of ``python -m trundle``."""
     cli(prog_name="trundle")

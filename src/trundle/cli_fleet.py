@@ -1,0 +1,252 @@
+"""``trundle fleet`` and ``trundle permit``: parse, run the workflow, render.
+
+Registered on the main command group by :func:`register`. Bad input ends with one line on
+stderr and exit code 2, before anything is written: the traffic, the inventory and the
+design model are all read and checked before the first work unit runs.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Any
+
+import click
+from rich.console import Console
+from rich.table import Table
+
+from trundle.io.inventory import InventoryError, read_inventory
+from trundle.io.outputs import Provenance, write_output_set
+from trundle.io.traffic import TrafficFileError, read_traffic
+from trundle.report import CAUTION, LOAD_MODEL_CAUTION
+from trundle.report.format import decimals, fixed, position, verdict_cell
+
+_CAUTIONS = (f"CAUTION: {CAUTION} {LOAD_MODEL_CAUTION}")
+
+
+def _console() -> Console:
+    # wide enough for the tables when the output is a file or a pipe
+    return Console(highlight=False, soft_wrap=False, width=None if _is_tty() else 140)
+
+
+def _is_tty() -> bool:
+    import sys
+
+    return sys.stdout.isatty()
+
+
+def _inputs_error(error: Exception) -> click.ClickException:
+    return click.ClickException(" ".join(str(error).split()))
+
+
+def _check_out(out_dir: Path) -> None:
+    if out_dir.exists() and not out_dir.is_dir():
+        raise click.ClickException(f"--out {out_dir}: expected a folder, found a file")
+
+
+def _provenance(*inputs: tuple[str, Path]) -> str:
+    """The comment line every CSV of the run starts with: each input file and its SHA-256
+    (a folder of model files or a library name has none: "-")."""
+    parts = []
+    found = Provenance()
+    for label, path in inputs:
+        found = Provenance.of_file(path)
+        parts.append(f"{label} {path}; SHA-256 {found.sha256 or '-'}")
+    return (f"# trundle {found.version}; " + "; ".join(parts)
+            + f"; computed {found.date}")
+
+
+def _write(out_dir: Path, files: dict[str, Any]) -> list[Path]:
+    try:
+        return write_output_set(out_dir, files)[0]
+    except OSError as error:
+        raise click.ClickException(f"--out {out_dir}: cannot write "
+                                   f"({error.strerror or error})") from None
+
+
+@click.command("fleet", epilog=_CAUTIONS)
+@click.argument("trucks", metavar="TRUCKS", type=click.Path(path_type=Path))
+@click.argument("inventory", metavar="INVENTORY", type=click.Path(path_type=Path))
+@click.option("--units", type=click.Choice(["SI", "US"], case_sensitive=False), default="SI",
+              show_default=True, help="Units of the traffic file: SI (kN, m) or US (kip, ft).")
+@click.option("--bad-rows", type=click.Choice(["fail", "skip"]), default="fail",
+              show_default=True, help="A bad row refuses the file (fail) or is dropped and "
+                                      "counted (skip).")
+@click.option("--design", metavar="MODEL",
+              help="Design load model for the ratios: library names or load-model files; "
+                   "'a+b' acting together, 'a,b' enveloped.")
+@click.option("-o", "--out", "out_dir", type=click.Path(path_type=Path),
+              default=Path("out/fleet"), show_default=True,
+              help="Folder for the partitions, tables, figures and report.html.")
+@click.option("--scheduler", metavar="ADDRESS",
+              help="Run on an existing Dask cluster (tcp://host:8786); default: a "
+                   "LocalCluster on this machine, one worker per core.")
+@click.option("--workers", type=click.IntRange(1, 512), help="LocalCluster workers.")
+@click.option("--single-process", is_flag=True, help="No Dask: run in this process.")
+@click.option("--truck-chunk", type=click.IntRange(1), default=50_000, show_default=True,
+              help="Trucks per work unit.")
+@click.option("--bridge-chunk", type=click.IntRange(1), default=4, show_default=True,
+              help="Bridges per work unit.")
+@click.option("--block", type=click.Choice(["day", "week"]), default="day", show_default=True,
+              help="Block of the block maxima.")
+@click.option("--fit", type=click.Choice(["gumbel", "gev"]), default="gumbel",
+              show_default=True, help="Distribution fitted to the block maxima.")
+@click.option("--period", type=click.FloatRange(min=0, min_open=True), default=75.0,
+              show_default=True, help="Return period [years].")
+@click.option("--fatigue", is_flag=True,
+              help="Rainflow damage of each truck's exact moment history (turning points).")
+@click.option("--no-figure", is_flag=True, help="Write no figures.")
+@click.option("--no-progress", is_flag=True, help="Show no progress bar.")
+def fleet_command(trucks: Path, inventory: Path, units: str, bad_rows: str, design: str | None,
+                  out_dir: Path, scheduler: str | None, workers: int | None,
+                  single_process: bool, truck_chunk: int, bridge_chunk: int, block: str,
+                  fit: str, period: float, fatigue: bool, no_figure: bool,
+                  no_progress: bool) -> None:
+    """Recorded traffic over a bridge inventory: per bridge and effect, the exact extreme of
+    every truck, the distribution, block maxima with a fitted distribution and the return
+    level for a period (bootstrap interval), the ratio to a design load model, and fatigue.
+
+    TRUCKS is a CSV or Parquet file in the wide layout (id, timestamp, lane, direction,
+    gross, axle_1 …, spacing_1 …; see the README). INVENTORY is a CSV with one bridge a
+    row, or a folder of model files. Work runs on Dask; a rerun skips the partitions
+    already written in --out.
+
+    \b
+    Example:
+      trundle fleet examples/fleet/traffic_invented.csv examples/fleet/inventory.csv \\
+        --design demo-heavy-vehicle-5-axle+demo-lane-load --out out/fleet
+    """
+    from trundle.io.design_models import design_model
+    from trundle.report.fleet_section import cautions, fleet_files
+    from trundle.workflows.fleet import FleetSpec, run
+
+    _check_out(out_dir)
+    if scheduler and single_process:
+        raise click.ClickException("--scheduler and --single-process: expected one of them, "
+                                   "found both")
+    try:
+        traffic = read_traffic(trucks, units=units, bad_rows=bad_rows)
+        bridges = tuple(read_inventory(inventory))
+    except (TrafficFileError, InventoryError) as error:
+        raise _inputs_error(error) from None
+    model = design_model(design) if design else None  # every name checked before any scan
+    spec = FleetSpec(traffic, bridges, out_dir, model, truck_chunk, bridge_chunk,
+                     "none" if single_process else scheduler, workers, block, fit, period,
+                     fatigue=fatigue, progress=not no_progress)
+    console = _console()
+    if traffic.skipped:
+        console.print(f"skipped {len(traffic.skipped)} bad row(s) of {trucks} "
+                      f"(listed in bad_rows_skipped.csv)")
+    result = run(spec)
+    table = Table(title=f"{traffic.n_trucks} trucks over {len(bridges)} bridges "
+                        f"({result.engine})")
+    for column in ("bridge", "effect", "max", "min", "ratio", f"{period:g}-year level",
+                   "interval"):
+        table.add_column(column, overflow="fold")
+    for s in result.summaries:
+        sign = -1.0 if s.fit_note.startswith("statistics of −min") else 1.0
+        rl = s.return_level
+        ratio = max(s.ratio_max, s.ratio_min) if s.ratio_max == s.ratio_max else s.ratio_min
+        places = decimals([s.maximum, s.minimum])
+        table.add_row(s.bridge, s.effect, fixed(s.maximum, places), fixed(s.minimum, places),
+                      fixed(ratio, 3) if ratio == ratio else verdict_cell(None),
+                      fixed(sign * rl.value, places) if rl else verdict_cell(None),
+                      f"{fixed(sign * rl.low, places)} … {fixed(sign * rl.high, places)}"
+                      if rl else s.fit_note)
+    console.print(table)
+    written = _write(out_dir, fleet_files(result, figures=not no_figure,
+                                          provenance=_provenance(("traffic file", trucks),
+                                                                 ("inventory", inventory))))
+    console.print(f"partitions: {result.written} written, {result.skipped} already there, in "
+                  f"{out_dir / 'partitions'}")
+    console.print("wrote " + ", ".join(str(p) for p in written[:6])
+                  + (f" and {len(written) - 6} more" if len(written) > 6 else ""))
+    for caution in cautions(traffic.invented):
+        console.print(caution, style="dim")
+
+
+@click.command("permit", epilog=_CAUTIONS)
+@click.argument("vehicle", metavar="VEHICLE")
+@click.argument("route", metavar="ROUTE", type=click.Path(path_type=Path))
+@click.option("--design", metavar="MODEL", required=True,
+              help="Design load model compared with: library names or load-model files; "
+                   "'a+b' acting together, 'a,b' enveloped.")
+@click.option("--impact", type=click.FloatRange(0, 200), default=0.0, show_default=True,
+              help="Dynamic allowance on the permit vehicle's axles [%].")
+@click.option("--limit", type=click.FloatRange(min=0, min_open=True), default=1.0,
+              show_default=True, help="Largest acceptable ratio permit / design.")
+@click.option("-o", "--out", "out_dir", type=click.Path(path_type=Path),
+              help="Write permit.csv, permit.parquet and report.html into this folder.")
+@click.option("--scheduler", metavar="ADDRESS",
+              help="Run on an existing Dask cluster (tcp://host:8786); default: a "
+                   "LocalCluster on this machine, one worker per core.")
+@click.option("--workers", type=click.IntRange(1, 512), help="LocalCluster workers.")
+@click.option("--single-process", is_flag=True, help="No Dask: run in this process.")
+def permit_command(vehicle: str, route: Path, design: str, impact: float, limit: float,
+                   out_dir: Path | None, scheduler: str | None, workers: int | None,
+                   single_process: bool) -> int:
+    """Permit vehicle(s) over every bridge of a route: per bridge and effect, the ratio of
+    the permit's effect (with the dynamic allowance given) to the design model's, flagged
+    EXCEEDS above the limit, with the governing front-axle position and direction.
+
+    VEHICLE is a load-model file or library name with fixed spacings; several are joined
+    by commas. ROUTE is an inventory CSV (one bridge a row) or a folder of model files.
+    Exit code 1 when any check exceeds the limit.
+
+    \b
+    Example:
+      trundle permit examples/fleet/permit_crane_carrier.toml examples/fleet/inventory.csv \\
+        --design demo-heavy-vehicle-5-axle+demo-lane-load --impact 10 --limit 1.0
+    """
+    from trundle.io.design_models import design_model, permit_vehicle
+    from trundle.report.fleet_section import permit_files
+    from trundle.workflows.permit import EXCEEDS, PermitError, PermitSpec, run
+
+    if out_dir is not None:
+        _check_out(out_dir)
+    try:
+        bridges = tuple(read_inventory(route))
+    except InventoryError as error:
+        raise _inputs_error(error) from None
+    if scheduler and single_process:
+        raise click.ClickException("--scheduler and --single-process: expected one of them, "
+                                   "found both")
+    vehicles = tuple(v.strip() for v in vehicle.split(",") if v.strip())
+    model = design_model(design)
+    for name in vehicles:  # refuse an unknown or indefinite vehicle before any scan
+        permit_vehicle(name, bridges[0].units)
+    try:
+        result = run(PermitSpec(vehicles, permit_vehicle, bridges, model, impact / 100.0,
+                                limit, "none" if single_process else scheduler, workers))
+    except PermitError as error:
+        raise _inputs_error(error) from None
+    console = _console()
+    table = Table(title=f"Permit check: {', '.join(vehicles)} (+{impact:g} % dynamic "
+                        f"allowance) against {design}, limit {limit:g}")
+    for column in ("bridge", "effect", "vehicle", "permit", "design", "ratio", "verdict",
+                   "front axle at", "direction"):
+        table.add_column(column)
+    for r in result.rows:
+        value = r.permit_max if r.side == "max" else r.permit_min
+        d = r.design_max if r.side == "max" else r.design_min
+        places = decimals([value, d])
+        cell = verdict_cell(r.verdict)
+        table.add_row(r.bridge, r.effect, r.vehicle, fixed(value, places), fixed(d, places),
+                      fixed(r.ratio, 3) if r.ratio == r.ratio else verdict_cell(None),
+                      f"[bold red]{cell}[/]" if r.verdict == EXCEEDS else cell,
+                      position(r.x_front_axle), {1: "→ +x", -1: "← −x"}.get(r.direction, "-"))
+    console.print(table)
+    console.print(f"{result.exceeds} of {len(result.rows)} checks EXCEED the limit"
+                  if result.exceeds else f"all {len(result.rows)} checks PASS (within the limit)")
+    if out_dir is not None:
+        inputs = [("vehicle", Path(v)) for v in vehicles] + [("route", route)]
+        written = _write(out_dir, permit_files(result, _provenance(*inputs)))
+        console.print("wrote " + ", ".join(str(p) for p in written))
+    console.print(CAUTION, style="dim")
+    console.print(LOAD_MODEL_CAUTION, style="dim")
+    return 1 if result.exceeds else 0
+
+
+def register(cli_group: click.Group) -> None:
+    """Add ``fleet`` and ``permit`` to the main command group."""
+    cli_group.add_command(fleet_command)
+    cli_group.add_command(permit_command)
