@@ -262,3 +262,23 @@ def test_plan_of_a_train_is_a_chain_with_merged_blocks():
     values = plan.parameter_values(np.array([2.0, 4.0]), np.array([1.0, 2.0]),
                                    np.array([3.0, 5.0]))
     assert values.tolist() == [2.0, 4.0]
+
+
+def test_confined_pair_spanning_the_whole_beam_is_the_limit_of_standing():
+    """Overhangs 3-4-3 m, two 2-wheel cranes (1 m wheelbase) between end stops, gap searched
+    0.5–20 m: the worst deflection at 2.1 m has the wheels at both end stops (gap 8 m, the
+    loads spanning the beam exactly). The search reports that limit, at a gap a hair inside
+    where the fixed-gap scan confirms it; the dense grid over the gap approaches it from
+    below."""
+    beam = trundle.Beam(spans=[3.0, 4.0, 3.0], EI=1.0, supports=["free", "pin", "pin", "free"])
+    wheel = trundle.Vehicle(loads=[100.0, 100.0], spacings=[1.0], confined=True)
+    train = trundle.Train((wheel, wheel), ((0.5, 20.0),), confined=True)
+    e = trundle.envelope(beam, [train], sections=[2.1], effects=("deflection",))
+    found = float(e.max("deflection")[0])
+    g = e.governing("deflection")[0]
+    assert g.searched[0] == pytest.approx(8.0, abs=1e-9)
+    attained = fixed_spacing_extreme(beam, train, g.searched, 2.1, "deflection")
+    assert attained == pytest.approx(found, rel=1e-9)
+    reference = dense_grid_search(beam, train, 2.1, "deflection", per_dimension=196)
+    assert found >= reference - 1e-9 * abs(reference)
+    assert found == pytest.approx(reference, rel=1e-6)

@@ -227,38 +227,51 @@ def searched_extremes(batch: LineBatch, weights: NDArray[np.float64], kinds: NDA
         plan.term_weight, plan.term_kind, plan.term_offset, plan.block_degree,
         plan.block_shift, plan.block_last, bool(confined), plan.assign_blocks,
         plan.assign_count, plan.assign_codes, plan.link_lo, plan.link_hi, margin, capacity)
-    searched = plan.parameter_values(links, low, high)  # (n, 2, n_params)
     values = values + constant * batch.running_end[lines][:, None]
-    # the exact fixed-spacing scan at the values found: it must reach the same extreme
     n = lines.size
-    rows = np.concatenate([lines, lines])
-    found = np.concatenate([searched[:, 0], searched[:, 1]])
-    offsets = base[None, :] + found @ slope
-    check = scan_arrangements(batch, weights, kinds, offsets, rows, constant, confined)
+    scale = _rounding_scale(batch, weights, kinds, constant, lines)
     value = np.zeros((2, n))
     xi = np.full((2, n), np.nan)
     side = np.zeros((2, n), dtype=np.int64)
-    scale = _rounding_scale(batch, weights, kinds, constant, lines)
+    searched = np.zeros((2, n, low.size))
     for w, col in ((0, 0), (1, 3)):
         sign = 1.0 if w == 0 else -1.0
-        r = check[w * n:(w + 1) * n]
-        dp = values[:, w]
         # the empty beam counts (value 0), as in the scan
-        dp = np.where(sign * dp > 0.0, dp, 0.0)
-        scanned = np.where(np.isnan(r[:, col + 1]), 0.0, r[:, col])
-        off = np.abs(scanned - dp) > CHECK_TOLERANCE * np.maximum(scale, np.abs(dp))
-        if np.any(off):
-            j = int(np.flatnonzero(off)[0])
+        dp = np.where(sign * values[:, w] > 0.0, values[:, w], 0.0)
+        bound = CHECK_TOLERANCE * np.maximum(scale, np.abs(dp))
+        todo = np.arange(n)
+        # the exact fixed-spacing scan at the values found must reach the same extreme. A
+        # confined load whose loads then span the beam exactly (wheels at both end stops)
+        # is, for the scan, not standing; the search's value is the limit of it standing
+        # with the links a hair shorter (or longer, mirrored), which the scan then confirms
+        nudge = 1e-11 * batch.length
+        for step in ((0.0, nudge, -nudge) if confined else (0.0,)):
+            trial = np.clip(links[todo, w] + step, plan.link_lo, plan.link_hi)
+            found = plan.parameter_values(trial, low, high)
+            check = scan_arrangements(batch, weights, kinds, base[None, :] + found @ slope,
+                                      lines[todo], constant, confined)
+            scanned = np.where(np.isnan(check[:, col + 1]), 0.0, check[:, col])
+            agree = np.abs(scanned - dp[todo]) <= bound[todo]
+            done = todo[agree]
+            # equal to rounding: keep the larger, and the scan's position and side
+            value[w, done] = np.where(sign * scanned[agree] >= sign * dp[done],
+                                      scanned[agree], dp[done])
+            xi[w, done] = check[agree, col + 1]
+            side[w, done] = check[agree, col + 2].astype(np.int64)
+            searched[w, done] = found[agree]
+            if step == 0.0:
+                first_found, first_scanned = found, scanned
+            todo = todo[~agree]
+            if todo.size == 0:
+                break
+        if todo.size:
+            j = int(todo[0])
             raise SearchError(
                 f"{what}: internal error: the exact search gives {dp[j]!r} on line "
                 f"{int(lines[j])} but the fixed-spacing scan at the values it found "
-                f"({found[w * n + j].tolist()}) gives {scanned[j]!r}; please report this")
-        # equal to rounding: keep the larger, and the scan's position and side
-        value[w] = np.where(sign * scanned >= sign * dp, scanned, dp)
-        xi[w] = r[:, col + 1]
-        side[w] = r[:, col + 2].astype(np.int64)
+                f"({first_found[j].tolist()}) gives {first_scanned[j]!r}; please report this")
         value[w] = np.where(np.isnan(xi[w]), 0.0, value[w])
-    return SearchedExtremes(value, xi, side, np.transpose(searched, (1, 0, 2)))
+    return SearchedExtremes(value, xi, side, searched)
 
 
 def _rounding_scale(batch: LineBatch, weights: NDArray[np.float64], kinds: NDArray[np.int64],
