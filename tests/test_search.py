@@ -285,3 +285,22 @@ def test_confined_pair_spanning_the_whole_beam_is_the_limit_of_standing():
     reference = dense_grid_search(beam, train, 2.1, "deflection", per_dimension=196)
     assert found >= reference - 1e-9 * abs(reference)
     assert found == pytest.approx(reference, rel=1e-6)
+
+
+def test_train_with_attached_uniform_loads_and_a_searched_gap():
+    """Uniform load ahead (finite) and behind (unlimited) a train of two trucks, spacing and gap
+    searched (quartic pieces): never below the dense grid, attained at the values found."""
+    beam = trundle.Beam(spans=[12.0, 1.5, 12.0], EI=1.0, supports=["pin"] * 4)
+    truck = trundle.Vehicle(loads=[50, 80], spacings=[(2.0, 6.0)])
+    train = trundle.Train((truck, truck), ((3.0, 20.0),),
+                          ahead=trundle.AttachedUniform(5.0, 4.0, 1.0),
+                          behind=trundle.AttachedUniform(3.0, gap=2.0))
+    for x, kind, which in ((12.75, "moment", "min"), (18.0, "deflection", "max")):
+        e = trundle.envelope(beam, [train], sections=[x], effects=(kind,))
+        found = float((e.max(kind) if which == "max" else e.min(kind))[0])
+        g = e.governing(kind, which)[0]
+        attained = fixed_spacing_extreme(beam, train, g.searched, x, kind, which)
+        assert attained == pytest.approx(found, rel=1e-9)
+        reference = dense_grid_search(beam, train, x, kind, which, per_dimension=7, refine=2)
+        sign = 1.0 if which == "max" else -1.0
+        assert sign * found >= sign * reference - 1e-9 * abs(reference)
