@@ -613,3 +613,148 @@ def effects_at(beam: trundle.Beam, sections: list[float],
         if s == "fixed" or (isinstance(s, trundle.Spring) and s.kr is not None):
             out.append(E("support_moment", support=k))
     return out
+
+
+# --- the exact search of searched spacings and gaps: twins and a dense-grid reference --------
+
+
+def _plain_read(knots, coef_high_first, x: float) -> float:
+    """A piecewise polynomial (highest power first per piece) at x strictly inside a piece."""
+    m = len(knots) - 1
+    k = min(max(int(np.searchsorted(knots, x, side="right")) - 1, 0), m - 1)
+    return float(np.polyval(coef_high_first[k], x - knots[k]))
+
+
+def _plain_block_value(knots, coef, running, end_value, weights, kinds, offsets,
+                       xi: float) -> float:
+    """The block's response at ξ (no load on a break): concentrated loads read IL (zero off
+    the beam), uniform-load ends read F(x) = ∫₀ˣ IL (0 left of the beam, F(L) right of it)."""
+    length = knots[-1]
+    total = 0.0
+    for w, kind, d in zip(weights, kinds, offsets, strict=True):
+        x = xi - d
+        if kind == 0:
+            total += w * (_plain_read(knots, coef, x) if 0.0 < x < length else 0.0)
+        else:
+            total += w * (0.0 if x <= 0.0 else end_value if x >= length
+                          else _plain_read(knots, running, x))
+    return total
+
+
+def plain_block_candidates(knots, coef, running, end_value, weights, kinds, offsets,
+                           confined: bool, scale: float = 1.0
+                           ) -> list[tuple[float, float, float]]:
+    """Twin of ``trundle.scan.candidates.block_candidates``: (position, value, side) of every
+    piece end (both one-sided limits), every interior critical point and, unless confined, the
+    stretches wholly off the beam. Each piece's polynomial is recovered by interpolating the
+    response at five interior points (exact for degree ≤ 4), its critical points by
+    ``numpy.roots`` of the derivative; a piece whose values differ by less than 1e-10 ·
+    ``scale`` is constant (no critical point)."""
+    length = float(knots[-1])
+    offsets = [float(d) for d in offsets]
+    lo, hi = min(offsets), max(offsets) + length
+    points = [d for d, kind in zip(offsets, kinds, strict=True) if kind == 0]
+    restricted = confined and bool(points)
+    if restricted:
+        lo, hi = max(points), length + min(points)
+        if not lo < hi:
+            return []
+    breaks = sorted({float(k) + d for k in knots for d in offsets} | {lo, hi})
+    breaks = [b for b in breaks if lo <= b <= hi]
+    out = [] if restricted else [(lo, 0.0, -1.0)]
+    for a, b in zip(breaks[:-1], breaks[1:], strict=True):
+        width = b - a
+        if width <= 0.0:
+            continue
+        t = 0.5 * width * (1.0 - np.cos(np.pi * (np.arange(5) + 0.5) / 5))
+        y = [_plain_block_value(knots, coef, running, end_value, weights, kinds, offsets,
+                                a + ti) for ti in t]
+        poly = Polynomial.fit(t, y, 4, domain=[0.0, width], window=[0.0, width])
+        out.append((a, float(poly(0.0)), 1.0))
+        flat = float(np.ptp(y)) <= 1e-10 * scale
+        for r in ([] if flat else poly.deriv().roots()):
+            if abs(r.imag) <= 1e-9 * width and 0.0 < r.real < width:
+                out.append((a + float(r.real), float(poly(r.real)), 0.0))
+        out.append((b, float(poly(width)), -1.0))
+    if not restricted:
+        beyond = sum(w * end_value for w, kind in zip(weights, kinds, strict=True) if kind != 0)
+        out.append((hi, beyond, 1.0))
+    return out
+
+
+def plain_chain_maximum(blocks: list[list[tuple[float, float]]], shifts: list[float],
+                        ranges: list[tuple[float, float]], margin: float) -> float:
+    """Twin of ``trundle.scan.candidates.chain_maximum``: every combination of one candidate
+    (position, value) per block, kept when each link pos_b − shift_b − pos_{b+1} lies strictly
+    inside its range (by ``margin``); the largest sum (−inf if none)."""
+    import itertools
+
+    best = -math.inf
+    for choice in itertools.product(*blocks):
+        ok = all(lo + margin <= choice[b][0] - shifts[b] - choice[b + 1][0] <= hi - margin
+                 for b, (lo, hi) in enumerate(ranges))
+        if ok:
+            best = max(best, sum(v for _, v in choice))
+    return best
+
+
+def _frozen_vehicle(load, values):
+    """The vehicle or train with every searched value fixed at ``values``."""
+    values = list(values)
+    if isinstance(load, trundle.Vehicle):
+        spacings = [values.pop(0) if isinstance(s, tuple) else s for s in load.spacings]
+        return trundle.Vehicle(loads=load.loads, spacings=spacings, reversible=load.reversible,
+                               confined=load.confined)
+    vehicles, gaps = [], []
+    for i, v in enumerate(load.vehicles):
+        n = len(v.parameters())
+        vehicles.append(_frozen_vehicle(v, values[:n]))
+        values = values[n:]
+        if i < len(load.gaps):
+            gap = load.gaps[i]
+            gaps.append(values.pop(0) if isinstance(gap, tuple) else gap)
+    return trundle.Train(vehicles=vehicles, gaps=gaps, ahead=load.ahead, behind=load.behind,
+                         reversible=load.reversible, confined=load.confined)
+
+
+def fixed_spacing_extreme(beam, load, values, section: float, kind: str = "moment",
+                          which: str = "max") -> float:
+    """trundle's exact fixed-spacing envelope of one effect at one section."""
+    e = trundle.envelope(beam, [_frozen_vehicle(load, values)], sections=[section],
+                         effects=(kind,))
+    return float((e.max(kind) if which == "max" else e.min(kind))[0])
+
+
+def dense_grid_search(beam, load, section: float, kind: str = "moment", which: str = "max",
+                      per_dimension: int = 41, refine: int = 3) -> float:
+    """Reference for a searched envelope: the exact fixed-spacing envelope on a fine grid of
+    the searched values (every grid point), then a local bounded search, one dimension at a
+    time, around the best few grid points. A lower bound of the true extreme."""
+    import itertools
+
+    params = load.parameters()
+    axes = [np.linspace(p.low, p.high, per_dimension) for p in params]
+    sign = 1.0 if which == "max" else -1.0
+    scored = []
+    for values in itertools.product(*axes):
+        scored.append((sign * fixed_spacing_extreme(beam, load, values, section, kind, which),
+                       values))
+    scored.sort(key=lambda item: -item[0])
+    best = scored[0][0]
+    for _, values in scored[:refine]:
+        values = list(values)
+        for k, p in enumerate(params):
+            step = (p.high - p.low) / (per_dimension - 1)
+
+            def objective(v: float, k: int = k, values: list = values) -> float:
+                trial = list(values)
+                trial[k] = v
+                return -sign * fixed_spacing_extreme(beam, load, trial, section, kind, which)
+
+            res = minimize_scalar(objective, bounds=(max(p.low, values[k] - step),
+                                                     min(p.high, values[k] + step)),
+                                  method="bounded", options={"xatol": 1e-9 * (p.high - p.low)})
+            if -res.fun > best:
+                best = -res.fun
+                values[k] = float(res.x)
+    return sign * best

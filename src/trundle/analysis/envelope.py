@@ -19,6 +19,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 from scipy.optimize import minimize_scalar
 
+from trundle.analysis.search import searched_extremes
 from trundle.core._repr import html_table, short
 from trundle.core.beam import Beam, ModelError, Spring
 from trundle.core.influence import Effect, line_pieces, piece_sign_intervals
@@ -34,8 +35,7 @@ from trundle.scan.engine import (
 
 FAMILIES = ("moment", "shear_left", "shear_right", "deflection", "reaction", "support_moment")
 REQUESTABLE = ("moment", "shear", "deflection", "reaction", "support_moment")
-GRID_BUDGET = 33  # coarse-grid evaluations per case before refinement
-REFINE_WITHIN = 0.05  # refine cases whose grid extreme is within 5 % of the line's best
+GRID_BUDGET = 33  # grid evaluations per case when the search is not asked for (refine=False)
 
 
 @dataclass(frozen=True)
@@ -242,69 +242,23 @@ def _moving_grid(batch: LineBatch, case: LoadCase, case_index: int,
     return result
 
 
-_INVERSE_GOLDEN = (np.sqrt(5.0) - 1.0) / 2.0
-
-
-def _refine(batch: LineBatch, case: LoadCase, result: _CaseResult,
-            arrangements: dict[int, _Arrangement], tasks: list[NDArray[np.int64]]) -> None:
-    """Golden-section search of each searched dimension around each line's best grid value,
-    in its governing direction; ``tasks[w]`` lists the lines to refine for the max (w = 0)
-    and the min (w = 1). All tasks of a direction advance in lockstep, one kernel call per
-    step."""
+def _searched_case(batch: LineBatch, case: LoadCase, case_index: int,
+                   arrangements: dict[int, _Arrangement]) -> _CaseResult:
+    """Every line's exact extremes over every position and every searched value, both
+    directions (``analysis.search``: no grid, no assumption of one peak)."""
     params = case.load.parameters()
-    if not params or not any(t.size for t in tasks):
-        return
-    per = max(2, int(round(GRID_BUDGET ** (1.0 / len(params)))))
-    for _sweep in range(1 if len(params) == 1 else 2):
-        for k, p in enumerate(params):
-            step = (p.high - p.low) / (per - 1)
-            # the searched value to 1e-8 of its range: the extreme is then within about
-            # 1e-8 of itself even where it has a kink in the searched value
-            tolerance = 1e-8 * (p.high - p.low)
-            for direction, arr in arrangements.items():
-                which = np.concatenate([np.full(t.size, w) for w, t in enumerate(tasks)])
-                lines = np.concatenate(tasks)
-                keep = result.direction[which, lines] == direction
-                which, lines = which[keep], lines[keep]
-                if lines.size == 0:
-                    continue
-                base = result.searched[which, lines].copy()
-                a = np.maximum(p.low, base[:, k] - step)
-                b = np.minimum(p.high, base[:, k] + step)
-                col = np.where(which == 0, 0, 3)
-                sign = np.where(which == 0, 1.0, -1.0)
-                rows = np.arange(lines.size)
-
-                def evaluate(points: NDArray[np.float64], base=base, arr=arr, k=k,
-                             direction=direction, which=which, lines=lines, col=col,
-                             sign=sign, rows=rows) -> NDArray[np.float64]:
-                    values = base.copy()
-                    values[:, k] = points
-                    r = scan_arrangements(batch, arr.weights, arr.kinds, arr.offsets(values),
-                                          lines, arr.constant, arr.confined)
-                    value, xi, side = r[rows, col], r[rows, col + 1], r[rows, col + 2]
-                    for w in (0, 1):
-                        mine = which == w
-                        result.offer(w, lines[mine], value[mine], xi[mine],
-                                     side[mine].astype(np.int64), direction, values[mine])
-                    return sign * np.where(np.isnan(xi), 0.0, value)
-
-                width = float((b - a).max())
-                if width <= tolerance:
-                    continue
-                n_iter = int(np.ceil(np.log(tolerance / width) / np.log(_INVERSE_GOLDEN)))
-                c = b - _INVERSE_GOLDEN * (b - a)
-                d = a + _INVERSE_GOLDEN * (b - a)
-                fc, fd = evaluate(c), evaluate(d)
-                for _ in range(n_iter):
-                    left = fc > fd  # the maximum lies in [a, d]
-                    a = np.where(left, a, c)
-                    b = np.where(left, d, b)
-                    c_new = np.where(left, b - _INVERSE_GOLDEN * (b - a), d)
-                    d_new = np.where(left, c, a + _INVERSE_GOLDEN * (b - a))
-                    fresh = evaluate(np.where(left, c_new, d_new))
-                    fc, fd = np.where(left, fresh, fd), np.where(left, fc, fresh)
-                    c, d = c_new, d_new
+    low = np.array([p.low for p in params], dtype=float)
+    high = np.array([p.high for p in params], dtype=float)
+    result = _CaseResult(case_index, batch.n_lines, len(params))
+    lines = np.arange(batch.n_lines)
+    for direction, arr in arrangements.items():
+        found = searched_extremes(batch, arr.weights, arr.kinds, arr.constant, arr.base,
+                                  arr.slope, low, high, arr.confined,
+                                  what=f"load case {case.name!r}")
+        for w in (0, 1):
+            result.offer(w, lines, found.value[w], found.xi[w], found.side[w], direction,
+                         found.searched[w])
+    return result
 
 
 def _uniform_case(batch: LineBatch, case: LoadCase, case_index: int,
@@ -755,14 +709,12 @@ def absolute_extremes(beam: Beam, case: LoadCase, span: int, kind: str = "moment
 def _together(batch: LineBatch, together: Together, c: int, single: Any,
               index: dict[str, NDArray[np.int64]], refine: bool) -> _CaseResult:
     """Loads acting together: each part at its own worst, so the extreme of the sum is the
-    sum of the parts' extremes (each counts the empty beam). Parts are refined on their own
-    and their deflections taken without their own load factors before they are added."""
+    sum of the parts' extremes (each counts the empty beam). Each part's searched values are
+    searched on their own (in ``single``) and its deflections taken without its own load
+    factor before the parts are added."""
     result = _CaseResult(c, batch.n_lines)
     for k, part in enumerate(together.parts):
-        part_result, arrangements = single(part, k)
-        if arrangements is not None and refine:
-            tasks = [np.flatnonzero(~np.isnan(part_result.xi[w])) for w in (0, 1)]
-            _refine(batch, part, part_result, arrangements, tasks)
+        part_result, _arrangements = single(part, k)
         part_result.value[:, index["deflection"]] /= part.load_factor
         result.parts.append(part_result)
         result.value += part_result.value
@@ -780,8 +732,9 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
     loads : Vehicle, Train, UniformLoad or LoadCase items
     sections : x of the sections [length]; default the tenth points of every span
     effects : families to compute; "shear" gives both sides of every section
-    refine : search spacings and gaps beyond their coarse grid (default); without it the
-        values are those of the best grid point, lower bounds of the exact extremes
+    refine : search spacings and gaps exactly over their whole ranges (default; see
+        ``analysis.search``); without it the values are those of the best point of a coarse
+        grid of the searched values, lower bounds of the exact extremes
     """
     cases = tuple(as_case(item) for item in loads)
     if not cases:
@@ -796,37 +749,24 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
                  for p in (c.parts if isinstance(c, Together) else (c,)))
     ordinate_extremes = _lines_memo(batch, "ordinate extremes") if placed else None
     results: list[_CaseResult] = []
-    moving: list[tuple[LoadCase, _CaseResult, dict[int, _Arrangement]]] = []
 
     def single(case: LoadCase, c: int) -> tuple[_CaseResult, dict | None]:
         if isinstance(case.load, UniformLoad):
             return _uniform_case(batch, case, c, ordinate_extremes, beam), None
         arrangements = _arrangements(case)
+        if refine and case.load.parameters():
+            return _searched_case(batch, case, c, arrangements), arrangements
         return _moving_grid(batch, case, c, arrangements), arrangements
 
     for c, case in enumerate(cases):
         if isinstance(case, Together):
             results.append(_together(batch, case, c, single, index, refine))
             continue
-        result, arrangements = single(case, c)
-        results.append(result)
-        if arrangements is not None:
-            moving.append((case, result, arrangements))
+        results.append(single(case, c)[0])
     # deflection stays at service level, without the strength load factor of each case
     service = np.ones((len(cases), n))
     for c, case in enumerate(cases):
         service[c, index["deflection"]] = 1.0 / case.load_factor
-    # refine searched dimensions where a case comes close to governing on the grid
-    stacked = np.array([r.value for r in results]) * service[:, None, :]  # (n_cases, 2, n)
-    best = np.stack([stacked[:, 0].max(axis=0), stacked[:, 1].min(axis=0)])
-    for case, result, arrangements in moving if refine else ():
-        c = results.index(result)
-        tasks = []
-        for w in (0, 1):
-            close = np.abs(result.value[w] * service[c]) >= (1 - REFINE_WITHIN) * np.abs(best[w])
-            close &= ~np.isnan(result.xi[w])
-            tasks.append(np.flatnonzero(close))
-        _refine(batch, case, result, arrangements, tasks)
     for c, result in enumerate(results):
         result.value *= service[c]
     stacked = np.array([r.value for r in results])

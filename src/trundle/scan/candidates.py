@@ -1,0 +1,270 @@
+"""Compiled kernels of the exact search over searched spacings and gaps.
+
+A moving load whose spacings and gaps are searched splits into rigid *sub-groups* (the loads
+that move together whatever the searched values are), chained by *links* (η_g − η_{g+1}, the
+sum of the searched values between them, free in an interval). At a maximiser every link is
+at its lower bound, at its upper bound or strictly inside; the sub-groups joined by links at a
+bound form rigid *blocks*, and each block then stands where its own rigid response has a local
+maximum: at a break (taken as either one-sided limit), at a critical point inside a piece, or
+at an end of the interval it may stand in (a confined crane). ``block_candidates`` lists those
+positions for one block on one line (the same closed forms as ``kernels._scan_chunk``, every
+candidate kept instead of the best); ``search_lines`` solves, for every assignment of the links
+to {lower bound, upper bound, free}, the chain of blocks by dynamic programming over their
+candidates (a sliding-window maximum per free link), and keeps the best. The result is the
+global extreme over every position and every searched value, exact to rounding.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from numba import njit
+
+from trundle.scan._config import JIT_OPTIONS
+from trundle.scan.kernels import (
+    KIND_POINT,
+    _critical_points,
+    _horner,
+    _locate,
+    _shift_add,
+)
+
+FREE = 2  # link code: strictly inside its range (0: at its lower bound, 1: at its upper)
+
+
+def candidate_capacity(n_terms: int, n_pieces: int) -> int:
+    """Most candidates one block of ``n_terms`` terms can give on a line of ``n_pieces``
+    pieces: every piece of its response gives both ends and at most three critical points,
+    plus the two stretches off the beam."""
+    return (n_terms * (n_pieces + 1) + 1) * 5 + 2
+
+
+@njit(**JIT_OPTIONS)
+def block_candidates(knots, m, coef, running, end_value, weight, kind, offset, degree,
+                     confined, pos, val, side, start):
+    """Every position where a rigid block can stand at a local extreme of its own response
+    on one line, written from index ``start`` of ``pos``/``val``/``side``; returns the index
+    after the last one written.
+
+    The block's terms (``weight``, ``kind``, ``offset`` behind the block's reference point, as
+    in ``kernels._scan_chunk``) read line pieces ``knots[:m + 1]``, ``coef`` (cubics, highest
+    power first) and ``running`` (quartics of ∫₀ˣ IL), ``end_value`` = ∫₀ᴸ IL. Candidates: both
+    ends of every piece of the response (side +1: the limit from above at the piece's start;
+    −1: from below at its end), every interior critical point (side 0) and, unless
+    ``confined``, the two stretches with the block wholly off the beam (at the first break
+    from below and at the last from above). A ``confined`` block with concentrated loads
+    stands only with every one of them on the beam; it gives nothing if it cannot.
+    """
+    n_terms = weight.shape[0]
+    length = knots[m]
+    lo = offset[0]
+    hi = offset[0]
+    for t in range(1, n_terms):
+        lo = min(lo, offset[t])
+        hi = max(hi, offset[t])
+    hi += length
+    restricted = False
+    if confined:
+        for t in range(n_terms):
+            if kind[t] == KIND_POINT:
+                if not restricted:
+                    lo, hi, restricted = offset[t], length + offset[t], True
+                else:
+                    lo = max(lo, offset[t])
+                    hi = min(hi, length + offset[t])
+    k = start
+    if restricted and not lo < hi:
+        return k
+    piece = np.empty(n_terms, dtype=np.int64)
+    upcoming = np.empty(n_terms)
+    scratch = np.empty(23)
+    poly = scratch[0:5]
+    crit = scratch[5:8]
+    work = scratch[8:13]
+    roots = scratch[13:23]
+    if not restricted:
+        pos[k], val[k], side[k] = lo, 0.0, -1.0  # every term still left of the beam
+        k += 1
+    xi = lo
+    for t in range(n_terms):
+        p = _locate(knots[:m + 1], xi - offset[t])
+        piece[t] = p
+        upcoming[t] = (offset[t] + knots[0] if p < 0 else
+                       offset[t] + knots[p + 1] if p < m else np.inf)
+    while xi < hi:
+        nxt = hi
+        for t in range(n_terms):
+            if upcoming[t] < nxt:
+                nxt = upcoming[t]
+        width = nxt - xi
+        if width > 0.0:
+            for i in range(5):
+                poly[i] = 0.0
+            for t in range(n_terms):
+                e = piece[t]
+                if e < 0:
+                    continue
+                if kind[t] == KIND_POINT:
+                    if e < m:
+                        _shift_add(poly, coef[e], 4, xi - offset[t] - knots[e], weight[t], work)
+                elif e < m:
+                    _shift_add(poly, running[e], 5, xi - offset[t] - knots[e], weight[t], work)
+                else:
+                    poly[0] += weight[t] * end_value
+            pos[k], val[k], side[k] = xi, poly[0], 1.0
+            k += 1
+            n_crit = _critical_points(poly, degree, width, crit, roots)
+            for c in range(n_crit):
+                pos[k], val[k], side[k] = xi + crit[c], _horner(poly, degree, crit[c]), 0.0
+                k += 1
+            pos[k], val[k], side[k] = nxt, _horner(poly, degree, width), -1.0
+            k += 1
+        for t in range(n_terms):
+            if upcoming[t] <= nxt:
+                p = piece[t] + 1 if piece[t] < m else m
+                piece[t] = p
+                upcoming[t] = offset[t] + knots[p + 1] if p < m else np.inf
+        xi = nxt
+    if not restricted:
+        beyond = 0.0  # every term right of the beam: uniform loads read all of ∫₀ᴸ IL
+        for t in range(n_terms):
+            if kind[t] != KIND_POINT:
+                beyond += weight[t] * end_value
+        pos[k], val[k], side[k] = hi, beyond, 1.0
+        k += 1
+    return k
+
+
+@njit(**JIT_OPTIONS)
+def _sort_block(pos, val, side, start, stop):
+    """Candidates start … stop − 1 in increasing position (the sweep emits them nearly so)."""
+    order = np.argsort(pos[start:stop], kind="mergesort")
+    p = pos[start:stop][order]
+    v = val[start:stop][order]
+    s = side[start:stop][order]
+    pos[start:stop] = p
+    val[start:stop] = v
+    side[start:stop] = s
+
+
+@njit(**JIT_OPTIONS)
+def chain_maximum(pos, signed, block_start, blocks, n_blocks, shift, link_of, link_lo,
+                  link_hi, margin, best, back, window):
+    """Dynamic programming over a chain of blocks: the largest Σ signed(c_b) over one
+    candidate c_b per block such that each free link between consecutive blocks stays
+    strictly inside its range (by ``margin``).
+
+    ``blocks[:n_blocks]`` are block ids; block b's candidates are ``block_start[b]`` …
+    ``block_start[b + 1]`` − 1, sorted by position. Between blocks p and q (consecutive) the
+    link ``link_of[p]`` = pos_p − ``shift[p]`` − pos_q must lie in (``link_lo``, ``link_hi``).
+    ``best`` and ``back`` (the candidate of the previous block chosen) are written at the
+    blocks' own candidate slots; ``window`` is scratch. Returns (value, candidate of the last
+    block), value −inf if no choice satisfies the links.
+    """
+    first = blocks[0]
+    for c in range(block_start[first], block_start[first + 1]):
+        best[c] = signed[c]
+        back[c] = -1
+    for b in range(1, n_blocks):
+        p = blocks[b - 1]
+        q = blocks[b]
+        p0, p1 = block_start[p], block_start[p + 1]
+        j = link_of[p]
+        low = shift[p] + link_lo[j] + margin
+        high = shift[p] + link_hi[j] - margin
+        head = 0
+        tail = 0  # window[head:tail]: candidates of p, best values decreasing
+        right = p0
+        for c in range(block_start[q], block_start[q + 1]):
+            wl = pos[c] + low
+            wr = pos[c] + high
+            while right < p1 and pos[right] <= wr:
+                while tail > head and best[window[tail - 1]] <= best[right]:
+                    tail -= 1
+                window[tail] = right
+                tail += 1
+                right += 1
+            while tail > head and pos[window[head]] < wl:
+                head += 1
+            if tail > head and best[window[head]] > -np.inf:
+                best[c] = signed[c] + best[window[head]]
+                back[c] = window[head]
+            else:
+                best[c] = -np.inf
+                back[c] = -1
+    last = blocks[n_blocks - 1]
+    value = -np.inf
+    chosen = -1
+    for c in range(block_start[last], block_start[last + 1]):
+        if best[c] > value:
+            value = best[c]
+            chosen = c
+    return value, chosen
+
+
+@njit(**JIT_OPTIONS)
+def search_lines(knots, n_pieces, coef, running, running_end, lines, block_term_start,
+                 term_weight, term_kind, term_offset, block_degree, block_shift, block_last,
+                 confined, assign_blocks, assign_count, assign_codes, link_lo, link_hi,
+                 margin, capacity):
+    """The global max and min over positions and searched links of each row's line.
+
+    Returns (values (n_rows, 2): max and min of the sum of the blocks' responses (without
+    the arrangement's constant part); links (n_rows, 2, n_links): the link values at each
+    extreme). A value of ∓inf means no arrangement can stand (a confined load too long).
+    """
+    n_rows = lines.shape[0]
+    n_blocks = block_term_start.shape[0] - 1
+    n_links = link_lo.shape[0]
+    n_assign = assign_blocks.shape[0]
+    values = np.empty((n_rows, 2))
+    links = np.zeros((n_rows, 2, n_links))
+    pos = np.empty(capacity)
+    val = np.empty(capacity)
+    side = np.empty(capacity)
+    signed = np.empty(capacity)
+    best = np.empty(capacity)
+    back = np.empty(capacity, dtype=np.int64)
+    window = np.empty(capacity, dtype=np.int64)
+    block_start = np.empty(n_blocks + 1, dtype=np.int64)
+    picked = np.empty(n_links + 1, dtype=np.int64)
+    for row in range(n_rows):
+        line = lines[row]
+        m = n_pieces[line]
+        k = 0
+        for b in range(n_blocks):
+            block_start[b] = k
+            t0, t1 = block_term_start[b], block_term_start[b + 1]
+            k1 = block_candidates(knots[line], m, coef[line], running[line],
+                                  running_end[line], term_weight[t0:t1], term_kind[t0:t1],
+                                  term_offset[t0:t1], block_degree[b], confined, pos, val,
+                                  side, k)
+            _sort_block(pos, val, side, k, k1)
+            k = k1
+        block_start[n_blocks] = k
+        for w in range(2):
+            sign = 1.0 if w == 0 else -1.0
+            for c in range(k):
+                signed[c] = sign * val[c]
+            top = -np.inf
+            for a in range(n_assign):
+                nb = assign_count[a]
+                blocks = assign_blocks[a]
+                value, chosen = chain_maximum(pos, signed, block_start, blocks, nb,
+                                              block_shift, block_last, link_lo, link_hi,
+                                              margin, best, back, window)
+                if value > top:
+                    top = value
+                    # walk back from the last block to the first
+                    c = chosen
+                    for b in range(nb - 1, -1, -1):
+                        picked[b] = c
+                        c = back[c]
+                    for j in range(n_links):
+                        code = assign_codes[a, j]
+                        links[row, w, j] = link_lo[j] if code == 0 else link_hi[j]
+                    for b in range(nb - 1):
+                        p = blocks[b]
+                        j = block_last[p]
+                        links[row, w, j] = pos[picked[b]] - block_shift[p] - pos[picked[b + 1]]
+            values[row, w] = sign * top
+    return values, links
