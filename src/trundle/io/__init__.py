@@ -1,0 +1,1 @@
+"""Input and output at the edges: safe reading of model files, limits, output sets."""
