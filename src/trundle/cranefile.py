@@ -28,6 +28,7 @@ from trundle.crane_runway import (
     SERVICE_CLASSES,
     RunwaySpec,
 )
+from trundle.io.unit_guard import guard_unit_text
 from trundle.loads.cranes import OPERATIONS, Crane
 from trundle.model import ModelError
 from trundle.modelfile import _MISSING, Model, ModelFileError, Reader, register_table
@@ -245,7 +246,9 @@ def _force_or_mass(value: Any, key: str, reader: Reader) -> float:
     if isinstance(value, bool) or not isinstance(value, int | float | str):
         reader.expected(key, expected, value)
     number: float | None = None
-    if isinstance(value, str) and not _is_number(value):
+    # guard_unit_text: never hand pint "2**(2**40) t" (the force reader words the refusal)
+    if isinstance(value, str) and not _is_number(value) and \
+            guard_unit_text(value.strip()) is None:
         ureg = registry()
         try:
             parsed = ureg.Quantity(value.strip())
@@ -253,7 +256,10 @@ def _force_or_mass(value: Any, key: str, reader: Reader) -> float:
             parsed = None
         if parsed is not None and parsed.dimensionality == ureg.Quantity(1, "kg").dimensionality:
             weight = parsed * ureg.Quantity(STANDARD_GRAVITY)
-            number = float(weight.to(units.force).magnitude)
+            try:
+                number = float(weight.to(units.force).magnitude)
+            except (OverflowError, ValueError, ZeroDivisionError):
+                number = math.nan  # refused below as not finite
     if number is None:
         try:
             number = parse_quantity(value, "force", units)
@@ -394,6 +400,9 @@ def _section_modulus(value: Any, key: str, reader: Reader) -> float:
         reader.expected(key, expected, value)
     ureg = registry()
     target = f"{units.length}**3"
+    refused = guard_unit_text(value.strip())
+    if refused is not None:
+        reader.fail(key, f"expected {expected}, found a value that cannot be read ({refused})")
     try:
         parsed = ureg.Quantity(value.strip())
     except Exception:  # pint's parser raises many kinds (undefined unit, syntax, …)
@@ -402,7 +411,10 @@ def _section_modulus(value: Any, key: str, reader: Reader) -> float:
     if parsed.dimensionality != ureg.Quantity(1, target).dimensionality:
         reader.fail(key, f"expected {expected}, found {show_value(value)}, which is not a "
                     "length cubed")
-    number = float(parsed.to(target).magnitude)
+    try:
+        number = float(parsed.to(target).magnitude)
+    except (OverflowError, ValueError, ZeroDivisionError):
+        number = math.nan  # "1e400 cm^3": refused below as not finite
     if not (math.isfinite(number) and number > 0):
         reader.expected(key, f"{expected} greater than zero", value)
     return number
@@ -433,7 +445,7 @@ def given_text(value: Any) -> str:
 
 def mass_given(value: Any) -> bool:
     """Whether ``value`` was written as a mass (and so converted with standard gravity)."""
-    if not isinstance(value, str) or _is_number(value):
+    if not isinstance(value, str) or _is_number(value) or guard_unit_text(value.strip()):
         return False
     ureg = registry()
     try:
