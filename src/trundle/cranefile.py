@@ -147,6 +147,7 @@ def read_cranes(value: Any, reader: Reader) -> tuple[CraneEntry, ...]:
                         "and operation", value)
     if not value:
         reader.expected(CRANE_TABLE, "at least one [[crane]] table", value)
+    reader.limit(CRANE_TABLE, "cranes", value)
     if RUNWAY_TABLE not in _raw(reader):
         reader.expected(RUNWAY_TABLE, 'a [runway] table with at least service_class (e.g. '
                         '[runway] service_class = "C") to go with the [[crane]] tables',
@@ -189,6 +190,7 @@ def _read_crane(item: dict[str, Any], key: str, reader: Reader, several: bool) -
     if not items:
         reader.expected(f"{key}.wheel_spacings", "at least one spacing (two wheels per rail "
                         "or more)", items)
+    reader.limit(f"{key}.wheel_spacings", "wheels", items)
     spacings = tuple(reader.positive(s, f"{key}.wheel_spacings[{j}]", "length")
                      for j, s in enumerate(items))
     buffer_length = None

@@ -284,7 +284,8 @@ def parse_toml(text: str, shown: str, key: str = "file") -> dict[str, Any]:
 def resolve_use(text: str, model_folder: Path, library_folder: Path | None = None,
                 allowed: Iterable[str | os.PathLike[str]] = (), shown: str = "<model>",
                 key: str = "use") -> Path:
-    """The load-model file a ``use = "text"`` names, if it may be read.
+    """The load-model file a ``use = "text"`` names, if it may be read (a relative path is
+    returned joined to ``model_folder``, unresolved, as the user sees it).
 
     Relative paths are taken from ``model_folder``; the resolved file (symbolic links
     followed) must lie inside ``model_folder``'s tree, the library folder or one of the
@@ -313,14 +314,14 @@ def resolve_use(text: str, model_folder: Path, library_folder: Path | None = Non
             raise SourceError(shown, key, f'expected a path relative to the model file\'s '
                               f'folder, found the absolute path "{written}" ({hint})')
         return resolved
-    resolved = (model_folder / candidate).resolve()
+    joined = model_folder / candidate
     inside = [model_folder.resolve(), *roots]
     if library_folder is not None:
         inside.append(library_folder.resolve())
-    if not any(_inside(resolved, root) for root in inside):
+    if not any(_inside(joined.resolve(), root) for root in inside):
         raise SourceError(shown, key, f'expected a path inside the model file\'s folder, found '
                           f'"{written}", which leads outside it ({hint})')
-    return resolved
+    return joined  # as the user sees it (messages and reports show this path)
 
 
 def _inside(path: Path, root: Path) -> bool:
