@@ -20,6 +20,7 @@ from trundle import __version__
 from trundle._io import write_all_atomic
 from trundle.cranefile import cranes_of
 from trundle.influence import Effect, InfluenceSet
+from trundle.io.output_set import OutputSetError, check_out_option
 from trundle.loadfile import loads_of
 from trundle.model import Beam, ModelError, Spring
 from trundle.modelfile import Model, ModelFileError, load_model
@@ -84,6 +85,16 @@ def _console() -> Console:
     interactive = sys.stdout.isatty()
     return Console(highlight=False, markup=False, width=None if interactive else 140,
                    soft_wrap=False)
+
+
+def _out_folder(value: str | None) -> Path | None:
+    """The --out folder; a blank name is refused (it would mean the current folder)."""
+    if value is None:
+        return None
+    try:
+        return check_out_option(value)
+    except OutputSetError as error:
+        raise UserError(str(error)) from None
 
 
 def _load(model_file: str) -> Model:
@@ -178,7 +189,8 @@ def summary_command(model_file: str) -> None:
               show_default=True,
               help="Shear just left or right of the section; auto gives both sides at "
                    "interior supports (and both rotations at hinges).")
-@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False, path_type=Path),
+@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False),
+              callback=lambda _context, _option, value: _out_folder(value),
               help="Write lines.csv, lines.json and a figure into this folder.")
 @click.option("--format", "figure_format", type=click.Choice(["png", "svg", "pdf"]),
               default="png", show_default=True, help="Figure format.")
@@ -339,7 +351,8 @@ def _write_outputs(model: Model, model_file: str, lines: InfluenceSet, out_dir: 
 
 @cli.command("envelope", epilog=_DESIGN_SAFETY_HELP)
 @click.argument("model_file", metavar="MODEL")
-@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False, path_type=Path),
+@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False),
+              callback=lambda _context, _option, value: _out_folder(value),
               help="Write envelope.csv, reactions.csv, envelope.json, the figures and "
                    "report.html into this folder.")
 @click.option("--format", "figure_format", type=click.Choice(["png", "svg"]), default="png",

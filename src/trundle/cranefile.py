@@ -28,6 +28,7 @@ from trundle.crane_runway import (
     SERVICE_CLASSES,
     RunwaySpec,
 )
+from trundle.io.limits import LimitError, check_finite
 from trundle.io.unit_guard import guard_unit_text
 from trundle.loads.cranes import OPERATIONS, Crane
 from trundle.model import ModelError
@@ -169,7 +170,7 @@ def read_cranes(value: Any, reader: Reader) -> tuple[CraneEntry, ...]:
 def _read_crane(item: dict[str, Any], key: str, reader: Reader, several: bool) -> CraneEntry:
     assert reader.units is not None
     table = reader.table(item, key, _CRANE_KEYS, required=_CRANE_REQUIRED)
-    name = reader.text(table["name"], f"{key}.name").strip()
+    name = reader.text_limit(f"{key}.name", reader.text(table["name"], f"{key}.name").strip())
     if not name:
         reader.expected(f"{key}.name", "a name that is not blank", table["name"])
     capacity = _force_or_mass(table["capacity"], f"{key}.capacity", reader)
@@ -273,7 +274,10 @@ def _force_or_mass(value: Any, key: str, reader: Reader) -> float:
             reader.fail(key, f"expected {expected}, {found}{reason}")
     if not (math.isfinite(number) and number >= 0):
         reader.expected(key, f"{expected} of zero or more", value)
-    return number
+    try:
+        return check_finite(key, number, "a force or a mass")
+    except LimitError as error:
+        reader.fail(key, error.detail)
 
 
 _MASS_EXAMPLE = {"SI": "20 t", "US": "15 ton"}
@@ -419,7 +423,10 @@ def _section_modulus(value: Any, key: str, reader: Reader) -> float:
         number = math.nan  # "1e400 cm^3": refused below as not finite
     if not (math.isfinite(number) and number > 0):
         reader.expected(key, f"{expected} greater than zero", value)
-    return number
+    try:
+        return check_finite(key, number, "a section modulus")
+    except LimitError as error:
+        reader.fail(key, error.detail)
 
 
 def _cycles(value: Any, key: str, reader: Reader) -> float:

@@ -358,7 +358,7 @@ def _owner_name(key: str) -> str:
 def _nonblank(name: str, key: str, reader: Reader) -> str:
     if not name.strip():
         reader.expected(key, "a name that is not blank", name)
-    return name.strip()
+    return reader.text_limit(key, name.strip())
 
 
 def _definition(kind: str, table: dict[str, Any], key: str, reader: Reader, name: str,

@@ -25,7 +25,13 @@ from typing import Any, NoReturn
 import numpy as np
 from numpy.typing import NDArray
 
-from trundle.io.limits import LimitError, check_count, check_finite, check_text
+from trundle.io.limits import (
+    LimitError,
+    check_count,
+    check_finite,
+    check_span_ratio,
+    check_text,
+)
 from trundle.io.source import SourceError, parse_toml, read_source
 from trundle.model import SUPPORT_KINDS, Beam, ModelError, Spring
 from trundle.units import SYSTEMS, UnitError, UnitSystem, parse_quantity, show_value
@@ -323,6 +329,10 @@ def _read_beam(value: Any, reader: Reader) -> tuple[Beam, tuple[str, ...]]:
         reader.expected("beam.spans", "at least one span length", spans_value)
     reader.limit("beam.spans", "spans", spans_value)
     spans = [reader.positive(s, f"beam.spans[{i}]", "length") for i, s in enumerate(spans_value)]
+    try:  # a ratio of 1e9 between spans leaves the stiffness matrix meaningless
+        check_span_ratio("beam.spans", spans)
+    except LimitError as error:
+        reader.fail(error.key, error.detail)
     length = float(sum(spans))
 
     supports = _read_supports(table["supports"], len(spans), reader)
