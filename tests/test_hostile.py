@@ -55,7 +55,6 @@ XFAIL: dict[str, str] = {
     "nul_escape_in_title": _PHASE2 + "terminal and CSV text through safe_text",
     "bell_backspace_in_name": _PHASE2 + "terminal and CSV text through safe_text",
     "bidi_override_in_name": _PHASE2 + "terminal and CSV text through safe_text",
-    "cr_in_title": _PHASE2 + "terminal and CSV text through safe_text",
 }
 
 FORMULA = ("=", "+", "-", "@")
