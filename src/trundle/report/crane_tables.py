@@ -46,6 +46,7 @@ from trundle.report.envelope_tables import (
     _position,
     extreme_json,
 )
+from trundle.report.safe_text import csv_row
 from trundle.units import UnitSystem
 
 # ------------------------------------------------------------------------------------------
@@ -494,7 +495,7 @@ def _csv(header: list[str], rows: list[list[str]]) -> str:
     buffer = io.StringIO()
     writer = csv.writer(buffer, lineterminator="\n")
     writer.writerow(header)
-    writer.writerows(rows)
+    writer.writerows(csv_row(row) for row in rows)  # crane names: no formulas, no controls
     return buffer.getvalue()
 
 

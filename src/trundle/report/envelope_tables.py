@@ -51,6 +51,7 @@ from trundle.report.envelope_data import (
     support_extremes,
     support_kind_words,
 )
+from trundle.report.safe_text import csv_row
 from trundle.units import UnitSystem
 
 CAUTIONS = (CAUTION, LOAD_MODEL_CAUTION)
@@ -464,7 +465,7 @@ def envelope_csv(results: EnvelopeResults) -> str:
             if family == "moment":
                 left, right = concurrent[which]
                 row += [_number(left[i]), _number(right[i])]
-        writer.writerow(row)
+        writer.writerow(csv_row(row))  # names from the model file: no formulas, no controls
     return buffer.getvalue()
 
 
@@ -491,7 +492,7 @@ def reactions_csv(results: EnvelopeResults) -> str:
             for which in ("max", "min"):
                 e = extremes[(family, which)].get(k)
                 row += _extreme_cells(e, False) if e is not None else [""] * 6
-        writer.writerow(row)
+        writer.writerow(csv_row(row))  # names from the model file: no formulas, no controls
     return buffer.getvalue()
 
 
