@@ -22,6 +22,7 @@ from trundle.core.influence import Effect, InfluenceSet
 from trundle.io.cranes import cranes_of, runway_spec
 from trundle.io.loads import loads_of
 from trundle.io.modelfile import Model, ModelFileError, load_model
+from trundle.io.output_set import OutputSetError, check_out_option
 from trundle.io.outputs import write_output_set
 from trundle.io.units import UnitError, parse_quantity
 from trundle.report import CAUTION, LOAD_MODEL_CAUTION
@@ -84,6 +85,16 @@ def _console() -> Console:
     interactive = sys.stdout.isatty()
     return Console(highlight=False, markup=False, width=None if interactive else 140,
                    soft_wrap=False)
+
+
+def _out_folder(value: str | None) -> Path | None:
+    """The --out folder; a blank name is refused (it would mean the current folder)."""
+    if value is None:
+        return None
+    try:
+        return check_out_option(value)
+    except OutputSetError as error:
+        raise UserError(str(error)) from None
 
 
 def _load(model_file: str) -> Model:
@@ -178,7 +189,8 @@ def summary_command(model_file: str) -> None:
               show_default=True,
               help="Shear just left or right of the section; auto gives both sides at "
                    "interior supports (and both rotations at hinges).")
-@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False, path_type=Path),
+@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False),
+              callback=lambda _context, _option, value: _out_folder(value),
               help="Write lines.csv, lines.json and a figure into this folder; files of an "
                    "earlier trundle run there that this run does not write are removed.")
 @click.option("--format", "figure_format", type=click.Choice(["png", "svg", "pdf"]),
@@ -343,7 +355,8 @@ def _write_outputs(model: Model, model_file: str, lines: InfluenceSet, out_dir: 
 
 @cli.command("envelope", epilog=_DESIGN_SAFETY_HELP)
 @click.argument("model_file", metavar="MODEL")
-@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False, path_type=Path),
+@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False),
+              callback=lambda _context, _option, value: _out_folder(value),
               help="Write envelope.csv, reactions.csv, envelope.json, the figures and "
                    "report.html into this folder; files of an earlier trundle run there "
                    "that this run does not write again are removed.")

@@ -26,6 +26,14 @@ import numpy as np
 from numpy.typing import NDArray
 
 from trundle.core.beam import SUPPORT_KINDS, Beam, ModelError, Spring
+from trundle.io.limits import (
+    LimitError,
+    check_count,
+    check_finite,
+    check_span_ratio,
+    check_text,
+)
+from trundle.io.source import SourceError, parse_toml, read_source
 from trundle.io.units import SYSTEMS, UnitError, UnitSystem, parse_quantity, show_value
 
 
@@ -169,9 +177,26 @@ class Reader:
         if value is _MISSING:
             self.fail(key, "expected this key, found nothing (it is required)")
         try:
-            return parse_quantity(value, quantity, self.units)
+            number = parse_quantity(value, quantity, self.units)
+            # 1e308 would overflow to inf or vanish to 0 in the analysis: refused here
+            return check_finite(key, number, f"a {quantity}")
         except UnitError as error:
             self.fail(key, str(error))
+        except LimitError as error:
+            self.fail(key, error.detail)
+
+    def limit(self, key: str, name: str, found: Any) -> int:
+        """Refuse more than the documented number of ``name`` (trundle.io.limits)."""
+        try:
+            return check_count(key, name, found)
+        except LimitError as error:
+            self.fail(key, error.detail)
+
+    def text_limit(self, key: str, text: str, name: str = "text length") -> str:
+        try:
+            return check_text(key, text, name)
+        except LimitError as error:
+            self.fail(key, error.detail)
 
     def positive(self, value: Any, key: str, quantity: str) -> float:
         number = self.quantity(value, key, quantity)
@@ -239,29 +264,21 @@ def load_model(path: str | Path) -> Model:
         With a one-line message ``<file>: <key>: expected …, found …``.
     """
     name = str(path)
-    try:
-        data = Path(path).read_bytes()
-    except FileNotFoundError:
-        raise ModelFileError(name, "file", "expected an existing model file, found none") \
-            from None
-    except IsADirectoryError:
-        raise ModelFileError(name, "file", "expected a model file, found a directory") from None
-    except OSError as error:
-        raise ModelFileError(name, "file", f"cannot be read ({error.strerror})") from None
-    try:
-        text = data.decode("utf-8")
-    except UnicodeDecodeError as error:
-        raise ModelFileError(name, "file", f"expected UTF-8 text, found a byte that is not "
-                                           f"UTF-8 at offset {error.start}") from None
+    try:  # regular files only (never blocks on a FIFO), size-limited, UTF-8 (BOM accepted)
+        text = read_source(path, "model file").text
+    except SourceError as error:
+        raise ModelFileError(name, error.key, error.detail) from None
     return read_model(text, name, source=Path(path))
 
 
 def read_model(text: str, name: str = "<model>", source: Path | None = None) -> Model:
     """Read a model from TOML text; ``name`` is used in error messages."""
     try:
-        raw = tomllib.loads(text)
+        raw = parse_toml(text, name)  # nesting depth bounded before tomllib recurses
     except tomllib.TOMLDecodeError as error:
         raise _syntax_error(name, error) from None
+    except SourceError as error:
+        raise ModelFileError(name, error.key, error.detail) from None
     reader = Reader(name)
     reader.raw = raw
     for key in raw:
@@ -270,8 +287,10 @@ def read_model(text: str, name: str = "<model>", source: Path | None = None) -> 
                                                  what="top-level key"))
     title = reader.text(raw["title"], "title") if "title" in raw else (
         source.stem if source is not None else "untitled")
+    reader.text_limit("title", title)
     if "description" in raw:
-        reader.text(raw["description"], "description")
+        reader.text_limit("description", reader.text(raw["description"], "description"),
+                          "description length")
     if "units" not in raw:
         reader.expected("units", '"SI" (kN, m) or "US" (kip, ft)', _MISSING)
     units_text = raw["units"]
@@ -308,13 +327,19 @@ def _read_beam(value: Any, reader: Reader) -> tuple[Beam, tuple[str, ...]]:
                                '[7.5, "8 m", 7.5]')
     if not spans_value:
         reader.expected("beam.spans", "at least one span length", spans_value)
+    reader.limit("beam.spans", "spans", spans_value)
     spans = [reader.positive(s, f"beam.spans[{i}]", "length") for i, s in enumerate(spans_value)]
+    try:  # a ratio of 1e9 between spans leaves the stiffness matrix meaningless
+        check_span_ratio("beam.spans", spans)
+    except LimitError as error:
+        reader.fail(error.key, error.detail)
     length = float(sum(spans))
 
     supports = _read_supports(table["supports"], len(spans), reader)
 
     hinges_value = reader.array(table.get("hinges", []), "beam.hinges", "hinge positions",
                                 '[12.0, "30 m"]')
+    reader.limit("beam.hinges", "hinges", hinges_value)
     hinge_reader = Reader(reader.file, reader.units, length=length)
     hinges = [hinge_reader.position(h, f"beam.hinges[{i}]", interior=True)
               for i, h in enumerate(hinges_value)]
@@ -327,6 +352,7 @@ def _read_beam(value: Any, reader: Reader) -> tuple[Beam, tuple[str, ...]]:
     segments, given = _read_stiffness(table, length, reader)
     divisions = (reader.integer(table["haunch_divisions"], "beam.haunch_divisions", 1)
                  if "haunch_divisions" in table else 24)
+    reader.limit("beam.haunch_divisions", "haunch divisions", divisions)
     try:
         beam = Beam(spans=spans, EI=segments, supports=supports, hinges=hinges,
                     haunch_divisions=divisions)
@@ -388,6 +414,7 @@ def _read_stiffness(table: dict[str, Any], length: float, reader: Reader
                             items)
         if not items:
             reader.expected("beam.stiffness", "at least one [[beam.stiffness]] segment", items)
+        reader.limit("beam.stiffness", "stiffness segments", items)
         return _read_segments(items, table.get("E", _MISSING), length, reader)
     if "EI" in table:
         EI = reader.positive(table["EI"], "beam.EI", "flexural rigidity")
@@ -517,6 +544,7 @@ def _read_sections(value: Any, reader: Reader) -> NDArray[np.float64]:
             items = reader.array(at, "sections.at", "positions", '["tenth points", "3.2 m"]')
             if not items:
                 reader.expected("sections.at", "at least one position", items)
+            reader.limit("sections.at", "sections", items)
             for i, x in enumerate(items):
                 if isinstance(x, str) and _section_name(x) in _NAMED_SECTIONS:
                     points.extend(_named_sections(beam, _section_name(x)))
@@ -524,12 +552,16 @@ def _read_sections(value: Any, reader: Reader) -> NDArray[np.float64]:
                     points.append(reader.position(x, f"sections.at[{i}]"))
     if "every" in table:
         step = reader.positive(table["every"], "sections.every", "length")
+        # counted before any array is built: "1e-7 m" on a 30 m beam is 3e8 sections
+        reader.limit("sections.every", "sections", math.ceil(beam.length / step))
         ends = beam.support_positions
         for a, b in zip(ends[:-1], ends[1:], strict=True):
             count = max(1, math.ceil((b - a) / step - 1e-9))
             points.extend(a + np.arange(count) * step)
             points.append(b)
-    return _unique_sorted(np.asarray(points, dtype=float), beam.length)
+    found = _unique_sorted(np.asarray(points, dtype=float), beam.length)
+    reader.limit("sections", "sections", len(found))
+    return found
 
 
 def _section_name(text: str) -> str:

@@ -56,6 +56,7 @@ from trundle.report.format import fixed as _fixed
 from trundle.report.format import length as _length
 from trundle.report.format import number as _number
 from trundle.report.format import position as _position
+from trundle.report.safe_text import csv_row
 
 CAUTIONS = (CAUTION, LOAD_MODEL_CAUTION)
 
@@ -435,7 +436,7 @@ def envelope_csv(results: EnvelopeResults) -> str:
             if family == "moment":
                 left, right = concurrent[which]
                 row += [_number(left[i]), _number(right[i])]
-        writer.writerow(row)
+        writer.writerow(csv_row(row))  # names from the model file: no formulas, no controls
     return buffer.getvalue()
 
 
@@ -462,7 +463,7 @@ def reactions_csv(results: EnvelopeResults) -> str:
             for which in ("max", "min"):
                 e = extremes[(family, which)].get(k)
                 row += _extreme_cells(e, False) if e is not None else [""] * 6
-        writer.writerow(row)
+        writer.writerow(csv_row(row))  # names from the model file: no formulas, no controls
     return buffer.getvalue()
 
 
