@@ -30,22 +30,7 @@ CASES = sorted(HOSTILE.glob("*.toml"))
 sys.path.insert(0, str(HERE))
 from hostile_driver import header  # noqa: E402
 
-_PHASE2 = "wired in phase 2: "
-XFAIL: dict[str, str] = {
-    # plausibility warnings: trundle.io.plausibility exists, the reader does not call it yet
-    "E_200_MPa_steel": _PHASE2 + "plausibility warnings",
-    "I_in_mm4": _PHASE2 + "plausibility warnings",
-    "span_7mm": _PHASE2 + "plausibility warnings",
-    "span_1500m": _PHASE2 + "plausibility warnings",
-    "deflection_over_span_50": _PHASE2 + "plausibility warnings",
-    "modulus_1000_GPa": _PHASE2 + "plausibility warnings",
-    # control characters reach the terminal (rich tables, titles): not yet through safe_text
-    "esc_in_title": _PHASE2 + "terminal text through safe_text",
-    "esc_in_description_summary": _PHASE2 + "terminal text through safe_text",
-    "esc_in_lines_title": _PHASE2 + "terminal text through safe_text",
-    "nul_escape_in_title": _PHASE2 + "terminal text through safe_text",
-    "bidi_override_in_name": _PHASE2 + "terminal text through safe_text",
-}
+XFAIL: dict[str, str] = {}  # none left: every case passes
 
 FORMULA = ("=", "+", "-", "@")
 CONTROL = re.compile("[\x00-\x08\x0b-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]")

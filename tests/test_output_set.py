@@ -41,13 +41,14 @@ def strays(parent: Path, name: str) -> list[str]:
 
 def test_first_set_and_replacement(tmp_path):
     out = tmp_path / "results"
-    written = write_output_set(out, OLD)
-    assert sorted(p.name for p in written) == sorted(OLD)
+    written, removed = write_output_set(out, OLD)
+    assert sorted(p.name for p in written) == sorted(OLD) and removed == []
     assert contents(out) == OLD
     manifest = json.loads((out / MANIFEST).read_text())
     assert sorted(manifest["files"]) == sorted(OLD)
-    write_output_set(out, {"envelope.csv": "only this\n"})
+    _, removed = write_output_set(out, {"envelope.csv": "only this\n"})
     assert contents(out) == {"envelope.csv": "only this\n"}  # no old report.html beside it
+    assert sorted(p.name for p in removed) == ["envelope.json", "report.html"]
     assert strays(tmp_path, "results") == []
 
 
@@ -63,13 +64,45 @@ def test_file_as_out_refused(tmp_path):
         write_output_set(tmp_path / "f", NEW)
 
 
-def test_folder_of_other_files_is_never_swapped_away(tmp_path):
+def test_the_users_own_files_stay_with_every_set(tmp_path):
     mine = tmp_path / "documents"
     mine.mkdir()
     (mine / "thesis.txt").write_text("precious")
-    with pytest.raises(OutputSetError, match="choose a new folder"):
+    inode = (mine / "thesis.txt").stat().st_ino
+    write_output_set(mine, OLD)
+    write_output_set(mine, NEW)
+    assert contents(mine) == {**NEW, "thesis.txt": "precious"}
+    assert (mine / "thesis.txt").stat().st_ino == inode  # the same file, not a copy
+    assert strays(tmp_path, "documents") == []
+
+
+def test_a_folder_of_the_users_own_folders_is_refused(tmp_path):
+    mine = tmp_path / "documents"
+    (mine / "chapters").mkdir(parents=True)
+    with pytest.raises(OutputSetError, match='your own folder "chapters"'):
         write_output_set(mine, NEW)
-    assert (mine / "thesis.txt").read_text() == "precious"
+    assert os.listdir(mine) == ["chapters"]
+
+
+def test_another_commands_set_is_refused_before_any_work(tmp_path):
+    out = tmp_path / "results"
+    write_output_set(out, {"lines.csv": "x\n"}, command="lines")
+    with pytest.raises(OutputSetError, match="found the outputs of 'trundle lines'"):
+        with OutputSet(out, command="envelope"):
+            pass
+    assert contents(out) == {"lines.csv": "x\n"}
+    write_output_set(out, {"lines.csv": "y\n"}, command="lines")  # the same command may
+    assert contents(out) == {"lines.csv": "y\n"}
+
+
+def test_a_damaged_manifest_is_refused(tmp_path):
+    out = tmp_path / "results"
+    out.mkdir()
+    (out / MANIFEST).write_text("{not json")
+    (out / "envelope.csv").write_text("whose?")
+    with pytest.raises(OutputSetError, match="damaged"):
+        write_output_set(out, NEW)
+    assert (out / "envelope.csv").read_text() == "whose?"
 
 
 def test_existing_empty_folder_is_used(tmp_path):

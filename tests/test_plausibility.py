@@ -118,3 +118,43 @@ def test_silent_on_every_bundled_example(path):
     warnings = plausibility_warnings(model.units.name, deflections=_deflections(model),
                                      **_numbers(model))
     assert warnings == []
+
+
+# --- as the commands call them: from a model read from a file -----------------------------
+
+
+@pytest.mark.parametrize("path", EXAMPLES, ids=lambda p: p.name)
+def test_model_warnings_silent_on_every_bundled_example(path):
+    from trundle.io.plausibility import deflection_warnings, model_warnings
+
+    model = load_model(path)
+    assert model_warnings(model) == []
+    for where, span, largest in _deflections(model):
+        assert largest <= span / 50, where
+    entries = loads_of(model)
+    if entries:
+        found = envelope(model.beam, [e.case for e in entries], model.sections,
+                         effects=("deflection",))
+        largest = np.maximum(np.abs(found.max("deflection")), np.abs(found.min("deflection")))
+        assert deflection_warnings(model, list(found.sections), list(largest)) == []
+
+
+def test_model_warnings_fire_on_a_modulus_in_mpa():
+    from trundle.io.modelfile import read_model
+    from trundle.io.plausibility import model_warnings
+
+    model = read_model('units = "SI"\n[beam]\nspans = [12.0]\nsupports = ["pin", "pin"]\n'
+                       'E = "200 MPa"\nI = "55200 cm^4"\n')
+    warnings = model_warnings(model)
+    assert len(warnings) == 1 and warnings[0].startswith("warning: beam.E = 0.2 GPa")
+
+
+def test_deflection_warning_from_an_envelope():
+    from trundle.io.modelfile import read_model
+    from trundle.io.plausibility import deflection_warnings
+
+    model = read_model('units = "SI"\n[beam]\nspans = [10.0, 10.0]\n'
+                       'supports = ["pin", "pin", "pin"]\nEI = 1e5\n')
+    # 0.25 m in span 2 is span / 40: more than span / 50
+    warnings = deflection_warnings(model, [2.0, 5.0, 15.0], [0.01, 0.1, 0.25])
+    assert len(warnings) == 1 and "span 2" in warnings[0] and "span / 40" in warnings[0]

@@ -76,3 +76,16 @@ def test_dollar_and_backslash_are_plain_characters_in_figures():
 def test_figure_text_shortened():
     assert len(figure_text("x" * 1_000_000)) == 200
     assert figure_text("a\nb") == "a\nb"
+
+
+def test_json_escaped_keeps_the_data_and_hides_overrides():
+    import json
+
+    from trundle.report.safe_text import json_escaped
+
+    dumped = json.dumps({"name": "truck\u202egnp.exe\x85", "unit": "kN·m"}, indent=1,
+                        ensure_ascii=False)
+    escaped = json_escaped(dumped)
+    assert "\u202e" not in escaped and "\x85" not in escaped and "\\u202e" in escaped
+    assert "kN·m" in escaped  # ordinary non-ASCII text stays readable
+    assert json.loads(escaped) == json.loads(dumped)  # the same data to a JSON reader

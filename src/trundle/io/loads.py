@@ -569,7 +569,8 @@ def _use(value: Any, key: str, reader: Reader, base: Path) -> LoadModelFile:
     if "/" in text or "\\" in text or text.endswith(".toml") or text.startswith("~"):
         # inside the model's folder tree (or the library) only; never opened otherwise
         try:
-            path = resolve_use(text, base, library.folder(), shown=reader.file, key=key)
+            path = resolve_use(text, base, library.folder(), allowed=reader.allowed,
+                               shown=reader.file, key=key)
         except SourceError as error:
             reader.fail(key, error.detail)
         chain = getattr(reader, "chain", ())

@@ -68,6 +68,8 @@ class Model:
     stiffness_given : how the file stated EI, one entry per stiffness segment (for reports)
     raw : the parsed TOML, as written
     tables : what the registered readers made of the extra top-level tables, by name
+    sha256 : hex SHA-256 of the very bytes that were parsed ("" when read from a string);
+        provenance uses it, so the file is never read a second time
     """
 
     title: str
@@ -78,6 +80,7 @@ class Model:
     stiffness_given: tuple[str, ...] = ()
     raw: Mapping[str, Any] = field(default_factory=dict, repr=False)
     tables: Mapping[str, Any] = field(default_factory=dict, repr=False)
+    sha256: str = ""
 
     @property
     def name(self) -> str:
@@ -101,6 +104,8 @@ class Reader:
         self.length = beam.length if beam is not None else length
         # the whole parsed file, for a table whose reading depends on another one
         self.raw: Mapping[str, Any] = {}
+        # folders outside the model's tree that `use` may read from (--allow-path DIR)
+        self.allowed: tuple[Path, ...] = ()
 
     # --- errors ---------------------------------------------------------------------------
 
@@ -250,13 +255,15 @@ def known_top_level_keys() -> tuple[str, ...]:
 # entry points
 
 
-def load_model(path: str | Path) -> Model:
+def load_model(path: str | Path, allowed: Iterable[str | Path] = ()) -> Model:
     """Read a model file.
 
     Parameters
     ----------
     path : str or Path
         A TOML file in the format of docs/model-file.md.
+    allowed : folders outside the model file's folder tree from which ``use`` may read
+        load-model files (the CLI's ``--allow-path DIR``)
 
     Raises
     ------
@@ -265,14 +272,17 @@ def load_model(path: str | Path) -> Model:
     """
     name = str(path)
     try:  # regular files only (never blocks on a FIFO), size-limited, UTF-8 (BOM accepted)
-        text = read_source(path, "model file").text
+        read = read_source(path, "model file")
     except SourceError as error:
         raise ModelFileError(name, error.key, error.detail) from None
-    return read_model(text, name, source=Path(path))
+    # the hash is of the bytes parsed here: nothing reads the model file again
+    return read_model(read.text, name, source=Path(path), allowed=allowed, sha256=read.sha256)
 
 
-def read_model(text: str, name: str = "<model>", source: Path | None = None) -> Model:
-    """Read a model from TOML text; ``name`` is used in error messages."""
+def read_model(text: str, name: str = "<model>", source: Path | None = None,
+               allowed: Iterable[str | Path] = (), sha256: str = "") -> Model:
+    """Read a model from TOML text; ``name`` is used in error messages, ``allowed`` as in
+    :func:`load_model`, ``sha256`` is the hash of the bytes ``text`` was decoded from."""
     try:
         raw = parse_toml(text, name)  # nesting depth bounded before tomllib recurses
     except tomllib.TOMLDecodeError as error:
@@ -281,6 +291,7 @@ def read_model(text: str, name: str = "<model>", source: Path | None = None) -> 
         raise ModelFileError(name, error.key, error.detail) from None
     reader = Reader(name)
     reader.raw = raw
+    reader.allowed = tuple(Path(folder) for folder in allowed)
     for key in raw:
         if key not in known_top_level_keys():
             reader.fail(key, _unknown_key_detail(key, known_top_level_keys(),
@@ -308,7 +319,7 @@ def read_model(text: str, name: str = "<model>", source: Path | None = None) -> 
             tables[key] = _EXTRA_TABLES[key](value, reader)
     return Model(title=title, units=reader.units, beam=beam, sections=sections, source=source,
                  stiffness_given=stiffness_given, raw=MappingProxyType(raw),
-                 tables=MappingProxyType(tables))
+                 tables=MappingProxyType(tables), sha256=sha256)
 
 
 # ------------------------------------------------------------------------------------------

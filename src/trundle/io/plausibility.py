@@ -17,6 +17,7 @@ limit (usually span / 250 to span / 1000).
 from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
+from typing import Any
 
 # base units to SI (kN, m): exact definitions of the foot and the pound-force
 _KIP_TO_KN = 4.4482216152605
@@ -112,3 +113,53 @@ def _metres(value: float) -> str:
     if value < 0.1:
         return f"{value * 1000:.3g} mm"
     return f"{value:.4g} m"
+
+
+# ------------------------------------------------------------------------------------------
+# from a model read from a file
+
+
+_STIFFNESS_KEYS = (("E", "modulus", "moduli"), ("I", "second moment of area", "second_moments"),
+                   ("I_end", "second moment of area", "second_moments"),
+                   ("EI", "flexural rigidity", "flexural_rigidities"),
+                   ("EI_end", "flexural rigidity", "flexural_rigidities"))
+
+
+def model_warnings(model: Any) -> list[str]:
+    """The warnings of a model read from a file (spans, moduli, second moments, flexural
+    rigidities, crane spans), from the values as the file states them."""
+    from trundle.io.cranes import cranes_of
+    from trundle.io.units import UnitError, parse_quantity
+
+    found: dict[str, dict[str, float]] = {"moduli": {}, "second_moments": {},
+                                          "flexural_rigidities": {}}
+    raw_beam = model.raw.get("beam", {})
+    tables = [("beam", raw_beam)] + [
+        (f"beam.stiffness[{i}]", segment)
+        for i, segment in enumerate(raw_beam.get("stiffness", []) or [])
+        if isinstance(segment, Mapping)]
+    for key, table in tables:
+        for name, quantity, store in _STIFFNESS_KEYS:
+            if name in table:
+                try:  # already checked by the reader; a value it could not read gives none
+                    found[store][f"{key}.{name}"] = parse_quantity(table[name], quantity,
+                                                                   model.units)
+                except (UnitError, TypeError, ValueError):
+                    continue
+    crane_spans = {f"crane[{i}].span": entry.crane.span
+                   for i, entry in enumerate(cranes_of(model))}
+    return plausibility_warnings(model.units.name, list(model.beam.spans),
+                                 crane_spans=crane_spans, **found)
+
+
+def deflection_warnings(model: Any, sections: Sequence[float], largest: Sequence[float]
+                        ) -> list[str]:
+    """The span / 50 warning for each span, from the largest absolute deflection found at
+    each of ``sections`` (as the envelope of the model's loads gives it)."""
+    ends = list(model.beam.support_positions)
+    per_span = []
+    for i, (a, b) in enumerate(zip(ends[:-1], ends[1:], strict=True)):
+        inside = [abs(d) for x, d in zip(sections, largest, strict=True) if a <= x <= b]
+        if inside:
+            per_span.append((f"span {i + 1}", b - a, max(inside)))
+    return plausibility_warnings(model.units.name, [], deflections=per_span)

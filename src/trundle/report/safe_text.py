@@ -25,6 +25,8 @@ from typing import Any
 # and isolates (U+202A-U+202E, U+2066-U+2069); the line and paragraph separators.
 _CONTROL = re.compile("[\x00-\x08\x0b-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069\u2028\u2029]")
 _CONTROL_AND_LINES = re.compile("[\x00-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069\u2028\u2029]")
+# what json.dumps(ensure_ascii=False) leaves raw of the above (it escapes C0 itself)
+_RAW_IN_JSON = re.compile("[\x7f-\x9f\u202a-\u202e\u2066-\u2069\u2028\u2029]")
 _FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
 
 # Longest text drawn in a figure: a title of a megabyte would take minutes to lay out.
@@ -81,3 +83,11 @@ def figure_text(text: str, limit: int = FIGURE_TEXT_LENGTH, keep_newlines: bool 
     shortened = [line if len(line) <= limit else line[: limit - 1] + "…" for line in lines]
     joined = "\n".join(shortened)
     return joined.replace("$", r"\$") if parse_math else joined
+
+
+def json_escaped(document: str) -> str:
+    """A JSON text with the controls and bidirectional overrides that ``ensure_ascii=False``
+    leaves raw (DEL, C1, U+202A-U+202E, U+2066-U+2069, U+2028/U+2029) written as ``\\uXXXX``
+    escapes: the same data to a JSON reader, nothing that acts on a terminal or an editor.
+    (They can only occur inside JSON strings, where the escape means the same character.)"""
+    return _RAW_IN_JSON.sub(lambda m: f"\\u{ord(m.group()):04x}", document)
