@@ -105,3 +105,24 @@ def test_control_characters_never_reach_the_terminal(tmp_path):
         assert "\x1b" not in result.stdout and "\u202e" not in result.stdout
         assert "\x07" not in result.stdout
     assert "Girder [31mred" in run("summary", model).stdout
+
+
+def test_load_model_files_are_hashed_from_the_bytes_parsed(tmp_path, monkeypatch):
+    import trundle.io.loads as loads_module
+
+    def no_second_read(path):
+        raise AssertionError(f"{path} read a second time")
+
+    monkeypatch.setattr(loads_module, "_file_fact", no_second_read)
+    shared = _load_model_file(tmp_path / "loads")
+    model_file = tmp_path / "girder.toml"
+    model_file.write_text(BEAM + f'[[load]]\nuse = "loads/{shared.name}"\n'
+                          f'[[load]]\nuse = "{library.names()[0]}"\nname = "again"\n'
+                          '[[load]]\nname = "both"\ntogether = ["again", "'
+                          f'{shared.stem}"]\n')
+    entries = loads_module.loads_of(load_model(model_file))
+    digest = hashlib.sha256(shared.read_bytes()).hexdigest()
+    assert entries[0].file_facts[0][1] == digest
+    assert entries[1].file_facts[0][1] == hashlib.sha256(
+        library.path_of(library.names()[0]).read_bytes()).hexdigest()
+    assert len(entries[2].file_facts) == 2

@@ -22,7 +22,7 @@ import hashlib
 import math
 import re
 import tomllib
-from collections.abc import Mapping
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from fractions import Fraction
 from pathlib import Path
@@ -81,6 +81,7 @@ class LoadModelFile:
     impact : dynamic allowance as a fraction (0 if the file gives none)
     factors : ((name, value), …) as written in the file
     given : the parsed TOML, as written
+    sha256 : hex SHA-256 of the bytes parsed
     """
 
     name: str
@@ -93,6 +94,18 @@ class LoadModelFile:
     impact: float = 0.0
     factors: tuple[tuple[str, float], ...] = ()
     given: Mapping[str, Any] = field(default_factory=dict, repr=False)
+    sha256: str = ""
+
+    @property
+    def fact(self) -> tuple[Path, str, str]:
+        """(path, SHA-256, ``source`` as written): what outputs record of this file."""
+        return self.path, self.sha256, str(self.given.get("source", ""))
+
+
+def _facts(files: Sequence[Path], reader: Reader) -> tuple[tuple[Path, str, str], ...]:
+    """The facts of ``files`` recorded by this reader when it read them (none re-read)."""
+    known = getattr(reader, "file_facts", {})
+    return tuple(known[p] for p in files) if all(p in known for p in files) else ()
 
 
 @dataclass(frozen=True)
@@ -258,8 +271,9 @@ def _together(pending: _Pending, entries: list[Any], seen: Mapping[str, int],
         cases.append(other.case)
         files.extend(other.files)
     case = _build(Together, pending.key, reader, parts=tuple(cases), name=pending.name)
-    return LoadEntry(pending.name, "together", case, given=pending.given,
-                     files=tuple(dict.fromkeys(files)))
+    files = list(dict.fromkeys(files))
+    return LoadEntry(pending.name, "together", case, given=pending.given, files=tuple(files),
+                     file_facts=_facts(files, reader))
 
 
 def _read_entry(item: dict[str, Any], key: str, reader: Reader, base: Path
@@ -294,7 +308,8 @@ def _read_entry(item: dict[str, Any], key: str, reader: Reader, base: Path
         return LoadEntry(name, found.kind,
                          _case(load, impact, factors, _load_factor(table, key, reader), key,
                                reader),
-                         origin, found.description, found.source, given, (found.path,))
+                         origin, found.description, found.source, given, (found.path,),
+                         _facts([found.path], reader))
     if "name" not in table:
         reader.fail(_sub(key, "name"), f"expected a name for this {KIND_NAMES[kind]} (names "
                     "identify loads in the results), found nothing")
@@ -307,9 +322,10 @@ def _read_entry(item: dict[str, Any], key: str, reader: Reader, base: Path
                     "dynamic allowance applies to axle loads only), found "
                     f"{show_value(table['impact'])}")
     factors = _factors(table["factors"], _sub(key, "factors"), reader) if "factors" in table else {}
+    files = list(dict.fromkeys(files))
     return LoadEntry(name, kind,
                      _case(load, impact, factors, _load_factor(table, key, reader), key, reader),
-                     given=given, files=tuple(dict.fromkeys(files)))
+                     given=given, files=tuple(files), file_facts=_facts(files, reader))
 
 
 def _load_factor(table: Mapping[str, Any], key: str, reader: Reader) -> float:
@@ -579,7 +595,7 @@ def _use(value: Any, key: str, reader: Reader, base: Path) -> LoadModelFile:
                         f'found "{text}", which is already being read (a cycle of load-model '
                         "files)")
         try:
-            return read_load_model_file(path, reader.units, chain=chain)
+            return _recorded(read_load_model_file(path, reader.units, chain=chain), reader)
         except ModelFileError as error:
             if error.key != "file":  # a problem inside the file: named by that file
                 raise
@@ -593,7 +609,15 @@ def _use(value: Any, key: str, reader: Reader, base: Path) -> LoadModelFile:
         extra = f' (did you mean "{hint[0]}"?)' if hint else ""
         reader.fail(key, "expected a load model from the library (see 'trundle library') or "
                     f'the path of a load-model file, found "{text}"{extra}')
-    return read_load_model_file(library.path_of(text), reader.units)
+    return _recorded(read_load_model_file(library.path_of(text), reader.units), reader)
+
+
+def _recorded(found: LoadModelFile, reader: Reader) -> LoadModelFile:
+    """Note the file's facts on the reader (the entry records them; nothing reads it again)."""
+    if not hasattr(reader, "file_facts"):
+        reader.file_facts = {}  # type: ignore[attr-defined]
+    reader.file_facts[found.path] = found.fact  # type: ignore[attr-defined]
+    return found
 
 
 # ------------------------------------------------------------------------------------------
@@ -640,7 +664,8 @@ def read_load_model_file(path: str | Path, target: UnitSystem | None = None,
     path = Path(path)
     name = str(path)
     try:  # regular files only, size-limited, UTF-8; nesting bounded before tomllib recurses
-        raw = parse_toml(read_source(path, "load-model file").text, name)
+        read = read_source(path, "load-model file")
+        raw = parse_toml(read.text, name)
     except SourceError as error:
         raise ModelFileError(name, error.key, error.detail) from None
     except tomllib.TOMLDecodeError as error:
@@ -669,7 +694,7 @@ def read_load_model_file(path: str | Path, target: UnitSystem | None = None,
                     f"allowance applies to axle loads only), found {show_value(table['impact'])}")
     factors = _factors(table["factors"], "factors", reader) if "factors" in table else {}
     return LoadModelFile(path.stem, path, kind, units, description, source, load, impact,
-                         tuple(factors.items()), MappingProxyType(raw))
+                         tuple(factors.items()), MappingProxyType(raw), read.sha256)
 
 
 def read_library_model(name: str, units: UnitSystem | None = None) -> LoadModelFile:
