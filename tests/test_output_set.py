@@ -218,3 +218,13 @@ def test_sigkill_during_the_writes_leaves_the_previous_set_intact(tmp_path):
     write_output_set(out, NEW)
     assert contents(out) == NEW
     assert strays(tmp_path, "results") == []
+
+
+def test_the_current_folder_is_refused(tmp_path, monkeypatch):
+    # replacing it as a whole would leave the shell in a removed folder
+    (tmp_path / "notes.txt").write_text("mine")
+    monkeypatch.chdir(tmp_path)
+    for name in (".", str(tmp_path), ".."):
+        with pytest.raises(OutputSetError, match="other than the current one"):
+            write_output_set(name, NEW)
+    assert os.listdir(tmp_path) == ["notes.txt"]

@@ -58,8 +58,7 @@ def check_out_option(text: str | os.PathLike[str], option: str = "--out") -> Pat
     shown = os.fspath(text)
     if not shown.strip():
         raise OutputSetError(f'{option} "{shown}": expected the name of a folder for the '
-                             "outputs, found an empty name (write --out . for the current "
-                             "folder)")
+                             "outputs, found an empty name (write --out results, say)")
     return Path(shown)
 
 
@@ -103,6 +102,13 @@ class OutputSet:
         target = self.target
         if target.exists() and not target.is_dir():
             raise self._error("expected a folder, found a file")
+        with contextlib.suppress(OSError):
+            here = Path.cwd().resolve()
+            if here == target.resolve() or here.is_relative_to(target.resolve()):
+                # the folder is replaced as a whole: the shell would be left in a removed one
+                raise self._error("expected a folder other than the current one or one "
+                                  "containing it (trundle replaces its output folder as a "
+                                  "whole); write --out results, say")
         try:
             target.parent.mkdir(parents=True, exist_ok=True)
             descriptor = os.open(lock_path(target), os.O_RDWR | os.O_CREAT | os.O_CLOEXEC,

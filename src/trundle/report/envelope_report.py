@@ -1,7 +1,7 @@
 """The files of ``trundle envelope --out``: CSV, JSON, figures and the HTML report.
 
 :func:`envelope_files` prepares every file in memory first (so a failure writes nothing) and
-returns name -> content for :func:`trundle.io.outputs.write_all_atomic`. The HTML report stands
+returns name -> content for :class:`trundle.io.output_set.OutputSet`. The HTML report stands
 alone: its figures are PNG data URIs.
 """
 
