@@ -126,3 +126,14 @@ def test_load_model_files_are_hashed_from_the_bytes_parsed(tmp_path, monkeypatch
     assert entries[1].file_facts[0][1] == hashlib.sha256(
         library.path_of(library.names()[0]).read_bytes()).hexdigest()
     assert len(entries[2].file_facts) == 2
+
+
+def test_the_html_report_carries_no_control_characters(tmp_path):
+    model = tmp_path / "bidi.toml"
+    model.write_text('title = "Girder \\u202eright-to-left\\u0085"\n' + BEAM
+                     + '[[load]]\nname = "truck\\u2066x"\naxles = [100]\n')
+    out = tmp_path / "out"
+    assert run("envelope", model, "--out", out, "--no-figure").exit_code == 0
+    html = (out / "report.html").read_text(encoding="utf-8")
+    assert "Girder right-to-left" in html
+    assert not any(c in html for c in "\u202e\u2066\x85\x1b")

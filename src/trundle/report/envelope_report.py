@@ -27,6 +27,7 @@ from trundle.report.envelope_tables import (
     summary_tables,
 )
 from trundle.report.figures import figure_bytes
+from trundle.report.safe_text import clean_text
 
 FIGURE_FORMATS = ("png", "svg")
 
@@ -116,7 +117,10 @@ def envelope_html(results: EnvelopeResults, pngs: dict[str, bytes] | None = None
         "sign_conventions": list(SIGN_CONVENTIONS),
         "markup_break": Markup("<br>"),
     }
-    return _templates().get_template("envelope.html.j2").render(**context)
+    # names and titles from the model file: no control or direction-override character
+    # (escaping by the template makes markup harmless, not these); PNGs are base64 text
+    return clean_text(_templates().get_template("envelope.html.j2").render(**context),
+                      keep_newlines=True)
 
 
 def _templates() -> Environment:
