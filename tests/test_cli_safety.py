@@ -23,7 +23,7 @@ BEAM = ('units = "SI"\n[beam]\nspans = [10.0, 12.0]\nsupports = ["pin", "pin", "
 def _load_model_file(folder: Path) -> Path:
     """A load-model file (a copy of a library one) in ``folder``."""
     folder.mkdir(parents=True, exist_ok=True)
-    name = library.names()[0]
+    name = "demo-service-truck"
     copy = folder / f"{name}.toml"
     shutil.copyfile(library.path_of(name), copy)
     return copy
@@ -117,14 +117,14 @@ def test_load_model_files_are_hashed_from_the_bytes_parsed(tmp_path, monkeypatch
     shared = _load_model_file(tmp_path / "loads")
     model_file = tmp_path / "girder.toml"
     model_file.write_text(BEAM + f'[[load]]\nuse = "loads/{shared.name}"\n'
-                          f'[[load]]\nuse = "{library.names()[0]}"\nname = "again"\n'
+                          f'[[load]]\nuse = "demo-service-truck"\nname = "again"\n'
                           '[[load]]\nname = "both"\ntogether = ["again", "'
                           f'{shared.stem}"]\n')
     entries = loads_module.loads_of(load_model(model_file))
     digest = hashlib.sha256(shared.read_bytes()).hexdigest()
     assert entries[0].file_facts[0][1] == digest
     assert entries[1].file_facts[0][1] == hashlib.sha256(
-        library.path_of(library.names()[0]).read_bytes()).hexdigest()
+        library.path_of("demo-service-truck").read_bytes()).hexdigest()
     assert len(entries[2].file_facts) == 2
 
 
@@ -137,3 +137,19 @@ def test_the_html_report_carries_no_control_characters(tmp_path):
     html = (out / "report.html").read_text(encoding="utf-8")
     assert "Girder right-to-left" in html
     assert not any(c in html for c in "\u202e\u2066\x85\x1b")
+
+
+def test_design_load_paths_follow_the_same_rule(tmp_path):
+    from trundle.loads import library as lib
+
+    example = ROOT / "examples" / "design" / "alder_creek_overpass_hl93_us.toml"
+    shared = tmp_path / "shared"
+    shared.mkdir()
+    shutil.copyfile(lib.path_of("hl93"), shared / "hl93.toml")
+    model = tmp_path / "project" / "overpass.toml"
+    model.parent.mkdir()
+    model.write_text(example.read_text().replace('use = "hl93"', 'use = "../shared/hl93.toml"'))
+    assert_one_line_error(run("summary", model), "design_load[0].use", "--allow-path")
+    assert run("summary", model, "--allow-path", shared).exit_code == 0
+    model.write_text(example.read_text().replace('use = "hl93"', 'use = "/etc/passwd"'))
+    assert_one_line_error(run("summary", model), "design_load[0].use", "absolute path")

@@ -430,11 +430,20 @@ def envelope_command(model_file: str, out_dir: Path | None, figure_format: str,
     Crane defaults (impact, lateral and longitudinal fractions, limits, cycles) must be
     verified against the governing guide/code.
 
+    A model with design tables ([[design_load]] such as use = "hl93", [[permanent]],
+    [[live_pattern]], [[lane_length_load]], [[combination]], [design]) also gets the design
+    envelope: every live case's own envelope, the factored design envelope of every
+    combination with the governing case and the rule that excluded a case, critical shear
+    sections and the live-load deflection check (design-*.csv and design-*.png with --out).
+    Published load models are transcribed from memory: verify them against the edition in
+    force.
+
     \b
     Example:
       trundle envelope examples/harbour_lane_floor_girder_si.toml --out results/
       trundle envelope examples/millrace_access_bridge_us.toml -o results --format svg
       trundle envelope examples/cranes/hall_kestrel_quay_si.toml --out results/
+      trundle envelope examples/design/alder_creek_overpass_hl93_us.toml --out results/
     """
     model = _load(model_file, allow_paths)
     with _output_set(out_dir, "envelope") as outputs:  # locked before the work
@@ -443,9 +452,10 @@ def envelope_command(model_file: str, out_dir: Path | None, figure_format: str,
 
 def _envelope_run(model: Model, model_file: str, outputs: OutputSet | None,
                   figure_format: str, no_figure: bool, no_report: bool) -> None:
+    from trundle.io.design_tables import design_model_of, design_spec_of, has_design_tables
     from trundle.report.envelope_data import collect
     from trundle.report.sections import SECTIONS
-    from trundle.workflows import moving_loads
+    from trundle.workflows import design_envelope, moving_loads
     from trundle.workflows.crane_runway import analyse_runway
 
     entries = loads_of(model)
@@ -457,8 +467,10 @@ def _envelope_run(model: Model, model_file: str, outputs: OutputSet | None,
     spec = runway_spec(model)
     runway = (analyse_runway(model.beam, spec, sections=model.sections)
               if spec is not None else None)
+    design = (design_envelope.run(design_spec_of(design_model_of(model)))
+              if has_design_tables(model) else None)
     results = collect(model, Provenance.of_model(model, model_file), moving,
-                      providers=SECTIONS, runway=runway)
+                      providers=SECTIONS, runway=runway, design=design)
     console = _console()
     for renderable in _envelope_summary(results):
         console.print(renderable)
@@ -487,6 +499,7 @@ def _envelope_summary(results: Any) -> list[Any]:
 
     units = results.units
     values = ("values include impact and factors" if results.has_loads
+              else "design envelope (no [[load]] tables)" if results.design is not None
               else "crane runway only (no [[load]] tables)")
     header = [terminal_text(results.model.title),
               terminal_text(f"model file {results.model_file}; units {units.name}; "
@@ -518,13 +531,17 @@ def _envelope_cautions(results: Any) -> list[str]:
 def library_command(name: str | None) -> None:
     """List the built-in load models, or show one in detail.
 
-    A model file uses one with `use = "NAME"` in a [[load]] table (see docs/model-file.md).
-    The models shipped now are invented examples, not code load models.
+    A model file uses a vehicle, train or lane load with `use = "NAME"` in a [[load]] table,
+    and a design case (kind "design case": hl93, cooper-e80, en1991-2-lm1, ...) with
+    `use = "NAME"` in a [[design_load]] table (see docs/model-file.md). The demo-* models
+    are invented examples; the published ones are transcribed from memory: verify them
+    against the edition in force.
 
     \b
     Examples:
       trundle library
       trundle library demo-heavy-vehicle-5-axle
+      trundle library hl93
     """
     from trundle.io.loads import read_library, read_library_model
     from trundle.loads import library

@@ -30,6 +30,14 @@ def verdict(utilisation: float) -> str:
     return PASS if float(utilisation) <= 1.0 else EXCEEDS
 
 
+def utilisation_of(demand: float, allowable: float) -> float:
+    """|demand| / allowable; NaN (which :func:`verdict` never passes) for an allowable that is
+    not positive or a demand that is not a number."""
+    if not (allowable > 0) or math.isnan(demand):
+        return math.nan
+    return abs(demand) / allowable
+
+
 # detail category -> (C_f, threshold F_TH [ksi]); allowable range F_SR = (C_f / n)^(1/3) ≥ F_TH
 # [ksi]: from memory of the fatigue appendix of a widely used steel specification; verify
 # (C' is the usual category of stiffener welds on crane girders; F, shear on welds, follows

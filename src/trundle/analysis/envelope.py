@@ -18,7 +18,7 @@ from numpy.typing import ArrayLike, NDArray
 from scipy.optimize import minimize_scalar
 
 from trundle.core.beam import Beam, ModelError, Spring
-from trundle.core.influence import Effect, line_pieces, piece_sign_intervals, signed_areas
+from trundle.core.influence import Effect, line_pieces, piece_sign_intervals
 from trundle.loads.cases import LoadCase, Together, as_case
 from trundle.loads.patterns import UniformLoad
 from trundle.scan.engine import (
@@ -278,7 +278,7 @@ def _uniform_case(batch: LineBatch, case: LoadCase, case_index: int,
     result = _CaseResult(case_index, n)
     result.pattern = [[None] * n, [None] * n]
     if load.placement == "anywhere":
-        pos, neg = signed_areas(batch.knots, batch.coef)
+        pos, neg = batch.signed_areas
         for w, area, col, sign in ((0, pos, 0, 1), (1, neg, 3, -1)):
             result.value[w] = m * (load.w * area + P * ordinate_extremes[:, col])
             for j in range(n):

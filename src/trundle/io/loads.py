@@ -36,6 +36,7 @@ from trundle.io.source import SourceError, parse_toml, read_source, resolve_use
 from trundle.io.units import SYSTEMS, UnitSystem, parse_quantity, registry, show_value
 from trundle.loads import library
 from trundle.loads.cases import LoadCase, Together
+from trundle.loads.design_cases import RULE_EFFECTS, RULE_REGIONS, Alternative, DesignCase, Rule
 from trundle.loads.patterns import PLACEMENTS, UniformLoad
 from trundle.loads.vehicles import AttachedUniform, Train, Vehicle
 
@@ -291,6 +292,11 @@ def _read_entry(item: dict[str, Any], key: str, reader: Reader, base: Path
                         "(the load model defines the rest), found "
                         f"{extra[0]} = {show_value(table[extra[0]])}")
         found = _use(table["use"], _sub(key, "use"), reader, base)
+        if found.kind == "design case":
+            reader.fail(_sub(key, "use"), f'expected a vehicle, train or placed uniform load, '
+                        f'found "{found.name}", a design case (the worst of its alternatives, '
+                        "with rules), which [[load]] cannot run yet: use its parts (see "
+                        f"'trundle library {found.name}') until the design envelope is wired in")
         name = reader.text(table["name"], _sub(key, "name")) if "name" in table else found.name
         _nonblank(name, _sub(key, "name"), reader)
         impact = (_impact(table["impact"], _sub(key, "impact"), reader) if "impact" in table
@@ -607,7 +613,8 @@ def _use(value: Any, key: str, reader: Reader, base: Path) -> LoadModelFile:
         if not hint and text.lower() in lowered:
             hint = [lowered[text.lower()]]
         extra = f' (did you mean "{hint[0]}"?)' if hint else ""
-        reader.fail(key, "expected a load model from the library (see 'trundle library') or "
+        valid = ", ".join(names) or "none"
+        reader.fail(key, f"expected a load model from the library ({valid}) or "
                     f'the path of a load-model file, found "{text}"{extra}')
     return _recorded(read_load_model_file(library.path_of(text), reader.units), reader)
 
@@ -670,6 +677,8 @@ def read_load_model_file(path: str | Path, target: UnitSystem | None = None,
         raise ModelFileError(name, error.key, error.detail) from None
     except tomllib.TOMLDecodeError as error:
         raise _syntax_error(name, error) from None
+    if is_design_case_file(raw):
+        return read_design_case_file(path, target)
     plain = Reader(name)
     if "name" in raw:
         plain.fail("name", f'expected no name in a load-model file (it is called by its file '
@@ -705,3 +714,193 @@ def read_library_model(name: str, units: UnitSystem | None = None) -> LoadModelF
 def read_library(units: UnitSystem | None = None) -> list[LoadModelFile]:
     """Every built-in load model, sorted by name."""
     return [read_library_model(name, units) for name in library.names()]
+
+
+# ------------------------------------------------------------------------------------------
+# design-case files: a load-model file whose top level has [[alternative]] tables (see
+# docs/model-file.md, "Design cases"). Read here, applied by trundle.analysis.
+
+_CASE_FILE_KEYS = ("units", "description", "source", "parameters", "alternative")
+_ALTERNATIVE_KEYS = ("name", "parts", "factor", "rule")
+_RULE_KEYS = ("effects", "region")
+_PART_KEYS = (*_ENTRY_KEYS, "pressure", "axle_by_lane", "axle_count", "scale_by")
+_PARAMETER_KINDS = {"lane_width": "length", "lane": "integer"}
+BEAM_LENGTH = "beam length"
+_UNBOUNDED = 1.0e6  # placeholder for a gap up to "beam length", replaced by design_cases.for_beam
+
+
+def is_design_case_file(raw: Mapping[str, Any]) -> bool:
+    """Whether a parsed load-model file is a design case (it has ``[[alternative]]``)."""
+    return "alternative" in raw
+
+
+def _case_parameters(table: Mapping[str, Any], overrides: Mapping[str, Any],
+                     reader: Reader) -> dict[str, float]:
+    given = dict(table)
+    for name, value in overrides.items():
+        if name not in given:
+            known = ", ".join(given) or "none"
+            reader.fail(f"parameters.{name}", f"expected one of the parameters this load model "
+                        f"declares ({known}), found {name}")
+        given[name] = value
+    out: dict[str, float] = {}
+    for name, value in given.items():
+        key = f"parameters.{name}"
+        kind = _PARAMETER_KINDS.get(name)
+        if kind == "length":
+            out[name] = reader.positive(value, key, "length")
+        elif kind == "integer":
+            out[name] = float(reader.integer(value, key, 1))
+        else:
+            if isinstance(value, bool) or not isinstance(value, int | float) or \
+                    not math.isfinite(value) or value <= 0:
+                reader.expected(key, "a positive number (a plain multiplier such as 0.9)", value)
+            out[name] = float(value)
+    return out
+
+
+def _case_part(item: Any, key: str, reader: Reader, base: Path, parameters: Mapping[str, float]
+               ) -> tuple[LoadCase | None, tuple[int, ...], tuple[Path, ...]]:
+    """One part of an alternative: (case or None when absent for this lane, gaps up to the
+    beam length, files read)."""
+    assert reader.units is not None
+    if isinstance(item, str):
+        found = _use(item, key, reader, base)
+        if found.kind == "design case":
+            reader.fail(key, f'expected a vehicle, train or placed uniform load, found "{item}", '
+                        "itself a design case (list its parts here instead)")
+        case = _case(dataclasses.replace(found.load, name=found.name), found.impact,
+                     dict(found.factors), 1.0, key, reader)
+        return case, (), (found.path,)
+    table = dict(reader.table(item, key, _PART_KEYS))
+    factors: dict[str, float] = {}
+    for j, pname in enumerate(table.pop("scale_by", [])):
+        if pname not in parameters:
+            reader.expected(_sub(key, f"scale_by[{j}]"), "the name of a parameter of this file "
+                            f"({', '.join(parameters) or 'none declared'})", pname)
+        factors[pname] = parameters[pname]
+    lane = int(parameters.get("lane", 1))
+    if "pressure" in table:  # a load per area over the lane width
+        if "lane_width" not in parameters:
+            reader.fail(_sub(key, "pressure"), "expected parameters.lane_width for a pressure, "
+                        "found none")
+        values = table.pop("pressure")
+        values = values if isinstance(values, list) else [values]
+        if not values:
+            reader.expected(_sub(key, "pressure"), 'a pressure or a list of them per lane such '
+                            'as ["9 kN/m^2", "2.5 kN/m^2"]', values)
+        pressure = reader.positive(values[min(lane, len(values)) - 1], _sub(key, "pressure"),
+                                   "modulus")
+        table["uniform"] = pressure * parameters["lane_width"]
+    if "axle_by_lane" in table:
+        values = reader.array(table.pop("axle_by_lane"), _sub(key, "axle_by_lane"),
+                              "axle loads of lanes 1, 2, …", '["300 kN", "200 kN", "100 kN"]')
+        if lane > len(values):
+            return None, (), ()
+        count = reader.integer(table.pop("axle_count", 1), _sub(key, "axle_count"), 1)
+        table["axles"] = [values[lane - 1]] * count
+    unlimited: list[int] = []
+    for i, gap in enumerate(table.get("gaps", [])):
+        if isinstance(gap, dict) and gap.get("max") == BEAM_LENGTH:
+            table["gaps"] = list(table["gaps"])
+            table["gaps"][i] = {**gap, "max": _UNBOUNDED}
+            unlimited.append(i)
+    if "name" not in table:
+        reader.fail(_sub(key, "name"), "expected a name for this part, found nothing")
+    name = _nonblank(reader.text(table["name"], _sub(key, "name")), _sub(key, "name"), reader)
+    kind = _kind_of(table, key, reader, _ENTRY_KEYS)
+    if kind in ("use", "together"):
+        reader.fail(_sub(key, kind), "expected axles, vehicles, uniform, pressure or "
+                    "axle_by_lane in a part (a library part is written as its name)")
+    files: list[Path] = []
+    load = _definition(kind, table, key, reader, name, base, files)
+    impact = _impact(table["impact"], _sub(key, "impact"), reader) if "impact" in table else 0.0
+    if "factors" in table:
+        factors.update(_factors(table["factors"], _sub(key, "factors"), reader))
+    return (_case(load, impact, factors, 1.0, key, reader), tuple(unlimited),
+            tuple(dict.fromkeys(files)))
+
+
+def read_design_case(raw: Mapping[str, Any], name: str, reader: Reader, base: Path,
+                     overrides: Mapping[str, Any] | None = None) -> DesignCase:
+    """A :class:`trundle.loads.design_cases.DesignCase` from a parsed design-case file."""
+    declared = raw.get("parameters", {})
+    if not isinstance(declared, dict):
+        reader.expected("parameters", "a [parameters] table of named values", declared)
+    if not isinstance(overrides or {}, Mapping):
+        reader.expected("parameters", "a table of parameters such as { lane = 2 }", overrides)
+    parameters = _case_parameters(declared, overrides or {}, reader)
+    items = raw["alternative"]
+    if not isinstance(items, list) or not items or not all(isinstance(i, dict) for i in items):
+        reader.expected("alternative", "one or more [[alternative]] tables", items)
+    alternatives = []
+    for i, item in enumerate(items):
+        key = f"alternative[{i}]"
+        table = reader.table(item, key, _ALTERNATIVE_KEYS, required=("name", "parts"))
+        aname = _nonblank(reader.text(table["name"], f"{key}.name"), f"{key}.name", reader)
+        parts_given = reader.array(table["parts"], f"{key}.parts", "library names or inline "
+                                   "loads", '["hl93-truck", "hl93-lane"]')
+        cases, unlimited = [], []
+        for j, part in enumerate(parts_given):
+            case, gaps, _files = _case_part(part, f"{key}.parts[{j}]", reader, base, parameters)
+            if case is not None:
+                cases.append(case)
+                unlimited.extend(gaps)
+        if not cases:
+            reader.fail(f"{key}.parts", "expected at least one load, found none (for this lane)")
+        factor = 1.0
+        if "factor" in table:
+            value = table["factor"]
+            if isinstance(value, bool) or not isinstance(value, int | float) or \
+                    not math.isfinite(value) or value <= 0:
+                reader.expected(f"{key}.factor", "a positive number such as 0.9", value)
+            factor = float(value)
+        rule = None
+        if "rule" in table:
+            rtable = reader.table(table["rule"], f"{key}.rule", _RULE_KEYS, required=("effects",))
+            effects = reader.array(rtable["effects"], f"{key}.rule.effects", "effect names",
+                                   '["negative moment", "interior reactions"]')
+            for j, effect in enumerate(effects):
+                if effect not in RULE_EFFECTS:
+                    hint = difflib.get_close_matches(str(effect), RULE_EFFECTS, n=1, cutoff=0.5)
+                    extra = f' (did you mean "{hint[0]}"?)' if hint else ""
+                    reader.fail(f"{key}.rule.effects[{j}]", "expected one of " + ", ".join(
+                        f'"{e}"' for e in RULE_EFFECTS) + f", found {show_value(effect)}{extra}")
+            region = (reader.text(rtable["region"], f"{key}.rule.region", RULE_REGIONS)
+                      if "region" in rtable else "anywhere")
+            rule = _build(Rule, f"{key}.rule", reader, effects=tuple(effects), region=region)
+        case = cases[0] if len(cases) == 1 else _build(Together, f"{key}.parts", reader,
+                                                       parts=tuple(cases), name=aname)
+        alternatives.append(_build(Alternative, key, reader, name=aname, case=case,
+                                   factor=factor, rule=rule,
+                                   unlimited_gaps=tuple(sorted(set(unlimited)))))
+    return _build(DesignCase, "alternative", reader, name=name,
+                  alternatives=tuple(alternatives), parameters=tuple(parameters.items()))
+
+
+def read_design_case_file(path: str | Path, target: UnitSystem | None = None,
+                          parameters: Mapping[str, Any] | None = None) -> LoadModelFile:
+    """A design-case file (``[[alternative]]`` tables) as a LoadModelFile of kind
+    "design case" whose ``load`` is a DesignCase; ``parameters`` override the file's."""
+    path = Path(path)
+    name = str(path)
+    try:  # regular files only, size-limited, UTF-8; nesting bounded before tomllib recurses
+        read = read_source(path, "load-model file")
+        raw = parse_toml(read.text, name)
+    except SourceError as error:
+        raise ModelFileError(name, error.key, error.detail) from None
+    except tomllib.TOMLDecodeError as error:
+        raise _syntax_error(name, error) from None
+    plain = Reader(name)
+    table = plain.table(raw, "", _CASE_FILE_KEYS, required=("units", "description", "source",
+                                                             "alternative"))
+    units_text = table["units"]
+    if not isinstance(units_text, str) or units_text.upper() not in SYSTEMS:
+        plain.expected("units", '"SI" (kN, m) or "US" (kip, ft)', units_text)
+    units = SYSTEMS[units_text.upper()]
+    description = " ".join(plain.text(table["description"], "description").split())
+    source = " ".join(plain.text(table["source"], "source").split())
+    reader = _ConvertingReader(name, units, target or units)
+    case = read_design_case(table, path.stem, reader, path.parent, parameters)
+    return LoadModelFile(path.stem, path, "design case", units, description, source, case,
+                         given=MappingProxyType(raw), sha256=read.sha256)

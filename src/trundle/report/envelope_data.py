@@ -33,6 +33,7 @@ from trundle.loads.vehicles import Train, Vehicle
 from trundle.report.format import length as _length
 from trundle.report.format import position as _position
 from trundle.workflows.crane_runway import RunwayResult
+from trundle.workflows.design_envelope import DesignResult
 from trundle.workflows.moving_loads import MovingLoadsResult
 
 # The section families of the envelope, in the order of the CSV columns.
@@ -133,6 +134,8 @@ class EnvelopeResults:
     absolute : per span and per "max"/"min", the worst absolute moment over all loads
     extra : sections added by other workflows
     runway : the crane runway result (analyse_runway, run by the caller) or None
+    design : the design-envelope result (workflows.design_envelope.run, run by the caller)
+        or None
     """
 
     model: Model
@@ -145,6 +148,7 @@ class EnvelopeResults:
     absolute: tuple[dict[str, AbsoluteExtreme | None], ...]
     extra: tuple[ExtraSection, ...] = ()
     runway: RunwayResult | None = None
+    design: DesignResult | None = None
     cache: dict[Any, Any] = field(default_factory=dict, repr=False, compare=False)
 
     @property
@@ -170,8 +174,8 @@ class EnvelopeResults:
 
 
 def collect(model: Model, provenance: Provenance, moving: MovingLoadsResult | None = None,
-            providers: Sequence[SectionProvider] = (), runway: RunwayResult | None = None
-            ) -> EnvelopeResults:
+            providers: Sequence[SectionProvider] = (), runway: RunwayResult | None = None,
+            design: DesignResult | None = None) -> EnvelopeResults:
     """Gather what the outputs show: the model, where it comes from, the moving-load result
     (computed by :func:`trundle.workflows.moving_loads.run`; None for a model without
     ``[[load]]`` tables) and the sections the ``providers`` add. Runs no analysis of its own.
@@ -179,10 +183,11 @@ def collect(model: Model, provenance: Provenance, moving: MovingLoadsResult | No
     Raises ModelFileError if the model has neither ``[[load]]`` nor ``[[crane]]`` tables.
     """
     entries = loads_of(model)
-    if not entries and not cranes_of(model):
+    if not entries and not cranes_of(model) and design is None:
         raise ModelFileError(model.name, "load", "expected at least one [[load]] table (a "
                              "vehicle, a train, a placed uniform load or a library load "
-                             "model) or [[crane]] tables with a [runway] table, see "
+                             "model), [[crane]] tables with a [runway] table, or design tables "
+                             "([[design_load]], [[permanent]], …), see "
                              "docs/model-file.md; found nothing")
     if bool(entries) != (moving is not None):
         raise ValueError("collect: a moving-load result is needed exactly when the model has "
@@ -190,7 +195,8 @@ def collect(model: Model, provenance: Provenance, moving: MovingLoadsResult | No
     env = moving.env if moving is not None else None
     absolute = moving.absolute if moving is not None else ()
     results = EnvelopeResults(model, provenance.model_file, provenance.sha256, provenance.date,
-                              provenance.version, entries, env, absolute, runway=runway)
+                              provenance.version, entries, env, absolute, runway=runway,
+                              design=design)
     extra = tuple(s for s in (p(results) for p in providers) if s is not None)
     if extra:
         results = dataclasses.replace(results, extra=extra)
@@ -617,7 +623,7 @@ def product_words(entry: LoadEntry) -> str:
 
 def kind_words(kind: str) -> str:
     return {"vehicle": "vehicle", "train": "train", "uniform": "placed uniform",
-            "together": "acting together"}[kind]
+            "together": "acting together", "design case": "design case"}[kind]
 
 
 def support_kind_words(support: Any) -> str:

@@ -169,7 +169,8 @@ def library_detail(model: LoadModelFile) -> list[TableData | str]:
     if model.factors:
         extras.append("factors " + ", ".join(f"{n} × {v:g}" for n, v in model.factors))
     out.extend(extras)
-    out.append(f'use in a model file:  [[load]]  use = "{model.name}"')
+    table = "[[design_load]]" if model.kind == "design case" else "[[load]]"
+    out.append(f'use in a model file:  {table}  use = "{model.name}"')
     return out
 
 

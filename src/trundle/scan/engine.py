@@ -15,7 +15,7 @@ from functools import cached_property
 import numpy as np
 from numpy.typing import NDArray
 
-from trundle.core.influence import InfluenceSet, LinePieces
+from trundle.core.influence import InfluenceSet, LinePieces, signed_areas
 from trundle.scan.kernels import KIND_POINT, KIND_RUNNING_INTEGRAL, evaluate_lines, scan_rows
 
 # lines with at least this many pieces are swept from their largest piece outwards and stop
@@ -123,6 +123,19 @@ class LineBatch:
         """(4, m, n) the lines on the shared ``knots`` (PPoly layout). Costs lines × every
         knot: for a few lines or for output, not for the scan."""
         return self._shared(self.line_coef)
+
+    @cached_property
+    def signed_areas(self) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
+        """(∫ max(IL, 0), ∫ min(IL, 0)) of every line, split exactly at its real roots, each
+        line on its own breaks (linear in the pieces; kept with the batch, which the
+        envelope's prepared-lines cache shares between calls)."""
+        n = self.n_lines
+        pos, neg = np.zeros(n), np.zeros(n)
+        for j in range(n):
+            m = int(self.n_pieces[j])
+            p, q = signed_areas(self.line_knots[j, :m + 1], self.line_coef[j, :m, :].T[:, :, None])
+            pos[j], neg[j] = p[0], q[0]
+        return pos, neg
 
     @cached_property
     def running(self) -> NDArray[np.float64]:

@@ -1,1 +1,1 @@
-"""One module per job: spec → run() → result (moving loads, crane runway)."""
+"""One module per job: spec → run() → result (moving loads, crane runway, design envelope)."""
