@@ -15,7 +15,7 @@ import pytest
 
 import trundle
 from cli_helpers import assert_one_line_error, expected_key, run
-from trundle.io import outputs as _io
+from trundle.io import output_set as _io
 from trundle.io.modelfile import load_model
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -228,32 +228,19 @@ def test_bad_input_leaves_earlier_outputs_untouched(tmp_path):
     assert {p.name: p.read_bytes() for p in tmp_path.iterdir()} == before
 
 
-def test_atomic_write_leaves_no_partial_file(tmp_path, monkeypatch):
-    target = tmp_path / "lines.csv"
-    target.write_text("old")
-
-    def broken_replace(source, destination):
-        raise OSError(28, "No space left on device")
-
-    monkeypatch.setattr(_io.os, "replace", broken_replace)
-    with pytest.raises(OSError):
-        _io.write_atomic(target, "new")
-    assert target.read_text() == "old"
-    assert [p.name for p in tmp_path.iterdir()] == ["lines.csv"]
-
-
 def test_written_files_get_ordinary_permissions(tmp_path):
-    path = _io.write_atomic(tmp_path / "a.txt", "x")
+    written, _ = _io.write_output_set(tmp_path / "out", {"a.txt": "x"})
     mask = os.umask(0)
     os.umask(mask)
-    assert path.stat().st_mode & 0o777 == 0o666 & ~mask
+    assert written[0].stat().st_mode & 0o777 == 0o666 & ~mask
+    assert (tmp_path / "out").stat().st_mode & 0o777 == 0o777 & ~mask
 
 
 # --- --out: a folder holds one run's results ----------------------------------------------
 
 
 def test_a_second_run_into_a_used_folder_leaves_only_its_own_files(tmp_path):
-    from trundle.io.outputs import MANIFEST
+    from trundle.io.output_set import MANIFEST
 
     root = Path(__file__).resolve().parents[1]
     crane_model = root / "examples" / "cranes" / "hall_kestrel_quay_si.toml"
@@ -276,7 +263,7 @@ def test_a_second_run_into_a_used_folder_leaves_only_its_own_files(tmp_path):
 
 
 def test_a_damaged_manifest_never_reaches_outside_the_folder(tmp_path):
-    from trundle.io.outputs import MANIFEST, write_output_set
+    from trundle.io.output_set import MANIFEST, write_output_set
 
     outside = tmp_path / "keep.txt"
     outside.write_text("x")

@@ -17,7 +17,7 @@ import pytest
 from cli_helpers import assert_one_line_error, column, expected_key, read_csv, run
 from trundle.io.cranes import cranes_of, runway_spec
 from trundle.io.modelfile import load_model
-from trundle.io.outputs import MANIFEST
+from trundle.io.output_set import MANIFEST
 from trundle.workflows.crane_runway import RunwayResult, analyse_runway, lateral_extremes
 
 ROOT = Path(__file__).resolve().parents[1]

@@ -18,7 +18,8 @@ import trundle
 from cli_helpers import assert_one_line_error, column, expected_key, read_csv, run
 from trundle.io.loads import loads_of
 from trundle.io.modelfile import load_model
-from trundle.io.outputs import MANIFEST, Provenance
+from trundle.io.output_set import MANIFEST
+from trundle.io.outputs import Provenance
 from trundle.report.envelope_data import ExtraSection, TableData, collect
 from trundle.report.envelope_report import envelope_files, envelope_html
 from trundle.report.envelope_tables import envelope_document
@@ -264,7 +265,7 @@ def test_extra_sections_reach_the_json_and_the_report():
         return ExtraSection("Crane runway checks", tables=(table,), notes=("A note.",),
                             files={"extra.txt": "hello\n"}, data={"wheels": [12.5]})
 
-    results = collect(model, Provenance.of_file(SI_EXAMPLE), _moving(model),
+    results = collect(model, Provenance.of_model(model, str(SI_EXAMPLE)), _moving(model),
                       providers=[provider, lambda r: None])
     assert [s.title for s in results.extra] == ["Crane runway checks"]
     document = envelope_document(results)
@@ -319,7 +320,7 @@ def test_cautions_name_invented_load_models_inside_trains(tmp_path):
                      'vehicles = ["demo-service-truck", "demo-service-truck"]\n'
                      'gaps = ["10 m"]\n')
     read = load_model(model)
-    results = collect(read, Provenance.of_file(model), _moving(read))
+    results = collect(read, Provenance.of_model(read, str(model)), _moving(read))
     assert results.loads[0].source == ""  # a train of library vehicles has no source itself
     assert any("demo-service-truck" in c and "not code load models" in c
                for c in cautions(results))

@@ -291,7 +291,7 @@ def test_bad_models_raise_one_line_naming_file_and_key(path):
 def test_missing_file_and_directory():
     with pytest.raises(ModelFileError, match="no_such.toml: file: expected an existing"):
         load_model("no_such.toml")
-    with pytest.raises(ModelFileError, match="found a directory"):
+    with pytest.raises(ModelFileError, match="found a folder"):
         load_model(ROOT / "examples")
 
 

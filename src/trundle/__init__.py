@@ -1,5 +1,11 @@
 """trundle: exact influence lines and moving-load envelopes for statically indeterminate beams."""
 
+from trundle.core._jit import use_user_cache
+
+use_user_cache()  # before numba is imported: compiled kernels go to a per-user cache folder
+
+# ruff: noqa: E402 (the cache folder is chosen before the imports below import numba)
+
 from trundle._version import __version__
 from trundle.analysis.envelope import Envelope, Governing, envelope
 from trundle.core.beam import Beam, ModelError, Spring

@@ -24,9 +24,12 @@ from trundle.io.cranes import cranes_of, runway_spec
 from trundle.io.loads import loads_of
 from trundle.io.model_paths import MAX_POINTS_PER_AXIS
 from trundle.io.modelfile import Model, ModelFileError, load_model
-from trundle.io.outputs import write_output_set
+from trundle.io.output_set import OutputSet, OutputSetError, check_out_option
+from trundle.io.outputs import Provenance
+from trundle.io.plausibility import deflection_warnings, model_warnings
 from trundle.io.units import UnitError, parse_quantity
 from trundle.report import CAUTION, LOAD_MODEL_CAUTION
+from trundle.report.safe_text import terminal_text
 from trundle.workflows.sweep import DEFAULT_EFFECTS, MAX_POINTS
 
 EFFECT_CHOICES = ("moment", "shear", "reaction", "deflection", "rotation", "support-moment")
@@ -48,7 +51,7 @@ class UserError(click.ClickException):
 
 
 def _one_line(text: str) -> str:
-    return " ".join(str(text).split())
+    return terminal_text(str(text))  # one line, no control characters
 
 
 class _Commands(click.Group):
@@ -68,7 +71,7 @@ class _Commands(click.Group):
         except UserError as error:
             error.show()
             sys.exit(error.exit_code)
-        except (ModelFileError, ModelError, UnitError) as error:
+        except (ModelFileError, ModelError, UnitError, OutputSetError) as error:
             _fail(str(error))
         except click.ClickException as error:
             _fail(error.format_message())
@@ -89,8 +92,35 @@ def _console() -> Console:
                    soft_wrap=False)
 
 
-def _load(model_file: str) -> Model:
-    return load_model(model_file)
+def _out_folder(value: str | None) -> Path | None:
+    """The --out folder; a blank name is refused (it would mean the current folder)."""
+    if value is None:
+        return None
+    try:
+        return check_out_option(value)
+    except OutputSetError as error:
+        raise UserError(str(error)) from None
+
+
+def _load(model_file: str, allow_paths: Sequence[str] = ()) -> Model:
+    """Read the model file and print its plausibility warnings (one line each, stderr)."""
+    model = load_model(model_file, allowed=allow_paths)
+    _warn(model_warnings(model))
+    return model
+
+
+def _warn(warnings: Sequence[str]) -> None:
+    for warning in warnings:
+        click.echo(_one_line(warning), err=True)
+
+
+def _allow_path_option(function: Any) -> Any:
+    return click.option(
+        "--allow-path", "allow_paths", multiple=True, metavar="DIR",
+        type=click.Path(exists=True, file_okay=False),
+        help="A folder outside the model file's folder from which `use` may read load-model "
+             "files (by default only the model's folder tree and the library); repeat for "
+             "several.")(function)
 
 
 @click.group(cls=_Commands, context_settings={"help_option_names": ["-h", "--help"]},
@@ -117,7 +147,8 @@ def cli(context: click.Context) -> None:
 
 @cli.command("summary")
 @click.argument("model_file", metavar="MODEL")
-def summary_command(model_file: str) -> None:
+@_allow_path_option
+def summary_command(model_file: str, allow_paths: tuple[str, ...]) -> None:
     """Check a model file and summarise the beam it describes.
 
     Prints spans, supports, hinges, flexural stiffness, the degree of indeterminacy and the
@@ -130,16 +161,17 @@ def summary_command(model_file: str) -> None:
     """
     from trundle.report.tables import format_length, model_tables
 
-    model = _load(model_file)
+    model = _load(model_file, allow_paths)
     beam, units = model.beam, model.units
     console = _console()
     length = units.label("length")
-    console.print(model.title, style="bold")
-    console.print(f"model file {model_file}; units {units.name} (force {units.force}, length "
-                  f"{length}; deflection shown in {units.deflection})")
+    console.print(terminal_text(model.title), style="bold")
+    console.print(terminal_text(f"model file {model_file}; units {units.name} (force "
+                                f"{units.force}, length {length}; deflection shown in "
+                                f"{units.deflection})"))
     description = model.raw.get("description")
     if description:
-        console.print(" ".join(str(description).split()), style="dim")
+        console.print(terminal_text(str(description)), style="dim")
     console.print(f"{beam.n_spans} span(s), total length {format_length(beam.length)} {length}; "
                   f"degree of indeterminacy {beam.degree_of_indeterminacy}")
     for table in model_tables(model):
@@ -181,7 +213,8 @@ def summary_command(model_file: str) -> None:
               show_default=True,
               help="Shear just left or right of the section; auto gives both sides at "
                    "interior supports (and both rotations at hinges).")
-@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False, path_type=Path),
+@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False),
+              callback=lambda _context, _option, value: _out_folder(value),
               help="Write lines.csv, lines.json and a figure into this folder; files of an "
                    "earlier trundle run there that this run does not write are removed.")
 @click.option("--format", "figure_format", type=click.Choice(["png", "svg", "pdf"]),
@@ -190,9 +223,11 @@ def summary_command(model_file: str) -> None:
 @click.option("--ordinates/--no-ordinates", default=None,
               help="Print ordinates at tenth points (default: when there are 6 lines or "
                    "fewer).")
+@_allow_path_option
 def lines_command(model_file: str, effects: tuple[str, ...], positions: tuple[str, ...],
                   supports: tuple[int, ...], side: str, out_dir: Path | None,
-                  figure_format: str, no_figure: bool, ordinates: bool | None) -> None:
+                  figure_format: str, no_figure: bool, ordinates: bool | None,
+                  allow_paths: tuple[str, ...]) -> None:
     """Influence lines of a model: ordinates, extremes, CSV, JSON and a figure.
 
     An influence line gives an effect at a fixed section (or support) for a unit downward
@@ -207,16 +242,24 @@ def lines_command(model_file: str, effects: tuple[str, ...], positions: tuple[st
           --at 3.6 --at 7.2 -e reaction --support 1 --out results/
       trundle lines examples/millrace_access_bridge_us.toml -e deflection --at "33 ft"
     """
+    model = _load(model_file, allow_paths)
+    chosen = _choose_effects(model, effects, positions, supports, side)
+    with _output_set(out_dir, "lines") as outputs:  # locked before the work, swapped at the end
+        lines = model.beam.influence_set(chosen)
+        _lines_report(model, model_file, lines, outputs, figure_format, no_figure, ordinates)
+
+
+def _lines_report(model: Model, model_file: str, lines: InfluenceSet,
+                  outputs: OutputSet | None, figure_format: str, no_figure: bool,
+                  ordinates: bool | None) -> None:
     from trundle.report.tables import extremes_table, ordinates_tables
 
-    model = _load(model_file)
     beam, units = model.beam, model.units
-    chosen = _choose_effects(model, effects, positions, supports, side)
-    lines = beam.influence_set(chosen)
     console = _console()
-    console.print(model.title, style="bold")
-    console.print(f"model file {model_file}; {len(lines)} influence line(s) for a unit load "
-                  f"of 1 {units.force}; x in {units.label('length')}")
+    console.print(terminal_text(model.title), style="bold")
+    console.print(terminal_text(f"model file {model_file}; {len(lines)} influence line(s) "
+                                f"for a unit load of 1 {units.force}; x in "
+                                f"{units.label('length')}"))
     console.print(extremes_table(lines, beam, units))
     if ordinates or (ordinates is None and len(lines) <= 6):
         for table in ordinates_tables(lines, beam, units):
@@ -224,11 +267,34 @@ def lines_command(model_file: str, effects: tuple[str, ...], positions: tuple[st
     elif ordinates is None:
         console.print(f"(ordinates at tenth points are not printed for {len(lines)} lines; "
                       "use --ordinates, or --out for the full CSV)", style="dim")
-    if out_dir is not None:
-        written = _write_outputs(model, model_file, lines, out_dir, figure_format,
-                                 not no_figure)
-        console.print("wrote " + ", ".join(str(p) for p in written))
+    if outputs is not None:
+        written, removed = outputs.commit(_lines_files(model, model_file, lines, figure_format,
+                                                       not no_figure))
+        _print_written(console, written, removed)
     console.print(CAUTION, style="dim")
+
+
+class _NoOutputs:
+    """Stands in for an OutputSet when there is no --out."""
+
+    def __enter__(self) -> None:
+        return None
+
+    def __exit__(self, *exception: object) -> None:
+        return None
+
+
+def _output_set(out_dir: Path | None, command: str) -> OutputSet | _NoOutputs:
+    """The output set of --out (locked on entry, refused at once if another run writes into
+    the folder or it holds another command's outputs), or nothing without --out."""
+    return OutputSet(out_dir, command=command) if out_dir is not None else _NoOutputs()
+
+
+def _print_written(console: Console, written: Sequence[Path], removed: Sequence[Path]) -> None:
+    console.print(terminal_text("wrote " + ", ".join(str(p) for p in written)))
+    if removed:
+        console.print(terminal_text("removed the earlier run's "
+                                    + ", ".join(p.name for p in removed)))
 
 
 def _choose_effects(model: Model, kinds: Sequence[str], positions: Sequence[str],
@@ -311,19 +377,15 @@ def _sides(beam: Beam, kind: str, x: float, side: str) -> list[str | None]:
     return [None]
 
 
-def _write_outputs(model: Model, model_file: str, lines: InfluenceSet, out_dir: Path,
-                   figure_format: str, with_figure: bool) -> list[Path]:
+def _lines_files(model: Model, model_file: str, lines: InfluenceSet, figure_format: str,
+                 with_figure: bool) -> dict[str, bytes | str]:
     from trundle.report.tables import lines_csv, lines_json, sample
 
     beam, units = model.beam, model.units
-    if out_dir.exists() and not out_dir.is_dir():
-        raise UserError(f"--out {out_dir}: expected a folder, found a file")
     generator = f"trundle {__version__}"
     sampled = sample(lines, beam, units, per_span=40, extra=beam.tenth_points())
-    from trundle.io.outputs import Provenance
-
     files: dict[str, bytes | str] = {
-        "lines.csv": Provenance.of_file(model_file).csv_comment() + "\n"
+        "lines.csv": Provenance.of_model(model, model_file).csv_comment() + "\n"
         + lines_csv(lines, beam, units, sampled),
         "lines.json": lines_json(lines, beam, units, sampled, model.title, model_file,
                                  generator),
@@ -334,10 +396,7 @@ def _write_outputs(model: Model, model_file: str, lines: InfluenceSet, out_dir: 
         axes = influence_figure(lines, beam, units, model.title, source=model_file,
                                 generator=generator)
         files[f"lines.{figure_format}"] = figure_bytes(axes[0].figure, figure_format)
-    try:
-        return write_output_set(out_dir, files)[0]
-    except OSError as error:
-        raise UserError(f"--out {out_dir}: cannot write ({error.strerror or error})") from None
+    return files
 
 
 # ------------------------------------------------------------------------------------------
@@ -346,7 +405,8 @@ def _write_outputs(model: Model, model_file: str, lines: InfluenceSet, out_dir: 
 
 @cli.command("envelope", epilog=_DESIGN_SAFETY_HELP)
 @click.argument("model_file", metavar="MODEL")
-@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False, path_type=Path),
+@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False),
+              callback=lambda _context, _option, value: _out_folder(value),
               help="Write envelope.csv, reactions.csv, envelope.json, the figures and "
                    "report.html into this folder; files of an earlier trundle run there "
                    "that this run does not write again are removed.")
@@ -354,8 +414,9 @@ def _write_outputs(model: Model, model_file: str, lines: InfluenceSet, out_dir: 
               show_default=True, help="Format of the figure files (the report embeds PNG).")
 @click.option("--no-figure", is_flag=True, help="With --out: write no figure files.")
 @click.option("--no-report", is_flag=True, help="With --out: write no report.html.")
+@_allow_path_option
 def envelope_command(model_file: str, out_dir: Path | None, figure_format: str,
-                     no_figure: bool, no_report: bool) -> None:
+                     no_figure: bool, no_report: bool, allow_paths: tuple[str, ...]) -> None:
     """Envelopes of moment, shear, deflection and reactions under the model's loads.
 
     Runs every [[load]] of the model file (vehicles both ways unless one way, trains,
@@ -387,47 +448,53 @@ def envelope_command(model_file: str, out_dir: Path | None, figure_format: str,
       trundle envelope examples/cranes/hall_kestrel_quay_si.toml --out results/
       trundle envelope examples/design/alder_creek_overpass_hl93_us.toml --out results/
     """
+    model = _load(model_file, allow_paths)
+    with _output_set(out_dir, "envelope") as outputs:  # locked before the work
+        _envelope_run(model, model_file, outputs, figure_format, no_figure, no_report)
+
+
+def _envelope_run(model: Model, model_file: str, outputs: OutputSet | None,
+                  figure_format: str, no_figure: bool, no_report: bool) -> None:
     from trundle.io.design_tables import design_model_of, design_spec_of, has_design_tables
-    from trundle.io.loads import loads_of
-    from trundle.io.outputs import Provenance
     from trundle.report.envelope_data import collect
     from trundle.report.sections import SECTIONS
     from trundle.workflows import design_envelope, moving_loads
     from trundle.workflows.crane_runway import analyse_runway
 
-    model = _load(model_file)
-    if out_dir is not None and out_dir.exists() and not out_dir.is_dir():
-        raise UserError(f"--out {out_dir}: expected a folder, found a file")
     entries = loads_of(model)
     moving = None
     if entries:
         moving = moving_loads.run(moving_loads.MovingLoadsSpec(
             model.beam, [entry.case for entry in entries], sections=model.sections))
+        _warn(_deflection_warnings(model, moving.env))
     spec = runway_spec(model)
     runway = (analyse_runway(model.beam, spec, sections=model.sections)
               if spec is not None else None)
     design = (design_envelope.run(design_spec_of(design_model_of(model)))
               if has_design_tables(model) else None)
-    results = collect(model, Provenance.of_file(model_file), moving, providers=SECTIONS,
-                      runway=runway, design=design)
+    results = collect(model, Provenance.of_model(model, model_file), moving,
+                      providers=SECTIONS, runway=runway, design=design)
     console = _console()
     for renderable in _envelope_summary(results):
         console.print(renderable)
-    if out_dir is not None:
+    if outputs is not None:
         from trundle.report.envelope_report import envelope_files
 
-        files = envelope_files(results, figure_format, with_figures=not no_figure,
-                               with_report=not no_report)
-        try:
-            written, removed = write_output_set(out_dir, files)
-        except OSError as error:
-            raise UserError(f"--out {out_dir}: cannot write ({error.strerror or error})") \
-                from None
-        console.print("wrote " + ", ".join(str(p) for p in written))
-        if removed:
-            console.print("removed the earlier run's " + ", ".join(p.name for p in removed))
+        written, removed = outputs.commit(envelope_files(
+            results, figure_format, with_figures=not no_figure, with_report=not no_report))
+        _print_written(console, written, removed)
     for caution in _envelope_cautions(results):
         console.print(caution, style="dim")
+
+
+def _deflection_warnings(model: Model, env: Any) -> list[str]:
+    """span / 50 warnings from the envelope's deflections (none if it has no deflection)."""
+    try:
+        largest = [max(abs(a), abs(b)) for a, b in zip(env.max("deflection"),
+                                                        env.min("deflection"), strict=True)]
+    except (KeyError, ValueError):
+        return []
+    return deflection_warnings(model, list(env.sections), largest)
 
 
 def _envelope_summary(results: Any) -> list[Any]:
@@ -437,17 +504,18 @@ def _envelope_summary(results: Any) -> list[Any]:
     values = ("values include impact and factors" if results.has_loads
               else "design envelope (no [[load]] tables)" if results.design is not None
               else "crane runway only (no [[load]] tables)")
-    header = [results.model.title, f"model file {results.model_file}; units {units.name}; "
-              f"{len(results.sections)} sections; {values}; "
-              "travel → towards +x, ← towards -x"]
+    header = [terminal_text(results.model.title),
+              terminal_text(f"model file {results.model_file}; units {units.name}; "
+                            f"{len(results.sections)} sections; {values}; "
+                            "travel → towards +x, ← towards -x")]
     out: list[Any] = [Text(header[0], style="bold"), Text(header[1])]
     if results.has_loads:
         out.append(to_rich(loads_table(results)))
     out.extend(to_rich(t) for t in summary_tables(results))
     for section in results.extra:
-        out.append(Text(section.title, style="bold"))
+        out.append(Text(terminal_text(section.title), style="bold"))
         out.extend(to_rich(t) for t in section.tables)
-        out.extend(Text(note) for note in section.notes)
+        out.extend(Text(terminal_text(note)) for note in section.notes)
     return out
 
 
@@ -616,10 +684,10 @@ def sweep_command(model_file: str, vary: tuple[str, ...], effects: tuple[str, ..
         console.print(f"({len(result.points)} points; every point is in sweep.csv with --out)",
                       style="dim")
     if out_dir is not None:
-        files = sweep_files(result, Provenance.of_file(model_file), figure_format,
+        files = sweep_files(result, Provenance.of_model(model, model_file), figure_format,
                             with_figure=not no_figure, with_report=not no_report)
         try:
-            written, removed = write_output_set(out_dir, files)
+            written, removed = write_output_set(out_dir, files, command="sweep")
         except OSError as error:
             raise UserError(f"--out {out_dir}: cannot write ({error.strerror or error})") \
                 from None

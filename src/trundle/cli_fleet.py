@@ -15,7 +15,8 @@ from rich.console import Console
 from rich.table import Table
 
 from trundle.io.inventory import InventoryError, read_inventory
-from trundle.io.outputs import Provenance, write_output_set
+from trundle.io.output_set import OutputSetError, write_output_set
+from trundle.io.outputs import Provenance
 from trundle.io.traffic import TrafficFileError, read_traffic
 from trundle.report import CAUTION, LOAD_MODEL_CAUTION
 from trundle.report.format import decimals, fixed, position, verdict_cell

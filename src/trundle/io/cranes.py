@@ -25,7 +25,9 @@ from typing import Any
 
 from trundle.analysis.checks import DETAIL_CATEGORIES
 from trundle.core.beam import ModelError
+from trundle.io.limits import LimitError, check_finite
 from trundle.io.modelfile import _MISSING, Model, ModelFileError, Reader
+from trundle.io.unit_guard import guard_unit_text
 from trundle.io.units import UnitError, UnitSystem, parse_quantity, registry, show_value
 from trundle.loads.cranes import OPERATIONS, Crane
 from trundle.workflows.crane_runway import COMBINATIONS, SERVICE_CLASSES, RunwaySpec
@@ -105,6 +107,7 @@ def read_cranes(value: Any, reader: Reader) -> tuple[CraneEntry, ...]:
                         "and operation", value)
     if not value:
         reader.expected(CRANE_TABLE, "at least one [[crane]] table", value)
+    reader.limit(CRANE_TABLE, "cranes", value)
     if RUNWAY_TABLE not in _raw(reader):
         reader.expected(RUNWAY_TABLE, 'a [runway] table with at least service_class (e.g. '
                         '[runway] service_class = "C") to go with the [[crane]] tables',
@@ -126,7 +129,7 @@ def read_cranes(value: Any, reader: Reader) -> tuple[CraneEntry, ...]:
 def _read_crane(item: dict[str, Any], key: str, reader: Reader, several: bool) -> CraneEntry:
     assert reader.units is not None
     table = reader.table(item, key, _CRANE_KEYS, required=_CRANE_REQUIRED)
-    name = reader.text(table["name"], f"{key}.name").strip()
+    name = reader.text_limit(f"{key}.name", reader.text(table["name"], f"{key}.name").strip())
     if not name:
         reader.expected(f"{key}.name", "a name that is not blank", table["name"])
     capacity = _force_or_mass(table["capacity"], f"{key}.capacity", reader)
@@ -147,6 +150,7 @@ def _read_crane(item: dict[str, Any], key: str, reader: Reader, several: bool) -
     if not items:
         reader.expected(f"{key}.wheel_spacings", "at least one spacing (two wheels per rail "
                         "or more)", items)
+    reader.limit(f"{key}.wheel_spacings", "wheels", items)
     spacings = tuple(reader.positive(s, f"{key}.wheel_spacings[{j}]", "length")
                      for j, s in enumerate(items))
     buffer_length = None
@@ -204,7 +208,9 @@ def _force_or_mass(value: Any, key: str, reader: Reader) -> float:
     if isinstance(value, bool) or not isinstance(value, int | float | str):
         reader.expected(key, expected, value)
     number: float | None = None
-    if isinstance(value, str) and not _is_number(value):
+    # guard_unit_text: never hand pint "2**(2**40) t" (the force reader words the refusal)
+    if isinstance(value, str) and not _is_number(value) and \
+            guard_unit_text(value.strip()) is None:
         ureg = registry()
         try:
             parsed = ureg.Quantity(value.strip())
@@ -212,7 +218,10 @@ def _force_or_mass(value: Any, key: str, reader: Reader) -> float:
             parsed = None
         if parsed is not None and parsed.dimensionality == ureg.Quantity(1, "kg").dimensionality:
             weight = parsed * ureg.Quantity(STANDARD_GRAVITY)
-            number = float(weight.to(units.force).magnitude)
+            try:
+                number = float(weight.to(units.force).magnitude)
+            except (OverflowError, ValueError, ZeroDivisionError):
+                number = math.nan  # refused below as not finite
     if number is None:
         try:
             number = parse_quantity(value, "force", units)
@@ -224,7 +233,10 @@ def _force_or_mass(value: Any, key: str, reader: Reader) -> float:
             reader.fail(key, f"expected {expected}, {found}{reason}")
     if not (math.isfinite(number) and number >= 0):
         reader.expected(key, f"{expected} of zero or more", value)
-    return number
+    try:
+        return check_finite(key, number, "a force or a mass")
+    except LimitError as error:
+        reader.fail(key, error.detail)
 
 
 _MASS_EXAMPLE = {"SI": "20 t", "US": "15 ton"}
@@ -359,6 +371,9 @@ def _section_modulus(value: Any, key: str, reader: Reader) -> float:
         reader.expected(key, expected, value)
     ureg = registry()
     target = f"{units.length}**3"
+    refused = guard_unit_text(value.strip())
+    if refused is not None:
+        reader.fail(key, f"expected {expected}, found a value that cannot be read ({refused})")
     try:
         parsed = ureg.Quantity(value.strip())
     except Exception:  # pint's parser raises many kinds (undefined unit, syntax, …)
@@ -367,10 +382,16 @@ def _section_modulus(value: Any, key: str, reader: Reader) -> float:
     if parsed.dimensionality != ureg.Quantity(1, target).dimensionality:
         reader.fail(key, f"expected {expected}, found {show_value(value)}, which is not a "
                     "length cubed")
-    number = float(parsed.to(target).magnitude)
+    try:
+        number = float(parsed.to(target).magnitude)
+    except (OverflowError, ValueError, ZeroDivisionError):
+        number = math.nan  # "1e400 cm^3": refused below as not finite
     if not (math.isfinite(number) and number > 0):
         reader.expected(key, f"{expected} greater than zero", value)
-    return number
+    try:
+        return check_finite(key, number, "a section modulus")
+    except LimitError as error:
+        reader.fail(key, error.detail)
 
 
 def _cycles(value: Any, key: str, reader: Reader) -> float:
@@ -398,7 +419,7 @@ def given_text(value: Any) -> str:
 
 def mass_given(value: Any) -> bool:
     """Whether ``value`` was written as a mass (and so converted with standard gravity)."""
-    if not isinstance(value, str) or _is_number(value):
+    if not isinstance(value, str) or _is_number(value) or guard_unit_text(value.strip()):
         return False
     ureg = registry()
     try:

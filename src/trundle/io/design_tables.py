@@ -25,6 +25,7 @@ from trundle.analysis.permanent import PermanentLoad
 from trundle.core.beam import ModelError
 from trundle.io.loads import loads_of, read_design_case_file, read_load_model_file
 from trundle.io.modelfile import _MISSING, ModelFileError, Reader, load_model
+from trundle.io.source import SourceError, resolve_use
 from trundle.io.units import show_value
 from trundle.loads import library
 from trundle.loads.cases import LoadCase
@@ -351,8 +352,13 @@ def read_design_loads(value: Any, reader: Reader) -> tuple[DesignCase, ...]:
         key = f"design_load[{i}]"
         table = reader.table(item, key, _DESIGN_LOAD_KEYS, required=("use",))
         text = reader.text(table["use"], f"{key}.use").strip()
-        if "/" in text or text.endswith(".toml"):
-            path = (base / text) if not Path(text).is_absolute() else Path(text)
+        if "/" in text or "\\" in text or text.endswith(".toml") or text.startswith("~"):
+            # inside the model's folder tree, the library or an --allow-path folder only
+            try:
+                path = resolve_use(text, base, library.folder(), allowed=reader.allowed,
+                                   shown=reader.file, key=f"{key}.use")
+            except SourceError as error:
+                reader.fail(f"{key}.use", error.detail)
             if not path.is_file():
                 reader.fail(f"{key}.use", f'expected an existing load-model file, found "{text}"'
                             f" ({path} does not exist)")

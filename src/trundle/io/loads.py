@@ -22,7 +22,7 @@ import hashlib
 import math
 import re
 import tomllib
-from collections.abc import Mapping
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from fractions import Fraction
 from pathlib import Path
@@ -30,7 +30,9 @@ from types import MappingProxyType
 from typing import Any
 
 from trundle.core.beam import ModelError
+from trundle.io.limits import LimitError, check_product
 from trundle.io.modelfile import Model, ModelFileError, Reader, _syntax_error
+from trundle.io.source import SourceError, parse_toml, read_source, resolve_use
 from trundle.io.units import SYSTEMS, UnitSystem, parse_quantity, registry, show_value
 from trundle.loads import library
 from trundle.loads.cases import LoadCase, Together
@@ -80,6 +82,7 @@ class LoadModelFile:
     impact : dynamic allowance as a fraction (0 if the file gives none)
     factors : ((name, value), …) as written in the file
     given : the parsed TOML, as written
+    sha256 : hex SHA-256 of the bytes parsed
     """
 
     name: str
@@ -92,6 +95,18 @@ class LoadModelFile:
     impact: float = 0.0
     factors: tuple[tuple[str, float], ...] = ()
     given: Mapping[str, Any] = field(default_factory=dict, repr=False)
+    sha256: str = ""
+
+    @property
+    def fact(self) -> tuple[Path, str, str]:
+        """(path, SHA-256, ``source`` as written): what outputs record of this file."""
+        return self.path, self.sha256, str(self.given.get("source", ""))
+
+
+def _facts(files: Sequence[Path], reader: Reader) -> tuple[tuple[Path, str, str], ...]:
+    """The facts of ``files`` recorded by this reader when it read them (none re-read)."""
+    known = getattr(reader, "file_facts", {})
+    return tuple(known[p] for p in files) if all(p in known for p in files) else ()
 
 
 @dataclass(frozen=True)
@@ -175,6 +190,7 @@ def read_loads(value: Any, reader: Reader) -> tuple[LoadEntry, ...]:
                         value)
     if not value:
         reader.expected(TABLE, "at least one [[load]] table", value)
+    reader.limit(TABLE, "loads", value)
     base = _base_folder(reader.file)
     entries: list[LoadEntry | _Pending] = []
     seen: dict[str, int] = {}
@@ -256,8 +272,9 @@ def _together(pending: _Pending, entries: list[Any], seen: Mapping[str, int],
         cases.append(other.case)
         files.extend(other.files)
     case = _build(Together, pending.key, reader, parts=tuple(cases), name=pending.name)
-    return LoadEntry(pending.name, "together", case, given=pending.given,
-                     files=tuple(dict.fromkeys(files)))
+    files = list(dict.fromkeys(files))
+    return LoadEntry(pending.name, "together", case, given=pending.given, files=tuple(files),
+                     file_facts=_facts(files, reader))
 
 
 def _read_entry(item: dict[str, Any], key: str, reader: Reader, base: Path
@@ -297,7 +314,8 @@ def _read_entry(item: dict[str, Any], key: str, reader: Reader, base: Path
         return LoadEntry(name, found.kind,
                          _case(load, impact, factors, _load_factor(table, key, reader), key,
                                reader),
-                         origin, found.description, found.source, given, (found.path,))
+                         origin, found.description, found.source, given, (found.path,),
+                         _facts([found.path], reader))
     if "name" not in table:
         reader.fail(_sub(key, "name"), f"expected a name for this {KIND_NAMES[kind]} (names "
                     "identify loads in the results), found nothing")
@@ -310,9 +328,10 @@ def _read_entry(item: dict[str, Any], key: str, reader: Reader, base: Path
                     "dynamic allowance applies to axle loads only), found "
                     f"{show_value(table['impact'])}")
     factors = _factors(table["factors"], _sub(key, "factors"), reader) if "factors" in table else {}
+    files = list(dict.fromkeys(files))
     return LoadEntry(name, kind,
                      _case(load, impact, factors, _load_factor(table, key, reader), key, reader),
-                     given=given, files=tuple(dict.fromkeys(files)))
+                     given=given, files=tuple(files), file_facts=_facts(files, reader))
 
 
 def _load_factor(table: Mapping[str, Any], key: str, reader: Reader) -> float:
@@ -320,7 +339,8 @@ def _load_factor(table: Mapping[str, Any], key: str, reader: Reader) -> float:
     if "load_factor" not in table:
         return 1.0
     value = table["load_factor"]
-    if isinstance(value, bool) or not isinstance(value, int | float) or not value > 0:
+    if isinstance(value, bool) or not isinstance(value, int | float) or not value > 0 or \
+            not math.isfinite(value):
         reader.expected(_sub(key, "load_factor"), "a positive number such as 1.5 (it multiplies "
                         "forces and moments, not deflection)", value)
     return float(value)
@@ -328,6 +348,11 @@ def _load_factor(table: Mapping[str, Any], key: str, reader: Reader) -> float:
 
 def _case(load: Any, impact: float, factors: Mapping[str, float], load_factor: float, key: str,
           reader: Reader) -> LoadCase:
+    try:  # 1e308 × 1.5 overflows to inf, and inf × 0 gives the silent zeros of an empty beam
+        check_product(key or "file", [1.0 + impact, *factors.values(), load_factor],
+                      "the product of the impact, factors and load factor")
+    except LimitError as error:
+        reader.fail(error.key, error.detail)
     try:
         return LoadCase(load, impact=impact, factors=tuple(factors.items()), name=load.name,
                         load_factor=load_factor)
@@ -374,7 +399,7 @@ def _owner_name(key: str) -> str:
 def _nonblank(name: str, key: str, reader: Reader) -> str:
     if not name.strip():
         reader.expected(key, "a name that is not blank", name)
-    return name.strip()
+    return reader.text_limit(key, name.strip())
 
 
 def _definition(kind: str, table: dict[str, Any], key: str, reader: Reader, name: str,
@@ -409,6 +434,7 @@ def _axles_and_spacings(table: dict[str, Any], key: str, reader: Reader
     items = reader.array(table["axles"], _sub(key, "axles"), "axle loads (front to back)", example)
     if not items:
         reader.expected(_sub(key, "axles"), "at least one axle load", items)
+    reader.limit(_sub(key, "axles"), "axles", items)
     axles = tuple(reader.positive(p, _sub(key, f"axles[{i}]"), "force")
                   for i, p in enumerate(items))
     needed = len(axles) - 1
@@ -425,6 +451,9 @@ def _axles_and_spacings(table: dict[str, Any], key: str, reader: Reader
                     f"of the {len(axles)} axles, found {len(spacing_items)}")
     spacings = tuple(_spacing(s, _sub(key, f"spacings[{i}]"), reader)
                      for i, s in enumerate(spacing_items))
+    # the search grid grows as 2^n in the searched ranges: refused before any work
+    reader.limit(_sub(key, "spacings"), "searched dimensions",
+                 sum(isinstance(s, tuple) for s in spacings))
     return axles, spacings
 
 
@@ -457,6 +486,7 @@ def _train(table: dict[str, Any], key: str, reader: Reader, name: str, base: Pat
                          "inline tables)", '["demo-service-truck", {axles = […], spacings = […]}]')
     if not items:
         reader.expected(_sub(key, "vehicles"), "at least one vehicle", items)
+    reader.limit(_sub(key, "vehicles"), "vehicles", items)
     vehicles = []
     for j, item in enumerate(items):
         vkey = _sub(key, f"vehicles[{j}]")
@@ -489,6 +519,9 @@ def _train(table: dict[str, Any], key: str, reader: Reader, name: str, base: Pat
         reader.fail(_sub(key, "gaps"), f"expected {needed} gap(s), one between each pair of the "
                     f"{len(vehicles)} vehicles, found {found}")
     gaps = tuple(_spacing(g, _sub(key, f"gaps[{i}]"), reader) for i, g in enumerate(gap_items))
+    reader.limit(_sub(key, "gaps"), "searched dimensions",
+                 sum(isinstance(s, tuple) for s in gaps) +
+                 sum(isinstance(s, tuple) for v in vehicles for s in v.spacings))
     ahead = _attached(table["ahead"], _sub(key, "ahead"), reader) if "ahead" in table else None
     behind = _attached(table["behind"], _sub(key, "behind"), reader) if "behind" in table else None
     return _build(Train, key, reader, vehicles=tuple(vehicles), gaps=gaps, ahead=ahead,
@@ -555,14 +588,24 @@ def _use(value: Any, key: str, reader: Reader, base: Path) -> LoadModelFile:
         reader.expected(key, "the name of a library load model (see 'trundle library') or "
                         "the path of a load-model file", value)
     text = value.strip()
-    if "/" in text or "\\" in text or text.endswith(".toml"):
-        path = Path(text).expanduser()
-        if not path.is_absolute():
-            path = base / path
-        if not path.is_file():
-            reader.fail(key, f"expected an existing load-model file, found \"{text}\" "
-                        f"({path} does not exist)")
-        return read_load_model_file(path, reader.units)
+    if "/" in text or "\\" in text or text.endswith(".toml") or text.startswith("~"):
+        # inside the model's folder tree (or the library) only; never opened otherwise
+        try:
+            path = resolve_use(text, base, library.folder(), allowed=reader.allowed,
+                               shown=reader.file, key=key)
+        except SourceError as error:
+            reader.fail(key, error.detail)
+        chain = getattr(reader, "chain", ())
+        if path.resolve() in chain:
+            reader.fail(key, f'expected a load-model file that does not refer back to itself, '
+                        f'found "{text}", which is already being read (a cycle of load-model '
+                        "files)")
+        try:
+            return _recorded(read_load_model_file(path, reader.units, chain=chain), reader)
+        except ModelFileError as error:
+            if error.key != "file":  # a problem inside the file: named by that file
+                raise
+            reader.fail(key, f'{error.detail} (reading "{text}")')
     names = library.names()
     if text not in names:
         hint = difflib.get_close_matches(text, names, n=1, cutoff=0.5)
@@ -573,7 +616,15 @@ def _use(value: Any, key: str, reader: Reader, base: Path) -> LoadModelFile:
         valid = ", ".join(names) or "none"
         reader.fail(key, f"expected a load model from the library ({valid}) or "
                     f'the path of a load-model file, found "{text}"{extra}')
-    return read_load_model_file(library.path_of(text), reader.units)
+    return _recorded(read_load_model_file(library.path_of(text), reader.units), reader)
+
+
+def _recorded(found: LoadModelFile, reader: Reader) -> LoadModelFile:
+    """Note the file's facts on the reader (the entry records them; nothing reads it again)."""
+    if not hasattr(reader, "file_facts"):
+        reader.file_facts = {}  # type: ignore[attr-defined]
+    reader.file_facts[found.path] = found.fact  # type: ignore[attr-defined]
+    return found
 
 
 # ------------------------------------------------------------------------------------------
@@ -606,8 +657,11 @@ def _is_bare_number(text: str) -> bool:
     return True
 
 
-def read_load_model_file(path: str | Path, target: UnitSystem | None = None) -> LoadModelFile:
+def read_load_model_file(path: str | Path, target: UnitSystem | None = None,
+                         chain: tuple[Path, ...] = ()) -> LoadModelFile:
     """Read a load-model file; values come back in ``target``'s units (default: its own).
+
+    ``chain`` holds the load-model files being read already (a cycle is refused).
 
     Raises
     ------
@@ -616,18 +670,11 @@ def read_load_model_file(path: str | Path, target: UnitSystem | None = None) -> 
     """
     path = Path(path)
     name = str(path)
-    try:
-        text = path.read_bytes().decode("utf-8")
-    except FileNotFoundError:
-        raise ModelFileError(name, "file", "expected an existing load-model file, found none") \
-            from None
-    except UnicodeDecodeError as error:
-        raise ModelFileError(name, "file", f"expected UTF-8 text, found a byte that is not "
-                             f"UTF-8 at offset {error.start}") from None
-    except OSError as error:
-        raise ModelFileError(name, "file", f"cannot be read ({error.strerror})") from None
-    try:
-        raw = tomllib.loads(text)
+    try:  # regular files only, size-limited, UTF-8; nesting bounded before tomllib recurses
+        read = read_source(path, "load-model file")
+        raw = parse_toml(read.text, name)
+    except SourceError as error:
+        raise ModelFileError(name, error.key, error.detail) from None
     except tomllib.TOMLDecodeError as error:
         raise _syntax_error(name, error) from None
     if is_design_case_file(raw):
@@ -647,6 +694,7 @@ def read_load_model_file(path: str | Path, target: UnitSystem | None = None) -> 
     description = " ".join(plain.text(table["description"], "description").split())
     source = " ".join(plain.text(table["source"], "source").split())
     reader = _ConvertingReader(name, units, target or units)
+    reader.chain = (*chain, path.resolve())  # type: ignore[attr-defined]
     kind = _kind_of(table, "", reader, _LIBRARY_KEYS)
     load = _definition(kind, table, "", reader, path.stem, path.parent, [])
     impact = _impact(table["impact"], "impact", reader) if "impact" in table else 0.0
@@ -655,7 +703,7 @@ def read_load_model_file(path: str | Path, target: UnitSystem | None = None) -> 
                     f"allowance applies to axle loads only), found {show_value(table['impact'])}")
     factors = _factors(table["factors"], "factors", reader) if "factors" in table else {}
     return LoadModelFile(path.stem, path, kind, units, description, source, load, impact,
-                         tuple(factors.items()), MappingProxyType(raw))
+                         tuple(factors.items()), MappingProxyType(raw), read.sha256)
 
 
 def read_library_model(name: str, units: UnitSystem | None = None) -> LoadModelFile:
@@ -836,14 +884,11 @@ def read_design_case_file(path: str | Path, target: UnitSystem | None = None,
     "design case" whose ``load`` is a DesignCase; ``parameters`` override the file's."""
     path = Path(path)
     name = str(path)
-    try:
-        raw = tomllib.loads(path.read_bytes().decode("utf-8"))
-    except FileNotFoundError:
-        raise ModelFileError(name, "file", "expected an existing load-model file, found none") \
-            from None
-    except UnicodeDecodeError as error:
-        raise ModelFileError(name, "file", f"expected UTF-8 text, found a byte that is not "
-                             f"UTF-8 at offset {error.start}") from None
+    try:  # regular files only, size-limited, UTF-8; nesting bounded before tomllib recurses
+        read = read_source(path, "load-model file")
+        raw = parse_toml(read.text, name)
+    except SourceError as error:
+        raise ModelFileError(name, error.key, error.detail) from None
     except tomllib.TOMLDecodeError as error:
         raise _syntax_error(name, error) from None
     plain = Reader(name)
@@ -858,4 +903,4 @@ def read_design_case_file(path: str | Path, target: UnitSystem | None = None,
     reader = _ConvertingReader(name, units, target or units)
     case = read_design_case(table, path.stem, reader, path.parent, parameters)
     return LoadModelFile(path.stem, path, "design case", units, description, source, case,
-                         given=MappingProxyType(raw))
+                         given=MappingProxyType(raw), sha256=read.sha256)

@@ -26,6 +26,14 @@ import numpy as np
 from numpy.typing import NDArray
 
 from trundle.core.beam import SUPPORT_KINDS, Beam, ModelError, Spring
+from trundle.io.limits import (
+    LimitError,
+    check_count,
+    check_finite,
+    check_span_ratio,
+    check_text,
+)
+from trundle.io.source import SourceError, parse_toml, read_source
 from trundle.io.units import SYSTEMS, UnitError, UnitSystem, parse_quantity, show_value
 
 
@@ -60,6 +68,8 @@ class Model:
     stiffness_given : how the file stated EI, one entry per stiffness segment (for reports)
     raw : the parsed TOML, as written
     tables : what the registered readers made of the extra top-level tables, by name
+    sha256 : hex SHA-256 of the very bytes that were parsed ("" when read from a string);
+        provenance uses it, so the file is never read a second time
     """
 
     title: str
@@ -70,6 +80,7 @@ class Model:
     stiffness_given: tuple[str, ...] = ()
     raw: Mapping[str, Any] = field(default_factory=dict, repr=False)
     tables: Mapping[str, Any] = field(default_factory=dict, repr=False)
+    sha256: str = ""
 
     @property
     def name(self) -> str:
@@ -93,6 +104,8 @@ class Reader:
         self.length = beam.length if beam is not None else length
         # the whole parsed file, for a table whose reading depends on another one
         self.raw: Mapping[str, Any] = {}
+        # folders outside the model's tree that `use` may read from (--allow-path DIR)
+        self.allowed: tuple[Path, ...] = ()
 
     # --- errors ---------------------------------------------------------------------------
 
@@ -169,9 +182,26 @@ class Reader:
         if value is _MISSING:
             self.fail(key, "expected this key, found nothing (it is required)")
         try:
-            return parse_quantity(value, quantity, self.units)
+            number = parse_quantity(value, quantity, self.units)
+            # 1e308 would overflow to inf or vanish to 0 in the analysis: refused here
+            return check_finite(key, number, f"a {quantity}")
         except UnitError as error:
             self.fail(key, str(error))
+        except LimitError as error:
+            self.fail(key, error.detail)
+
+    def limit(self, key: str, name: str, found: Any) -> int:
+        """Refuse more than the documented number of ``name`` (trundle.io.limits)."""
+        try:
+            return check_count(key, name, found)
+        except LimitError as error:
+            self.fail(key, error.detail)
+
+    def text_limit(self, key: str, text: str, name: str = "text length") -> str:
+        try:
+            return check_text(key, text, name)
+        except LimitError as error:
+            self.fail(key, error.detail)
 
     def positive(self, value: Any, key: str, quantity: str) -> float:
         number = self.quantity(value, key, quantity)
@@ -225,13 +255,15 @@ def known_top_level_keys() -> tuple[str, ...]:
 # entry points
 
 
-def load_model(path: str | Path) -> Model:
+def load_model(path: str | Path, allowed: Iterable[str | Path] = ()) -> Model:
     """Read a model file.
 
     Parameters
     ----------
     path : str or Path
         A TOML file in the format of docs/model-file.md.
+    allowed : folders outside the model file's folder tree from which ``use`` may read
+        load-model files (the CLI's ``--allow-path DIR``)
 
     Raises
     ------
@@ -239,46 +271,45 @@ def load_model(path: str | Path) -> Model:
         With a one-line message ``<file>: <key>: expected …, found …``.
     """
     name = str(path)
-    try:
-        data = Path(path).read_bytes()
-    except FileNotFoundError:
-        raise ModelFileError(name, "file", "expected an existing model file, found none") \
-            from None
-    except IsADirectoryError:
-        raise ModelFileError(name, "file", "expected a model file, found a directory") from None
-    except OSError as error:
-        raise ModelFileError(name, "file", f"cannot be read ({error.strerror})") from None
-    try:
-        text = data.decode("utf-8")
-    except UnicodeDecodeError as error:
-        raise ModelFileError(name, "file", f"expected UTF-8 text, found a byte that is not "
-                                           f"UTF-8 at offset {error.start}") from None
-    return read_model(text, name, source=Path(path))
+    try:  # regular files only (never blocks on a FIFO), size-limited, UTF-8 (BOM accepted)
+        read = read_source(path, "model file")
+    except SourceError as error:
+        raise ModelFileError(name, error.key, error.detail) from None
+    # the hash is of the bytes parsed here: nothing reads the model file again
+    return read_model(read.text, name, source=Path(path), allowed=allowed, sha256=read.sha256)
 
 
-def read_model(text: str, name: str = "<model>", source: Path | None = None) -> Model:
-    """Read a model from TOML text; ``name`` is used in error messages."""
+def read_model(text: str, name: str = "<model>", source: Path | None = None,
+               allowed: Iterable[str | Path] = (), sha256: str = "") -> Model:
+    """Read a model from TOML text; ``name`` is used in error messages, ``allowed`` as in
+    :func:`load_model`, ``sha256`` is the hash of the bytes ``text`` was decoded from."""
     try:
-        raw = tomllib.loads(text)
+        raw = parse_toml(text, name)  # nesting depth bounded before tomllib recurses
     except tomllib.TOMLDecodeError as error:
         raise _syntax_error(name, error) from None
-    return read_model_data(raw, name, source)
+    except SourceError as error:
+        raise ModelFileError(name, error.key, error.detail) from None
+    return read_model_data(raw, name, source, allowed=allowed, sha256=sha256)
 
 
-def read_model_data(raw: dict[str, Any], name: str = "<model>", source: Path | None = None
-                    ) -> Model:
+def read_model_data(raw: dict[str, Any], name: str = "<model>", source: Path | None = None,
+                    allowed: Iterable[str | Path] = (), sha256: str = "") -> Model:
     """Read a model from parsed TOML (a dict as ``tomllib`` gives it; a what-if sweep passes
-    a copy with one number changed); ``name`` is used in error messages."""
+    a copy with one number changed); ``name`` is used in error messages, ``allowed`` and
+    ``sha256`` as in :func:`read_model`."""
     reader = Reader(name)
     reader.raw = raw
+    reader.allowed = tuple(Path(folder) for folder in allowed)
     for key in raw:
         if key not in known_top_level_keys():
             reader.fail(key, _unknown_key_detail(key, known_top_level_keys(),
                                                  what="top-level key"))
     title = reader.text(raw["title"], "title") if "title" in raw else (
         source.stem if source is not None else "untitled")
+    reader.text_limit("title", title)
     if "description" in raw:
-        reader.text(raw["description"], "description")
+        reader.text_limit("description", reader.text(raw["description"], "description"),
+                          "description length")
     if "units" not in raw:
         reader.expected("units", '"SI" (kN, m) or "US" (kip, ft)', _MISSING)
     units_text = raw["units"]
@@ -296,7 +327,7 @@ def read_model_data(raw: dict[str, Any], name: str = "<model>", source: Path | N
             tables[key] = _EXTRA_TABLES[key](value, reader)
     return Model(title=title, units=reader.units, beam=beam, sections=sections, source=source,
                  stiffness_given=stiffness_given, raw=MappingProxyType(raw),
-                 tables=MappingProxyType(tables))
+                 tables=MappingProxyType(tables), sha256=sha256)
 
 
 # ------------------------------------------------------------------------------------------
@@ -315,13 +346,19 @@ def _read_beam(value: Any, reader: Reader) -> tuple[Beam, tuple[str, ...]]:
                                '[7.5, "8 m", 7.5]')
     if not spans_value:
         reader.expected("beam.spans", "at least one span length", spans_value)
+    reader.limit("beam.spans", "spans", spans_value)
     spans = [reader.positive(s, f"beam.spans[{i}]", "length") for i, s in enumerate(spans_value)]
+    try:  # a ratio of 1e9 between spans leaves the stiffness matrix meaningless
+        check_span_ratio("beam.spans", spans)
+    except LimitError as error:
+        reader.fail(error.key, error.detail)
     length = float(sum(spans))
 
     supports = _read_supports(table["supports"], len(spans), reader)
 
     hinges_value = reader.array(table.get("hinges", []), "beam.hinges", "hinge positions",
                                 '[12.0, "30 m"]')
+    reader.limit("beam.hinges", "hinges", hinges_value)
     hinge_reader = Reader(reader.file, reader.units, length=length)
     hinges = [hinge_reader.position(h, f"beam.hinges[{i}]", interior=True)
               for i, h in enumerate(hinges_value)]
@@ -334,6 +371,7 @@ def _read_beam(value: Any, reader: Reader) -> tuple[Beam, tuple[str, ...]]:
     segments, given = _read_stiffness(table, length, reader)
     divisions = (reader.integer(table["haunch_divisions"], "beam.haunch_divisions", 1)
                  if "haunch_divisions" in table else 24)
+    reader.limit("beam.haunch_divisions", "haunch divisions", divisions)
     try:
         beam = Beam(spans=spans, EI=segments, supports=supports, hinges=hinges,
                     haunch_divisions=divisions)
@@ -395,6 +433,7 @@ def _read_stiffness(table: dict[str, Any], length: float, reader: Reader
                             items)
         if not items:
             reader.expected("beam.stiffness", "at least one [[beam.stiffness]] segment", items)
+        reader.limit("beam.stiffness", "stiffness segments", items)
         return _read_segments(items, table.get("E", _MISSING), length, reader)
     if "EI" in table:
         EI = reader.positive(table["EI"], "beam.EI", "flexural rigidity")
@@ -524,6 +563,7 @@ def _read_sections(value: Any, reader: Reader) -> NDArray[np.float64]:
             items = reader.array(at, "sections.at", "positions", '["tenth points", "3.2 m"]')
             if not items:
                 reader.expected("sections.at", "at least one position", items)
+            reader.limit("sections.at", "sections", items)
             for i, x in enumerate(items):
                 if isinstance(x, str) and _section_name(x) in _NAMED_SECTIONS:
                     points.extend(_named_sections(beam, _section_name(x)))
@@ -531,12 +571,16 @@ def _read_sections(value: Any, reader: Reader) -> NDArray[np.float64]:
                     points.append(reader.position(x, f"sections.at[{i}]"))
     if "every" in table:
         step = reader.positive(table["every"], "sections.every", "length")
+        # counted before any array is built: "1e-7 m" on a 30 m beam is 3e8 sections
+        reader.limit("sections.every", "sections", math.ceil(beam.length / step))
         ends = beam.support_positions
         for a, b in zip(ends[:-1], ends[1:], strict=True):
             count = max(1, math.ceil((b - a) / step - 1e-9))
             points.extend(a + np.arange(count) * step)
             points.append(b)
-    return _unique_sorted(np.asarray(points, dtype=float), beam.length)
+    found = _unique_sorted(np.asarray(points, dtype=float), beam.length)
+    reader.limit("sections", "sections", len(found))
+    return found
 
 
 def _section_name(text: str) -> str:

@@ -17,6 +17,8 @@ from fractions import Fraction
 from functools import cache
 from typing import Any
 
+from trundle.io.unit_guard import guard_unit_text
+
 # What each physical quantity is, as a pint expression of the system's force F and length L,
 # the pretty label pattern and the plain-ASCII pattern for CSV/JSON headers.
 _QUANTITY_PATTERNS: dict[str, tuple[str, str, str]] = {
@@ -146,7 +148,9 @@ def _known_dimensions() -> tuple[tuple[Any, str], ...]:
         ("N/m", "a force per length (distributed load or spring stiffness)"),
         ("Pa", "a stress or modulus (force/length²)"), ("m**4", "a second moment of area"),
         ("m**2", "an area"), ("m**3", "a volume"), ("kg", "a mass (use a force unit)"),
-        ("s", "a time"), ("N/m**3", "a force per volume"), ("dimensionless", "a plain number"),
+        ("s", "a time"),
+        ("mol/m**3", "a molar concentration (a chemistry unit)"),
+        ("N/m**3", "a force per volume"), ("dimensionless", "a plain number"),
     ]
     return tuple((_dimensionality(unit), name) for unit, name in named)
 
@@ -222,6 +226,10 @@ def parse_quantity(value: Any, quantity: str, system: UnitSystem) -> float:
             raise UnitError(f"expected {expected}, found {show_value(value)}")
         return number
     text = value.strip()
+    refused = guard_unit_text(text)  # before pint: "2**(2**40) m" would never finish
+    if refused is not None:
+        found = show_value(value) if len(text) <= 100 else f"a string of {len(text):,} characters"
+        raise UnitError(f"expected {expected}, found {found} ({refused})")
     try:
         bare = float(text)
     except ValueError:
@@ -236,7 +244,8 @@ def parse_quantity(value: Any, quantity: str, system: UnitSystem) -> float:
     try:
         parsed = ureg.Quantity(text)
     except Exception as error:  # pint's parser raises many kinds (undefined unit, syntax, …)
-        reason = _pint_reason(error)
+        reason = _pint_reason(error) + _case_hint(text, _dimensionality(
+            system.pint_unit(quantity)), inside=True)
         raise UnitError(f"expected {expected}, found {show_value(value)} ({reason})") from None
     target = system.pint_unit(quantity)
     wanted = _dimensionality(target)
@@ -245,6 +254,8 @@ def parse_quantity(value: Any, quantity: str, system: UnitSystem) -> float:
         hint = ""
         if re.search(r"\bkn\b", text):  # "kn" is a knot; the kilonewton is kN
             hint = ' (the kilonewton is written "kN"; "kn" is a knot)'
+        else:
+            hint = _case_hint(text, wanted)
         raise UnitError(f"expected {expected}, found {show_value(value)}, which is "
                         f"{found}{hint}")
     try:
@@ -254,6 +265,38 @@ def parse_quantity(value: Any, quantity: str, system: UnitSystem) -> float:
     if not math.isfinite(number):
         raise UnitError(f"expected {expected}, found {show_value(value)}")
     return number
+
+
+def _case_hint(text: str, wanted: Any, inside: bool = False) -> str:
+    """' (units are case-sensitive: did you mean "40 m"?)' when changing the case of one unit
+    name gives the quantity wanted ("40 M" is a molar concentration), else ""."""
+    ureg = registry()
+    for match in re.finditer(r"[^\W\d]\w*", text):
+        name = match.group()
+        for variant in _case_variants(name):
+            if variant == name:
+                continue
+            candidate = text[:match.start()] + variant + text[match.end():]
+            try:
+                if ureg.Quantity(candidate).dimensionality == wanted:
+                    words = f'units are case-sensitive: did you mean "{candidate}"?'
+                    return f"; {words}" if inside else f" ({words})"
+            except Exception:  # not a unit either way: no hint
+                continue
+    return ""
+
+
+def _case_variants(name: str) -> list[str]:
+    """Other spellings of a unit name by case: every one for short names ("MPA" → "MPa")."""
+    if len(name) <= 4:
+        variants = [""]
+        for char in name:
+            variants = [v + c for v in variants for c in dict.fromkeys((char.lower(),
+                                                                        char.upper()))]
+        # fewest changes first; a prefix's case (M for mega, m for milli) changed last
+        return sorted(variants, key=lambda v: (sum(a != b for a, b in zip(v, name, strict=True)),
+                                               v[0] != name[0]))
+    return list(dict.fromkeys((name.lower(), name.upper(), name[0].swapcase() + name[1:])))
 
 
 def _pint_reason(error: Exception) -> str:

@@ -33,6 +33,7 @@ from trundle.report.figures import (
     new_figure,
     plot_beam,
 )
+from trundle.report.safe_text import figure_text
 from trundle.workflows.crane_runway import lateral_extremes
 
 MAX_COLOR = PALETTE[0]
@@ -43,7 +44,7 @@ CRANE_COLORS = (PALETTE[0], PALETTE[1], PALETTE[4], PALETTE[5], PALETTE[2])
 
 
 def _title(report: RunwayReport, what: str) -> str:
-    return f"{report.results.model.title}\n{what}"
+    return figure_text(f"{report.results.model.title}\n{what}", parse_math=False)
 
 
 def _finish(report: RunwayReport, figure: Figure, what: str) -> None:

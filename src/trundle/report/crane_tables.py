@@ -48,6 +48,7 @@ from trundle.report.envelope_tables import (
     extreme_json,
 )
 from trundle.report.format import verdict_cell
+from trundle.report.safe_text import csv_row
 from trundle.workflows.crane_runway import COMBINATIONS, lateral_extremes
 
 # ------------------------------------------------------------------------------------------
@@ -496,7 +497,7 @@ def _csv(header: list[str], rows: list[list[str]]) -> str:
     buffer = io.StringIO()
     writer = csv.writer(buffer, lineterminator="\n")
     writer.writerow(header)
-    writer.writerows(rows)
+    writer.writerows(csv_row(row) for row in rows)  # crane names: no formulas, no controls
     return buffer.getvalue()
 
 

@@ -30,6 +30,7 @@ from trundle.report.figures import (
     new_figure,
     plot_beam,
 )
+from trundle.report.safe_text import figure_text
 
 MAX_COLOR = PALETTE[0]
 MIN_COLOR = PALETTE[1]
@@ -213,14 +214,14 @@ def _title(results: EnvelopeResults, what: str) -> str:
     names = ", ".join(entry.name for entry in results.loads)
     if len(names) > 70:
         names = f"{len(results.loads)} loads"
-    return (f"{results.model.title}\n{what}: {names} "
-            "(with dynamic allowance and factors)")
+    return figure_text(f"{results.model.title}\n{what}: {names} "
+                       "(with dynamic allowance and factors)", parse_math=False)
 
 
 def _footer(results: EnvelopeResults) -> str:
     trace = " · ".join((f"trundle {results.version}", results.model_file,
                         f"SHA-256 {results.sha256[:16]}…", results.date))
-    return f"{trace}\n{CAUTION}"
+    return figure_text(f"{trace}\n{CAUTION}", limit=400, parse_math=False)
 
 
 def envelope_figures(results: EnvelopeResults) -> dict[str, Figure]:

@@ -1,7 +1,7 @@
 """The files of ``trundle envelope --out``: CSV, JSON, figures and the HTML report.
 
 :func:`envelope_files` prepares every file in memory first (so a failure writes nothing) and
-returns name -> content for :func:`trundle.io.outputs.write_all_atomic`. The HTML report stands
+returns name -> content for :class:`trundle.io.output_set.OutputSet`. The HTML report stands
 alone: its figures are PNG data URIs.
 """
 
@@ -27,6 +27,7 @@ from trundle.report.envelope_tables import (
     summary_tables,
 )
 from trundle.report.figures import figure_bytes
+from trundle.report.safe_text import clean_text
 
 FIGURE_FORMATS = ("png", "svg")
 
@@ -116,7 +117,10 @@ def envelope_html(results: EnvelopeResults, pngs: dict[str, bytes] | None = None
         "sign_conventions": list(SIGN_CONVENTIONS),
         "markup_break": Markup("<br>"),
     }
-    return _templates().get_template("envelope.html.j2").render(**context)
+    # names and titles from the model file: no control or direction-override character
+    # (escaping by the template makes markup harmless, not these); PNGs are base64 text
+    return clean_text(_templates().get_template("envelope.html.j2").render(**context),
+                      keep_newlines=True)
 
 
 def _templates() -> Environment:

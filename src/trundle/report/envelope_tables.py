@@ -56,6 +56,7 @@ from trundle.report.format import fixed as _fixed
 from trundle.report.format import length as _length
 from trundle.report.format import number as _number
 from trundle.report.format import position as _position
+from trundle.report.safe_text import clean_text, csv_row, json_escaped, terminal_text
 
 CAUTIONS = (CAUTION, LOAD_MODEL_CAUTION)
 
@@ -365,17 +366,21 @@ def input_tables(results: EnvelopeResults) -> list[TableData]:
 
 def to_rich(table: TableData) -> Table:
     """A TableData for the terminal; cells are plain text, never markup."""
-    out = Table(title=Text(table.title, style="bold"), title_justify="left",
-                caption=Text(table.note) if table.note else None, caption_justify="left")
+    # names and titles come from model files: no control character reaches the terminal
+    out = Table(title=Text(terminal_text(table.title), style="bold"), title_justify="left",
+                caption=Text(terminal_text(table.note)) if table.note else None,
+                caption_justify="left")
     numeric = table.numeric or (False,) * len(table.columns)
     for name, right in zip(table.columns, numeric, strict=True):
         # fold, never cut: a truncated name or number in a calculation is worse than a wrap
-        out.add_column(Text(name), justify="right" if right else "left", overflow="fold")
+        out.add_column(Text(clean_text(name, keep_newlines=True)),
+                       justify="right" if right else "left",
+                       overflow="fold")
     starts = set(table.groups[1:])
     for i, row in enumerate(table.rows):
         if i in starts:
             out.add_section()
-        out.add_row(*(Text(cell) for cell in row))
+        out.add_row(*(Text(clean_text(cell, keep_newlines=True)) for cell in row))
     return out
 
 
@@ -436,7 +441,7 @@ def envelope_csv(results: EnvelopeResults) -> str:
             if family == "moment":
                 left, right = concurrent[which]
                 row += [_number(left[i]), _number(right[i])]
-        writer.writerow(row)
+        writer.writerow(csv_row(row))  # names from the model file: no formulas, no controls
     return buffer.getvalue()
 
 
@@ -463,7 +468,7 @@ def reactions_csv(results: EnvelopeResults) -> str:
             for which in ("max", "min"):
                 e = extremes[(family, which)].get(k)
                 row += _extreme_cells(e, False) if e is not None else [""] * 6
-        writer.writerow(row)
+        writer.writerow(csv_row(row))  # names from the model file: no formulas, no controls
     return buffer.getvalue()
 
 
@@ -637,8 +642,9 @@ def load_json(load: Any) -> dict[str, Any]:
 
 
 def envelope_json(results: EnvelopeResults) -> str:
-    return json.dumps(envelope_document(results), indent=1, ensure_ascii=False,
-                      allow_nan=False) + "\n"
+    # names from the model file: overrides and controls as \u escapes, never raw
+    return json_escaped(json.dumps(envelope_document(results), indent=1, ensure_ascii=False,
+                                   allow_nan=False)) + "\n"
 
 
 def max_min_arrays(results: EnvelopeResults, family: str) -> tuple[np.ndarray, np.ndarray]:

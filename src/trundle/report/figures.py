@@ -28,6 +28,7 @@ from trundle.core.beam import Beam, Spring
 from trundle.core.influence import InfluenceSet
 from trundle.io.units import UnitSystem
 from trundle.report import CAUTION
+from trundle.report.safe_text import figure_text
 from trundle.report.tables import (
     effect_label,
     format_length,
@@ -77,6 +78,8 @@ _STYLE = {
     "lines.linewidth": 1.4,
     "savefig.dpi": 200,
     "svg.fonttype": "none",
+    # text from model files ("$" in a title or load name) is shown as written, never as maths
+    "text.parse_math": False,
 }
 
 
@@ -340,8 +343,10 @@ def influence_figure(lines: InfluenceSet, beam: Beam, units: UnitSystem, title: 
                     if lines.effects[j].at is not None]
         plot_beam(beam, units, ax=beam_ax, sections=sorted(set(sections)))
         axes.append(beam_ax)
-        figure.suptitle(f"{title}\ninfluence lines for a unit load of 1 {units.force} "
+        shown = figure_text(title, parse_math=False)
+        figure.suptitle(f"{shown}\ninfluence lines for a unit load of 1 {units.force} "
                         "moving along the beam", fontsize=9.5, color=INK)
-        footer = " · ".join(p for p in (generator, source, CAUTION) if p)
+        footer = figure_text(" · ".join(p for p in (generator, source, CAUTION) if p),
+                             limit=400, parse_math=False)
         figure.supxlabel(footer, fontsize=6, color=MUTED)
     return axes

@@ -27,6 +27,7 @@ from trundle.report import CAUTION
 from trundle.report.format import fixed as _cell
 from trundle.report.format import length as format_length
 from trundle.report.format import number as _number
+from trundle.report.safe_text import clean_text
 
 if TYPE_CHECKING:
     from trundle.io.modelfile import Model
@@ -245,7 +246,8 @@ def lines_json(lines: InfluenceSet, beam: Beam, units: UnitSystem, sampled: Samp
 
 def _add_row(table: Table, *cells: str) -> None:
     """Cells as plain text: user strings with brackets are not rich markup."""
-    table.add_row(*(Text(cell) for cell in cells))
+    # names come from model files: no control character reaches the terminal
+    table.add_row(*(Text(clean_text(cell, keep_newlines=True)) for cell in cells))
 
 
 def _decimals(values: NDArray[np.float64], significant: int = 5) -> int:
