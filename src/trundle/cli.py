@@ -24,7 +24,7 @@ from trundle.io.cranes import cranes_of, runway_spec
 from trundle.io.loads import loads_of
 from trundle.io.model_paths import MAX_POINTS_PER_AXIS
 from trundle.io.modelfile import Model, ModelFileError, load_model
-from trundle.io.output_set import OutputSet, OutputSetError, check_out_option
+from trundle.io.output_set import OutputSet, OutputSetError, check_out_option, write_output_set
 from trundle.io.outputs import Provenance
 from trundle.io.plausibility import deflection_warnings, model_warnings
 from trundle.io.units import UnitError, parse_quantity

@@ -15,7 +15,7 @@ from rich.console import Console
 from rich.table import Table
 
 from trundle.io.inventory import InventoryError, read_inventory
-from trundle.io.output_set import OutputSetError, write_output_set
+from trundle.io.output_set import write_output_set
 from trundle.io.outputs import Provenance
 from trundle.io.traffic import TrafficFileError, read_traffic
 from trundle.report import CAUTION, LOAD_MODEL_CAUTION
@@ -130,7 +130,10 @@ def fleet_command(trucks: Path, inventory: Path, units: str, bad_rows: str, desi
     except (TrafficFileError, InventoryError) as error:
         raise _inputs_error(error) from None
     model = design_model(design) if design else None  # every name checked before any scan
-    spec = FleetSpec(traffic, bridges, out_dir, model, truck_chunk, bridge_chunk,
+    # the partitions live beside the output set (which is replaced whole), so a rerun finds
+    # them: <out>.work/partitions
+    work_dir = out_dir.with_name(out_dir.name + ".work")
+    spec = FleetSpec(traffic, bridges, work_dir, model, truck_chunk, bridge_chunk,
                      "none" if single_process else scheduler, workers, block, fit, period,
                      fatigue=fatigue, progress=not no_progress)
     console = _console()
@@ -158,7 +161,7 @@ def fleet_command(trucks: Path, inventory: Path, units: str, bad_rows: str, desi
                                           provenance=_provenance(("traffic file", trucks),
                                                                  ("inventory", inventory))))
     console.print(f"partitions: {result.written} written, {result.skipped} already there, in "
-                  f"{out_dir / 'partitions'}")
+                  f"{work_dir / 'partitions'}")
     console.print("wrote " + ", ".join(str(p) for p in written[:6])
                   + (f" and {len(written) - 6} more" if len(written) > 6 else ""))
     for caution in cautions(traffic.invented):
