@@ -36,7 +36,6 @@ import time
 import numpy as np
 
 import trundle
-from trundle.analysis.envelope import _line_effects
 from trundle.core.fem import assemble, build_mesh, element_stiffness
 from trundle.scan import kernels
 

@@ -22,6 +22,7 @@ from trundle.core.influence import Effect, line_pieces, piece_sign_intervals, si
 from trundle.loads.cases import LoadCase, Together, as_case
 from trundle.loads.patterns import UniformLoad
 from trundle.scan.engine import (
+    KIND_POINT,
     LineBatch,
     TermGroup,
     group_response,
@@ -179,6 +180,24 @@ def _arrangements(case: LoadCase) -> dict[int, _Arrangement]:
         out[direction] = _Arrangement(weights * case.multiplier, kinds,
                                       constant * case.multiplier, base, slope, confined)
     return out
+
+
+def _check_fits(case: LoadCase, arrangement: _Arrangement, length: float) -> None:
+    """A confined load (a crane between its end stops) longer than the beam cannot stand on
+    it anywhere: refuse it rather than report the empty beam's zeros as its envelope."""
+    point = arrangement.kinds == KIND_POINT
+    if not arrangement.confined or not point.any():
+        return
+    # every spacing and gap adds to the offsets of the loads behind it, so the group is
+    # shortest with every searched value at its low end
+    low = np.array([p.low for p in case.load.parameters()], dtype=float)
+    offsets = arrangement.offsets(low)[0, point]
+    extent = float(offsets.max() - offsets.min())
+    if extent > length * (1.0 + 1e-12):
+        name = getattr(case.load, "name", "") or case.name or "load"
+        raise ModelError(f"load {name!r}: confined to the beam (between end stops), but its "
+                         f"axles span at least {extent:g}, more than the beam's length "
+                         f"{length:g}: it cannot stand on the beam")
 
 
 def _moving_grid(batch: LineBatch, case: LoadCase, case_index: int,
@@ -659,6 +678,7 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
         if isinstance(case.load, UniformLoad):
             return _uniform_case(batch, case, c, ordinate_extremes, beam), None
         arrangements = _arrangements(case)
+        _check_fits(case, arrangements[1], beam.length)
         return _moving_grid(batch, case, c, arrangements), arrangements
 
     for c, case in enumerate(cases):

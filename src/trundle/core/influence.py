@@ -19,7 +19,6 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 from scipy.interpolate import PPoly
 
-from trundle.core._jit import JIT_OPTIONS
 from trundle.core.beam import Beam, ModelError, Spring
 from trundle.core.fem import assembly_for, element_stiffness, hermite_coefficients
 
