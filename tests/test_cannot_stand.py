@@ -36,3 +36,15 @@ def test_confined_train_longer_than_the_beam_is_refused() -> None:
     train = trundle.Train((a, a), gaps=(1.0,), confined=True)
     with pytest.raises(ModelError, match="cannot stand on the beam"):
         trundle.envelope(beam, [train], sections=[3.0])
+
+
+def test_cli_refuses_a_crane_longer_than_its_runway_with_end_stops(tmp_path) -> None:
+    # the model file reads fine (``trundle summary`` shows it); the envelope cannot exist
+    from pathlib import Path
+
+    from cli_helpers import assert_one_line_error, expected_key, run
+
+    path = Path(__file__).parent / "bad_runs" / "crane_longer_than_runway_with_end_stops.toml"
+    result = run("envelope", path, "--out", tmp_path / "out")
+    assert_one_line_error(result, str(path), expected_key(path), "cannot stand on the beam")
+    assert not (tmp_path / "out").exists()
