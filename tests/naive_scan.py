@@ -108,6 +108,9 @@ class PlainLine:
 
     knots: list[float]
     pieces: list[list[float]]
+    # a shear line's own section and the value of a unit load standing exactly on it (the
+    # one place where the value at a point is neither one-sided limit at an end of the beam)
+    own: tuple[float, float] | None = None
     running_pieces: list[list[float]] = field(init=False)  # ∫₀ˣ IL, quartic per piece
 
     def __post_init__(self) -> None:
@@ -121,10 +124,23 @@ class PlainLine:
         self.total = total
 
     @classmethod
-    def from_ppoly(cls, knots: np.ndarray, coef_high_first: np.ndarray) -> PlainLine:
-        return cls([float(x) for x in knots],
+    def from_ppoly(cls, knots: np.ndarray, coef_high_first: np.ndarray,
+                   effect: trundle.Effect | None = None) -> PlainLine:
+        line = cls([float(x) for x in knots],
                    [[float(v) for v in coef_high_first[::-1, k]]
                     for k in range(coef_high_first.shape[1])])
+        if effect is not None and effect.kind == "shear":
+            # V is the upward resultant of everything left of the cut: a load standing on
+            # the section is right of the cut just left of it (reads as a load just right of
+            # the section; at the right end of the beam nothing follows: the load just left
+            # of it plus the unit load itself), left of the cut just right of it
+            c, L = float(effect.at), line.length
+            if effect.side == "left":
+                value = line.ordinate(c, "left") + 1.0 if c >= L else line.ordinate(c, "right")
+            else:
+                value = line.ordinate(c, "right") - 1.0 if c <= 0.0 else line.ordinate(c, "left")
+            line.own = (c, value)
+        return line
 
     @property
     def length(self) -> float:
@@ -147,6 +163,18 @@ class PlainLine:
         s = x - self.knots[k]
         return sum(c * s**i for i, c in enumerate(self.pieces[k]))
 
+    def point(self, x: float) -> float:
+        """IL for a load standing exactly at x: on the beam at its ends (the limit from
+        inside), the own value on a shear line's section, 0 off the beam."""
+        tol = 1e-12 * max(1.0, self.length)
+        if x < -tol or x > self.length + tol:
+            return 0.0
+        if self.own is not None and abs(x - self.own[0]) <= tol:
+            return self.own[1]
+        if x >= self.length - tol:
+            return self.ordinate(self.length, "left")
+        return self.ordinate(max(x, 0.0), "right")
+
     def running(self, x: float) -> float:
         """F(x) = ∫₀ˣ IL, 0 left of the beam and F(L) right of it."""
         if x <= 0.0:
@@ -159,9 +187,12 @@ class PlainLine:
 
     def response(self, loads: Arrangement, xi: float, side: float = 0.0) -> float:
         """The arrangement's effect with its reference point at ξ (limit from above for
-        side ≥ 0, from below for side < 0)."""
-        limit = "left" if side < 0 else "right"
-        total = sum(P * self.ordinate(xi - u, limit) for u, P in loads.points)
+        side > 0, from below for side < 0, every load where it stands for side 0)."""
+        if side == 0:
+            total = sum(P * self.point(xi - u) for u, P in loads.points)
+        else:
+            limit = "left" if side < 0 else "right"
+            total = sum(P * self.ordinate(xi - u, limit) for u, P in loads.points)
         for u0, u1, w in loads.uniform:
             upper = self.total if u0 == -math.inf else self.running(xi - u0)
             lower = 0.0 if u1 == math.inf else self.running(xi - u1)
@@ -174,7 +205,8 @@ def plain_scan(line: PlainLine, loads: Arrangement) -> tuple[float, float, float
     """(max, ξ at max, side, min, ξ at min, side) of the arrangement's effect over every ξ.
 
     The empty beam counts (value 0, ξ NaN). Side +1: the limit as ξ approaches from above,
-    −1 from below, 0 an interior point.
+    −1 from below, 0 the exact position (an interior point, or a load standing exactly on an
+    end of the beam, where neither limit sees it).
     """
     offsets = loads.offsets()
     L = line.length
@@ -209,6 +241,11 @@ def plain_scan(line: PlainLine, loads: Arrangement) -> tuple[float, float, float
                     poly = poly + sign * w * shifted
         candidates = [(poly(0.0), b0, 1.0), (poly(width), b1, -1.0)]
         candidates += [(poly(r), b0 + r, 0.0) for r in critical_points(list(poly.coef), width)]
+        # a load standing exactly on an end of the beam: neither limit sees it there
+        for b in (b0, b1):
+            if any(abs(b - u - end) <= 1e-12 * max(1.0, L)
+                   for u, _ in loads.points for end in (0.0, L)):
+                candidates.append((line.response(loads, b, 0.0), b, 0.0))
         for value, xi, side in candidates:
             if value > best_max[0]:
                 best_max = (float(value), xi, side)

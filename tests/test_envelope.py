@@ -127,9 +127,14 @@ def test_concurrent_effects_are_the_static_solution(seed: int, uniform: bool) ->
             lines = env.lines_of(kind, side=side)
             for row, (line, g) in enumerate(zip(lines, governing, strict=True)):
                 response = env.response_to(g)
+                # concurrent effects: the governing configuration with every load where it
+                # stands where that reproduces the extreme (continuous lines), else the limit
+                # (faces of an axle on the section: tests/test_concurrent_faces.py)
+                acting = env.concurrent_to(g, int(line))
+                assert acting[line] == pytest.approx(g.value, abs=REL * scale[line])
                 for family, idx in env.index.items():
                     if idx.size:
-                        np.testing.assert_array_equal(concurrent[family][row], response[idx])
+                        np.testing.assert_array_equal(concurrent[family][row], acting[idx])
                 if g.case < 0:
                     assert g.value == 0.0
                     assert not response.any()

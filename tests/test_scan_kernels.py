@@ -53,17 +53,19 @@ def _run_kernel(parallel: bool, batch: LineBatch, group: TermGroup,
             batch.running_end, batch.head, batch.tail, batch.peak, weights, kinds,
             np.ascontiguousarray(offsets, dtype=float), np.ascontiguousarray(lines),
             float(constant), degree, group.confined, prune)
+    own = (batch.own_knot, batch.own_value, batch.end_live)
     if not parallel:
-        return kernels.scan_rows_serial(*args)
+        return kernels.scan_rows_serial(*args, *own)
     n = len(lines)
     bounds = np.array([0, n // 5, n // 2, n], dtype=np.int64)
-    return kernels.scan_rows_parallel(*args, bounds)
+    return kernels.scan_rows_parallel(*args, bounds, *own)
 
 
-def _own_line(batch: LineBatch, j: int) -> PlainLine:
+def _own_line(batch: LineBatch, j: int, effect: trundle.Effect | None = None) -> PlainLine:
     """Line j of the batch as its plain twin, on its own knots."""
     m = batch.n_pieces[j]
-    return PlainLine.from_ppoly(batch.line_knots[j, :m + 1], batch.line_coef[j, :m].T)
+    return PlainLine.from_ppoly(batch.line_knots[j, :m + 1], batch.line_coef[j, :m].T,
+                                effect)
 
 
 def _random_group(rng: np.random.Generator, length: float, uniform: str
@@ -200,8 +202,8 @@ def test_kernels_match_plain_scan(seed: int, uniform: str) -> None:
     engine = scan_group(batch, group)
     np.testing.assert_array_equal(serial, parallel)
     np.testing.assert_array_equal(serial, engine)
-    plain_lines = [PlainLine.from_ppoly(lines.knots, lines.coefficients[:, :, j])
-                   for j in range(len(lines))]
+    plain_lines = [PlainLine.from_ppoly(lines.knots, lines.coefficients[:, :, j],
+                                        lines.effects[j]) for j in range(len(lines))]
     expected = np.array([plain_scan(p, arrangement) for p in plain_lines])
     kinds = np.array([e.kind for e in lines.effects])
     for j, effect in enumerate(lines.effects):
@@ -253,7 +255,8 @@ def test_rows_with_their_own_arrangements_match_plain_scan(seed: int) -> None:
         f = stretch[r]
         own = Arrangement(tuple((f * u, P) for u, P in arrangement.points),
                           tuple((f * u0, f * u1, w) for u0, u1, w in arrangement.uniform))
-        line = PlainLine.from_ppoly(lines.knots, lines.coefficients[:, :, row_lines[r]])
+        line = PlainLine.from_ppoly(lines.knots, lines.coefficients[:, :, row_lines[r]],
+                                    lines.effects[row_lines[r]])
         expected[r] = plain_scan(line, own)
     kinds = np.array([lines.effects[j].kind for j in row_lines])
     for r in range(n_rows):
@@ -306,7 +309,7 @@ def test_pruned_sweep_matches_plain_scan(seed: int) -> None:
     full = _run_kernel(False, batch, group)
     kinds = np.array([e.kind for e in lines.effects])
     for j in rng.choice(len(lines), 12, replace=False):
-        expected = plain_scan(_own_line(batch, j), arrangement)
+        expected = plain_scan(_own_line(batch, j, lines.effects[j]), arrangement)
         scale = max(np.abs(full[kinds == kinds[j]][:, [0, 3]]).max(), 1e-300)
         for col in (0, 3):
             assert pruned[j, col] == pytest.approx(expected[col], abs=1e-10 * scale)

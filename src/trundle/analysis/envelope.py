@@ -26,6 +26,7 @@ from trundle.core.influence import Effect, line_pieces, piece_sign_intervals
 from trundle.loads.cases import LoadCase, Together, as_case
 from trundle.loads.patterns import UniformLoad
 from trundle.scan.engine import (
+    KIND_POINT,
     LineBatch,
     TermGroup,
     group_response,
@@ -217,6 +218,24 @@ def _arrangements(case: LoadCase) -> dict[int, _Arrangement]:
         out[direction] = _Arrangement(weights * case.multiplier, kinds,
                                       constant * case.multiplier, base, slope, confined)
     return out
+
+
+def _check_fits(case: LoadCase, arrangement: _Arrangement, length: float) -> None:
+    """A confined load (a crane between its end stops) longer than the beam cannot stand on
+    it anywhere: refuse it rather than report the empty beam's zeros as its envelope."""
+    point = arrangement.kinds == KIND_POINT
+    if not arrangement.confined or not point.any():
+        return
+    # every spacing and gap adds to the offsets of the loads behind it, so the group is
+    # shortest with every searched value at its low end
+    low = np.array([p.low for p in case.load.parameters()], dtype=float)
+    offsets = arrangement.offsets(low)[0, point]
+    extent = float(offsets.max() - offsets.min())
+    if extent > length * (1.0 + 1e-12):
+        name = getattr(case.load, "name", "") or case.name or "load"
+        raise ModelError(f"load {name!r}: confined to the beam (between end stops), but its "
+                         f"axles span at least {extent:g}, more than the beam's length "
+                         f"{length:g}: it cannot stand on the beam")
 
 
 def _moving_grid(batch: LineBatch, case: LoadCase, case_index: int,
@@ -573,8 +592,52 @@ class Envelope:
         Returns a dict family -> (n_lines_of_kind, n_lines_of_family) array; the diagonal of
         the own family is the extreme itself.
         """
-        rows = np.array([self.response_to(g) for g in self.governing(kind, which, side)])
+        lines = self.lines_of(kind, side)
+        rows = np.array([self.concurrent_to(g, int(j))
+                         for g, j in zip(self.governing(kind, which, side), lines, strict=True)])
         return {f: rows[:, idx] for f, idx in self.index.items() if idx.size}
+
+    def concurrent_to(self, g: Governing, line: int) -> NDArray[np.float64]:
+        """Every line's value under the configuration ``g`` that governs ``line``, with every
+        load counted where it stands: an axle standing exactly on a section is right of the
+        cut just left of it and left of the cut just right of it, so the shear on the two
+        faces differs by the axle load.
+
+        The scan reports an extreme as a limit (ξ → b from above or below) where a load
+        crosses a break. Where ``line`` is continuous there (moment, deflection, reactions:
+        a load crossing a point does not make them jump), the value at ξ = b itself is the
+        same extreme, and that exact configuration is the one whose concurrent effects are
+        given; otherwise (a shear extreme, or a load leaving the beam) the limit is kept.
+        """
+        limit = self.response_to(g)
+        if g.case < 0 or self.effects[line].kind == "shear":
+            return limit
+        exact = self.response_to(_at_point(g))
+        size = max(abs(limit[line]), np.abs(limit).max() * 1e-6, 1e-300)
+        return exact if abs(exact[line] - limit[line]) <= 1e-9 * size else limit
+
+    def axle_face(self, g: Governing, x: float, kind: str = "shear",
+                  side: int | None = None) -> str:
+        """Where an axle of the configuration governing an extreme of ``kind`` at section x
+        stands: "on" (exactly on the section), "left" / "right" (just left / right of it:
+        the limit from that side, for shear, whose line jumps there), "" when no
+        concentrated load of ``g`` stands at x. For other kinds the extreme is the same with
+        the axle on the section (see ``concurrent_to``). ``side`` overrides ``g.side`` (a
+        part of loads acting together)."""
+        side = g.side if side is None else side
+        positions = self.axle_positions(g)
+        if positions.size == 0 or not np.any(np.abs(positions - x)
+                                             <= 1e-9 * max(1.0, self.beam.length)):
+            return ""
+        if kind != "shear" or side == 0:
+            return "on"
+        return "right" if side > 0 else "left"
+
+
+def _at_point(g: Governing) -> Governing:
+    """``g`` with its loads exactly where they stand (side 0), parts alike."""
+    return Governing(g.value, g.case, g.direction, g.reference, 0, g.searched, g.pattern,
+                     tuple(_at_point(p) for p in g.parts))
 
 
 @dataclass(frozen=True)
@@ -754,6 +817,7 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
         if isinstance(case.load, UniformLoad):
             return _uniform_case(batch, case, c, ordinate_extremes, beam), None
         arrangements = _arrangements(case)
+        _check_fits(case, arrangements[1], beam.length)
         if refine and case.load.parameters():
             return _searched_case(batch, case, c, arrangements), arrangements
         return _moving_grid(batch, case, c, arrangements), arrangements
@@ -807,7 +871,8 @@ def _prepared_lines(beam: Beam, sections: NDArray[np.float64], families: tuple[s
         full_batch = LineBatch.from_pieces(line_pieces(beam, line_effects))
         # identical lines (shear just left and right of a section inside a span, zero lines)
         # are scanned once; the distinct index is in terms of the distinct lines
-        keep, inverse, index_all, distinct = _distinct_lines(full_batch.identity, index)
+        keep, inverse, index_all, distinct = _distinct_lines(full_batch.identity, index,
+                                                             full_batch.end_live)
         batch = full_batch if keep.size == full_batch.n_lines else full_batch.subset(keep)
         found = (tuple(line_effects), index_all, full_batch, keep, inverse, distinct, batch)
         if len(_PREPARED) >= _PREPARED_KEEP:
@@ -835,9 +900,14 @@ def _lines_memo(batch: LineBatch, what: str) -> Any:
     return memo[what]
 
 
-def _distinct_lines(identity: NDArray[np.int64], index: dict[str, NDArray[np.int64]]
+def _distinct_lines(identity: NDArray[np.int64], index: dict[str, NDArray[np.int64]],
+                    end_live: NDArray[np.bool_] | None = None
                     ) -> tuple[NDArray[np.int64], NDArray[np.int64], dict, dict]:
     """Lines of the same family built the same way (``LinePieces.identity``), kept once.
+
+    Shear just left and just right of a section inside a span are one line, except where a
+    load can stand on an end of the beam while the line is not zero there (``end_live``):
+    a load standing on the section then reads a different value on each face.
 
     Returns (keep, inverse, index, distinct index): line ``keep[u]`` stands for distinct line
     u, line j is distinct line ``inverse[j]``, and the family index in both numberings.
@@ -847,6 +917,8 @@ def _distinct_lines(identity: NDArray[np.int64], index: dict[str, NDArray[np.int
     for code, (name, lines) in enumerate(index.items()):
         # shear just left and just right of a section inside a span are the same line
         family[lines] = -1 if name.startswith("shear") else code
+        if end_live is not None and name.startswith("shear"):
+            family[lines[end_live[lines]]] = code
     key = (family + 1) * n + identity
     _, keep, inverse = np.unique(key, return_index=True, return_inverse=True)
     # number the distinct lines in the order they first appear

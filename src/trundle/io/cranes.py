@@ -89,6 +89,18 @@ def runway_spec(model: Model) -> RunwaySpec | None:
     settings = runway_settings_of(model)
     if not entries or settings is None:
         return None
+    if settings.end_stops:
+        # between end stops every wheel stays on the beam: a crane longer than the beam
+        # cannot stand on it at all (refused, not reported as an empty envelope)
+        length = model.beam.length
+        for j, entry in enumerate(entries):
+            if entry.crane.wheelbase > length * (1.0 + 1e-12):
+                raise ModelFileError(
+                    model.name, f"{RUNWAY_TABLE}.end_stops",
+                    f"crane[{j}] {entry.crane.name!r}: its wheelbase {entry.crane.wheelbase:g} "
+                    f"is longer than the beam ({length:g}; lengths in the model's base "
+                    "units), so between end stops it cannot stand on the beam; expected "
+                    "end_stops = false or the whole runway as the beam")
     try:
         return dataclasses.replace(settings, cranes=tuple(e.crane for e in entries))
     except ModelError as error:  # everything is checked on reading; never a traceback anyway

@@ -224,7 +224,8 @@ class Extreme:
     loaded : stretches loaded by a placed uniform load [(x0, x1), …] [length]
     placement : how a placed load was placed, in words ("spans 1, 3", "where the line is
         positive")
-    side_note : for shear: where the load stands at the jump ("axle just right of the section")
+    side_note : where an axle standing at the section stands: on it, or just left or right of
+        it (for shear, whose line jumps there); "" when no axle stands at the section
     searched : ((label, value), …) the searched spacings and gaps found [length]
     """
 
@@ -313,8 +314,10 @@ def _describe_case(results: EnvelopeResults, family: str, which: str, own: Gover
                        point_x if load.point_load else None,
                        (point_x,) if point_x is not None and load.point_load else (), loaded,
                        placement, side_note)
-    if family.startswith("shear") and g.side:
-        side_note = f"axle just {'right' if g.side > 0 else 'left'} of the section"
+    if family in ("moment", "shear_left", "shear_right", "deflection"):
+        face = env.axle_face(asked, x, kind_and_side(family)[0], own.side)
+        side_note = {"on": "axle on the section", "left": "axle just left of the section",
+                     "right": "axle just right of the section", "": ""}[face]
     axles = tuple(float(a) for a in env.axle_positions(asked))
     searched = tuple(zip(parameter_labels(load), g.searched, strict=False))
     return Extreme(family, which, value, x, case.name, int(g.direction), float(g.reference),

@@ -178,25 +178,40 @@ def moment_table(results: EnvelopeResults) -> TableData:
     units = results.units
     L = units.label("length")
     unit = quantity_unit("moment", units)
+    force = units.label("force")
     rows, groups = [], []
     summaries = span_summaries(results)
     values = [e.value for s in summaries for e in (s.moment_max, s.moment_min)]
     d = _decimals(values)
+    # the shear on each face of the section under the configuration of the extreme moment
+    concurrent = {w: concurrent_shear(results, w) for w in ("max", "min")}
+    d_shear = _decimals([v for w in concurrent.values() for side in w for v in side])
     for s in summaries:
         groups.append(len(rows))
-        entries = [("max at sections", s.moment_max), ("max anywhere", s.absolute_max),
-                   ("min at sections", s.moment_min), ("min anywhere", s.absolute_min)]
-        for label, e in entries:
+        entries = [("max at sections", s.moment_max, "max"),
+                   ("max anywhere", s.absolute_max, None),
+                   ("min at sections", s.moment_min, "min"),
+                   ("min anywhere", s.absolute_min, None)]
+        for label, e, which in entries:
             if e is None:
                 continue
+            with_it = ["", ""]
+            at = np.flatnonzero(results.sections == e.x) if which else np.array([])
+            if at.size:
+                left, right = concurrent[which]
+                with_it = [_fixed(left[at[0]], d_shear), _fixed(right[at[0]], d_shear)]
             rows.append((str(s.span + 1), label, _fixed(e.value, d), _position(e.x),
-                         *_governing_cells(e, L)))
+                         *with_it, *_governing_cells(e, L)))
     return TableData(f"Bending moment per span [{unit}] (sagging +)",
                      ("span", "extreme", f"M [{unit}]", f"at x [{L}]",
+                      f"V left with it [{force}]", f"V right with it [{force}]",
                       *_governing_headers(L)), tuple(rows),
-                     (True, False, True, True, False, False, False, False),
+                     (True, False, True, True, True, True, False, False, False, False),
                      note="'anywhere': the worst section of the span, found by search between "
-                          "the sections.", groups=tuple(groups))
+                          "the sections. 'V left/right with it': the shear just left and just "
+                          "right of the section under the load that gives the moment (an axle "
+                          "on the section is right of the cut for the left face, left of it "
+                          "for the right face).", groups=tuple(groups))
 
 
 def shear_table(results: EnvelopeResults) -> TableData:

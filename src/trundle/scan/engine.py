@@ -9,8 +9,10 @@ exact evaluation of the group's response at a given ξ for concurrent effects.
 from __future__ import annotations
 
 import math
+from collections.abc import Sequence
 from dataclasses import dataclass
 from functools import cached_property
+from typing import Any
 
 import numpy as np
 from numpy.typing import NDArray
@@ -40,6 +42,11 @@ class LineBatch:
         piece with the largest bound
     knots : every point where some line breaks (structural nodes and sections), sorted
     identity : (n,) lines built the same way share it (see ``LinePieces.identity``)
+    own_knot, own_value : (n,) index in each line's knots of the section where a shear line
+        jumps (−1 for other lines) and the value of a unit load standing exactly on it: on
+        the far side of the cut (just left of a section, a load on it is right of the cut)
+    end_live : (n,) a load standing exactly on an end of the beam reads something a one-sided
+        limit does not: the line is not zero there, or it jumps there (shear at a free tip)
     """
 
     line_knots: NDArray[np.float64]
@@ -52,12 +59,15 @@ class LineBatch:
     peak: NDArray[np.int64]
     knots: NDArray[np.float64]
     identity: NDArray[np.int64]
+    own_knot: NDArray[np.int64]
+    own_value: NDArray[np.float64]
+    end_live: NDArray[np.bool_]
 
     @classmethod
     def from_pieces(cls, pieces: LinePieces) -> LineBatch:
         return cls.from_arrays(pieces.knots, pieces.n_pieces, pieces.coefficients,
                                np.unique(np.concatenate([pieces.nodes, pieces.sections])),
-                               pieces.identity)
+                               pieces.identity, pieces.effects)
 
     @classmethod
     def from_set(cls, lines: InfluenceSet) -> LineBatch:
@@ -69,13 +79,15 @@ class LineBatch:
         knots = np.ascontiguousarray(np.broadcast_to(lines.knots, (n, len(lines.knots))))
         return cls.from_arrays(knots, np.full(n, len(lines.knots) - 1, dtype=np.int64),
                                lines.coefficients.transpose(2, 1, 0), lines.knots,
-                               np.arange(n, dtype=np.int64))
+                               np.arange(n, dtype=np.int64), lines.effects)
 
     @classmethod
     def from_arrays(cls, knots: NDArray[np.float64], n_pieces: NDArray[np.int64],
                     coef: NDArray[np.float64], all_knots: NDArray[np.float64],
-                    identity: NDArray[np.int64]) -> LineBatch:
+                    identity: NDArray[np.int64], effects: Sequence[Any] | None = None
+                    ) -> LineBatch:
         n, n_knots = knots.shape
+        own_knot, own_value, end_live = _own_points(knots, n_pieces, coef, effects)
         h = np.diff(knots, axis=1)  # zero on the padding
         running = np.zeros((n, n_knots - 1, 5))
         running[:, :, 0] = coef[:, :, 0] / 4.0
@@ -91,6 +103,13 @@ class LineBatch:
                   + np.abs(coef[:, :, 2])) * h + np.abs(coef[:, :, 3]))
         valid = np.arange(n_knots - 1)[None, :] < n_pieces[:, None]
         bound = np.where(valid, bound, 0.0)
+        # a load standing on a line's own jump reads own_value: the pieces on either side
+        # bound it too (at a free tip it is the only nonzero value of the line)
+        for j in np.flatnonzero(own_knot >= 0):
+            k = own_knot[j]
+            for q in (k - 1, k):
+                if 0 <= q < n_pieces[j]:
+                    bound[j, q] = max(bound[j, q], abs(own_value[j]))
         head = np.zeros((n, n_knots))
         head[:, 1:] = np.maximum.accumulate(bound, axis=1)
         tail = np.zeros((n, n_knots))
@@ -101,14 +120,16 @@ class LineBatch:
                    np.ascontiguousarray(cumulative[:, -1]), head, tail,
                    np.argmax(bound, axis=1).astype(np.int64),
                    np.ascontiguousarray(all_knots, dtype=float),
-                   np.ascontiguousarray(identity, dtype=np.int64))
+                   np.ascontiguousarray(identity, dtype=np.int64), own_knot, own_value,
+                   end_live)
 
     def subset(self, lines: NDArray[np.int64]) -> LineBatch:
         """The same batch restricted to some lines."""
         return LineBatch(self.line_knots[lines], self.n_pieces[lines], self.line_coef[lines],
                          self.line_running[lines], self.running_end[lines], self.head[lines],
                          self.tail[lines], self.peak[lines], self.knots,
-                         self.identity[lines])
+                         self.identity[lines], self.own_knot[lines], self.own_value[lines],
+                         self.end_live[lines])
 
     @property
     def n_lines(self) -> int:
@@ -212,11 +233,15 @@ class LineBatch:
         return out
 
     def ordinates(self, x: NDArray[np.float64], side: str) -> NDArray[np.float64]:
-        """IL(x) for every line, (len(x), n), as the one-sided limit from ``side``.
+        """IL(x) for every line, (len(x), n), as the one-sided limit from ``side`` ("left",
+        "right"), or for a load standing exactly at x (``side="point"``).
 
         A load approaching an end of the beam from outside reads nothing: the left-hand limit
-        is zero at x ≤ 0 and the right-hand limit zero at x ≥ L.
+        is zero at x ≤ 0 and the right-hand limit zero at x ≥ L. A load standing on an end
+        is on the beam; one standing on a shear line's own section reads ``own_value``.
         """
+        if side == "point":
+            return self._point_ordinates(np.asarray(x, dtype=float))
         x = np.asarray(x, dtype=float)
         # a load placed at ξ − u may miss a knot by rounding (0.45 − 0.15 ≠ 0.3); a one-sided
         # limit must then be read at the knot itself, or it reads the other side of a jump
@@ -231,6 +256,21 @@ class LineBatch:
             out[(x <= 0.0) | (x > self.length)] = 0.0
         else:
             out[(x < 0.0) | (x >= self.length)] = 0.0
+        return out
+
+    def _point_ordinates(self, x: NDArray[np.float64]) -> NDArray[np.float64]:
+        # inside the beam the line is continuous except at a shear line's own section; at
+        # the right end the load is on the beam: the limit from inside
+        x = np.atleast_1d(x)
+        out = self.ordinates(x, "right")
+        at_right_end = np.abs(x - self.length) <= 1e-12 * max(1.0, self.length)
+        if at_right_end.any():
+            out[at_right_end] = self.ordinates(np.full(int(at_right_end.sum()), self.length),
+                                               "left")
+        for j in np.flatnonzero(self.own_knot >= 0):
+            c = self.line_knots[j, self.own_knot[j]]
+            on = np.abs(x - c) <= 1e-12 * max(1.0, self.length)
+            out[on, j] = self.own_value[j]
         return out
 
 
@@ -314,15 +354,18 @@ def scan_arrangements(batch: LineBatch, weights: NDArray[np.float64], kinds: NDA
                      np.ascontiguousarray(kinds, dtype=np.int64),
                      np.ascontiguousarray(offsets, dtype=float),
                      np.ascontiguousarray(lines, dtype=np.int64), constant,
-                     4 if uniform else 3, confined, prune)
+                     4 if uniform else 3, confined, prune, own_knot=batch.own_knot,
+                     own_value=batch.own_value, end_live=batch.end_live)
 
 
 def group_response(batch: LineBatch, group: TermGroup, xi: float, side: float = 0.0
                    ) -> NDArray[np.float64]:
-    """The group's effect on every line with its reference point at ξ (one-sided if asked)."""
+    """The group's effect on every line with its reference point at ξ: the limit from
+    below (side < 0), from above (side > 0), or exactly at ξ (side 0: every load counted
+    where it stands, on an end of the beam or on a section)."""
     weights, offsets, kinds, constant = group.terms()
     x = xi - offsets
-    limit = "left" if side < 0 else "right"
+    limit = "left" if side < 0 else "right" if side > 0 else "point"
     total = constant * batch.running_end.copy()
     point = kinds == KIND_POINT
     if point.any():
@@ -330,3 +373,49 @@ def group_response(batch: LineBatch, group: TermGroup, xi: float, side: float = 
     if (~point).any():
         total += weights[~point] @ batch.running_at(x[~point])
     return total
+
+
+# a line value below this fraction of the line's largest is rounding noise of an exact zero
+_NOISE = 1e-12
+
+
+def _own_points(knots: NDArray[np.float64], n_pieces: NDArray[np.int64],
+                coef: NDArray[np.float64], effects: Sequence[Any] | None
+                ) -> tuple[NDArray[np.int64], NDArray[np.float64], NDArray[np.bool_]]:
+    """(own_knot, own_value, end_live) of every line (see ``LineBatch``).
+
+    V is the upward resultant of everything left of the cut, so a load crossing the cut from
+    left to right raises a shear line by one: just left of a section a load standing on it
+    is right of the cut (the line's right-hand limit, or its left-hand limit + 1 at the right
+    end of the beam, where no piece follows); just right of it the load is left of the cut
+    (the left-hand limit, or the right-hand limit − 1 at the left end).
+    """
+    n = knots.shape[0]
+    own_knot = np.full(n, -1, dtype=np.int64)
+    own_value = np.zeros(n)
+    end_live = np.zeros(n, dtype=bool)
+    if effects is None:
+        return own_knot, own_value, end_live
+    for j, effect in enumerate(effects):
+        m = int(n_pieces[j])
+        h = knots[j, m] - knots[j, m - 1]
+        c = coef[j, m - 1]
+        start, end = coef[j, 0, 3], ((c[0] * h + c[1]) * h + c[2]) * h + c[3]
+        scale = max(float(np.abs(coef[j, :m]).max()), 1.0) * _NOISE
+        live = abs(start) > scale or abs(end) > scale
+        if getattr(effect, "kind", None) == "shear" and effect.at is not None:
+            k = int(np.argmin(np.abs(knots[j, :m + 1] - effect.at)))
+            own_knot[j] = k
+            if effect.side == "left":
+                own_value[j] = coef[j, k, 3] if k < m else end + 1.0
+            else:
+                cp = coef[j, k - 1] if k > 0 else None
+                hk = knots[j, k] - knots[j, k - 1] if k > 0 else 0.0
+                own_value[j] = (((cp[0] * hk + cp[1]) * hk + cp[2]) * hk + cp[3]
+                                if cp is not None else start - 1.0)
+            if k == 0:
+                live |= abs(own_value[j] - start) > scale
+            elif k == m:
+                live |= abs(own_value[j] - end) > scale
+        end_live[j] = live
+    return own_knot, own_value, end_live

@@ -185,9 +185,51 @@ def _next_break(knots, piece, offset, next_node, own):
 
 
 @njit(**JIT_OPTIONS)
+def _horner_high(coef_high_first, n_coef, s):
+    value = coef_high_first[0]
+    for i in range(1, n_coef):
+        value = value * s + coef_high_first[i]
+    return value
+
+
+@njit(**JIT_OPTIONS)
+def _point_value(xi, off, piece, arrived, line_knots, m, line_coef, line_running, end_value,
+                 weight, kind, own, own_value, constant):
+    """The group's effect with its reference point exactly at ξ, every load counted where it
+    stands: a load that has just reached knot ``piece[t]`` (``arrived``) reads the line's
+    value AT that knot (at an end of the beam: on the beam; at the line's own jump: the value
+    of a load standing on the section, ``own_value``); the others read their piece."""
+    total = constant
+    for t in range(weight.shape[0]):
+        p = piece[t]
+        if kind[t] == KIND_POINT:
+            if arrived[t]:
+                if p == own:
+                    total += weight[t] * own_value
+                elif p >= m:
+                    total += weight[t] * _horner_high(line_coef[m - 1], 4,
+                                                      line_knots[m] - line_knots[m - 1])
+                else:
+                    total += weight[t] * line_coef[p, 3]
+            elif 0 <= p < m:
+                total += weight[t] * _horner_high(line_coef[p], 4, xi - off[t] - line_knots[p])
+        else:
+            if p < 0:
+                continue
+            if p >= m:
+                total += weight[t] * end_value
+            elif arrived[t]:
+                total += weight[t] * line_running[p, 4]
+            else:
+                total += weight[t] * _horner_high(line_running[p], 5,
+                                                  xi - off[t] - line_knots[p])
+    return total
+
+
+@njit(**JIT_OPTIONS)
 def _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, tail, peak,
                 weight, kind, offsets, lines, constant_weight, degree, confined, prune,
-                result):
+                own_knot, own_value, end_live, result):
     """Rows start … stop − 1 into their own slice of ``result``: the one loop body that both
     the serial and the parallel kernel run.
 
@@ -195,8 +237,15 @@ def _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, 
     own knots only). The group enters at the left (first term at x = 0) and leaves at the
     right. A ``confined`` group (a crane between its end stops) only stands where every
     concentrated load is on the beam. The row gets (max, ξ at max, side at max, min, ξ at
-    min, side at min); side +1 is the limit from above (ξ → b⁺), −1 from below, 0 an interior
-    point. The empty beam counts (value 0, ξ NaN).
+    min, side at min); side +1 is the limit from above (ξ → b⁺), −1 from below, 0 the exact
+    position ξ (an interior point, or a load standing exactly on an end of the beam). The
+    empty beam counts (value 0, ξ NaN).
+
+    One-sided limits miss one kind of position: a load standing exactly ON an end of the beam
+    (from outside it reads nothing, from inside it reads the limit) of a line that is not
+    zero there or that jumps there (shear at a free tip: ``own_value``, the value of a load
+    standing on the line's own section ``own_knot``). On lines flagged ``end_live`` every
+    position where a concentrated load reaches an end is evaluated exactly as well.
 
     With ``prune`` (concentrated loads only), a row first sweeps from where its leading load
     reaches the line's largest piece to the right, and stops as soon as every load stands at
@@ -209,6 +258,7 @@ def _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, 
     shared = offsets.shape[0] == 1
     piece = np.empty(n_terms, dtype=np.int64)
     upcoming = np.empty(n_terms)
+    arrived = np.zeros(n_terms, dtype=np.bool_)
     scratch = np.empty(23)  # one allocation for the small work arrays
     poly = scratch[0:5]
     crit = scratch[5:8]
@@ -225,6 +275,9 @@ def _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, 
         line_coef = coef[line]
         line_running = running[line]
         end_value = running_end[line]
+        own = own_knot[line]
+        own_at = own_value[line]
+        live = end_live[line]
         off = offsets[0] if shared else offsets[row]
         lo = off[0]
         hi = off[0]
@@ -266,11 +319,23 @@ def _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, 
                 until, bounded = split, False
                 if xi >= split:
                     break
+            at_end = False
             for t in range(n_terms):
-                p = _locate(line_knots[:m + 1], xi - off[t])
+                x = xi - off[t]
+                p = _locate(line_knots[:m + 1], x)
                 piece[t] = p
                 upcoming[t] = (off[t] + line_knots[0] if p < 0 else
                                off[t] + line_knots[p + 1] if p < m else np.inf)
+                arrived[t] = p >= 0 and x == line_knots[min(p, m)]
+                if arrived[t] and kind[t] == KIND_POINT and (p == 0 or p == m):
+                    at_end = True
+            if live and at_end:
+                v = _point_value(xi, off, piece, arrived, line_knots, m, line_coef,
+                                 line_running, end_value, weight, kind, own, own_at, constant)
+                if v > best_max:
+                    best_max, pos_max, side_max = v, xi, 0.0
+                if v < best_min:
+                    best_min, pos_min, side_min = v, xi, 0.0
             while xi < until:
                 if bounded:
                     p = piece[trailing]
@@ -319,12 +384,24 @@ def _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, 
                             best_min, pos_min, side_min = v, xi + crit[k], 0.0
                 if nxt == np.inf:
                     break
+                at_end = False
                 for t in range(n_terms):
-                    if upcoming[t] <= nxt:
+                    arrived[t] = upcoming[t] <= nxt
+                    if arrived[t]:
                         p = piece[t] + 1 if piece[t] < m else m
                         piece[t] = p
                         upcoming[t] = off[t] + line_knots[p + 1] if p < m else np.inf
+                        if kind[t] == KIND_POINT and (p == 0 or p == m):
+                            at_end = True
                 xi = nxt
+                if live and at_end:
+                    v = _point_value(xi, off, piece, arrived, line_knots, m, line_coef,
+                                     line_running, end_value, weight, kind, own, own_at,
+                                     constant)
+                    if v > best_max:
+                        best_max, pos_max, side_max = v, xi, 0.0
+                    if v < best_min:
+                        best_min, pos_min, side_min = v, xi, 0.0
         result[row, 0] = best_max
         result[row, 1] = pos_max
         result[row, 2] = side_max
@@ -334,7 +411,8 @@ def _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, 
 
 
 def scan_rows_serial(knots, n_pieces, coef, running, running_end, head, tail, peak, weight,
-                     kind, offsets, lines, constant_weight, degree, confined, prune):
+                     kind, offsets, lines, constant_weight, degree, confined, prune,
+                     own_knot=None, own_value=None, end_live=None):
     """Exact extremes of a load group's response, one row per (line, arrangement).
 
     Parameters
@@ -358,6 +436,10 @@ def scan_rows_serial(knots, n_pieces, coef, running, running_end, head, tail, pe
     confined : only positions with every concentrated load on the beam (a crane between the
         end stops of its runway); otherwise the group enters and leaves the beam
     prune : skip positions that provably cannot beat the extremes (concentrated terms only)
+    own_knot, own_value, end_live : (n_lines,) index in each line's knots of the section
+        where its line jumps (−1: none), the value of a unit load standing exactly there,
+        and whether positions with a load exactly on an end of the beam need evaluating
+        (the line is not zero there, or jumps there); default: no line needs it
 
     Returns
     -------
@@ -365,24 +447,49 @@ def scan_rows_serial(knots, n_pieces, coef, running, running_end, head, tail, pe
     """
     # the compiled loop body is called straight from Python: a compiled wrapper around it
     # would cost a second compilation of the whole body on the first run, and nothing else
+    own_knot, own_value, end_live = _own_defaults(knots.shape[0], own_knot, own_value,
+                                                  end_live)
     result = np.empty((lines.shape[0], 6))
     _scan_chunk(0, lines.shape[0], knots, n_pieces, coef, running, running_end, head, tail,
                 peak, weight, kind, offsets, lines, float(constant_weight), int(degree),
-                bool(confined), bool(prune), result)
+                bool(confined), bool(prune), own_knot, own_value, end_live, result)
     return result
 
 
-@njit(**PARALLEL_OPTIONS)
+def _own_defaults(n_lines, own_knot, own_value, end_live):
+    if own_knot is None:
+        own_knot = np.full(n_lines, -1, dtype=np.int64)
+    if own_value is None:
+        own_value = np.zeros(n_lines)
+    if end_live is None:
+        end_live = np.zeros(n_lines, dtype=np.bool_)
+    return (np.ascontiguousarray(own_knot, dtype=np.int64),
+            np.ascontiguousarray(own_value, dtype=float),
+            np.ascontiguousarray(end_live, dtype=np.bool_))
+
+
 def scan_rows_parallel(knots, n_pieces, coef, running, running_end, head, tail, peak, weight,
                        kind, offsets, lines, constant_weight, degree, confined, prune,
-                       bounds):
+                       bounds, own_knot=None, own_value=None, end_live=None):
     """``scan_rows_serial`` split into contiguous slices of rows, ``bounds`` (n_chunks + 1,),
     one slice per thread, each writing only its own rows."""
+    own_knot, own_value, end_live = _own_defaults(knots.shape[0], own_knot, own_value,
+                                                  end_live)
+    return _scan_rows_parallel(knots, n_pieces, coef, running, running_end, head, tail, peak,
+                               weight, kind, offsets, lines, float(constant_weight),
+                               int(degree), bool(confined), bool(prune), own_knot, own_value,
+                               end_live, bounds)
+
+
+@njit(**PARALLEL_OPTIONS)
+def _scan_rows_parallel(knots, n_pieces, coef, running, running_end, head, tail, peak, weight,
+                        kind, offsets, lines, constant_weight, degree, confined, prune,
+                        own_knot, own_value, end_live, bounds):
     result = np.empty((lines.shape[0], 6))
     for c in prange(bounds.shape[0] - 1):
         _scan_chunk(bounds[c], bounds[c + 1], knots, n_pieces, coef, running, running_end,
                     head, tail, peak, weight, kind, offsets, lines, constant_weight, degree,
-                    confined, prune, result)
+                    confined, prune, own_knot, own_value, end_live, result)
     return result
 
 
@@ -402,7 +509,7 @@ def row_work(n_pieces: np.ndarray, lines: np.ndarray, n_terms: int, prune: bool
 
 def scan_rows(knots, n_pieces, coef, running, running_end, head, tail, peak, weight, kind,
               offsets, lines, constant_weight, degree, confined=False, prune=False,
-              threads: int | None = None):
+              threads: int | None = None, own_knot=None, own_value=None, end_live=None):
     """Exact extremes per row; see ``scan_rows_serial`` for the arguments. Rows go to
     threads only when each thread gets enough work to pay for it."""
     args = (knots, n_pieces, coef, running, running_end, head, tail, peak, weight, kind,
@@ -416,12 +523,13 @@ def scan_rows(knots, n_pieces, coef, running, running_end, head, tail, peak, wei
             total = float(row_work(n_pieces, lines, n_terms, prune).sum())
             threads = int(min(_threads(), _idle_cores(),
                               total // PARALLEL_FROM_WORK_PER_THREAD))
+    own = (own_knot, own_value, end_live)
     if threads <= 1 or lines.shape[0] < 2:
-        return scan_rows_serial(*args)
+        return scan_rows_serial(*args, *own)
     work = np.cumsum(row_work(n_pieces, lines, weight.shape[0], prune))
     cuts = np.searchsorted(work, work[-1] * np.arange(1, threads) / threads)
     bounds = np.concatenate([[0], cuts, [lines.shape[0]]]).astype(np.int64)
-    return scan_rows_parallel(*args, bounds)
+    return scan_rows_parallel(*args, bounds, *own)
 
 
 def _threads() -> int:
