@@ -756,9 +756,15 @@ def _frozen_vehicle(load, values):
 
 def fixed_spacing_extreme(beam, load, values, section: float, kind: str = "moment",
                           which: str = "max") -> float:
-    """trundle's exact fixed-spacing envelope of one effect at one section."""
-    e = trundle.envelope(beam, [_frozen_vehicle(load, values)], sections=[section],
-                         effects=(kind,))
+    """trundle's exact fixed-spacing envelope of one effect at one section (0, the empty
+    beam, where a confined load with these spacings cannot stand on the beam)."""
+    try:
+        e = trundle.envelope(beam, [_frozen_vehicle(load, values)], sections=[section],
+                             effects=(kind,))
+    except trundle.ModelError as error:
+        if "cannot stand on the beam" not in str(error):
+            raise
+        return 0.0
     return float((e.max(kind) if which == "max" else e.min(kind))[0])
 
 
