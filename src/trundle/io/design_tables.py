@@ -57,6 +57,7 @@ class DesignSettings:
 def _array_of_tables(value: Any, key: str, reader: Reader, what: str) -> list[dict]:
     if not isinstance(value, list) or not value or not all(isinstance(v, dict) for v in value):
         reader.expected(key, f"one or more [[{key}]] tables ({what})", value)
+    reader.limit(key, "design table entries", value)
     return value
 
 

@@ -45,8 +45,10 @@ LIMITS: dict[str, Limit] = {limit.name: limit for limit in (
     Limit("loads", 100, "[[load]] tables in one model file"),
     Limit("axles", 200, "axles of one vehicle"),
     Limit("vehicles", 50, "vehicles in one train"),
-    Limit("searched dimensions", 8, "searched spacings and gaps of one load (the search grid "
-          "grows as 2^n)"),
+    Limit("searched dimensions", 8, "searched spacings and gaps of one load (the exact search "
+          "tries up to 3^n link assignments per line)"),
+    Limit("design table entries", 100, "entries of one design table ([[permanent]], "
+          "[[combination]], [[design_load]], [[live_pattern]], [[lane_length_load]])"),
     Limit("cranes", 10, "[[crane]] tables in one model file"),
     Limit("wheels", 32, "wheel spacings of one crane (wheels per rail minus one)"),
     Limit("text length", 2_000, "characters of a title, name or other string value"),
