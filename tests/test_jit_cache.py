@@ -21,12 +21,41 @@ def _cache_dir_seen(**environment: str) -> str:
     return done.stdout.strip()
 
 
+def _one_folder_per_source_version(seen: str, root: Path) -> None:
+    folder = Path(seen)
+    assert folder.parent == root
+    assert len(folder.name) == 16 and all(c in "0123456789abcdef" for c in folder.name)
+
+
 def test_cache_goes_to_the_user_cache_folder(tmp_path):
-    assert _cache_dir_seen(XDG_CACHE_HOME=str(tmp_path)) == str(tmp_path / "trundle" / "numba")
+    _one_folder_per_source_version(_cache_dir_seen(XDG_CACHE_HOME=str(tmp_path)),
+                                   tmp_path / "trundle" / "numba")
 
 
 def test_default_is_under_home(tmp_path):
-    assert _cache_dir_seen(HOME=str(tmp_path)) == str(tmp_path / ".cache" / "trundle" / "numba")
+    _one_folder_per_source_version(_cache_dir_seen(HOME=str(tmp_path)),
+                                   tmp_path / ".cache" / "trundle" / "numba")
+
+
+def test_a_change_to_any_kernel_source_gives_another_folder(tmp_path):
+    """numba checks only the file a kernel is written in; a kernel calling another module's
+    kernel must not load a copy compiled against that module's older source."""
+    import shutil
+
+    copy = tmp_path / "src"
+    shutil.copytree(SRC, copy)
+    env = {k: v for k, v in os.environ.items() if k not in ("NUMBA_CACHE_DIR",)}
+    probe = "from trundle.core._jit import user_cache_folder; print(user_cache_folder())"
+
+    def folder() -> str:
+        return subprocess.run([sys.executable, "-c", probe], env={**env, "PYTHONPATH": str(copy)},
+                              capture_output=True, text=True, timeout=120, check=True
+                              ).stdout.strip()
+
+    before = folder()
+    kernels = copy / "trundle" / "scan" / "kernels.py"
+    kernels.write_text(kernels.read_text() + "\n# changed\n")
+    assert folder() != before
 
 
 def test_user_setting_is_kept(tmp_path):

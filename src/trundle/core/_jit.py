@@ -9,6 +9,7 @@ Compiled kernels are cached in a per-user cache folder, not inside the installed
 
 from __future__ import annotations
 
+import hashlib
 import os
 from pathlib import Path
 
@@ -16,11 +17,27 @@ JIT_OPTIONS = {"cache": True, "nogil": True}
 PARALLEL_OPTIONS = {**JIT_OPTIONS, "parallel": True}
 
 
+def _kernel_sources_digest() -> str:
+    """A short hash of every module that holds compiled code. numba checks only the stamp of
+    the file a kernel is written in, so a kernel that calls another module's kernel (the
+    fleet scan calls the envelope's loop body) could load a stale compiled copy after that
+    other module changed; a folder per version of the sources rules that out."""
+    package = Path(__file__).resolve().parents[1]
+    digest = hashlib.sha256()
+    for path in sorted(package.rglob("*.py")):
+        text = path.read_bytes()
+        if b"njit" in text:
+            digest.update(path.relative_to(package).as_posix().encode())
+            digest.update(text)
+    return digest.hexdigest()[:16]
+
+
 def user_cache_folder() -> Path:
-    """Where trundle keeps compiled kernels for this user."""
+    """Where trundle keeps compiled kernels for this user (one folder per version of the
+    kernels' sources)."""
     base = os.environ.get("XDG_CACHE_HOME") or ""
     root = Path(base) if base and Path(base).is_absolute() else Path.home() / ".cache"
-    return root / "trundle" / "numba"
+    return root / "trundle" / "numba" / _kernel_sources_digest()
 
 
 def use_user_cache() -> None:

@@ -41,7 +41,7 @@ N_COLUMNS = 8
 @njit(**JIT_OPTIONS)
 def _fleet_truck(truck, out, line_knots, n_pieces, line_coef, line_running, running_end, head,
                  tail, peak, all_lines, axle_start, axle_weight, axle_offset, direction, prune,
-                 found):
+                 own_knot, own_value, end_live, found):
     """All lines for one truck, both allowed directions; writes out[truck]. ``found`` is
     (n_lines, 6) scratch the scan writes into."""
     a0 = axle_start[truck]
@@ -72,7 +72,7 @@ def _fleet_truck(truck, out, line_knots, n_pieces, line_coef, line_running, runn
         # every line of the bridge is one row of the single-vehicle loop body
         _scan_chunk(0, n_lines, line_knots, n_pieces, line_coef, line_running, running_end,
                     head, tail, peak, weight, kind, offsets, all_lines, 0.0, 3, False, prune,
-                    found)
+                    own_knot, own_value, end_live, found)
         for line in range(n_lines):
             # the envelope's rule: strictly better, and a real position (not the empty beam)
             if not np.isnan(found[line, 1]) and found[line, 0] > out[truck, line, 0]:
@@ -89,7 +89,8 @@ def _fleet_truck(truck, out, line_knots, n_pieces, line_coef, line_running, runn
 
 @njit(**PARALLEL_OPTIONS)
 def scan_fleet_parallel(line_knots, n_pieces, line_coef, line_running, running_end, head, tail,
-                        peak, axle_start, axle_weight, axle_offset, direction, prune):
+                        peak, axle_start, axle_weight, axle_offset, direction, prune,
+                        own_knot, own_value, end_live):
     """Exact extremes of every truck on every line; trucks split over threads, each truck
     writing only its own rows. Arguments as in the module docstring and ``LineBatch``."""
     n_trucks = axle_start.shape[0] - 1
@@ -100,13 +101,14 @@ def scan_fleet_parallel(line_knots, n_pieces, line_coef, line_running, running_e
         found = np.empty((n_lines, 6))
         _fleet_truck(truck, out, line_knots, n_pieces, line_coef, line_running, running_end,
                      head, tail, peak, all_lines, axle_start, axle_weight, axle_offset,
-                     direction, prune, found)
+                     direction, prune, own_knot, own_value, end_live, found)
     return out
 
 
 @njit(**JIT_OPTIONS)
 def scan_fleet_serial(line_knots, n_pieces, line_coef, line_running, running_end, head, tail,
-                      peak, axle_start, axle_weight, axle_offset, direction, prune):
+                      peak, axle_start, axle_weight, axle_offset, direction, prune,
+                      own_knot, own_value, end_live):
     """``scan_fleet_parallel`` on one thread: for a Dask worker that already owns one core."""
     n_trucks = axle_start.shape[0] - 1
     n_lines = line_coef.shape[0]
@@ -116,7 +118,7 @@ def scan_fleet_serial(line_knots, n_pieces, line_coef, line_running, running_end
     for truck in range(n_trucks):
         _fleet_truck(truck, out, line_knots, n_pieces, line_coef, line_running, running_end,
                      head, tail, peak, all_lines, axle_start, axle_weight, axle_offset,
-                     direction, prune, found)
+                     direction, prune, own_knot, own_value, end_live, found)
     return out
 
 
@@ -167,4 +169,5 @@ def scan_fleet(batch: LineBatch, axle_start: NDArray[np.int64], axle_weight: NDA
     prune = int(batch.n_pieces.max()) >= PRUNE_FROM_PIECES
     return kernel(batch.line_knots, batch.n_pieces, batch.line_coef, batch.line_running,
                   batch.running_end, batch.head, batch.tail, batch.peak, axle_start,
-                  axle_weight, axle_offset, direction, prune)
+                  axle_weight, axle_offset, direction, prune, batch.own_knot, batch.own_value,
+                  batch.end_live)
