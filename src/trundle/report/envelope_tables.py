@@ -207,8 +207,11 @@ def moment_table(results: EnvelopeResults) -> TableData:
                       f"V left with it [{force}]", f"V right with it [{force}]",
                       *_governing_headers(L)), tuple(rows),
                      (True, False, True, True, True, True, False, False, False, False),
-                     note="'anywhere': the worst section of the span, found by search between "
-                          "the sections. 'V left/right with it': the shear just left and just "
+                     note="'anywhere': the worst section of the span, found by a search over 40 "
+                          "sections per span refined around the best of them; unlike the "
+                          "values at sections it is not yet proven to be the true extreme "
+                          "(it assumes one peak between neighbouring samples): check it where "
+                          "it governs. 'V left/right with it': the shear just left and just "
                           "right of the section under the load that gives the moment (an axle "
                           "on the section is right of the cut for the left face, left of it "
                           "for the right face).", groups=tuple(groups))
