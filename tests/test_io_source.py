@@ -7,7 +7,6 @@ import hashlib
 import os
 import socket
 import threading
-import time
 from pathlib import Path
 
 import pytest
@@ -120,10 +119,9 @@ def test_nesting_depth_counts_outside_strings_and_comments():
 
 def test_deep_nesting_refused_before_tomllib_recurses():
     text = "a = " + "[" * 100_000 + "]" * 100_000 + "\n"
-    start = time.perf_counter()
+    # refused with our message, not a RecursionError from tomllib
     with pytest.raises(SourceError, match="nested at most 32 deep"):
         parse_toml(text, "m.toml")
-    assert time.perf_counter() - start >= 0  # reached without RecursionError
     inline = "a = " + "{b = " * 40 + "1" + "}" * 40 + "\n"
     with pytest.raises(SourceError, match="nested"):
         parse_toml(inline, "m.toml")

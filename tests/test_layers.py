@@ -5,12 +5,9 @@ Python would tolerate at run time is still found). Two rules, as DEVELOPERS.md s
 
 1. Layer order — ``core < scan < loads < analysis < workflows < io < report < cli < trundle`` —
    holds for *every* import, at module level or inside a function, ``TYPE_CHECKING`` included.
-2. The graph of all imports is acyclic, with one documented exception: the convenience
-   methods ``Beam.influence``/``Beam.static`` import :mod:`trundle.core.influence` /
-   :mod:`trundle.core.statics` inside the method (same layer, never at module level; the
-   annotations name them under ``TYPE_CHECKING``), so that users keep ``beam.influence(...)``.
-   ``ALLOWED_DEFERRED`` lists exactly those edges; any other deferred import that closes a
-   cycle fails.
+2. The graph of all imports, deferred ones included, is acyclic, with no exception
+   (``Beam.influence``/``Beam.static`` are bound in ``trundle/core/__init__.py``, above the
+   modules they join).
 """
 
 from __future__ import annotations
@@ -23,10 +20,6 @@ import pytest
 SRC = Path(__file__).resolve().parents[1] / "src"
 PACKAGE = SRC / "trundle"
 LAYERS = ("core", "scan", "loads", "analysis", "workflows", "io", "report", "cli")
-ALLOWED_DEFERRED = {
-    ("trundle.core.beam", "trundle.core.influence"),
-    ("trundle.core.beam", "trundle.core.statics"),
-}
 
 
 def _module_name(path: Path) -> str:
@@ -155,18 +148,10 @@ def _cycle(edges: dict[str, set[str]]) -> list[str] | None:
 def test_no_import_cycle() -> None:
     edges: dict[str, set[str]] = {}
     for module, targets in GRAPH.items():
-        for target, top, _ in targets:
-            if not top and (module, target) in ALLOWED_DEFERRED:
-                continue
+        for target, _top, _ in targets:
             edges.setdefault(module, set()).add(target)
     cycle = _cycle(edges)
     assert cycle is None, "import cycle: " + " -> ".join(cycle)
-
-
-def test_the_allowed_deferred_imports_are_deferred_and_still_needed() -> None:
-    for module, target in ALLOWED_DEFERRED:
-        kinds = {top for t, top, _ in GRAPH[module] if t == target}
-        assert kinds == {False}, f"{module} -> {target} must be imported inside the method only"
 
 
 def test_the_cycle_finder_finds_a_cycle() -> None:

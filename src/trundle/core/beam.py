@@ -8,16 +8,12 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 from functools import cached_property
-from typing import TYPE_CHECKING, Any, Literal
+from typing import Any, Literal
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from trundle.core._repr import html_table, short
-
-if TYPE_CHECKING:
-    from trundle.core.influence import InfluenceLine, InfluenceSet
-    from trundle.core.statics import StaticResult
 
 
 class ModelError(ValueError):
@@ -322,35 +318,9 @@ class Beam:
             "hinge(s) - add a support or remove a hinge there"
         )
 
-    # --- analysis (thin layer over the functions in influence / statics) ----------------
-
-    def influence(
-        self,
-        effect: str,
-        at: float | None = None,
-        support: int | None = None,
-        side: Literal["left", "right"] | None = None,
-    ) -> InfluenceLine:
-        """Influence line of one effect for a unit downward load moving along the beam.
-
-        ``effect`` is ``"reaction"`` or ``"support_moment"`` (with ``support=``), or
-        ``"moment"``, ``"shear"`` (``side=``), ``"deflection"``, ``"rotation"`` (with ``at=``).
-        """
-        from trundle.core.influence import Effect, influence_set
-
-        return influence_set(self, [Effect(effect, at=at, support=support, side=side)]).line(0)
-
-    def influence_set(self, effects: Any) -> InfluenceSet:
-        """Many influence lines from one factorisation; all share the same knots."""
-        from trundle.core.influence import influence_set
-
-        return influence_set(self, effects)
-
-    def static(self, loads: Any) -> StaticResult:
-        """Reactions and exact diagrams for fixed loads (see :mod:`trundle.core.statics`)."""
-        from trundle.core.statics import solve_static
-
-        return solve_static(self, loads)
+    # ``beam.influence(...)``, ``beam.influence_set(...)`` and ``beam.static(...)`` are bound
+    # in trundle/core/__init__.py, above this module, so that beam.py imports neither the
+    # influence lines nor the statics that import it
 
     # ``repr(beam)`` stays the dataclass repr: it spells out every value that defines the
     # beam (short for any real beam) and the envelope's cache of lines is keyed on it
