@@ -25,7 +25,8 @@ from trundle.scan.kernels import (
     _critical_points,
     _horner,
     _locate,
-    _shift_add,
+    _next_event,
+    _piece_polynomial,
 )
 
 FREE = 2  # link code: strictly inside its range (0: at its lower bound, 1: at its upper)
@@ -91,25 +92,11 @@ def block_candidates(knots, m, coef, running, end_value, weight, kind, offset, d
         upcoming[t] = (offset[t] + knots[0] if p < 0 else
                        offset[t] + knots[p + 1] if p < m else np.inf)
     while xi < hi:
-        nxt = hi
-        for t in range(n_terms):
-            if upcoming[t] < nxt:
-                nxt = upcoming[t]
+        nxt = _next_event(upcoming, n_terms, hi)
         width = nxt - xi
         if width > 0.0:
-            for i in range(5):
-                poly[i] = 0.0
-            for t in range(n_terms):
-                e = piece[t]
-                if e < 0:
-                    continue
-                if kind[t] == KIND_POINT:
-                    if e < m:
-                        _shift_add(poly, coef[e], 4, xi - offset[t] - knots[e], weight[t], work)
-                elif e < m:
-                    _shift_add(poly, running[e], 5, xi - offset[t] - knots[e], weight[t], work)
-                else:
-                    poly[0] += weight[t] * end_value
+            _piece_polynomial(poly, 0.0, piece, kind, weight, offset, n_terms, xi, knots, coef,
+                              running, m, end_value, work)
             pos[k], val[k], side[k] = xi, poly[0], 1.0
             k += 1
             n_crit = _critical_points(poly, degree, width, crit, roots)

@@ -227,6 +227,38 @@ def _point_value(xi, off, piece, arrived, line_knots, m, line_coef, line_running
 
 
 @njit(**JIT_OPTIONS)
+def _next_event(upcoming, n_terms, until):
+    """The nearest break ahead (a term reaching its next piece), or ``until``."""
+    nxt = until
+    for t in range(n_terms):
+        if upcoming[t] < nxt:
+            nxt = upcoming[t]
+    return nxt
+
+
+@njit(**JIT_OPTIONS)
+def _piece_polynomial(poly, constant, piece, kind, weight, offset, n_terms, xi, knots, coef,
+                      running, m, end_value, work):
+    """poly (low first) = the response on the piece of ξ that starts at ``xi``: every term's
+    polynomial (IL for a concentrated load, F for an end of a uniform load, F(L) past the
+    beam's right end) shifted to ξ and weighted, plus ``constant``."""
+    for i in range(5):
+        poly[i] = 0.0
+    poly[0] = constant
+    for t in range(n_terms):
+        e = piece[t]
+        if e < 0:
+            continue
+        if kind[t] == KIND_POINT:
+            if e < m:
+                _shift_add(poly, coef[e], 4, xi - offset[t] - knots[e], weight[t], work)
+        elif e < m:
+            _shift_add(poly, running[e], 5, xi - offset[t] - knots[e], weight[t], work)
+        else:
+            poly[0] += weight[t] * end_value
+
+
+@njit(**JIT_OPTIONS)
 def _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, tail, peak,
                 weight, kind, offsets, lines, constant_weight, degree, confined, prune,
                 own_knot, own_value, end_live, result):
@@ -343,28 +375,11 @@ def _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, 
                         limit = tail_weight * tail[line, min(p, m)]
                         if limit <= best_max and -limit >= best_min:
                             break
-                nxt = until
-                for t in range(n_terms):
-                    if upcoming[t] < nxt:
-                        nxt = upcoming[t]
+                nxt = _next_event(upcoming, n_terms, until)
                 width = nxt - xi
                 if width > 0.0:
-                    for i in range(5):
-                        poly[i] = 0.0
-                    poly[0] = constant
-                    for t in range(n_terms):
-                        e = piece[t]
-                        if e < 0:
-                            continue
-                        if kind[t] == KIND_POINT:
-                            if e < m:
-                                _shift_add(poly, line_coef[e], 4, xi - off[t] - line_knots[e],
-                                           weight[t], work)
-                        elif e < m:
-                            _shift_add(poly, line_running[e], 5, xi - off[t] - line_knots[e],
-                                       weight[t], work)
-                        else:
-                            poly[0] += weight[t] * end_value
+                    _piece_polynomial(poly, constant, piece, kind, weight, off, n_terms, xi,
+                                      line_knots, line_coef, line_running, m, end_value, work)
                     v0 = poly[0]
                     v1 = _horner(poly, degree, width)
                     if v0 > best_max:
