@@ -670,15 +670,9 @@ def read_load_model_file(path: str | Path, target: UnitSystem | None = None,
     """
     path = Path(path)
     name = str(path)
-    try:  # regular files only, size-limited, UTF-8; nesting bounded before tomllib recurses
-        read = read_source(path, "load-model file")
-        raw = parse_toml(read.text, name)
-    except SourceError as error:
-        raise ModelFileError(name, error.key, error.detail) from None
-    except tomllib.TOMLDecodeError as error:
-        raise _syntax_error(name, error) from None
+    read, raw = _read_toml_file(path)
     if is_design_case_file(raw):
-        return read_design_case_file(path, target)
+        return _design_case_file(path, read.sha256, raw, target)
     plain = Reader(name)
     if "name" in raw:
         plain.fail("name", f'expected no name in a load-model file (it is called by its file '
@@ -878,19 +872,33 @@ def read_design_case(raw: Mapping[str, Any], name: str, reader: Reader, base: Pa
                   alternatives=tuple(alternatives), parameters=tuple(parameters.items()))
 
 
+def _read_toml_file(path: Path) -> tuple[Any, dict[str, Any]]:
+    """A load-model or design-case file read once: regular files only, size-limited, UTF-8,
+    nesting bounded before tomllib recurses; (what was read, its parsed TOML)."""
+    name = str(path)
+    try:
+        read = read_source(path, "load-model file")
+        return read, parse_toml(read.text, name)
+    except SourceError as error:
+        raise ModelFileError(name, error.key, error.detail) from None
+    except tomllib.TOMLDecodeError as error:
+        raise _syntax_error(name, error) from None
+
+
 def read_design_case_file(path: str | Path, target: UnitSystem | None = None,
                           parameters: Mapping[str, Any] | None = None) -> LoadModelFile:
     """A design-case file (``[[alternative]]`` tables) as a LoadModelFile of kind
     "design case" whose ``load`` is a DesignCase; ``parameters`` override the file's."""
     path = Path(path)
+    read, raw = _read_toml_file(path)
+    return _design_case_file(path, read.sha256, raw, target, parameters)
+
+
+def _design_case_file(path: Path, sha256: str, raw: dict[str, Any],
+                      target: UnitSystem | None = None,
+                      parameters: Mapping[str, Any] | None = None) -> LoadModelFile:
+    """The design case of a file already read (its parsed TOML and the hash of its bytes)."""
     name = str(path)
-    try:  # regular files only, size-limited, UTF-8; nesting bounded before tomllib recurses
-        read = read_source(path, "load-model file")
-        raw = parse_toml(read.text, name)
-    except SourceError as error:
-        raise ModelFileError(name, error.key, error.detail) from None
-    except tomllib.TOMLDecodeError as error:
-        raise _syntax_error(name, error) from None
     plain = Reader(name)
     table = plain.table(raw, "", _CASE_FILE_KEYS, required=("units", "description", "source",
                                                              "alternative"))
@@ -903,4 +911,4 @@ def read_design_case_file(path: str | Path, target: UnitSystem | None = None,
     reader = _ConvertingReader(name, units, target or units)
     case = read_design_case(table, path.stem, reader, path.parent, parameters)
     return LoadModelFile(path.stem, path, "design case", units, description, source, case,
-                         given=MappingProxyType(raw), sha256=read.sha256)
+                         given=MappingProxyType(raw), sha256=sha256)
