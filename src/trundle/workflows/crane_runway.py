@@ -234,8 +234,8 @@ class RunwayResult:
                              ("lateral", self.lateral_checks)):
             for check in checks:
                 rows.append([f"{name} deflection, span {check.span + 1}",
-                             short(check.deflection), f"L/{check.ratio:g} = "
-                             f"{short(check.allowable)}", short(check.utilisation),
+                             short(check.value), f"L/{check.ratio:g} = "
+                             f"{short(check.limit)}", short(check.utilisation),
                              check.verdict, check.governing])
         worst: dict[str, FatigueSection] = {}
         for section in self.fatigue:  # per crane the section of largest utilisation
