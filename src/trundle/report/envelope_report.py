@@ -90,7 +90,7 @@ def envelope_html(results: EnvelopeResults, pngs: dict[str, bytes] | None = None
     load_files = [{"path": str(path), "sha256": files[path]} for path in sorted(files)]
     L = units.label("length")
     sections = ", ".join(f"{round(float(x), 9) + 0.0:.6g}" for x in results.sections)
-    description = " ".join(str(results.model.raw.get("description", "")).split())
+    description = results.provenance.description
     context: dict[str, Any] = {
         "title": results.model.title,
         "description": description,
