@@ -168,7 +168,7 @@ def deflection_checks(env: Envelope, ratio: float, both_ways: bool
     ends = beam.support_positions
     high, low = env.max("deflection"), env.min("deflection")
     for span in range(beam.n_spans):
-        inside = np.flatnonzero((env.sections >= ends[span]) & (env.sections <= ends[span + 1]))
+        inside = beam.sections_in_span(env.sections, span)
         value, x, name = 0.0, 0.5 * (ends[span] + ends[span + 1]), "none"
         searches: list[tuple[int, str]] = []
         if inside.size:

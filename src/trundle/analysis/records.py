@@ -25,6 +25,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from trundle.analysis.envelope import AbsoluteExtreme, Envelope, Governing, kind_and_side
+from trundle.core.beam import Beam
 from trundle.loads.cases import LoadCase, Together
 from trundle.loads.patterns import UniformLoad
 from trundle.loads.vehicles import Train, Vehicle
@@ -86,6 +87,17 @@ class ExtremeRecord:
     def together(self) -> bool:
         """Whether it is an extreme of loads acting together (see ``parts``)."""
         return bool(self.parts) or self.placement == "not loaded"
+
+
+def span_faces(beam: Beam, x: NDArray[np.float64], span: int
+               ) -> tuple[NDArray[np.int64], NDArray[np.int64], NDArray[np.int64]]:
+    """The sections ``x`` of ``span`` (both supports included) and which of their shear faces
+    lie inside it: (all, right faces — every section but the right support, left faces —
+    every section but the left support), as indices into ``x``."""
+    inside = beam.sections_in_span(x, span)
+    a, b = beam.support_positions[span], beam.support_positions[span + 1]
+    tolerance = 1e-9 * beam.length
+    return inside, inside[x[inside] < b - tolerance], inside[x[inside] > a + tolerance]
 
 
 def searched_names(load: Any) -> list[str]:

@@ -19,7 +19,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from trundle.analysis.checks import DETAIL_CATEGORIES, FatigueSection
-from trundle.analysis.records import ExtremeRecord
+from trundle.analysis.records import ExtremeRecord, span_faces
 from trundle.core.beam import Beam
 from trundle.io.cranes import CraneEntry, cranes_of, runway_settings_of
 from trundle.io.units import UnitSystem
@@ -274,19 +274,15 @@ def runway_spans(report: RunwayReport) -> list[RunwaySpan]:
         return report.cache["spans"]
     beam = report.beam
     ends = beam.support_positions
-    tolerance = 1e-9 * beam.length
-    x = report.sections
     families = {(f, w): section_placements(report, f, w)
                 for f in ("moment", "shear_left", "shear_right") for w in ("max", "min")}
     lateral = lateral_placements(report)
     anywhere = _moment_anywhere(report)
     out = []
     for span, (a, b) in enumerate(zip(ends[:-1], ends[1:], strict=True)):
-        inside = beam.sections_in_span(x, span)
+        inside, rights, lefts = span_faces(beam, report.sections, span)
         if inside.size == 0:
             continue
-        rights = [i for i in inside if x[i] < b - tolerance]
-        lefts = [i for i in inside if x[i] > a + tolerance]
         shear = {w: _worst([families[("shear_right", w)][i] for i in rights]
                            + [families[("shear_left", w)][i] for i in lefts], w)
                  for w in ("max", "min")}

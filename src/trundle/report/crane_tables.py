@@ -13,6 +13,7 @@ from collections.abc import Sequence
 from typing import Any
 
 from trundle.analysis.checks import DeflectionCheck, FatigueSection
+from trundle.analysis.envelope import kind_and_side
 from trundle.io.cranes import CraneEntry, cranes_of, given_text, mass_given
 from trundle.io.modelfile import Model
 from trundle.io.units import UnitSystem
@@ -676,9 +677,9 @@ def runway_json(report: RunwayReport, cautions: Sequence[str]) -> dict[str, Any]
                 "max_anywhere": (placement_json(s.moment_anywhere)
                                  if s.moment_anywhere is not None else None)},
             "shear_with_impact": {"max": {**placement_json(s.shear_max),
-                                          "side": s.shear_max.extreme.family[6:]},
+                                          "side": kind_and_side(s.shear_max.extreme.family)[1]},
                                   "min": {**placement_json(s.shear_min),
-                                          "side": s.shear_min.extreme.family[6:]}},
+                                          "side": kind_and_side(s.shear_min.extreme.family)[1]}},
             "lateral_moment_either_way": (placement_json(s.lateral_moment)
                                           if s.lateral_moment is not None else None),
         })

@@ -1,12 +1,13 @@
 """The envelope of a model file's loads, gathered for presentation: one place that decides
 what every table, figure, CSV/JSON file and the HTML report shows.
 
-:func:`collect` runs the envelope (every ``[[load]]`` over the model's sections) and the
-absolute moment extremes per span, and keeps what traceability needs: the trundle version, the
-model file's SHA-256, the date. :func:`describe_extreme` turns one governing configuration into
-words and display units. Other workflows (the crane runway) add their own part of the outputs as
-section providers passed to :func:`collect` (composed in :mod:`trundle.report.sections`);
-every output renders the extra sections it is given.
+:func:`collect` gathers the model, its :class:`~trundle.io.outputs.Provenance` and the results
+the workflows computed (the moving-load result with its records, the crane runway, the design
+envelope); it runs no analysis. :func:`describe` turns one record
+(:class:`trundle.analysis.records.ExtremeRecord`: numbers and names) into words and display
+units (:class:`Extreme`). Other workflows (the crane runway, the design envelope) add their own
+part of the outputs as section providers passed to :func:`collect` (composed in
+:mod:`trundle.report.sections`); every output renders the extra sections it is given.
 """
 
 from __future__ import annotations
@@ -26,6 +27,7 @@ from trundle.analysis.records import (
     EnvelopeRecords,
     ExtremeRecord,
     searched_names,
+    span_faces,
 )
 from trundle.core.beam import Beam, Spring
 from trundle.io.cranes import cranes_of
@@ -428,18 +430,14 @@ def span_summaries(results: EnvelopeResults) -> list[SpanSummary]:
         return results.cache["span_summaries"]
     beam = results.beam
     ends = beam.support_positions
-    tolerance = 1e-9 * beam.length
-    x = results.sections
     per_family = {(f, w): section_extremes(results, f, w) for f in SECTION_FAMILIES
                   for w in ("max", "min")}
     out = []
     for span, (a, b) in enumerate(zip(ends[:-1], ends[1:], strict=True)):
-        inside = beam.sections_in_span(x, span)
+        # shear inside the span: right of its left support, left of its right support
+        inside, rights, lefts = span_faces(beam, results.sections, span)
         if inside.size == 0:  # sections chosen elsewhere: nothing to report for this span
             continue
-        # shear inside the span: right of its left support, left of its right support
-        rights = [i for i in inside if x[i] < b - tolerance]
-        lefts = [i for i in inside if x[i] > a + tolerance]
         shear = {w: _worst([_worst([per_family[("shear_right", w)][i] for i in rights], w),
                             _worst([per_family[("shear_left", w)][i] for i in lefts], w)], w)
                  for w in ("max", "min")}

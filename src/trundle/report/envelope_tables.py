@@ -257,12 +257,14 @@ def deflection_table(results: EnvelopeResults) -> TableData:
                      "without its load factor (service level).")
 
 
-def reactions_table(results: EnvelopeResults) -> TableData:
+def _support_table(results: EnvelopeResults, family: str, title: str, symbol: str
+                   ) -> TableData:
+    """Max and min of a support family (reaction, support moment) at each support."""
     units = results.units
     L = units.label("length")
-    unit = quantity_unit("reaction", units)
-    tops = support_extremes(results, "reaction", "max")
-    bottoms = support_extremes(results, "reaction", "min")
+    unit = quantity_unit(family, units)
+    tops = support_extremes(results, family, "max")
+    bottoms = support_extremes(results, family, "min")
     d = _decimals([e.value for e in (*tops.values(), *bottoms.values())])
     rows, groups = [], []
     for k in sorted(tops):
@@ -270,29 +272,22 @@ def reactions_table(results: EnvelopeResults) -> TableData:
         for label, e in (("max", tops[k]), ("min", bottoms[k])):
             rows.append((str(k), _length(e.x), label, _fixed(e.value, d),
                          *_governing_cells(e, L)))
-    return TableData(f"Reactions per support [{unit}] (upward +)",
-                     ("support", f"x [{L}]", "extreme", f"R [{unit}]", *_governing_headers(L)),
+    return TableData(title.format(unit=unit),
+                     ("support", f"x [{L}]", "extreme", f"{symbol} [{unit}]",
+                      *_governing_headers(L)),
                      tuple(rows), (True, True, False, True, False, False, False, False),
                      groups=tuple(groups))
+
+
+def reactions_table(results: EnvelopeResults) -> TableData:
+    return _support_table(results, "reaction", "Reactions per support [{unit}] (upward +)", "R")
 
 
 def support_moment_table(results: EnvelopeResults) -> TableData | None:
     if not results.env.index["support_moment"].size:
         return None
-    units = results.units
-    L = units.label("length")
-    unit = quantity_unit("support_moment", units)
-    tops = support_extremes(results, "support_moment", "max")
-    bottoms = support_extremes(results, "support_moment", "min")
-    d = _decimals([e.value for e in (*tops.values(), *bottoms.values())])
-    rows = []
-    for k in sorted(tops):
-        for label, e in (("max", tops[k]), ("min", bottoms[k])):
-            rows.append((str(k), _length(e.x), label, _fixed(e.value, d),
-                         *_governing_cells(e, L)))
-    return TableData(f"Support moments [{unit}] (couple on the beam, counter-clockwise +)",
-                     ("support", f"x [{L}]", "extreme", f"M [{unit}]", *_governing_headers(L)),
-                     tuple(rows), (True, True, False, True, False, False, False, False))
+    return _support_table(results, "support_moment", "Support moments [{unit}] (couple on the "
+                          "beam, counter-clockwise +)", "M")
 
 
 def summary_tables(results: EnvelopeResults) -> list[TableData]:
@@ -504,6 +499,11 @@ def extreme_json(e: Extreme) -> dict[str, Any]:
     })
 
 
+def shear_json(e: Extreme) -> dict[str, Any]:
+    """A shear extreme with the face it is on ("left" or "right" of its section)."""
+    return {**extreme_json(e), "side": kind_and_side(e.family)[1]}
+
+
 def envelope_document(results: EnvelopeResults) -> dict[str, Any]:
     """Everything, as one JSON-able document."""
     units, beam, model = results.units, results.beam, results.model
@@ -588,8 +588,7 @@ def _load_parts(results: EnvelopeResults) -> tuple[list[Any], list[Any], list[An
             "moment": {"max": extreme_json(s.moment_max), "min": extreme_json(s.moment_min),
                        "max_anywhere": extreme_json(s.absolute_max) if s.absolute_max else None,
                        "min_anywhere": extreme_json(s.absolute_min) if s.absolute_min else None},
-            "shear": {"max": {**extreme_json(s.shear_max), "side": s.shear_max.family[6:]},
-                      "min": {**extreme_json(s.shear_min), "side": s.shear_min.family[6:]}},
+            "shear": {"max": shear_json(s.shear_max), "min": shear_json(s.shear_min)},
             "deflection": {"max": extreme_json(s.deflection_max),
                            "min": extreme_json(s.deflection_min)},
         })
