@@ -615,10 +615,6 @@ def runway_csv_files(report: RunwayReport) -> dict[str, str]:
 # JSON
 
 
-def _num(value: float | None) -> float | None:
-    return jsonable(value)
-
-
 def placement_json(p: CranePlacement) -> dict[str, Any]:
     data = extreme_json(p.extreme)
     data.pop("loaded_stretches", None)
@@ -627,18 +623,18 @@ def placement_json(p: CranePlacement) -> dict[str, Any]:
     data["lead_wheel_x"] = data.pop("lead_axle_or_point_load_x")
     data["wheel_positions"] = data.pop("load_positions")
     data.pop("searched", None)
-    data["wheel_loads"] = [_num(w) for w in p.wheel_loads]
+    data["wheel_loads"] = [jsonable(w) for w in p.wheel_loads]
     data["cranes"] = [{"name": n, "state": s, "wheels": k} for n, s, k in p.cranes]
-    data["clear_gaps"] = [_num(g) for g in p.gaps]
+    data["clear_gaps"] = [jsonable(g) for g in p.gaps]
     data["buffers_touching"] = list(p.touching)
     return data
 
 
 def _check_json(c: DeflectionCheck, to_display: float) -> dict[str, Any]:
-    return {"span": c.span + 1, "span_length": _num(c.span_length),
-            "deflection": _num(c.value * to_display), "x": _num(c.x),
-            "limit_span_ratio": _num(c.ratio), "allowable": _num(c.limit * to_display),
-            "utilisation": _num(c.utilisation), "verdict": c.verdict,
+    return {"span": c.span + 1, "span_length": jsonable(c.span_length),
+            "deflection": jsonable(c.value * to_display), "x": jsonable(c.x),
+            "limit_span_ratio": jsonable(c.ratio), "allowable": jsonable(c.limit * to_display),
+            "utilisation": jsonable(c.utilisation), "verdict": c.verdict,
             "combination": c.governing}
 
 
@@ -708,14 +704,14 @@ def runway_json(report: RunwayReport, cautions: Sequence[str]) -> dict[str, Any]
             "crane": item.crane, "x": item.x, "moment_range": item.moment_range,
             "cycles_per_passage": item.cycles_per_passage,
             "rainflow_cycles": [[r, n] for r, n in item.cycles],
-            "stress_range": _num(None if item.stress_range is None
+            "stress_range": jsonable(None if item.stress_range is None
                                  else item.stress_range * factor),
-            "equivalent_range": _num(None if item.equivalent_range is None
+            "equivalent_range": jsonable(None if item.equivalent_range is None
                                      else item.equivalent_range * factor),
             "cycles_over_life": None if math.isinf(life) else life,
-            "allowable": _num(None if item.allowable is None else item.allowable * factor),
+            "allowable": jsonable(None if item.allowable is None else item.allowable * factor),
             "basis": item.check,
-            "utilisation": _num(item.utilisation),
+            "utilisation": jsonable(item.utilisation),
             "verdict": item.verdict,
         })
     return {

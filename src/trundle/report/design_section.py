@@ -282,20 +282,16 @@ def deflection_csv(results: EnvelopeResults) -> str:
           c.governing, units.deflection] for c in result.deflection))
 
 
-def _json_values(values: np.ndarray) -> list[float | None]:
-    return jsonable(values)
-
-
 def design_json(results: EnvelopeResults) -> dict[str, Any]:
     result, units = results.design, results.units
     return {
-        "sections": _json_values(result.sections),
-        "critical_shear_sections": _json_values(result.critical),
+        "sections": jsonable(result.sections),
+        "critical_shear_sections": jsonable(result.critical),
         "units": {f: quantity_unit(f, units, ascii_only=True) for f in CASE_FAMILIES},
         "combinations": {
             name: {"description": env.combination.describe(),
                    "provenance": env.combination.provenance,
-                   "values": {f"{f} {w}": _json_values(_display(result, f, env.values[f, w],
+                   "values": {f"{f} {w}": jsonable(_display(result, f, env.values[f, w],
                                                                  units))
                               for f in FAMILIES for w in ("max", "min")},
                    "governing": {f"{f} {w}": list(env.governing[f, w])
@@ -303,7 +299,7 @@ def design_json(results: EnvelopeResults) -> dict[str, Any]:
             for name, env in result.designs.items()},
         "cases": {
             case.name: {"rule": case.rule,
-                        "values": {f"{f} {w}": _json_values(_display(result, f,
+                        "values": {f"{f} {w}": jsonable(_display(result, f,
                                                                       case.values[f, w], units))
                                    for f in CASE_FAMILIES for w in ("max", "min")},
                         "governing": {f"{f} {w}": list(case.governing.get((f, w), ()))
