@@ -258,49 +258,6 @@ def spread_points(rng: np.random.Generator, beam: trundle.Beam, count: int,
     return np.asarray(out)
 
 
-def random_beam(rng: np.random.Generator, max_spans: int = 4, stepped: bool = True
-                ) -> trundle.Beam:
-    """A random stable beam: 1-4 spans, pins, fixed and free ends, springs (k, kr), hinges
-    (also over supports), overhangs and stepped EI. Mechanisms are drawn again."""
-    for _ in range(1000):
-        n = int(rng.integers(1, max_spans + 1))
-        spans = np.round(rng.uniform(2.0, 10.0, n), 2)
-        L = float(spans.sum())
-        EI_base = float(rng.uniform(0.5, 5.0))
-        supports: list[object] = []
-        for _ in range(n + 1):
-            kind = rng.choice(["pin", "pin", "pin", "fixed", "free", "spring"])
-            if kind == "spring":
-                # comparable with the beam's own stiffness, so the springs matter; much softer
-                # springs make rigid-body drift swamp bending and cost digits in any solver
-                k = EI_base / spans.mean() ** 3 * float(10 ** rng.uniform(0.5, 2.5))
-                kr = None if rng.random() < 0.5 else EI_base / spans.mean() * float(
-                    10 ** rng.uniform(-0.5, 1.5))
-                supports.append(trundle.Spring(k, kr))
-            else:
-                supports.append(str(kind))
-        hinges: list[float] = []
-        for _ in range(int(rng.integers(0, 3))):
-            if rng.random() < 0.3:
-                hinges.append(float(np.cumsum(spans)[rng.integers(0, n)]))  # over a support
-            else:
-                hinges.append(float(np.round(rng.uniform(0.05, 0.95) * L, 2)))
-        EI: object = EI_base
-        if stepped and rng.random() < 0.6:
-            cuts = np.sort(np.round(rng.uniform(0.1, 0.9, int(rng.integers(1, 3))) * L, 2))
-            edges = np.concatenate([[0.0], cuts, [L]])
-            EI = [(float(a), float(b), EI_base * float(rng.uniform(0.3, 3.0)))
-                  for a, b in zip(edges[:-1], edges[1:], strict=True)]
-        try:
-            beam = trundle.Beam(spans=spans.tolist(), EI=EI, supports=supports,
-                                hinges=sorted(set(hinges)))
-        except trundle.ModelError:
-            continue
-        if np.min(np.diff(beam_nodes(beam))) >= MIN_NODE_GAP * beam.length:
-            return beam
-    raise RuntimeError("no stable random beam in 1000 draws")
-
-
 def effects_for(beam: trundle.Beam, rng: np.random.Generator) -> list[trundle.Effect]:
     """Every kind of effect the beam has: all reactions and couples, and moment (default and
     both faces), shear (both faces), deflection and rotation at random sections, at a support

@@ -575,43 +575,6 @@ def brute_force_extremes(beam: trundle.Beam, effects: list[trundle.Effect], load
 # --- random test cases ---------------------------------------------------------------------------
 
 
-def random_beam(rng: np.random.Generator, max_spans: int = 3) -> trundle.Beam:
-    """A random stable beam: 1–3 spans, pins, fixed and free ends, springs (with and without a
-    rotational spring), hinges (also over a support) and stepped EI; mechanisms drawn again."""
-    for _ in range(1000):
-        n = int(rng.integers(1, max_spans + 1))
-        spans = np.round(rng.uniform(3.0, 10.0, n), 2)
-        L = float(spans.sum())
-        EI0 = float(rng.uniform(0.5, 5.0))
-        supports: list[object] = []
-        for _ in range(n + 1):
-            kind = str(rng.choice(["pin", "pin", "pin", "fixed", "free", "spring"]))
-            if kind == "spring":
-                k = EI0 / spans.mean() ** 3 * float(10 ** rng.uniform(0.5, 2.0))
-                kr = None if rng.random() < 0.5 else EI0 / spans.mean() * float(
-                    10 ** rng.uniform(-0.5, 1.0))
-                supports.append(trundle.Spring(k, kr))
-            else:
-                supports.append(kind)
-        hinges: list[float] = []
-        if rng.random() < 0.5:
-            if n > 1 and rng.random() < 0.3:
-                hinges.append(float(np.cumsum(spans)[rng.integers(0, n - 1)]))
-            else:
-                hinges.append(float(np.round(rng.uniform(0.1, 0.9) * L, 2)))
-        EI: object = EI0
-        if rng.random() < 0.5:
-            cut = float(np.round(rng.uniform(0.2, 0.8) * L, 2))
-            EI = [(0.0, cut, EI0), (cut, L, EI0 * float(rng.uniform(0.3, 3.0)))]
-        try:
-            beam = trundle.Beam(spans=spans.tolist(), EI=EI, supports=supports, hinges=hinges)
-        except trundle.ModelError:
-            continue
-        if np.min(np.diff(beam_nodes(beam))) >= 0.5:
-            return beam
-    raise RuntimeError("no stable random beam in 1000 draws")
-
-
 def random_sections(rng: np.random.Generator, beam: trundle.Beam, count: int) -> list[float]:
     """Sections spread over the beam, clear of its nodes and of one another."""
     taken = list(beam_nodes(beam))

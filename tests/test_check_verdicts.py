@@ -53,8 +53,11 @@ def test_the_verdict_rule():
 
 
 def test_the_check_records_carry_the_verdict():
-    failing = DeflectionCheck(0, 6.0, 0.02, 3.0, 600.0, 0.01, 2.0, "crane")
+    failing = DeflectionCheck.of(0, 6.0, 0.02, 3.0, "crane", 600.0)
+    assert failing.limit == pytest.approx(0.01) and failing.utilisation == pytest.approx(2.0)
     assert failing.verdict == EXCEEDS
+    assert DeflectionCheck.of(0, 6.0, -0.02, 3.0, "lane", 600.0).verdict == EXCEEDS  # upward
+    assert DeflectionCheck.of(0, 6.0, 0.01, 3.0, "lane", 600.0).verdict == PASS  # at the limit
     fatigue = FatigueSection(1.0, "crane", 10.0, ((10.0, 1.0),), 1.148, 1.148, 1.0,
                              "threshold")
     assert fatigue.utilisation == pytest.approx(1.148) and fatigue.verdict == EXCEEDS

@@ -193,22 +193,22 @@ def test_vertical_deflection_check_uses_wheel_loads_without_impact(continuous) -
     assert len(continuous.vertical_checks) == 3
     for check in continuous.vertical_checks:
         assert check.ratio == 600.0  # service class C
-        assert check.allowable == pytest.approx(SPANS[check.span] / 600.0, rel=1e-12)
-        assert check.utilisation == pytest.approx(check.deflection / check.allowable, rel=1e-12)
+        assert check.limit == pytest.approx(SPANS[check.span] / 600.0, rel=1e-12)
+        assert check.utilisation == pytest.approx(check.value / check.limit, rel=1e-12)
         # the value is attained: a static solve with the crane where the envelope puts it
         res = _governing_static(beam, loaded, check.x, "max")
         at_x = float(res.deflection(np.array([check.x]))[0])
-        assert check.deflection == pytest.approx(at_x, rel=1e-9)
+        assert check.value == pytest.approx(at_x, rel=1e-9)
         # and it is the largest in the span (brute force over positions and sections)
         reference = _brute_deflection(beam, loaded, check.span)
-        assert check.deflection >= reference * (1 - 1e-9)
-        assert check.deflection == pytest.approx(reference, rel=1e-6)
+        assert check.value >= reference * (1 - 1e-9)
+        assert check.value == pytest.approx(reference, rel=1e-6)
     # an interior span of a continuous runway deflects less than a simple span would
     mid = continuous.vertical_checks[1]
     simple = trundle.Beam(spans=[12.0], EI=EI)
     res = simple.static([PointLoad(6.0 - 1.8, loaded.loads[0]), PointLoad(6.0 + 1.8,
                                                                           loaded.loads[0])])
-    assert mid.deflection < float(res.deflection(np.array([6.0]))[0])
+    assert mid.value < float(res.deflection(np.array([6.0]))[0])
 
 
 def test_lateral_deflection_uses_lateral_forces_on_the_lateral_stiffness(continuous) -> None:
@@ -221,10 +221,10 @@ def test_lateral_deflection_uses_lateral_forces_on_the_lateral_stiffness(continu
     for vertical, lateral in zip(continuous.vertical_checks, continuous.lateral_checks,
                                  strict=True):
         assert lateral.ratio == 400.0
-        assert lateral.allowable == pytest.approx(SPANS[lateral.span] / 400.0, rel=1e-12)
-        assert lateral.deflection == pytest.approx(factor * vertical.deflection, rel=1e-7)
+        assert lateral.limit == pytest.approx(SPANS[lateral.span] / 400.0, rel=1e-12)
+        assert lateral.value == pytest.approx(factor * vertical.value, rel=1e-7)
         reference = _brute_deflection(lateral_beam, crane.vehicle("lateral"), lateral.span)
-        assert lateral.deflection == pytest.approx(reference, rel=1e-6)
+        assert lateral.value == pytest.approx(reference, rel=1e-6)
     # the lateral moment envelope scales the same way (no impact on lateral forces)
     np.testing.assert_allclose(continuous.lateral.max("moment"),
                                continuous.strength.max("moment") / 1.25 * w.lateral / w.maximum,
@@ -243,10 +243,10 @@ def test_simple_span_deflection_closed_form() -> None:
     b = L / 2 - a / 2
     (check,) = result.vertical_checks
     assert check.x == pytest.approx(L / 2, rel=1e-6)
-    assert check.deflection == pytest.approx(P * b * (3 * L**2 - 4 * b**2) / (24 * EI),
+    assert check.value == pytest.approx(P * b * (3 * L**2 - 4 * b**2) / (24 * EI),
                                              rel=1e-9)
     (lateral,) = result.lateral_checks
-    assert lateral.deflection == pytest.approx(H * b * (3 * L**2 - 4 * b**2) / (24 * LATERAL_EI),
+    assert lateral.value == pytest.approx(H * b * (3 * L**2 - 4 * b**2) / (24 * LATERAL_EI),
                                                rel=1e-9)
 
 
@@ -431,7 +431,7 @@ def test_deflection_is_checked_in_spans_without_requested_sections() -> None:
     full = analyse_runway(beam, spec)
     assert [c.span for c in sparse.vertical_checks] == list(range(len(SPANS)))
     for a, b in zip(sparse.vertical_checks, full.vertical_checks, strict=True):
-        assert a.deflection == pytest.approx(b.deflection, rel=1e-9)
+        assert a.value == pytest.approx(b.value, rel=1e-9)
 
 
 def test_end_stops_keep_every_wheel_on_the_runway() -> None:

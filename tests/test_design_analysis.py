@@ -8,7 +8,13 @@ import pytest
 
 import trundle
 from trundle.analysis.case_envelopes import case_envelopes, design_case_envelope
-from trundle.analysis.checks import EXCEEDS, PASS, utilisation_of, verdict
+from trundle.analysis.checks import (
+    EXCEEDS,
+    PASS,
+    live_load_deflection_checks,
+    utilisation_of,
+    verdict,
+)
 from trundle.analysis.combinations import (
     BUILDING_1_2D_1_6L,
     BUILDING_1_4D,
@@ -16,7 +22,6 @@ from trundle.analysis.combinations import (
     design_envelope,
 )
 from trundle.analysis.critical_sections import parse_from_supports, sections_from_supports
-from trundle.analysis.deflection_limits import live_load_deflection_checks
 from trundle.analysis.patterns import patterned_uniform
 from trundle.analysis.permanent import PermanentLoad, permanent_effects
 from trundle.analysis.rules import applicability, contraflexure_points, hogging_region

@@ -20,11 +20,11 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 import trundle
+from conftest import SCAN_BEAMS, random_beam
 from naive_scan import (
     Arrangement,
     ReferenceSolver,
     random_axles,
-    random_beam,
     random_sections,
     static_effects,
 )
@@ -38,7 +38,7 @@ def _random_case(seed: int, uniform: bool) -> tuple[trundle.Beam, list[float], o
     """A random beam and sections, and a vehicle (or a one-vehicle train with uniform load
     behind or ahead) with the same loads written out by hand in group coordinates."""
     rng = np.random.default_rng(seed)
-    beam = random_beam(rng)
+    beam = random_beam(rng, **SCAN_BEAMS)
     sections = random_sections(rng, beam, 2)
     loads, spacings = random_axles(rng, beam)
     u = np.concatenate([[0.0], np.cumsum(spacings)]).tolist()
@@ -198,7 +198,7 @@ def test_concurrent_shear_with_an_axle_a_rounding_off_the_section() -> None:
 @pytest.mark.parametrize("placement", ["anywhere", "spans", "everywhere"])
 def test_loaded_stretches_reproduce_the_placed_extreme(placement: str) -> None:
     rng = np.random.default_rng(7)
-    beam = random_beam(rng)
+    beam = random_beam(rng, **SCAN_BEAMS)
     sections = random_sections(rng, beam, 2)
     env = trundle.envelope(beam, [trundle.UniformLoad(0.9, placement=placement)],
                            sections=sections, effects=("moment", "deflection", "reaction"))

@@ -21,6 +21,7 @@ import pytest
 from scipy.optimize import brentq, minimize_scalar
 
 import trundle
+from conftest import SCAN_BEAMS, random_beam
 from naive_scan import (
     Arrangement,
     BruteForce,
@@ -28,7 +29,6 @@ from naive_scan import (
     beam_nodes,
     effects_at,
     random_axles,
-    random_beam,
     random_sections,
 )
 from trundle.core.statics import DistributedLoad, PointLoad
@@ -91,7 +91,7 @@ def test_reference_solver_closed_forms() -> None:
 def test_reference_solver_agrees_with_beam_static(seed: int) -> None:
     """Two independent static solvers agree, loads anywhere (a hair from a node too)."""
     rng = np.random.default_rng(seed)
-    beam = random_beam(rng)
+    beam = random_beam(rng, **SCAN_BEAMS)
     sections = random_sections(rng, beam, 3)
     effects = effects_at(beam, sections)
     nodes = beam_nodes(beam)
@@ -146,7 +146,7 @@ def test_beam_static_with_a_load_a_hair_from_a_node(node: float) -> None:
 @pytest.mark.parametrize("seed", range(6))
 def test_vehicle_envelope_matches_brute_force(seed: int) -> None:
     rng = np.random.default_rng(seed)
-    beam = random_beam(rng)
+    beam = random_beam(rng, **SCAN_BEAMS)
     sections = random_sections(rng, beam, 2)
     effects = effects_at(beam, sections)
     loads, spacings = random_axles(rng, beam)
@@ -161,7 +161,7 @@ def test_sections_at_supports_and_hinges_match_brute_force(seed: int) -> None:
     """Sections on the nodes (an end, supports, hinges: shear jumps and kinks of the line
     coincide with the beam's own breaks), one to three axles, two of them side by side."""
     rng = np.random.default_rng(seed + 1000)
-    beam = random_beam(rng)
+    beam = random_beam(rng, **SCAN_BEAMS)
     nodes = [float(x) for x in beam_nodes(beam) if x < beam.length]
     sections = sorted(rng.choice(nodes, size=min(3, len(nodes)), replace=False).tolist())
     effects = effects_at(beam, sections)
@@ -178,7 +178,7 @@ def test_sections_at_supports_and_hinges_match_brute_force(seed: int) -> None:
 
 def test_one_way_vehicle_matches_brute_force_in_its_direction() -> None:
     rng = np.random.default_rng(42)
-    beam = random_beam(rng)
+    beam = random_beam(rng, **SCAN_BEAMS)
     sections = random_sections(rng, beam, 2)
     effects = effects_at(beam, sections, kinds=("moment", "shear"))
     loads, spacings = [3.0, 1.0, 0.5], [0.2 * beam.length, 0.1 * beam.length]
@@ -229,7 +229,7 @@ def _train(rng: np.random.Generator, beam: trundle.Beam, variant: str
 @pytest.mark.parametrize("variant", TRAINS)
 def test_train_envelope_matches_brute_force(variant: str) -> None:
     rng = np.random.default_rng(TRAINS.index(variant) + 100)
-    beam = random_beam(rng)
+    beam = random_beam(rng, **SCAN_BEAMS)
     sections = random_sections(rng, beam, 2)
     effects = effects_at(beam, sections)
     train, arrangement = _train(rng, beam, variant)
@@ -354,7 +354,7 @@ def _sign_stretches(solver: ReferenceSolver, effects: list[trundle.Effect],
 @pytest.mark.parametrize("seed", range(3))
 def test_placed_uniform_load_matches_brute_force(seed: int) -> None:
     rng = np.random.default_rng(seed + 200)
-    beam = random_beam(rng)
+    beam = random_beam(rng, **SCAN_BEAMS)
     sections = random_sections(rng, beam, 2)
     effects = effects_at(beam, sections)
     solver = ReferenceSolver(beam, sections)

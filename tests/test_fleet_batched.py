@@ -12,8 +12,9 @@ import numpy as np
 import pytest
 
 import trundle
+from conftest import SCAN_BEAMS, random_beam
 from naive_fleet import plain_fleet
-from naive_scan import effects_at, random_axles, random_beam, random_sections
+from naive_scan import effects_at, random_axles, random_sections
 from trundle.core.influence import influence_set
 from trundle.scan.batched import scan_fleet
 from trundle.scan.engine import LineBatch
@@ -34,7 +35,7 @@ def _random_fleet(rng: np.random.Generator, beam: trundle.Beam, n: int):
 @pytest.mark.parametrize("seed", range(6))
 def test_every_truck_equals_its_single_vehicle_envelope(seed: int) -> None:
     rng = np.random.default_rng(1300 + seed)
-    beam = random_beam(rng)
+    beam = random_beam(rng, **SCAN_BEAMS)
     sections = random_sections(rng, beam, 3)
     effects = effects_at(beam, sections)
     batch = LineBatch.from_set(influence_set(beam, effects))
@@ -68,7 +69,7 @@ def _envelope_by_effect(env: trundle.Envelope, effects: list[trundle.Effect]) ->
 @pytest.mark.parametrize("seed", range(3))
 def test_kernel_equals_its_plain_python_twin(seed: int) -> None:
     rng = np.random.default_rng(1400 + seed)
-    beam = random_beam(rng)
+    beam = random_beam(rng, **SCAN_BEAMS)
     effects = effects_at(beam, random_sections(rng, beam, 2), kinds=("moment", "shear"))
     lines = influence_set(beam, effects)
     batch = LineBatch.from_set(lines)

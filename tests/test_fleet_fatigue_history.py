@@ -12,7 +12,8 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from naive_scan import effects_at, random_axles, random_beam, random_sections
+from conftest import SCAN_BEAMS, random_beam
+from naive_scan import effects_at, random_axles, random_sections
 from trundle.analysis.extremes import damage_sum
 from trundle.core.influence import influence_set
 from trundle.scan.batched import scan_fleet
@@ -23,7 +24,7 @@ from trundle.scan.passages import exact_turning_points
 @pytest.mark.parametrize("seed", range(4))
 def test_turning_points_are_exact(seed: int) -> None:
     rng = np.random.default_rng(1700 + seed)
-    beam = random_beam(rng)
+    beam = random_beam(rng, **SCAN_BEAMS)
     effects = effects_at(beam, random_sections(rng, beam, 3), kinds=("moment",))
     batch = LineBatch.from_set(influence_set(beam, effects))
     loads, spacings = random_axles(rng, beam, 2, 5)
@@ -38,7 +39,7 @@ def test_turning_points_are_exact(seed: int) -> None:
                                rtol=0, atol=1e-10 * scale)
     np.testing.assert_allclose(history.min(axis=0), np.minimum(scanned[:, 3], 0.0),
                                rtol=0, atol=1e-10 * scale)
-    dense = np.linspace(offsets.min(), batch.length + offsets.max(), 40_001)
+    dense = np.linspace(offsets.min(), batch.length + offsets.max(), 160_001)
     sampled = sum(w * batch.ordinates(dense - d, "right") for w, d in
                   zip(weights, offsets, strict=True))
     # before and after the crossing the beam is empty (a reaction line jumps at an end)

@@ -13,13 +13,13 @@ import numpy as np
 import pytest
 
 import trundle
+from conftest import random_beam
 from naive import (
     beam_nodes,
     effects_for,
     floor_scale,
     naive_effect,
     naive_solve,
-    random_beam,
     spread_points,
 )
 

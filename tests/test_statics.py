@@ -12,7 +12,8 @@ import pytest
 from scipy.integrate import quad
 
 import trundle
-from naive import floor_scale, naive_solve, random_beam, spread_points
+from conftest import random_beam
+from naive import floor_scale, naive_solve, spread_points
 from trundle.core.statics import DistributedLoad, PointLoad, PointMoment
 
 

@@ -385,8 +385,8 @@ def _lines_files(model: Model, model_file: str, lines: InfluenceSet, figure_form
     generator = f"trundle {__version__}"
     sampled = sample(lines, beam, units, per_span=40, extra=beam.tenth_points())
     files: dict[str, bytes | str] = {
-        "lines.csv": Provenance.of_model(model, model_file).csv_comment() + "\n"
-        + lines_csv(lines, beam, units, sampled),
+        "lines.csv": lines_csv(lines, beam, units, sampled,
+                               Provenance.of_model(model, model_file)),
         "lines.json": lines_json(lines, beam, units, sampled, model.title, model_file,
                                  generator),
     }

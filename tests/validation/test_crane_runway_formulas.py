@@ -1,24 +1,17 @@
-"""Crane wheels on simple runway girders and on chains of simple spans: closed forms.
+"""Crane wheels on chains of simple spans (hinges over the interior supports): statics.
 
-Sources:
-- AISC Steel Construction Manual, "Beam Diagrams and Formulas", simple beam with two equal
-  concentrated moving loads (from memory): M_max = P/(2L)·(L − a/2)² under one load standing
-  a/4 from midspan when a < (2 − √2)L ≈ 0.586L, otherwise P·L/4 with one load at midspan;
-  maximum end reaction R = P(2 − a/L). The same moving-load formulas appear in most steel
-  design manuals.
-- Reaction at an interior support of a chain of simple spans (a hinge over each interior
-  support): its influence line is a triangle of height 1 over the two adjacent spans (statics of
-  the two simple spans, derived in the tests by hand).
-- Wheel loads by the statics of the crane bridge and the default impact fractions (cab 25 %,
-  pendant 10 %): checked in test_crane_wheel_statics.py and test_crane_defaults.py; here the
-  wheel loads are recomputed by hand.
+Source: common practice, no source. The reaction at an interior support of a chain of simple
+spans has the influence line of a triangle of height 1 over the two adjacent spans (statics of
+the two simple spans, derived in the tests by hand); the wheel loads come from the statics of
+the crane bridge and the default impact fractions (cab 25 %, pendant 10 %), checked in
+test_crane_wheel_statics.py and test_asce7_crane_loads.py and recomputed by hand here. The crane
+runway on one simple span, against the moving-load formulas of the AISC Manual, is checked in
+test_moving_load_formulas.py.
 
 Every crane and runway below is invented. Forces in kN, lengths in m.
 """
 
 from __future__ import annotations
-
-import math
 
 import numpy as np
 import pytest
@@ -44,6 +37,7 @@ def _light_crane() -> Crane:
 
 
 HEAVY_WHEEL = 193.75
+WHEELBASE = 3.6
 LIGHT_WHEEL = 111.75
 
 
@@ -51,68 +45,6 @@ def test_hand_wheel_loads_used_below() -> None:
     # Source: common practice, no source (bridge statics, recomputed by hand above)
     assert _heavy_crane().wheels().maximum == pytest.approx(HEAVY_WHEEL, rel=1e-12)
     assert _light_crane().wheels().maximum == pytest.approx(LIGHT_WHEEL, rel=1e-12)
-
-
-# ---------------------------------------------------------------- one crane, simple span
-
-SIMPLE_L = 12.0
-WHEELBASE = 3.6
-X_STAR = SIMPLE_L / 2 - WHEELBASE / 4  # 5.1: the section of the absolute maximum
-
-
-@pytest.fixture(scope="module")
-def simple_span() -> RunwayResult:
-    beam = trundle.Beam(spans=[SIMPLE_L], EI=2.0e5)
-    sections = np.sort(np.append(beam.tenth_points(), X_STAR))
-    return analyse_runway(beam, RunwaySpec(cranes=(_heavy_crane(),)), sections=sections)
-
-
-def test_two_wheels_simple_span_moment(simple_span) -> None:
-    # Source: AISC Manual, beam diagrams, two equal moving loads (from memory)
-    P = HEAVY_WHEEL * 1.25  # strength: wheel loads with the 25 % vertical impact
-    a, L = WHEELBASE, SIMPLE_L
-    assert a < (2 - math.sqrt(2)) * L
-    expected = P / (2 * L) * (L - a / 2) ** 2  # 1049.8828125
-    moment = simple_span.strength.max("moment")
-    i = int(np.flatnonzero(np.isclose(simple_span.sections, X_STAR))[0])
-    assert moment[i] == pytest.approx(expected, rel=REL)
-    assert moment.max() == pytest.approx(expected, rel=REL)
-    # midspan: one wheel there, the other a further on: P·(L/4 + (L/4 − a/2)) = P(L − a)/2
-    j = int(np.flatnonzero(np.isclose(simple_span.sections, L / 2))[0])
-    assert moment[j] == pytest.approx(P * (L - a) / 2, rel=REL)
-    # the absolute maximum found over every section of the span
-    (absolute,) = [e for e in simple_span.strength.absolute("moment") if e.which == "max"]
-    assert absolute.value == pytest.approx(expected, rel=REL)
-    assert min(abs(absolute.x - X_STAR), abs(absolute.x - (L - X_STAR))) < 1e-5 * L
-
-
-def test_two_wheels_simple_span_end_reaction(simple_span) -> None:
-    # Source: AISC Manual, beam diagrams, two equal moving loads (from memory): R = P(2 − a/L)
-    a, L = WHEELBASE, SIMPLE_L
-    with_impact = HEAVY_WHEEL * 1.25 * (2 - a / L)  # 411.71875
-    np.testing.assert_allclose(simple_span.strength.max("reaction"), [with_impact] * 2,
-                               rtol=REL)
-    # the service reactions carry no impact (common practice, no source)
-    np.testing.assert_allclose(simple_span.service.max("reaction"),
-                               [HEAVY_WHEEL * (2 - a / L)] * 2, rtol=REL)
-
-
-def test_wide_wheelbase_one_wheel_governs() -> None:
-    # Source: AISC Manual, beam diagrams, two equal moving loads (from memory): for
-    # a > 0.586L one load alone at midspan governs, M = P·L/4
-    L, a = 8.0, 5.5
-    assert a > (2 - math.sqrt(2)) * L
-    crane = Crane("forge crane", capacity=200.0, bridge_weight=300.0, trolley_weight=50.0,
-                  span=20.0, hook_approach=1.0, wheel_spacings=(a,), operation="pendant")
-    beam = trundle.Beam(spans=[L], EI=2.0e5)
-    result = analyse_runway(beam, RunwaySpec(cranes=(crane,)))
-    P = HEAVY_WHEEL * 1.10
-    assert result.strength.max("moment").max() == pytest.approx(P * L / 4, rel=REL)
-    (absolute,) = [e for e in result.strength.absolute("moment") if e.which == "max"]
-    assert absolute.value == pytest.approx(P * L / 4, rel=REL)
-    assert absolute.x == pytest.approx(L / 2, rel=1e-5)
-    np.testing.assert_allclose(result.strength.max("reaction"), [P * (2 - a / L)] * 2,
-                               rtol=REL)
 
 
 # ---------------------------------------------------------------- chains of simple spans

@@ -21,7 +21,9 @@ import numpy as np
 import pytest
 
 import trundle
+from conftest import make_crane
 from trundle.analysis.envelope import AbsoluteExtreme
+from trundle.workflows.crane_runway import RunwayResult, RunwaySpec, analyse_runway
 
 L = 20.0
 SQRT2_LIMIT = 2.0 - math.sqrt(2.0)  # a/L below which two equal loads beat one
@@ -111,3 +113,68 @@ def test_two_unequal_moving_loads_maximum_moment(P1: float, P2: float, a: float)
     assert absolute.value == pytest.approx(expected, rel=1e-9)
     x_best = x_heavy if two_valid and two > one else L / 2
     assert min(abs(absolute.x - x_best), abs(absolute.x - (L - x_best))) < 1e-5 * L
+
+
+# --- the crane runway workflow on one simple span: the same formulas ----------------------------
+# (the invented crane of tests/conftest.py: cab-operated, impact 25 %, maximum wheel load
+# (150 + 250·19/20)/2 = 193.75 kN by the statics of test_crane_wheel_statics.py; kN, m)
+
+HEAVY_WHEEL = 193.75
+REL = 1e-9
+
+SIMPLE_L = 12.0
+WHEELBASE = 3.6
+X_STAR = SIMPLE_L / 2 - WHEELBASE / 4  # 5.1: the section of the absolute maximum
+
+
+@pytest.fixture(scope="module")
+def simple_span() -> RunwayResult:
+    beam = trundle.Beam(spans=[SIMPLE_L], EI=2.0e5)
+    sections = np.sort(np.append(beam.tenth_points(), X_STAR))
+    return analyse_runway(beam, RunwaySpec(cranes=(make_crane("mill crane"),)), sections=sections)
+
+
+def test_two_wheels_simple_span_moment(simple_span) -> None:
+    P = HEAVY_WHEEL * 1.25  # strength: wheel loads with the 25 % vertical impact
+    a, L = WHEELBASE, SIMPLE_L
+    assert a < (2 - math.sqrt(2)) * L
+    expected = P / (2 * L) * (L - a / 2) ** 2  # 1049.8828125
+    moment = simple_span.strength.max("moment")
+    i = int(np.flatnonzero(np.isclose(simple_span.sections, X_STAR))[0])
+    assert moment[i] == pytest.approx(expected, rel=REL)
+    assert moment.max() == pytest.approx(expected, rel=REL)
+    # midspan: one wheel there, the other a further on: P·(L/4 + (L/4 − a/2)) = P(L − a)/2
+    j = int(np.flatnonzero(np.isclose(simple_span.sections, L / 2))[0])
+    assert moment[j] == pytest.approx(P * (L - a) / 2, rel=REL)
+    # the absolute maximum found over every section of the span
+    (absolute,) = [e for e in simple_span.strength.absolute("moment") if e.which == "max"]
+    assert absolute.value == pytest.approx(expected, rel=REL)
+    assert min(abs(absolute.x - X_STAR), abs(absolute.x - (L - X_STAR))) < 1e-5 * L
+
+
+def test_two_wheels_simple_span_end_reaction(simple_span) -> None:
+    # R = P(2 − a/L)
+    a, L = WHEELBASE, SIMPLE_L
+    with_impact = HEAVY_WHEEL * 1.25 * (2 - a / L)  # 411.71875
+    np.testing.assert_allclose(simple_span.strength.max("reaction"), [with_impact] * 2,
+                               rtol=REL)
+    # the service reactions carry no impact (common practice, no source)
+    np.testing.assert_allclose(simple_span.service.max("reaction"),
+                               [HEAVY_WHEEL * (2 - a / L)] * 2, rtol=REL)
+
+
+def test_wide_wheelbase_one_wheel_governs() -> None:
+    # for a > 0.586L one load alone at midspan governs, M = P·L/4
+    L, a = 8.0, 5.5
+    assert a > (2 - math.sqrt(2)) * L
+    crane = make_crane("forge crane", wheel_spacings=(a,), buffer_length=None,
+                       operation="pendant")
+    beam = trundle.Beam(spans=[L], EI=2.0e5)
+    result = analyse_runway(beam, RunwaySpec(cranes=(crane,)))
+    P = HEAVY_WHEEL * 1.10
+    assert result.strength.max("moment").max() == pytest.approx(P * L / 4, rel=REL)
+    (absolute,) = [e for e in result.strength.absolute("moment") if e.which == "max"]
+    assert absolute.value == pytest.approx(P * L / 4, rel=REL)
+    assert absolute.x == pytest.approx(L / 2, rel=1e-5)
+    np.testing.assert_allclose(result.strength.max("reaction"), [P * (2 - a / L)] * 2,
+                               rtol=REL)

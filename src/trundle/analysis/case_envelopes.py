@@ -17,7 +17,7 @@ from typing import Any
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
-from trundle.analysis.envelope import Envelope, envelope
+from trundle.analysis.envelope import Envelope, envelope, kind_and_side
 from trundle.analysis.rules import FAMILIES, applicability
 from trundle.core.beam import Beam, ModelError
 from trundle.loads.cases import Together, as_case
@@ -66,7 +66,7 @@ class CaseEnvelope:
 
 
 def _family_values(env: Envelope, family: str, which: str) -> NDArray[np.float64]:
-    kind, side = ("shear", family.split("_")[1]) if family.startswith("shear") else (family, None)
+    kind, side = kind_and_side(family)
     values = env.max(kind, side=side) if which == "max" else env.min(kind, side=side)
     return np.asarray(values, dtype=float)
 
@@ -90,9 +90,7 @@ def load_case_envelope(beam: Beam, load: Any, sections: ArrayLike,
 
 
 def _family_effects(families: Sequence[str]) -> tuple[str, ...]:
-    kinds = {"moment": "moment", "shear_left": "shear", "shear_right": "shear",
-             "deflection": "deflection", "reaction": "reaction"}
-    return tuple(dict.fromkeys(kinds[f] for f in families))
+    return tuple(dict.fromkeys(kind_and_side(f)[0] for f in families))
 
 
 def _part_values(beam: Beam, case: Any, sections: NDArray[np.float64],

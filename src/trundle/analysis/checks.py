@@ -5,21 +5,31 @@ A check compares a demand with a capacity: utilisation = demand / allowable, and
 utilisation that is not a number: never unconservative). Every output (terminal, CSV, JSON,
 HTML) shows :attr:`verdict` as it is computed here; none decides again.
 
-Deflection against span / ratio (vertical and lateral), and fatigue of a detail under rainflow
-counted stress ranges. Defaults are from memory of widely used guides; each must be verified.
+Deflection against span / ratio — crane runways, vertical and lateral
+(:func:`deflection_checks`), and live load of a design envelope
+(:func:`live_load_deflection_checks`: the largest downward and upward deflection of each live
+case anywhere in each span, a search over the section as well) — all as one
+:class:`DeflectionCheck`; and fatigue of a detail under rainflow counted stress ranges.
+Defaults are from memory of widely used guides; each must be verified. Limits such as
+span/800 or span/1000 (bridges) and span/360 (floors) are common practice; the model states
+which one applies ("verify" against the code in force).
 """
 
 from __future__ import annotations
 
 import math
+from collections.abc import Sequence
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 import rainflow
 from numpy.typing import NDArray
 
 from trundle.analysis.envelope import Envelope, absolute_extremes
-from trundle.core.beam import ModelError
+from trundle.core.beam import Beam, ModelError
+from trundle.loads.cases import LoadCase, Together, as_case
+from trundle.loads.design_cases import DesignCase, for_beam
 
 PASS = "PASS"
 EXCEEDS = "EXCEEDS"
@@ -61,26 +71,44 @@ def allowable_stress_range_ksi(category: str, cycles: float) -> float:
 
 @dataclass(frozen=True)
 class DeflectionCheck:
-    """Worst deflection in one span against span / ratio.
+    """The worst deflection in one span against span / ratio — every deflection check of
+    trundle (crane runway vertical and lateral, live-load deflection of a design envelope).
 
-    Fields: span index, span length, deflection [length], x where it occurs, ratio, allowable
-    deflection [length], utilisation (deflection / allowable), governing combination name.
+    Fields
+    ------
+    span : span index (0 from the left)
+    span_length : its length [length]
+    value : the worst deflection in the span [length]; downward positive for the live-load
+        check (either sense), its size for the runway checks
+    x : where it occurs [length]
+    governing : name of the governing load, case or crane combination ("" or "none" when
+        nothing deflects the span)
+    ratio : the ratio given (600 for span/600)
+    limit : the allowable deflection span_length / ratio [length]
+    utilisation : |value| / limit (:func:`utilisation_of`)
     """
 
     span: int
     span_length: float
-    deflection: float
+    value: float
     x: float
-    ratio: float
-    allowable: float
-    utilisation: float
     governing: str
+    ratio: float
+    limit: float
+    utilisation: float
+
+    @classmethod
+    def of(cls, span: int, span_length: float, value: float, x: float, governing: str,
+           ratio: float) -> DeflectionCheck:
+        """The check of ``value`` in a span of ``span_length`` against span / ``ratio``."""
+        limit = span_length / ratio
+        return cls(span, float(span_length), float(value), float(x), governing, float(ratio),
+                   limit, utilisation_of(float(value), limit))
 
     @property
     def verdict(self) -> str:
         """PASS or EXCEEDS (:func:`verdict`)."""
         return verdict(self.utilisation)
-
 
 
 @dataclass(frozen=True)
@@ -140,7 +168,7 @@ def deflection_checks(env: Envelope, ratio: float, both_ways: bool
     ends = beam.support_positions
     high, low = env.max("deflection"), env.min("deflection")
     for span in range(beam.n_spans):
-        inside = np.flatnonzero((env.sections >= ends[span]) & (env.sections <= ends[span + 1]))
+        inside = beam.sections_in_span(env.sections, span)
         value, x, name = 0.0, 0.5 * (ends[span] + ends[span + 1]), "none"
         searches: list[tuple[int, str]] = []
         if inside.size:
@@ -161,11 +189,58 @@ def deflection_checks(env: Envelope, ratio: float, both_ways: bool
                                              extremes=(which,)):
                 if abs(extreme.value) > value:
                     value, x, name = abs(extreme.value), extreme.x, env.cases[case].name
-        length = beam.spans[span]
-        allowable = length / ratio
-        out.append(DeflectionCheck(span, length, float(value), x, ratio, allowable,
-                                   float(value) / allowable, name))
+        out.append(DeflectionCheck.of(span, beam.spans[span], value, x, name, ratio))
     return tuple(out)
+
+
+def _live_loads_of(item: Any, beam: Beam) -> list[tuple[str, LoadCase | Together, float]]:
+    if isinstance(item, DesignCase):
+        out = []
+        for a in item.alternatives:
+            if a.rule is not None and "deflection" not in a.rule.effects:
+                continue  # a rule that does not name deflection excludes it
+            out.append((f"{item.name} ({a.name})", for_beam(a, beam.length), a.factor))
+        return out
+    case = as_case(item)
+    return [(case.name, case, 1.0)]
+
+
+def _parts_of(case: LoadCase | Together) -> list[LoadCase]:
+    return list(case.parts) if isinstance(case, Together) else [case]
+
+
+def live_load_deflection_checks(beam: Beam, cases: Sequence[Any], ratio: float
+                                ) -> list[DeflectionCheck]:
+    """Per span: the worst live-load deflection over ``cases`` against span / ``ratio``.
+
+    Loads acting together are summed part by part (each at its own worst, which is an upper
+    bound of their joint deflection; conservative). Deflections are at service level: the
+    load factor of a case is not applied.
+    """
+    if isinstance(ratio, bool) or not isinstance(ratio, int | float) or not ratio > 0 or \
+            not math.isfinite(ratio):
+        raise ModelError(f"deflection limit: expected a ratio > 0 (800 for span/800), found "
+                         f"{ratio!r}")
+    checks = []
+    ends = beam.support_positions
+    for span in range(beam.n_spans):
+        best = (0.0, float("nan"), "")
+        for item in cases:
+            for name, case, factor in _live_loads_of(item, beam):
+                total = {"max": 0.0, "min": 0.0}
+                where = {"max": math.nan, "min": math.nan}
+                for part in _parts_of(case):
+                    for extreme in absolute_extremes(beam, part, span, "deflection"):
+                        value = factor * extreme.value  # service level already
+                        total[extreme.which] += value
+                        if math.isnan(where[extreme.which]):
+                            where[extreme.which] = extreme.x
+                for which in ("max", "min"):
+                    if abs(total[which]) > abs(best[0]):
+                        best = (total[which], where[which], name)
+        checks.append(DeflectionCheck.of(span, float(ends[span + 1] - ends[span]), best[0],
+                                         best[1], best[2], ratio))
+    return checks
 
 
 def rainflow_ranges(history: NDArray[np.float64], scale: float

@@ -7,7 +7,7 @@ where it decreases it (P < 0), plus γL × the live maximum; for the minimum the
 (γmax·P where P < 0, γmin·P where P > 0), plus γL × the live minimum. Each live case is
 combined on its own, so every case keeps its own design values, and the design envelope is the
 worst of them with the governing case named. Deflection is a service quantity and is not
-combined here (see :mod:`trundle.analysis.deflection_limits`).
+combined here (see :func:`trundle.analysis.checks.live_load_deflection_checks`).
 
 The shipped combinations (:data:`BRIDGE_STRENGTH_I`, :data:`BUILDING_1_4D`,
 :data:`BUILDING_1_2D_1_6L`) are transcribed from memory: verify them against the code in force.

@@ -70,6 +70,7 @@ class Model:
     tables : what the registered readers made of the extra top-level tables, by name
     sha256 : hex SHA-256 of the very bytes that were parsed ("" when read from a string);
         provenance uses it, so the file is never read a second time
+    description : the model's description, whitespace collapsed ("" when it has none)
     """
 
     title: str
@@ -81,6 +82,7 @@ class Model:
     raw: Mapping[str, Any] = field(default_factory=dict, repr=False)
     tables: Mapping[str, Any] = field(default_factory=dict, repr=False)
     sha256: str = ""
+    description: str = ""
 
     @property
     def name(self) -> str:
@@ -307,9 +309,10 @@ def read_model_data(raw: dict[str, Any], name: str = "<model>", source: Path | N
     title = reader.text(raw["title"], "title") if "title" in raw else (
         source.stem if source is not None else "untitled")
     reader.text_limit("title", title)
+    description = ""
     if "description" in raw:
-        reader.text_limit("description", reader.text(raw["description"], "description"),
-                          "description length")
+        description = reader.text(raw["description"], "description")
+        reader.text_limit("description", description, "description length")
     if "units" not in raw:
         reader.expected("units", '"SI" (kN, m) or "US" (kip, ft)', _MISSING)
     units_text = raw["units"]
@@ -327,7 +330,8 @@ def read_model_data(raw: dict[str, Any], name: str = "<model>", source: Path | N
             tables[key] = _EXTRA_TABLES[key](value, reader)
     return Model(title=title, units=reader.units, beam=beam, sections=sections, source=source,
                  stiffness_given=stiffness_given, raw=MappingProxyType(raw),
-                 tables=MappingProxyType(tables), sha256=sha256)
+                 tables=MappingProxyType(tables), sha256=sha256,
+                 description=" ".join(description.split()))
 
 
 # ------------------------------------------------------------------------------------------

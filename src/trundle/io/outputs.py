@@ -28,12 +28,15 @@ class Provenance:
     sha256 : SHA-256 of the model file's bytes (hex; "" without a file)
     version : trundle version
     date : when the results were computed (UTC, ISO 8601)
+    title, description : the model's title and description ("" when not given)
     """
 
     model_file: str = ""
     sha256: str = ""
     version: str = __version__
     date: str = ""
+    title: str = ""
+    description: str = ""
 
     @classmethod
     def of_model(cls, model: Model, model_file: str | None = None,
@@ -44,7 +47,7 @@ class Provenance:
         when = date or datetime.datetime.now(datetime.UTC).isoformat(timespec="seconds")
         shown = model_file if model_file is not None else (
             str(model.source) if model.source is not None else "")
-        return cls(shown, model.sha256, __version__, when)
+        return cls(shown, model.sha256, __version__, when, model.title, model.description)
 
     @classmethod
     def of_file(cls, path: str | Path, date: str | None = None) -> Provenance:

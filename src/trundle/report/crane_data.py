@@ -13,14 +13,13 @@ from __future__ import annotations
 import dataclasses
 import math
 from dataclasses import dataclass, field
-from types import SimpleNamespace
 from typing import Any
 
 import numpy as np
 from numpy.typing import NDArray
 
 from trundle.analysis.checks import DETAIL_CATEGORIES, FatigueSection
-from trundle.analysis.envelope import Envelope, Governing, kind_and_side
+from trundle.analysis.records import ExtremeRecord, span_faces
 from trundle.core.beam import Beam
 from trundle.io.cranes import CraneEntry, cranes_of, runway_settings_of
 from trundle.io.units import UnitSystem
@@ -31,8 +30,7 @@ from trundle.loads.cranes import (
     Crane,
     buffer_gap,
 )
-from trundle.loads.vehicles import Train
-from trundle.report.envelope_data import EnvelopeResults, Extreme, describe_extreme
+from trundle.report.envelope_data import EnvelopeResults, Extreme, describe
 from trundle.workflows.crane_runway import (
     FATIGUE_CYCLES,
     LATERAL_DEFLECTION_RATIO,
@@ -161,6 +159,11 @@ class RunwayReport:
         return self.spec.cranes
 
     @property
+    def combinations(self) -> dict[str, CraneCombination]:
+        """The crane combinations run, by name (the name of each load case)."""
+        return {c.name: c for c in self.runway.combinations}
+
+    @property
     def stress_unit(self) -> str:
         return "MPa" if self.units.name == "SI" else "ksi"
 
@@ -185,46 +188,34 @@ def runway_report(results: EnvelopeResults) -> RunwayReport | None:
 # placements
 
 
-def placement(report: RunwayReport, env: Envelope, family: str, which: str, g: Governing,
-              x: float) -> CranePlacement:
-    """A Governing of one of the runway envelopes in words, with its cranes."""
-    adapter = SimpleNamespace(env=env, beam=env.beam, units=report.units)
-    extreme = describe_extreme(adapter, family, which, g, x)  # type: ignore[arg-type]
-    if g.case < 0:
+def placement(report: RunwayReport, record: ExtremeRecord) -> CranePlacement:
+    """A record of one of the runway envelopes in words, with its cranes."""
+    extreme = describe(record, report.units, report.beam)
+    if not record.governed:
         return CranePlacement(extreme)
-    combo: CraneCombination = report.runway.combinations[g.case]
-    load = env.cases[g.case].load
-    gaps: list[float] = []
-    touching: list[bool] = []
-    if isinstance(load, Train):
-        values = iter(g.searched)
-        for (a, _), (b, _), gap in zip(combo.members[:-1], combo.members[1:], load.gaps,
-                                       strict=True):
-            value = next(values) if isinstance(gap, tuple) else float(gap)
-            gaps.append(float(value))
-            touching.append(abs(value - buffer_gap(a, b)) <= 1e-6 * max(1.0, value))
-    group = env.group_of(g)
+    combo = report.combinations[record.case]
+    # a train of cranes: its searched gaps, last wheel of one crane to the first of the next
+    gaps = [value for name, value in record.searched if name.startswith("gap ")]
+    touching = [abs(value - buffer_gap(a, b)) <= 1e-6 * max(1.0, value)
+                for (a, _), (b, _), value in zip(combo.members[:-1], combo.members[1:], gaps,
+                                                 strict=True)]
     cranes = tuple((c.name, state, c.wheels_per_rail) for c, state in combo.members)
-    return CranePlacement(extreme, tuple(gaps), tuple(touching),
-                          tuple(float(p) for p in group.point_P), cranes)
+    return CranePlacement(extreme, tuple(gaps), tuple(touching), record.point_loads, cranes)
 
 
-def _extremes(report: RunwayReport, env: Envelope, family: str, which: str
+def _extremes(report: RunwayReport, envelope: str, family: str, which: str
               ) -> list[CranePlacement]:
-    key = (id(env), family, which)
+    key = (envelope, family, which)
     if key not in report.cache:
-        kind, side = kind_and_side(family)
-        governing = env.governing(kind, which, side)
-        report.cache[key] = [placement(report, env, family, which, g, float(x))
-                             for g, x in zip(governing, env.sections, strict=True)]
+        records = report.runway.records[envelope].at_sections(family, which)
+        report.cache[key] = [placement(report, r) for r in records]
     return report.cache[key]
 
 
 def section_placements(report: RunwayReport, family: str, which: str,
                        strength: bool = True) -> list[CranePlacement]:
     """Per section: the strength (with impact) or service (without) extreme of a family."""
-    env = report.runway.strength if strength else report.runway.service
-    return _extremes(report, env, family, which)
+    return _extremes(report, "strength" if strength else "service", family, which)
 
 
 def support_reactions(report: RunwayReport) -> list[SupportReactions]:
@@ -234,14 +225,11 @@ def support_reactions(report: RunwayReport) -> list[SupportReactions]:
     beam = report.beam
     out = []
     by = {}
-    for name, env in (("strength", report.runway.strength), ("service", report.runway.service)):
+    for name in ("strength", "service"):
         for which in ("max", "min"):
-            source = env.governing_max if which == "max" else env.governing_min
             by[(name, which)] = {
-                env.effects[line].support: placement(
-                    report, env, "reaction", which, source[line],
-                    float(beam.support_positions[env.effects[line].support]))
-                for line in env.index["reaction"]}
+                support: placement(report, record) for support, record in
+                report.runway.records[name].at_supports("reaction", which).items()}
     for k in sorted(by[("strength", "max")]):
         out.append(SupportReactions(k, float(beam.support_positions[k]),
                                     by[("strength", "max")][k], by[("strength", "min")][k],
@@ -256,16 +244,14 @@ def lateral_placements(report: RunwayReport, kind: str = "moment") -> list[Crane
     key = ("lateral", kind)
     if key in report.cache:
         return report.cache[key]
-    env = report.runway.lateral
-    if env is None:
+    if report.runway.lateral is None:
         return []
-    tops = env.governing(kind, "max")
-    bottoms = env.governing(kind, "min")
+    records = report.runway.records["lateral"]
+    tops = records.at_sections(kind, "max")
+    bottoms = records.at_sections(kind, "min")
     out = []
-    for i, x in enumerate(env.sections):
-        use_max = tops[i].value >= -bottoms[i].value
-        g = tops[i] if use_max else bottoms[i]
-        p = placement(report, env, kind, "max" if use_max else "min", g, float(x))
+    for top, bottom in zip(tops, bottoms, strict=True):
+        p = placement(report, top if top.value >= -bottom.value else bottom)
         # shown as a magnitude (±): |value| is both[i], the larger of the two senses
         extreme = dataclasses.replace(p.extreme, which="max", value=abs(p.extreme.value))
         out.append(dataclasses.replace(p, extreme=extreme))
@@ -288,19 +274,15 @@ def runway_spans(report: RunwayReport) -> list[RunwaySpan]:
         return report.cache["spans"]
     beam = report.beam
     ends = beam.support_positions
-    tolerance = 1e-9 * beam.length
-    x = report.sections
     families = {(f, w): section_placements(report, f, w)
                 for f in ("moment", "shear_left", "shear_right") for w in ("max", "min")}
     lateral = lateral_placements(report)
     anywhere = _moment_anywhere(report)
     out = []
     for span, (a, b) in enumerate(zip(ends[:-1], ends[1:], strict=True)):
-        inside = beam.sections_in_span(x, span)
+        inside, rights, lefts = span_faces(beam, report.sections, span)
         if inside.size == 0:
             continue
-        rights = [i for i in inside if x[i] < b - tolerance]
-        lefts = [i for i in inside if x[i] > a + tolerance]
         shear = {w: _worst([families[("shear_right", w)][i] for i in rights]
                            + [families[("shear_left", w)][i] for i in lefts], w)
                  for w in ("max", "min")}
@@ -316,8 +298,8 @@ def runway_spans(report: RunwayReport) -> list[RunwaySpan]:
 def _moment_anywhere(report: RunwayReport) -> dict[int, CranePlacement]:
     """Per span: the worst sagging moment with impact over every section of the span, as the
     workflow found it (:attr:`RunwayResult.moment_anywhere`)."""
-    env = report.runway.strength
-    return {span: placement(report, env, "moment", "max", best.governing, best.x)
+    records = report.runway.records["strength"]
+    return {span: placement(report, records.absolute(best))
             for span, best in enumerate(report.runway.moment_anywhere) if best is not None}
 
 

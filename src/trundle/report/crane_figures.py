@@ -22,7 +22,6 @@ from trundle.report.crane_data import (
     support_reactions,
 )
 from trundle.report.envelope_figures import _annotate, _footer, _label_extremes, _series
-from trundle.report.envelope_tables import _position
 from trundle.report.figures import (
     INK,
     MUTED,
@@ -33,6 +32,7 @@ from trundle.report.figures import (
     new_figure,
     plot_beam,
 )
+from trundle.report.format import position as _position
 from trundle.report.safe_text import figure_text
 from trundle.workflows.crane_runway import lateral_extremes
 
@@ -134,10 +134,10 @@ def _deflection_panel(ax: Axes, report: RunwayReport) -> None:
     _bands(ax, x, top, bottom, ("max without impact", "min without impact"),
            (SERVICE_COLOR, MIN_COLOR))
     checks = report.runway.vertical_checks
-    _limit_lines(ax, report, [c.allowable * to_display for c in checks], both=False,
+    _limit_lines(ax, report, [c.limit * to_display for c in checks], both=False,
                  label=f"allowable span / {checks[0].ratio:g}" if checks else "allowable")
     for c in checks:
-        _annotate(ax, c.x, c.deflection * to_display, f"{c.deflection * to_display:.3g}",
+        _annotate(ax, c.x, c.value * to_display, f"{c.value * to_display:.3g}",
                   SERVICE_COLOR, above=True, length=report.beam.length)
     _legend(ax)
 
@@ -183,11 +183,11 @@ def runway_lateral_figure(report: RunwayReport) -> Figure | None:
         _frame(deflection_ax, report, f"lateral deflection (either way)\n[{units.deflection}]")
         _bands(deflection_ax, x, top, bottom, ("one way", "the other way"))
         checks = runway.lateral_checks
-        _limit_lines(deflection_ax, report, [c.allowable * to_display for c in checks],
+        _limit_lines(deflection_ax, report, [c.limit * to_display for c in checks],
                      both=True, label=f"allowable span / {checks[0].ratio:g}" if checks
                      else "allowable")
         for c in checks:  # the worst of each span, found between the sections too
-            value = c.deflection * to_display
+            value = c.value * to_display
             _annotate(deflection_ax, c.x, value, f"±{value:.3g}", MAX_COLOR, above=True,
                       length=report.beam.length)
         _legend(deflection_ax)

@@ -7,14 +7,13 @@ units, deflections in mm or in, stresses in MPa or ksi.
 
 from __future__ import annotations
 
-import csv
 import dataclasses
-import io
 import math
 from collections.abc import Sequence
 from typing import Any
 
 from trundle.analysis.checks import DeflectionCheck, FatigueSection
+from trundle.analysis.envelope import kind_and_side
 from trundle.io.cranes import CraneEntry, cranes_of, given_text, mass_given
 from trundle.io.modelfile import Model
 from trundle.io.units import UnitSystem
@@ -39,16 +38,14 @@ from trundle.report.envelope_data import (
     direction_ascii,
     span_of_section,
 )
-from trundle.report.envelope_tables import (
-    _decimals,
-    _fixed,
-    _length,
-    _number,
-    _position,
-    extreme_json,
-)
+from trundle.report.envelope_tables import extreme_json
+from trundle.report.export import csv_text, jsonable
+from trundle.report.format import decimals as _decimals
+from trundle.report.format import fixed as _fixed
+from trundle.report.format import length as _length
+from trundle.report.format import number as _number
+from trundle.report.format import position as _position
 from trundle.report.format import verdict_cell
-from trundle.report.safe_text import csv_row
 from trundle.workflows.crane_runway import COMBINATIONS, lateral_extremes
 
 # ------------------------------------------------------------------------------------------
@@ -321,8 +318,8 @@ def _check_rows(checks: Sequence[DeflectionCheck], kind: str, to_display: float,
     rows = []
     for c in checks:
         rows.append((str(c.span + 1), kind, _length(c.span_length),
-                     _fixed(c.deflection * to_display, decimals), _position(c.x),
-                     _ratio(c.ratio), _fixed(c.allowable * to_display, decimals),
+                     _fixed(c.value * to_display, decimals), _position(c.x),
+                     _ratio(c.ratio), _fixed(c.limit * to_display, decimals),
                      f"{c.utilisation:.3f}", verdict_cell(c.verdict), c.governing))
     return rows
 
@@ -333,7 +330,7 @@ def deflection_table(report: RunwayReport) -> TableData:
     to_display = units.factor(units.length, units.deflection)
     runway = report.runway
     checks = list(runway.vertical_checks) + list(runway.lateral_checks)
-    d = _decimals([c.allowable * to_display for c in checks])
+    d = _decimals([c.limit * to_display for c in checks])
     rows = _check_rows(runway.vertical_checks, "vertical", to_display, d)
     rows += _check_rows(runway.lateral_checks, "lateral (±)", to_display, d)
     groups = (0, len(runway.vertical_checks)) if runway.lateral_checks else ()
@@ -495,14 +492,6 @@ def sections_table(report: RunwayReport) -> TableData:
 # CSV
 
 
-def _csv(header: list[str], rows: list[list[str]]) -> str:
-    buffer = io.StringIO()
-    writer = csv.writer(buffer, lineterminator="\n")
-    writer.writerow(header)
-    writer.writerows(csv_row(row) for row in rows)  # crane names: no formulas, no controls
-    return buffer.getvalue()
-
-
 def _placement_columns(name: str, unit: str, L: str) -> list[str]:
     return [f"{name} [{unit}]", f"{name}: combination", f"{name}: direction",
             f"{name}: lead wheel x [{L}]", f"{name}: wheel x [{L}]",
@@ -533,7 +522,7 @@ def reactions_csv(report: RunwayReport) -> str:
                   r.min_without_impact):
             row += _placement_cells(p)
         rows.append(row)
-    return _csv(header, rows)
+    return csv_text(header, rows)
 
 
 def sections_csv(report: RunwayReport) -> str:
@@ -564,7 +553,7 @@ def sections_csv(report: RunwayReport) -> str:
         for column in columns:
             row += _placement_cells(column[i])
         rows.append(row)
-    return _csv(header, rows)
+    return csv_text(header, rows)
 
 
 def deflection_csv(report: RunwayReport) -> str:
@@ -578,10 +567,10 @@ def deflection_csv(report: RunwayReport) -> str:
                          ("lateral either way", report.runway.lateral_checks)):
         for c in checks:
             rows.append([kind, str(c.span + 1), _number(c.span_length),
-                         _number(c.deflection * to_display), _number(c.x), _number(c.ratio),
-                         _number(c.allowable * to_display), _number(c.utilisation),
+                         _number(c.value * to_display), _number(c.x), _number(c.ratio),
+                         _number(c.limit * to_display), _number(c.utilisation),
                          verdict_cell(c.verdict), c.governing])
-    return _csv(header, rows)
+    return csv_text(header, rows)
 
 
 def fatigue_csv(report: RunwayReport) -> str:
@@ -610,7 +599,7 @@ def fatigue_csv(report: RunwayReport) -> str:
                      stress(item.allowable), item.check or "",
                      "" if item.utilisation is None else _number(item.utilisation),
                      verdict_cell(item.verdict)])
-    return _csv(header, rows)
+    return csv_text(header, rows)
 
 
 def runway_csv_files(report: RunwayReport) -> dict[str, str]:
@@ -626,12 +615,6 @@ def runway_csv_files(report: RunwayReport) -> dict[str, str]:
 # JSON
 
 
-def _num(value: float | None) -> float | None:
-    if value is None or not math.isfinite(value):
-        return None
-    return float(value) + 0.0
-
-
 def placement_json(p: CranePlacement) -> dict[str, Any]:
     data = extreme_json(p.extreme)
     data.pop("loaded_stretches", None)
@@ -640,18 +623,18 @@ def placement_json(p: CranePlacement) -> dict[str, Any]:
     data["lead_wheel_x"] = data.pop("lead_axle_or_point_load_x")
     data["wheel_positions"] = data.pop("load_positions")
     data.pop("searched", None)
-    data["wheel_loads"] = [_num(w) for w in p.wheel_loads]
+    data["wheel_loads"] = [jsonable(w) for w in p.wheel_loads]
     data["cranes"] = [{"name": n, "state": s, "wheels": k} for n, s, k in p.cranes]
-    data["clear_gaps"] = [_num(g) for g in p.gaps]
+    data["clear_gaps"] = [jsonable(g) for g in p.gaps]
     data["buffers_touching"] = list(p.touching)
     return data
 
 
 def _check_json(c: DeflectionCheck, to_display: float) -> dict[str, Any]:
-    return {"span": c.span + 1, "span_length": _num(c.span_length),
-            "deflection": _num(c.deflection * to_display), "x": _num(c.x),
-            "limit_span_ratio": _num(c.ratio), "allowable": _num(c.allowable * to_display),
-            "utilisation": _num(c.utilisation), "verdict": c.verdict,
+    return {"span": c.span + 1, "span_length": jsonable(c.span_length),
+            "deflection": jsonable(c.value * to_display), "x": jsonable(c.x),
+            "limit_span_ratio": jsonable(c.ratio), "allowable": jsonable(c.limit * to_display),
+            "utilisation": jsonable(c.utilisation), "verdict": c.verdict,
             "combination": c.governing}
 
 
@@ -690,9 +673,9 @@ def runway_json(report: RunwayReport, cautions: Sequence[str]) -> dict[str, Any]
                 "max_anywhere": (placement_json(s.moment_anywhere)
                                  if s.moment_anywhere is not None else None)},
             "shear_with_impact": {"max": {**placement_json(s.shear_max),
-                                          "side": s.shear_max.extreme.family[6:]},
+                                          "side": kind_and_side(s.shear_max.extreme.family)[1]},
                                   "min": {**placement_json(s.shear_min),
-                                          "side": s.shear_min.extreme.family[6:]}},
+                                          "side": kind_and_side(s.shear_min.extreme.family)[1]}},
             "lateral_moment_either_way": (placement_json(s.lateral_moment)
                                           if s.lateral_moment is not None else None),
         })
@@ -721,14 +704,14 @@ def runway_json(report: RunwayReport, cautions: Sequence[str]) -> dict[str, Any]
             "crane": item.crane, "x": item.x, "moment_range": item.moment_range,
             "cycles_per_passage": item.cycles_per_passage,
             "rainflow_cycles": [[r, n] for r, n in item.cycles],
-            "stress_range": _num(None if item.stress_range is None
+            "stress_range": jsonable(None if item.stress_range is None
                                  else item.stress_range * factor),
-            "equivalent_range": _num(None if item.equivalent_range is None
+            "equivalent_range": jsonable(None if item.equivalent_range is None
                                      else item.equivalent_range * factor),
             "cycles_over_life": None if math.isinf(life) else life,
-            "allowable": _num(None if item.allowable is None else item.allowable * factor),
+            "allowable": jsonable(None if item.allowable is None else item.allowable * factor),
             "basis": item.check,
-            "utilisation": _num(item.utilisation),
+            "utilisation": jsonable(item.utilisation),
             "verdict": item.verdict,
         })
     return {

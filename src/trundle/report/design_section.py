@@ -10,8 +10,6 @@ are those of :mod:`trundle.analysis.checks` (via each check's ``verdict``).
 
 from __future__ import annotations
 
-import csv
-import io
 from typing import Any
 
 import numpy as np
@@ -25,6 +23,7 @@ from trundle.report.envelope_data import (
     display_factor,
     quantity_unit,
 )
+from trundle.report.export import csv_text, jsonable
 from trundle.report.format import decimals, fixed, length, number, verdict_cell
 
 TITLE = "Design envelope"
@@ -202,7 +201,7 @@ def deflection_table(results: EnvelopeResults) -> TableData | None:
     rows = tuple((str(c.span + 1), fixed(c.value * to_display, d), length(c.x),
                   f"span/{c.ratio:g}", fixed(c.limit * to_display, d),
                   fixed(c.utilisation, 3) if np.isfinite(c.utilisation) else "—",
-                  verdict_cell(c.verdict), c.case or "—") for c in result.deflection)
+                  verdict_cell(c.verdict), c.governing or "—") for c in result.deflection)
     return TableData(
         f"Live-load deflection per span against the limit [{D}] (verify the limit)",
         ("span", f"δ\n[{D}]", f"at x\n[{L}]", "limit", f"allowable\n[{D}]", "utilisation",
@@ -243,11 +242,8 @@ def design_csv(results: EnvelopeResults) -> str:
     """Per section and support: every combination's design max/min with the governing case
     and the rules that excluded cases there, then every case's own max/min."""
     result, units = results.design, results.units
-    out = io.StringIO()
-    writer = csv.writer(out, lineterminator="\n")
-    writer.writerow(["combination_or_case", "kind", "x_or_support", "family", "which", "value",
-                     "unit", "governing", "excluded_by_rule"])
-    row = writer.writerow
+    rows: list[list[str]] = []
+    row = rows.append
 
     for name, env in result.designs.items():
         for family in FAMILIES:
@@ -271,37 +267,31 @@ def design_csv(results: EnvelopeResults) -> str:
                     where = str(j) if family == "reaction" else number(result.sections[j])
                     row([case.name, "case", where, family, which, number(v), unit,
                          gov[j] if j < len(gov) else "", exc[j] if j < len(exc) else ""])
-    return out.getvalue()
+    return csv_text(["combination_or_case", "kind", "x_or_support", "family", "which", "value",
+                     "unit", "governing", "excluded_by_rule"], rows)
 
 
 def deflection_csv(results: EnvelopeResults) -> str:
     result, units = results.design, results.units
     to_display = display_factor("deflection", units)
-    out = io.StringIO()
-    writer = csv.writer(out, lineterminator="\n")
-    writer.writerow(["span", "deflection", "x", "ratio", "allowable", "utilisation", "verdict",
-                     "governing_case", "unit"])
-    for c in result.deflection:
-        writer.writerow([str(c.span + 1), number(c.value * to_display), number(c.x),
-                         number(c.ratio), number(c.limit * to_display), number(c.utilisation),
-                         verdict_cell(c.verdict), c.case, units.deflection])
-    return out.getvalue()
-
-
-def _json_values(values: np.ndarray) -> list[float | None]:
-    return [float(v) + 0.0 if np.isfinite(v) else None for v in values]
+    return csv_text(
+        ["span", "deflection", "x", "ratio", "allowable", "utilisation", "verdict",
+         "governing_case", "unit"],
+        ([str(c.span + 1), number(c.value * to_display), number(c.x), number(c.ratio),
+          number(c.limit * to_display), number(c.utilisation), verdict_cell(c.verdict),
+          c.governing, units.deflection] for c in result.deflection))
 
 
 def design_json(results: EnvelopeResults) -> dict[str, Any]:
     result, units = results.design, results.units
     return {
-        "sections": _json_values(result.sections),
-        "critical_shear_sections": _json_values(result.critical),
+        "sections": jsonable(result.sections),
+        "critical_shear_sections": jsonable(result.critical),
         "units": {f: quantity_unit(f, units, ascii_only=True) for f in CASE_FAMILIES},
         "combinations": {
             name: {"description": env.combination.describe(),
                    "provenance": env.combination.provenance,
-                   "values": {f"{f} {w}": _json_values(_display(result, f, env.values[f, w],
+                   "values": {f"{f} {w}": jsonable(_display(result, f, env.values[f, w],
                                                                  units))
                               for f in FAMILIES for w in ("max", "min")},
                    "governing": {f"{f} {w}": list(env.governing[f, w])
@@ -309,7 +299,7 @@ def design_json(results: EnvelopeResults) -> dict[str, Any]:
             for name, env in result.designs.items()},
         "cases": {
             case.name: {"rule": case.rule,
-                        "values": {f"{f} {w}": _json_values(_display(result, f,
+                        "values": {f"{f} {w}": jsonable(_display(result, f,
                                                                       case.values[f, w], units))
                                    for f in CASE_FAMILIES for w in ("max", "min")},
                         "governing": {f"{f} {w}": list(case.governing.get((f, w), ()))
@@ -323,7 +313,7 @@ def design_json(results: EnvelopeResults) -> dict[str, Any]:
              "x": c.x, "limit": f"span/{c.ratio:g}",
              "allowable": c.limit * display_factor("deflection", units),
              "utilisation": c.utilisation if np.isfinite(c.utilisation) else None,
-             "verdict": c.verdict, "governing_case": c.case}
+             "verdict": c.verdict, "governing_case": c.governing}
             for c in result.deflection],
     }
 

@@ -1,12 +1,13 @@
 """The envelope of a model file's loads, gathered for presentation: one place that decides
 what every table, figure, CSV/JSON file and the HTML report shows.
 
-:func:`collect` runs the envelope (every ``[[load]]`` over the model's sections) and the
-absolute moment extremes per span, and keeps what traceability needs: the trundle version, the
-model file's SHA-256, the date. :func:`describe_extreme` turns one governing configuration into
-words and display units. Other workflows (the crane runway) add their own part of the outputs as
-section providers passed to :func:`collect` (composed in :mod:`trundle.report.sections`);
-every output renders the extra sections it is given.
+:func:`collect` gathers the model, its :class:`~trundle.io.outputs.Provenance` and the results
+the workflows computed (the moving-load result with its records, the crane runway, the design
+envelope); it runs no analysis. :func:`describe` turns one record
+(:class:`trundle.analysis.records.ExtremeRecord`: numbers and names) into words and display
+units (:class:`Extreme`). Other workflows (the crane runway, the design envelope) add their own
+part of the outputs as section providers passed to :func:`collect` (composed in
+:mod:`trundle.report.sections`); every output renders the extra sections it is given.
 """
 
 from __future__ import annotations
@@ -20,7 +21,14 @@ from typing import Any
 import numpy as np
 from numpy.typing import NDArray
 
-from trundle.analysis.envelope import AbsoluteExtreme, Envelope, Governing, kind_and_side
+from trundle.analysis.envelope import AbsoluteExtreme, Envelope
+from trundle.analysis.records import (
+    SECTION_FAMILIES,
+    EnvelopeRecords,
+    ExtremeRecord,
+    searched_names,
+    span_faces,
+)
 from trundle.core.beam import Beam, Spring
 from trundle.io.cranes import cranes_of
 from trundle.io.loads import LoadEntry, loads_of
@@ -36,8 +44,6 @@ from trundle.workflows.crane_runway import RunwayResult
 from trundle.workflows.design_envelope import DesignResult
 from trundle.workflows.moving_loads import MovingLoadsResult
 
-# The section families of the envelope, in the order of the CSV columns.
-SECTION_FAMILIES = ("moment", "shear_left", "shear_right", "deflection")
 FAMILY_NAMES = {"moment": "moment", "shear_left": "shear left", "shear_right": "shear right",
                 "deflection": "deflection", "reaction": "reaction",
                 "support_moment": "support moment"}
@@ -124,13 +130,12 @@ class EnvelopeResults:
     Fields
     ------
     model : the model read from the file
-    model_file : the file as the user named it
-    sha256 : SHA-256 of the model file's bytes (hex)
-    date : when the results were computed (UTC, ISO 8601)
-    version : trundle version
+    provenance : where the results come from (model file as the user named it, its SHA-256,
+        trundle version, date, the model's title and description)
     loads : the model's [[load]] entries (their cases are ``env.cases``); may be empty when
         the model has cranes
     env : the envelope of the loads over the model's sections (None without loads)
+    records : the records of ``env`` (what governs each extreme; None without loads)
     absolute : per span and per "max"/"min", the worst absolute moment over all loads
     extra : sections added by other workflows
     runway : the crane runway result (analyse_runway, run by the caller) or None
@@ -139,12 +144,10 @@ class EnvelopeResults:
     """
 
     model: Model
-    model_file: str
-    sha256: str
-    date: str
-    version: str
+    provenance: Provenance
     loads: tuple[LoadEntry, ...]
     env: Envelope | None
+    records: EnvelopeRecords | None
     absolute: tuple[dict[str, AbsoluteExtreme | None], ...]
     extra: tuple[ExtraSection, ...] = ()
     runway: RunwayResult | None = None
@@ -164,8 +167,20 @@ class EnvelopeResults:
         return self.env.sections if self.env is not None else self.model.sections
 
     @property
-    def provenance(self) -> Provenance:
-        return Provenance(self.model_file, self.sha256, self.version, self.date)
+    def model_file(self) -> str:
+        return self.provenance.model_file
+
+    @property
+    def sha256(self) -> str:
+        return self.provenance.sha256
+
+    @property
+    def date(self) -> str:
+        return self.provenance.date
+
+    @property
+    def version(self) -> str:
+        return self.provenance.version
 
     @property
     def has_loads(self) -> bool:
@@ -194,9 +209,9 @@ def collect(model: Model, provenance: Provenance, moving: MovingLoadsResult | No
                          "[[load]] tables")
     env = moving.env if moving is not None else None
     absolute = moving.absolute if moving is not None else ()
-    results = EnvelopeResults(model, provenance.model_file, provenance.sha256, provenance.date,
-                              provenance.version, entries, env, absolute, runway=runway,
-                              design=design)
+    records = moving.records if moving is not None else None
+    results = EnvelopeResults(model, provenance, entries, env, records, absolute,
+                              runway=runway, design=design)
     extra = tuple(s for s in (p(results) for p in providers) if s is not None)
     if extra:
         results = dataclasses.replace(results, extra=extra)
@@ -261,117 +276,57 @@ def quantity_unit(family: str, units: UnitSystem, ascii_only: bool = False) -> s
     return units.ascii_label(quantity) if ascii_only else units.label(quantity)
 
 
-def parameter_labels(load: Any) -> list[str]:
-    """Names of the searched dimensions of a load, in the order of ``load.parameters()``
-    (for loads acting together: those of each part, labelled with the part's name)."""
-    if isinstance(load, Together):
-        return [f"{part.name}: {label}" for part in load.parts
-                for label in parameter_labels(part.load)]
-    if isinstance(load, Vehicle):
-        return [f"spacing {i + 1}-{i + 2}" for i, s in enumerate(load.spacings)
-                if isinstance(s, tuple)]
-    if isinstance(load, Train):
-        labels = []
-        for i, vehicle in enumerate(load.vehicles):
-            labels.extend(f"vehicle {i + 1} {label}" for label in parameter_labels(vehicle))
-            if i < len(load.gaps) and isinstance(load.gaps[i], tuple):
-                labels.append(f"gap {i + 1}-{i + 2}")
-        return labels
-    return []
+parameter_labels = searched_names  # the names of a load's searched spacings and gaps
 
 
-def describe_extreme(results: EnvelopeResults, family: str, which: str, g: Governing,
-                     x: float) -> Extreme:
-    """``g`` (a Governing of the envelope) in words and display units."""
-    env = results.env
-    value = g.value * display_factor(family, results.units) + 0.0
-    if g.case < 0:
-        return Extreme(family, which, value, x)
-    case = env.cases[g.case]
-    if isinstance(case, Together):
-        return _describe_together(results, family, which, g, x, case, value)
-    return _describe_case(results, family, which, g, g, x, case, value)
+def describe(record: ExtremeRecord, units: UnitSystem, beam: Beam) -> Extreme:
+    """A record (numbers and names) in words and display units."""
+    value = record.value * display_factor(record.family, units) + 0.0
+    if not record.governed:
+        return Extreme(record.family, record.which, value, record.x)
+    if record.together:
+        return _describe_together(record, value, beam)
+    return _describe_case(record, value, beam)
 
 
-def _describe_case(results: EnvelopeResults, family: str, which: str, own: Governing,
-                   asked: Governing, x: float, case: Any, value: float) -> Extreme:
-    """One load case in words: ``own`` is its own Governing (reference, side, searched …),
-    ``asked`` the Governing of the envelope to ask for its positions (the same, or a
-    Together's with only this part)."""
-    env, beam = results.env, results.beam
-    g = own
-    load = case.load
-    side_note = ""
-    if isinstance(load, UniformLoad):
-        stretches, point_x = env.loaded_stretches(asked)
-        loaded = tuple((float(a), float(b)) for a, b in _merged(stretches, beam.length))
-        placement = _placement_words(load.placement, which, loaded, beam)
-        if point_x is not None and load.point_load:
-            placement += f"; point load at {_length(point_x)}"
-            if family.startswith("shear") and g.side:
-                side_note = f"point load just {'right' if g.side > 0 else 'left'} of the section"
-        return Extreme(family, which, value, x, case.name, 0,
-                       point_x if load.point_load else None,
-                       (point_x,) if point_x is not None and load.point_load else (), loaded,
-                       placement, side_note)
-    if family in ("moment", "shear_left", "shear_right", "deflection"):
-        face = env.axle_face(asked, x, kind_and_side(family)[0], own.side)
-        side_note = {"on": "axle on the section", "left": "axle just left of the section",
-                     "right": "axle just right of the section", "": ""}[face]
-    axles = tuple(float(a) for a in env.axle_positions(asked))
-    searched = tuple(zip(parameter_labels(load), g.searched, strict=False))
-    return Extreme(family, which, value, x, case.name, int(g.direction), float(g.reference),
-                   axles, (), "", side_note, searched)
+def _side_note(record: ExtremeRecord) -> str:
+    if record.placement:
+        return (f"point load just {'right' if record.point_side > 0 else 'left'} of the "
+                "section" if record.point_side else "")
+    return {"on": "axle on the section", "left": "axle just left of the section",
+            "right": "axle just right of the section", "": ""}[record.face]
 
 
-def _describe_together(results: EnvelopeResults, family: str, which: str, g: Governing,
-                       x: float, together: Together, value: float) -> Extreme:
-    """Loads acting together: each part described on its own, then merged (direction and
-    lead axle from the first moving part, every axle, every loaded stretch)."""
-    described = []
-    for k, part in enumerate(g.parts):
-        if part.case < 0:  # this part makes nothing worse than the empty beam
-            continue
-        case = together.parts[part.case]
-        only = dataclasses.replace(g, parts=tuple(
-            p if i == k else Governing(0.0) for i, p in enumerate(g.parts)))
-        described.append((case, _describe_case(results, family, which, part, only, x, case,
-                                               value)))
-    if not described:
-        return Extreme(family, which, value, x, together.name, placement="not loaded")
-    moving = [e for case, e in described if not isinstance(case.load, UniformLoad)]
-    lead = moving[0] if moving else described[0][1]
+def _describe_case(record: ExtremeRecord, value: float, beam: Beam) -> Extreme:
+    r = record
+    if r.placement:  # a placed uniform load
+        placement = _placement_words(r.placement, r.which, r.loaded, beam)
+        if r.lead_x is not None:
+            placement += f"; point load at {_length(r.lead_x)}"
+        return Extreme(r.family, r.which, value, r.x, r.case, 0, r.lead_x, r.axles, r.loaded,
+                       placement, _side_note(r))
+    return Extreme(r.family, r.which, value, r.x, r.case, r.direction, r.lead_x, r.axles, (),
+                   "", _side_note(r), r.searched)
+
+
+def _describe_together(record: ExtremeRecord, value: float, beam: Beam) -> Extreme:
+    """Loads acting together: each part in words, then merged (direction and lead axle from
+    the first moving part, every axle, every loaded stretch)."""
+    r = record
+    if not r.parts:
+        return Extreme(r.family, r.which, value, r.x, r.case, placement="not loaded")
     words, notes = [], []
-    for case, e in described:
-        if isinstance(case.load, UniformLoad):
-            words.append(f"{case.name}: {e.placement.removeprefix('placed: ')}")
+    for part in r.parts:
+        e = _describe_case(part, value, beam)
+        if part.placement:
+            words.append(f"{part.case}: {e.placement.removeprefix('placed: ')}")
         else:
-            words.append(f"{case.name} {direction_arrow(e.direction)} lead axle at "
+            words.append(f"{part.case} {direction_arrow(e.direction)} lead axle at "
                          f"{_position(e.lead_x)}")
         if e.side_note:
-            notes.append(f"{case.name}: {e.side_note}")
-    loaded = tuple((float(a), float(b)) for a, b in
-                   _merged([s for _, e in described for s in e.loaded], results.beam.length))
-    searched = tuple((f"{case.name}: {label}", v) for case, e in described
-                     for label, v in e.searched)
-    return Extreme(family, which, value, x, together.name, lead.direction, lead.lead_x,
-                   tuple(a for _, e in described for a in e.axles), loaded, "; ".join(words),
-                   "; ".join(notes), searched)
-
-
-def _merged(stretches: Sequence[tuple[float, float]], length: float
-            ) -> list[tuple[float, float]]:
-    """Adjacent stretches joined (whole spans side by side read as one stretch)."""
-    out: list[list[float]] = []
-    tolerance = 1e-9 * length
-    for a, b in sorted(stretches):
-        if b - a <= tolerance:
-            continue
-        if out and a <= out[-1][1] + tolerance:
-            out[-1][1] = max(out[-1][1], b)
-        else:
-            out.append([a, b])
-    return [(a, b) for a, b in out]
+            notes.append(f"{part.case}: {e.side_note}")
+    return Extreme(r.family, r.which, value, r.x, r.case, r.direction, r.lead_x, r.axles,
+                   r.loaded, "; ".join(words), "; ".join(notes), r.searched)
 
 
 def _placement_words(placement: str, which: str, loaded: Sequence[tuple[float, float]],
@@ -417,27 +372,19 @@ def searched_text(extreme: Extreme, unit: str = "") -> str:
 
 
 def section_extremes(results: EnvelopeResults, family: str, which: str) -> list[Extreme]:
-    """One Extreme per section for a section family (computed once per results)."""
+    """One Extreme per section for a section family (described once per results)."""
     key = ("sections", family, which)
     if key not in results.cache:
-        kind, side = kind_and_side(family)
-        governing = results.env.governing(kind, which, side)
-        results.cache[key] = [describe_extreme(results, family, which, g, float(x))
-                              for g, x in zip(governing, results.sections, strict=True)]
+        results.cache[key] = [describe(r, results.units, results.beam)
+                              for r in results.records.at_sections(family, which)]
     return results.cache[key]
 
 
 def support_extremes(results: EnvelopeResults, family: str, which: str
                      ) -> dict[int, Extreme]:
     """Per support that has the effect: its Extreme (reaction or support moment)."""
-    env, beam = results.env, results.beam
-    source = env.governing_max if which == "max" else env.governing_min
-    out = {}
-    for line in env.index[family]:
-        support = env.effects[line].support
-        x = float(beam.support_positions[support])
-        out[support] = describe_extreme(results, family, which, source[line], x)
-    return out
+    return {k: describe(r, results.units, results.beam)
+            for k, r in results.records.at_supports(family, which).items()}
 
 
 def span_of_section(beam: Beam, x: float) -> tuple[int, int | None]:
@@ -483,18 +430,14 @@ def span_summaries(results: EnvelopeResults) -> list[SpanSummary]:
         return results.cache["span_summaries"]
     beam = results.beam
     ends = beam.support_positions
-    tolerance = 1e-9 * beam.length
-    x = results.sections
     per_family = {(f, w): section_extremes(results, f, w) for f in SECTION_FAMILIES
                   for w in ("max", "min")}
     out = []
     for span, (a, b) in enumerate(zip(ends[:-1], ends[1:], strict=True)):
-        inside = beam.sections_in_span(x, span)
+        # shear inside the span: right of its left support, left of its right support
+        inside, rights, lefts = span_faces(beam, results.sections, span)
         if inside.size == 0:  # sections chosen elsewhere: nothing to report for this span
             continue
-        # shear inside the span: right of its left support, left of its right support
-        rights = [i for i in inside if x[i] < b - tolerance]
-        lefts = [i for i in inside if x[i] > a + tolerance]
         shear = {w: _worst([_worst([per_family[("shear_right", w)][i] for i in rights], w),
                             _worst([per_family[("shear_left", w)][i] for i in lefts], w)], w)
                  for w in ("max", "min")}
@@ -521,17 +464,14 @@ def _worst(candidates: Sequence[Extreme | None], which: str) -> Extreme | None:
 
 
 def describe_absolute(results: EnvelopeResults, extreme: AbsoluteExtreme) -> Extreme:
-    return describe_extreme(results, "moment", extreme.which, extreme.governing, extreme.x)
+    return describe(results.records.absolute(extreme), results.units, results.beam)
 
 
 def concurrent_shear(results: EnvelopeResults, which: str) -> tuple[NDArray[np.float64],
                                                                      NDArray[np.float64]]:
     """Shear just left and just right of each section under the load that gives its max (or
     min) moment [force]."""
-    values = results.env.concurrent("moment", which)
-    left = np.diagonal(values["shear_left"]).copy()
-    right = np.diagonal(values["shear_right"]).copy()
-    return left + 0.0, right + 0.0
+    return results.records.concurrent_shear(which)
 
 
 # ------------------------------------------------------------------------------------------

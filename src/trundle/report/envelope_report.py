@@ -13,7 +13,6 @@ from typing import Any
 from jinja2 import Environment, PackageLoader, StrictUndefined, select_autoescape
 from markupsafe import Markup
 
-from trundle.io.outputs import Provenance
 from trundle.report import CAUTION, LOAD_MODEL_CAUTION
 from trundle.report.envelope_data import SIGN_CONVENTIONS, EnvelopeResults, quantity_unit
 from trundle.report.envelope_figures import envelope_figures
@@ -26,6 +25,7 @@ from trundle.report.envelope_tables import (
     sections_table,
     summary_tables,
 )
+from trundle.report.export import stamp_csv_files
 from trundle.report.figures import figure_bytes
 from trundle.report.safe_text import clean_text
 
@@ -90,7 +90,7 @@ def envelope_html(results: EnvelopeResults, pngs: dict[str, bytes] | None = None
     load_files = [{"path": str(path), "sha256": files[path]} for path in sorted(files)]
     L = units.label("length")
     sections = ", ".join(f"{round(float(x), 9) + 0.0:.6g}" for x in results.sections)
-    description = " ".join(str(results.model.raw.get("description", "")).split())
+    description = results.provenance.description
     context: dict[str, Any] = {
         "title": results.model.title,
         "description": description,
@@ -154,11 +154,3 @@ def envelope_files(results: EnvelopeResults, figure_format: str = "png",
     for section in results.extra:
         files.update(section.files)
     return stamp_csv_files(files, results.provenance)
-
-
-def stamp_csv_files(files: dict[str, bytes | str], provenance: Provenance
-                    ) -> dict[str, bytes | str]:
-    """Every CSV of an output set, with the provenance comment as its first line."""
-    comment = provenance.csv_comment() + "\n"
-    return {name: comment + data if name.endswith(".csv") and isinstance(data, str) else data
-            for name, data in files.items()}

@@ -6,9 +6,6 @@ HTML report show the same numbers; writers return finished text for atomic writi
 
 from __future__ import annotations
 
-import csv
-import io
-import json
 import math
 from collections.abc import Sequence
 from typing import Any
@@ -51,12 +48,13 @@ from trundle.report.envelope_data import (
     support_extremes,
     support_kind_words,
 )
+from trundle.report.export import csv_text, input_values, json_text, jsonable
 from trundle.report.format import decimals as _decimals
 from trundle.report.format import fixed as _fixed
 from trundle.report.format import length as _length
 from trundle.report.format import number as _number
 from trundle.report.format import position as _position
-from trundle.report.safe_text import clean_text, csv_row, json_escaped, terminal_text
+from trundle.report.safe_text import clean_text, terminal_text
 
 CAUTIONS = (CAUTION, LOAD_MODEL_CAUTION)
 
@@ -259,12 +257,14 @@ def deflection_table(results: EnvelopeResults) -> TableData:
                      "without its load factor (service level).")
 
 
-def reactions_table(results: EnvelopeResults) -> TableData:
+def _support_table(results: EnvelopeResults, family: str, title: str, symbol: str
+                   ) -> TableData:
+    """Max and min of a support family (reaction, support moment) at each support."""
     units = results.units
     L = units.label("length")
-    unit = quantity_unit("reaction", units)
-    tops = support_extremes(results, "reaction", "max")
-    bottoms = support_extremes(results, "reaction", "min")
+    unit = quantity_unit(family, units)
+    tops = support_extremes(results, family, "max")
+    bottoms = support_extremes(results, family, "min")
     d = _decimals([e.value for e in (*tops.values(), *bottoms.values())])
     rows, groups = [], []
     for k in sorted(tops):
@@ -272,29 +272,22 @@ def reactions_table(results: EnvelopeResults) -> TableData:
         for label, e in (("max", tops[k]), ("min", bottoms[k])):
             rows.append((str(k), _length(e.x), label, _fixed(e.value, d),
                          *_governing_cells(e, L)))
-    return TableData(f"Reactions per support [{unit}] (upward +)",
-                     ("support", f"x [{L}]", "extreme", f"R [{unit}]", *_governing_headers(L)),
+    return TableData(title.format(unit=unit),
+                     ("support", f"x [{L}]", "extreme", f"{symbol} [{unit}]",
+                      *_governing_headers(L)),
                      tuple(rows), (True, True, False, True, False, False, False, False),
                      groups=tuple(groups))
+
+
+def reactions_table(results: EnvelopeResults) -> TableData:
+    return _support_table(results, "reaction", "Reactions per support [{unit}] (upward +)", "R")
 
 
 def support_moment_table(results: EnvelopeResults) -> TableData | None:
     if not results.env.index["support_moment"].size:
         return None
-    units = results.units
-    L = units.label("length")
-    unit = quantity_unit("support_moment", units)
-    tops = support_extremes(results, "support_moment", "max")
-    bottoms = support_extremes(results, "support_moment", "min")
-    d = _decimals([e.value for e in (*tops.values(), *bottoms.values())])
-    rows = []
-    for k in sorted(tops):
-        for label, e in (("max", tops[k]), ("min", bottoms[k])):
-            rows.append((str(k), _length(e.x), label, _fixed(e.value, d),
-                         *_governing_cells(e, L)))
-    return TableData(f"Support moments [{unit}] (couple on the beam, counter-clockwise +)",
-                     ("support", f"x [{L}]", "extreme", f"M [{unit}]", *_governing_headers(L)),
-                     tuple(rows), (True, True, False, True, False, False, False, False))
+    return _support_table(results, "support_moment", "Support moments [{unit}] (couple on the "
+                          "beam, counter-clockwise +)", "M")
 
 
 def summary_tables(results: EnvelopeResults) -> list[TableData]:
@@ -434,8 +427,6 @@ def envelope_csv(results: EnvelopeResults) -> str:
     shear acting together with the max and min moment."""
     units = results.units
     L = units.ascii_label("length")
-    buffer = io.StringIO()
-    writer = csv.writer(buffer, lineterminator="\n")
     header = [f"x [{L}]", "span", "support"]
     columns: list[tuple[str, str, bool]] = []
     for family in SECTION_FAMILIES:
@@ -450,7 +441,7 @@ def envelope_csv(results: EnvelopeResults) -> str:
                            f"{name}: concurrent shear right [{force}]"]
     extremes = {(f, w): section_extremes(results, f, w) for f, w, _ in columns}
     concurrent = {w: concurrent_shear(results, w) for w in ("max", "min")}
-    writer.writerow(header)
+    rows = []
     for i, x in enumerate(results.sections):
         span, support = span_of_section(results.beam, float(x))
         row = [_number(x), str(span + 1), "" if support is None else str(support)]
@@ -459,8 +450,8 @@ def envelope_csv(results: EnvelopeResults) -> str:
             if family == "moment":
                 left, right = concurrent[which]
                 row += [_number(left[i]), _number(right[i])]
-        writer.writerow(csv_row(row))  # names from the model file: no formulas, no controls
-    return buffer.getvalue()
+        rows.append(row)
+    return csv_text(header, rows)
 
 
 def reactions_csv(results: EnvelopeResults) -> str:
@@ -468,8 +459,6 @@ def reactions_csv(results: EnvelopeResults) -> str:
     units = results.units
     L = units.ascii_label("length")
     beam = results.beam
-    buffer = io.StringIO()
-    writer = csv.writer(buffer, lineterminator="\n")
     families = ["reaction"] + (["support_moment"]
                                if results.env.index["support_moment"].size else [])
     header = ["support", f"x [{L}]", "kind"]
@@ -477,55 +466,42 @@ def reactions_csv(results: EnvelopeResults) -> str:
         for which in ("max", "min"):
             header += _extreme_columns(f"{FAMILY_NAMES[family]} {which}",
                                        quantity_unit(family, units, True), L, False)
-    writer.writerow(header)
     extremes = {(f, w): support_extremes(results, f, w) for f in families
                 for w in ("max", "min")}
+    rows = []
     for k, support in enumerate(beam.supports):
         row = [str(k), _number(beam.support_positions[k]), support_kind_words(support)]
         for family in families:
             for which in ("max", "min"):
                 e = extremes[(family, which)].get(k)
                 row += _extreme_cells(e, False) if e is not None else [""] * 6
-        writer.writerow(csv_row(row))  # names from the model file: no formulas, no controls
-    return buffer.getvalue()
+        rows.append(row)
+    return csv_text(header, rows)
 
 
 # ------------------------------------------------------------------------------------------
 # envelope.json
 
 
-def _json_number(value: float | None) -> float | None:
-    if value is None or not math.isfinite(value):
-        return None
-    return float(value) + 0.0
-
-
 def extreme_json(e: Extreme) -> dict[str, Any]:
-    return {
-        "value": _json_number(e.value),
-        "x": _json_number(e.x),
+    """One extreme as JSON values (numbers made plain by :func:`export.jsonable`)."""
+    return jsonable({
+        "value": e.value,
+        "x": e.x,
         "load": e.load or None,
         "direction": e.direction,
-        "lead_axle_or_point_load_x": _json_number(e.lead_x),
-        "load_positions": [_json_number(a) for a in e.axles],
-        "loaded_stretches": [[_json_number(a), _json_number(b)] for a, b in e.loaded],
+        "lead_axle_or_point_load_x": e.lead_x,
+        "load_positions": e.axles,
+        "loaded_stretches": e.loaded,
         "placement": e.placement or None,
         "side_note": e.side_note or None,
-        "searched": {label: _json_number(v) for label, v in e.searched},
-    }
+        "searched": dict(e.searched),
+    })
 
 
-def _plain(value: Any) -> Any:
-    """TOML values as JSON values (dates as text)."""
-    if isinstance(value, dict):
-        return {str(k): _plain(v) for k, v in value.items()}
-    if isinstance(value, list | tuple):
-        return [_plain(v) for v in value]
-    if isinstance(value, float):
-        return value if math.isfinite(value) else str(value)
-    if isinstance(value, str | int | bool) or value is None:
-        return value
-    return str(value)
+def shear_json(e: Extreme) -> dict[str, Any]:
+    """A shear extreme with the face it is on ("left" or "right" of its section)."""
+    return {**extreme_json(e), "side": kind_and_side(e.family)[1]}
 
 
 def envelope_document(results: EnvelopeResults) -> dict[str, Any]:
@@ -549,7 +525,7 @@ def envelope_document(results: EnvelopeResults) -> dict[str, Any]:
                                                   else entry.case.service_multiplier),
             "searched": parameter_labels(entry.load),
             "load": load_json(entry.load),
-            "as_given": _plain(dict(entry.given)),
+            "as_given": input_values(dict(entry.given)),
             "files": [{"path": str(p), "sha256": sha} for p, sha, _ in entry.file_facts],
         })
     extra_cautions = [c for s in results.extra for c in s.cautions]
@@ -559,7 +535,7 @@ def envelope_document(results: EnvelopeResults) -> dict[str, Any]:
         "trundle_version": results.version,
         "date": results.date,
         "model": {"file": results.model_file, "sha256": results.sha256,
-                  "inputs": _plain(dict(model.raw))},
+                  "inputs": input_values(dict(model.raw))},
         "cautions": list(CAUTIONS) + extra_cautions,
         "sign_conventions": dict(SIGN_CONVENTIONS),
         "units": {"length": L, "force": units.ascii_label("force"),
@@ -584,7 +560,7 @@ def envelope_document(results: EnvelopeResults) -> dict[str, Any]:
         "sections": sections,
         "spans": spans,
         "supports": supports,
-        "extra": {s.title: _plain(s.data) for s in results.extra if s.data is not None},
+        "extra": {s.title: input_values(s.data) for s in results.extra if s.data is not None},
     }
 
 
@@ -602,8 +578,8 @@ def _load_parts(results: EnvelopeResults) -> tuple[list[Any], list[Any], list[An
             entry[family] = {w: extreme_json(extremes[(family, w)][i]) for w in ("max", "min")}
         for w in ("max", "min"):
             left, right = concurrent[w]
-            entry["moment"][w]["concurrent_shear"] = {"left": _json_number(left[i]),
-                                                      "right": _json_number(right[i])}
+            entry["moment"][w]["concurrent_shear"] = jsonable({"left": left[i],
+                                                                "right": right[i]})
         sections.append(entry)
     spans = []
     for s in span_summaries(results):
@@ -612,8 +588,7 @@ def _load_parts(results: EnvelopeResults) -> tuple[list[Any], list[Any], list[An
             "moment": {"max": extreme_json(s.moment_max), "min": extreme_json(s.moment_min),
                        "max_anywhere": extreme_json(s.absolute_max) if s.absolute_max else None,
                        "min_anywhere": extreme_json(s.absolute_min) if s.absolute_min else None},
-            "shear": {"max": {**extreme_json(s.shear_max), "side": s.shear_max.family[6:]},
-                      "min": {**extreme_json(s.shear_min), "side": s.shear_min.family[6:]}},
+            "shear": {"max": shear_json(s.shear_max), "min": shear_json(s.shear_min)},
             "deflection": {"max": extreme_json(s.deflection_max),
                            "min": extreme_json(s.deflection_min)},
         })
@@ -660,9 +635,7 @@ def load_json(load: Any) -> dict[str, Any]:
 
 
 def envelope_json(results: EnvelopeResults) -> str:
-    # names from the model file: overrides and controls as \u escapes, never raw
-    return json_escaped(json.dumps(envelope_document(results), indent=1, ensure_ascii=False,
-                                   allow_nan=False)) + "\n"
+    return json_text(envelope_document(results))
 
 
 def max_min_arrays(results: EnvelopeResults, family: str) -> tuple[np.ndarray, np.ndarray]:

@@ -7,9 +7,7 @@ above its limit as EXCEEDS.
 
 from __future__ import annotations
 
-import csv
 import html
-import io
 import math
 from collections.abc import Sequence
 from typing import Any
@@ -19,6 +17,7 @@ import pyarrow as pa
 import pyarrow.parquet as pq
 
 from trundle.report import CAUTION, LOAD_MODEL_CAUTION
+from trundle.report.export import csv_text
 from trundle.report.figures import figure_bytes, new_figure
 from trundle.report.format import decimals, fixed, number, verdict_cell
 
@@ -44,15 +43,9 @@ def _parquet(table: pa.Table) -> bytes:
 
 def _csv(table: pa.Table, comment: str) -> str:
     """CSV text: the provenance comment line first, numbers by ``format.number``."""
-    out = io.StringIO()
-    if comment:
-        out.write(comment.rstrip("\n") + "\n")
-    writer = csv.writer(out, lineterminator="\n")
-    writer.writerow(table.column_names)
-    for row in table.to_pylist():
-        writer.writerow([number(v) if isinstance(v, float) else ("" if v is None else v)
-                         for v in row.values()])
-    return out.getvalue()
+    return csv_text(table.column_names, (
+        {name: number(v) if isinstance(v, float) else ("" if v is None else v)
+         for name, v in row.items()} for row in table.to_pylist()), comment)
 
 
 # --- fleet -------------------------------------------------------------------------------------

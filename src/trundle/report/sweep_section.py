@@ -13,10 +13,7 @@ and their unit; the figure carries the caution. Numbers are written by
 from __future__ import annotations
 
 import base64
-import csv
 import html
-import io
-import json
 import math
 from collections.abc import Sequence
 from typing import Any
@@ -27,6 +24,7 @@ from matplotlib.figure import Figure
 from trundle.io.outputs import Provenance
 from trundle.report import CAUTION, LOAD_MODEL_CAUTION
 from trundle.report.envelope_data import display_factor, quantity_unit
+from trundle.report.export import csv_text, json_text
 from trundle.report.figures import INK, MUTED, PALETTE, SEQUENTIAL, figure_bytes, new_figure
 from trundle.report.format import decimals, fixed, length, number
 from trundle.workflows.sweep import SweepResult, effect_family
@@ -85,12 +83,7 @@ def sweep_rows(result: SweepResult) -> tuple[list[str], list[list[str]]]:
 def sweep_csv(result: SweepResult, provenance: Provenance | None = None) -> str:
     """One row per point; the provenance comment as the first line."""
     header, rows = sweep_rows(result)
-    buffer = io.StringIO()
-    buffer.write((provenance or Provenance()).csv_comment() + "\n")
-    writer = csv.writer(buffer, lineterminator="\n")
-    writer.writerow(header)
-    writer.writerows(rows)
-    return buffer.getvalue()
+    return csv_text(header, rows, provenance or Provenance())
 
 
 def worst_points(result: SweepResult) -> list[tuple[str, str, str]]:
@@ -187,28 +180,24 @@ def sweep_json(result: SweepResult, provenance: Provenance | None = None) -> str
         "generator": f"trundle {provenance.version}",
         "model_file": provenance.model_file, "sha256": provenance.sha256,
         "date": provenance.date, "title": result.spec.title,
-        "axes": [{"name": a.name, "unit": a.unit, "values": [float(v) for v in a.values]}
+        "axes": [{"name": a.name, "unit": a.unit, "values": a.values}
                  for a in result.axes],
         "effects": [{"label": s.label, "phrase": s.text, "kind": s.kind, "which": s.which,
                      "unit": effect_unit(result, e, ascii_only=True),
-                     "values": [_json_number(v) for v in shown[e]],
+                     "values": shown[e],
                      "x": None if s.kind in ("reaction", "support_moment")
-                     else [_json_number(v) for v in result.x[:, e]],
-                     "support": [int(k) for k in result.support[:, e]]
+                     else result.x[:, e],
+                     "support": result.support[:, e]
                      if s.kind in ("reaction", "support_moment") else None,
                      "load": [result.load[p][e] for p in range(len(result.points))],
                      "worst_point": result.worst(e)}
                     for e, s in enumerate(result.effects)],
-        "points": [[float(v) for v in point] for point in result.points],
+        "points": result.points,
         "length_unit": length,
         "notes": list(result.spec.notes),
         "cautions": list(CAUTIONS),
     }
-    return json.dumps(document, indent=1, ensure_ascii=False) + "\n"
-
-
-def _json_number(value: float) -> float | None:
-    return float(value) if math.isfinite(value) else None
+    return json_text(document)
 
 
 def sweep_html(result: SweepResult, provenance: Provenance | None = None,

@@ -7,9 +7,6 @@ mm/kN for a deflection line.
 
 from __future__ import annotations
 
-import csv
-import io
-import json
 import math
 from collections.abc import Sequence
 from dataclasses import dataclass
@@ -22,8 +19,10 @@ from rich.text import Text
 
 from trundle.core.beam import Beam, Spring
 from trundle.core.influence import Effect, InfluenceSet
+from trundle.io.outputs import Provenance
 from trundle.io.units import UnitSystem
 from trundle.report import CAUTION
+from trundle.report.export import csv_text, json_text
 from trundle.report.format import fixed as _cell
 from trundle.report.format import length as format_length
 from trundle.report.format import number as _number
@@ -157,18 +156,17 @@ def sample(lines: InfluenceSet, beam: Beam, units: UnitSystem, per_span: int = 4
     return Sampled(np.asarray(xs), tuple(limits), np.asarray(rows) + 0.0)
 
 
-def lines_csv(lines: InfluenceSet, beam: Beam, units: UnitSystem, sampled: Sampled) -> str:
-    """CSV text: a position column, a limit column, one column per line (unit in the header)."""
-    buffer = io.StringIO()
-    writer = csv.writer(buffer, lineterminator="\n")
+def lines_csv(lines: InfluenceSet, beam: Beam, units: UnitSystem, sampled: Sampled,
+              provenance: Provenance | None = None) -> str:
+    """CSV text: the provenance comment, a position column, a limit column, one column per
+    line (unit in the header)."""
     header = [f"x [{units.ascii_label('length')}]", "limit"]
     for effect in lines.effects:
         header.append(f"{effect_label(effect, beam, units)} "
                       f"[{ordinate_units(effect, units).ascii}]")
-    writer.writerow(header)
-    for x, limit, row in zip(sampled.x, sampled.limit, sampled.values, strict=True):
-        writer.writerow([_number(x), limit, *(_number(v) for v in row)])
-    return buffer.getvalue()
+    return csv_text(header, ([_number(x), limit, *(_number(v) for v in row)]
+                             for x, limit, row in zip(sampled.x, sampled.limit, sampled.values,
+                                                      strict=True)), provenance)
 
 
 def line_extremes(lines: InfluenceSet, beam: Beam, units: UnitSystem
@@ -241,7 +239,7 @@ def lines_json(lines: InfluenceSet, beam: Beam, units: UnitSystem, sampled: Samp
         "knots": lines.knots.tolist(),
         "lines": entries,
     }
-    return json.dumps(document, indent=1, allow_nan=False) + "\n"
+    return json_text(document)
 
 
 def _add_row(table: Table, *cells: str) -> None:

@@ -15,6 +15,7 @@ from __future__ import annotations
 import math
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
+from functools import cached_property
 from typing import Any
 
 import numpy as np
@@ -29,6 +30,7 @@ from trundle.analysis.checks import (
     rainflow_ranges,
 )
 from trundle.analysis.envelope import AbsoluteExtreme, Envelope, absolute_extremes, envelope
+from trundle.analysis.records import EnvelopeRecords
 from trundle.core._repr import html_table, short
 from trundle.core.beam import Beam, ModelError
 from trundle.loads.cases import LoadCase
@@ -212,6 +214,8 @@ class RunwayResult:
     fatigue : per crane, per section moment range and rainflow cycles
     moment_anywhere : per span, the worst sagging moment with impact over every section of
         the span (a bounded search between the sections; None where no crane loads it)
+    records : (property) "strength", "service" and (with lateral_EI) "lateral" -> the
+        records of that envelope (:mod:`trundle.analysis.records`)
     """
 
     spec: RunwaySpec
@@ -228,14 +232,21 @@ class RunwayResult:
     fatigue: tuple[FatigueSection, ...] = field(default=())
     moment_anywhere: tuple[AbsoluteExtreme | None, ...] = field(default=())
 
+    @cached_property
+    def records(self) -> dict[str, EnvelopeRecords]:
+        envelopes = {"strength": self.strength, "service": self.service,
+                     "lateral": self.lateral}
+        return {name: EnvelopeRecords(env) for name, env in envelopes.items()
+                if env is not None}
+
     def _check_rows(self) -> list[list[str]]:
         rows = []
         for name, checks in (("vertical", self.vertical_checks),
                              ("lateral", self.lateral_checks)):
             for check in checks:
                 rows.append([f"{name} deflection, span {check.span + 1}",
-                             short(check.deflection), f"L/{check.ratio:g} = "
-                             f"{short(check.allowable)}", short(check.utilisation),
+                             short(check.value), f"L/{check.ratio:g} = "
+                             f"{short(check.limit)}", short(check.utilisation),
                              check.verdict, check.governing])
         worst: dict[str, FatigueSection] = {}
         for section in self.fatigue:  # per crane the section of largest utilisation

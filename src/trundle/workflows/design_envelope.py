@@ -18,9 +18,9 @@ import numpy as np
 from numpy.typing import NDArray
 
 from trundle.analysis.case_envelopes import CaseEnvelope, case_envelopes
+from trundle.analysis.checks import DeflectionCheck, live_load_deflection_checks
 from trundle.analysis.combinations import Combination, DesignEnvelope, design_envelope
 from trundle.analysis.critical_sections import sections_from_supports
-from trundle.analysis.deflection_limits import DeflectionCheck, live_load_deflection_checks
 from trundle.analysis.patterns import LaneIntensity, loaded_length_lane, patterned_uniform
 from trundle.analysis.permanent import PermanentEffects, PermanentLoad, permanent_effects
 from trundle.core.beam import Beam

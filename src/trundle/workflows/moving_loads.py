@@ -9,11 +9,13 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass, field
+from functools import cached_property
 
 import numpy as np
 from numpy.typing import NDArray
 
 from trundle.analysis.envelope import AbsoluteExtreme, Envelope, envelope
+from trundle.analysis.records import EnvelopeRecords
 from trundle.core._repr import html_table, short
 from trundle.core.beam import Beam
 from trundle.loads.cases import LoadCase, Together
@@ -41,11 +43,25 @@ class MovingLoadsSpec:
 
 @dataclass(frozen=True, eq=False)
 class MovingLoadsResult:
-    """The envelope and, per span and per "max"/"min", the worst absolute moment."""
+    """The envelope and, per span and per "max"/"min", the worst absolute moment.
+
+    Fields
+    ------
+    spec : what was run
+    env : the envelope (values, governing configurations, concurrent effects)
+    absolute : per span, {"max": …, "min": …} the worst absolute moment (None: none found)
+    records : (property) the records of ``env`` — what governs each extreme, by name, with
+        positions, stretches and spacings found (:mod:`trundle.analysis.records`), made
+        once when first asked for
+    """
 
     spec: MovingLoadsSpec
     env: Envelope
     absolute: tuple[dict[str, AbsoluteExtreme | None], ...] = field(default=())
+
+    @cached_property
+    def records(self) -> EnvelopeRecords:
+        return EnvelopeRecords(self.env)
 
     def _absolute_rows(self) -> list[list[str]]:
         rows = []
