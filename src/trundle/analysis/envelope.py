@@ -19,6 +19,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 from scipy.optimize import minimize_scalar
 
+from trundle.analysis.absolute_moment import moment_under_axles
 from trundle.analysis.search import searched_extremes
 from trundle.core._repr import html_table, short
 from trundle.core.beam import Beam, ModelError, Spring
@@ -105,8 +106,12 @@ class Governing:
 EMPTY = Governing(0.0)
 
 
-def _line_effects(beam: Beam, sections: NDArray[np.float64], requested: Sequence[str]
+def _line_effects(beam: Beam, sections: NDArray[np.float64], requested: Sequence[str],
+                  moment_sides: tuple[str | None, ...] | None = None
                   ) -> tuple[list[Effect], dict[str, NDArray[np.int64]]]:
+    """The lines of the requested families; ``moment_sides`` (one per section) reads the
+    moment just left or just right of a support whose couple makes it jump (default: right,
+    the ``Effect`` default)."""
     effects: list[Effect] = []
     index: dict[str, list[int]] = {f: [] for f in FAMILIES}
 
@@ -117,9 +122,10 @@ def _line_effects(beam: Beam, sections: NDArray[np.float64], requested: Sequence
     for kind in requested:
         if kind not in REQUESTABLE:
             raise ModelError(f"effects: expected some of {', '.join(REQUESTABLE)}, found {kind!r}")
-    for x in sections:
+    for row, x in enumerate(sections):
         if "moment" in requested:
-            add("moment", Effect("moment", at=float(x)))
+            side = None if moment_sides is None else moment_sides[row]
+            add("moment", Effect("moment", at=float(x), side=side))
         if "shear" in requested:
             add("shear_left", Effect("shear", at=float(x), side="left"))
             add("shear_right", Effect("shear", at=float(x), side="right"))
@@ -471,7 +477,9 @@ class Envelope:
         if key not in self._cache:
             found: list[AbsoluteExtreme] = []
             for c, case in enumerate(self.cases):
-                coarse = _coarse_sections(self.beam, case, kind)
+                # the sampled search's grid, only where some extreme still needs it
+                coarse = (None if all(exact_absolute(case, kind, w) for w in ("max", "min"))
+                          else _coarse_sections(self.beam, case, kind))
                 found.extend((span, c, extreme) for span in range(self.beam.n_spans)
                              for extreme in absolute_extremes(self.beam, case, span, kind,
                                                               case_index=c, coarse=coarse))
@@ -652,6 +660,9 @@ class AbsoluteExtreme:
     value : the extreme [effect units]
     x : section where it occurs [length]
     governing : the load configuration that produces it
+    certified : True when ``value`` is the exact extreme over every section of the span (to
+        rounding; see ``exact_absolute``); False when it comes from a sampled search refined
+        locally, which assumes one peak between samples and may read low
     """
 
     span: int
@@ -660,6 +671,7 @@ class AbsoluteExtreme:
     value: float
     x: float
     governing: Governing
+    certified: bool = True
 
 
 @dataclass(frozen=True)
@@ -697,7 +709,7 @@ def _standalone(source: Envelope, g: Governing, case: int) -> Governing:
     return dataclasses.replace(g, case=case, pattern=pattern, parts=parts)
 
 
-ABSOLUTE_SAMPLES = 40  # sections per span searched before the bounded refinement
+ABSOLUTE_SAMPLES = 40  # sections per span of the sampled search (where no exact method applies)
 
 
 def _coarse_sections(beam: Beam, case: LoadCase, kind: str,
@@ -710,63 +722,163 @@ def _coarse_sections(beam: Beam, case: LoadCase, kind: str,
     return envelope(beam, [case], sections=xs, effects=(kind,), refine=False)
 
 
+def exact_absolute(case: Any, kind: str, which: str) -> bool:
+    """Whether ``absolute_extremes`` gives the exact (certified) extreme for this case.
+
+    The smallest moment anywhere in a span is always exact: every load acts downward, so
+    under any placement the moment is concave along a span and least at one of its ends,
+    whose envelopes are exact. The largest moment is exact for a rigid group of concentrated
+    loads (vehicles, axle groups, cranes, trains with fixed spacings and gaps; impact and
+    factors; both directions; confined or not): the maximum stands under a load
+    (``analysis.absolute_moment``). Searched spacings or gaps, uniform load attached to a
+    train, placed uniform load, loads acting together and every deflection extreme are
+    found by the sampled search (not certified)."""
+    if kind != "moment":
+        return False
+    if which == "min":
+        return True
+    if not isinstance(case, LoadCase) or isinstance(case.load, UniformLoad):
+        return False
+    if case.load.parameters():
+        return False
+    return not case.load.group((), case.impact).uniform
+
+
+def _span_end_lines(beam: Beam, span: int) -> tuple:
+    """(knots, moment line, shear line) just right of the span's left end, on shared knots."""
+    key = (repr(beam), span)
+    found = _SPAN_LINES.get(key)
+    if found is None:
+        a = float(beam.support_positions[span])
+        pieces = line_pieces(beam, [Effect("moment", at=a, side="right"),
+                                    Effect("shear", at=a, side="right")])
+        knots = np.unique(pieces.knots[:, :int(pieces.n_pieces.max()) + 1])
+        # both lines on the union of their breaks (the structural nodes: a is one)
+        coef = []
+        for j in range(2):
+            own = pieces.knots[j, :pieces.n_pieces[j] + 1]
+            k = np.clip(np.searchsorted(own, knots[:-1], side="right") - 1, 0,
+                        pieces.n_pieces[j] - 1)
+            shift = knots[:-1] - own[k]
+            c = pieces.coefficients[j, k]
+            c3, c2, c1, c0 = c[:, 0], c[:, 1], c[:, 2], c[:, 3]
+            coef.append(np.stack([c3, c2 + 3 * c3 * shift,
+                                  c1 + (2 * c2 + 3 * c3 * shift) * shift,
+                                  c0 + (c1 + (c2 + c3 * shift) * shift) * shift], axis=1))
+        found = (knots, coef[0], coef[1])
+        if len(_SPAN_LINES) >= 64:
+            _SPAN_LINES.pop(next(iter(_SPAN_LINES)))
+        _SPAN_LINES[key] = found
+    return found
+
+
+_SPAN_LINES: dict[tuple, tuple] = {}
+
+
 def absolute_extremes(beam: Beam, case: LoadCase, span: int, kind: str = "moment",
                       samples: int = ABSOLUTE_SAMPLES, case_index: int = 0,
                       extremes: Sequence[str] = ("max", "min"),
                       coarse: Envelope | None = None) -> tuple[AbsoluteExtreme, ...]:
-    """Max and min of ``kind`` over all sections of a span: a grid of sections, then a bounded
-    search around the best one (the worst section under a moving group is rarely a tenth point).
+    """Max and min of ``kind`` over all sections of a span (just right of its left support
+    to just left of its right support).
 
-    Every trial section gets the exact scan over all positions and both directions. Searched
-    spacings and gaps are held at their best values while the section is refined, then
-    searched again at the refined section, and the section refined once more (coordinate
-    ascent; each step can only improve the value).
+    Exact where ``exact_absolute`` says so: the moment's minimum from the envelopes of the
+    span's two ends, its maximum also under every load of a rigid group of concentrated
+    loads (``analysis.absolute_moment``; no sampling, no assumption of one peak). Otherwise
+    (``certified`` False in the result) a grid of ``samples`` sections then a bounded search
+    around the best one, never below the span's ends: every trial section gets the exact
+    scan over all positions and both directions; searched spacings and gaps are held at
+    their best values while the section is refined, then searched again at the refined
+    section, and the section refined once more (coordinate ascent). That search assumes one
+    peak between neighbouring samples and may read low.
     """
     if kind not in ("moment", "deflection"):
         raise ModelError(f"absolute extremes: expected moment or deflection, found {kind!r}")
-    a, b = beam.support_positions[span], beam.support_positions[span + 1]
-    if coarse is None:
-        coarse = envelope(beam, [case], sections=np.linspace(a, b, samples + 1),
-                          effects=(kind,), refine=False)
+    a, b = float(beam.support_positions[span]), float(beam.support_positions[span + 1])
+    ends = None
+    if kind == "moment":
+        ends = _envelope(beam, [case], [a, b], ("moment",), True, ("right", "left"))
+    out = []
+    for which in extremes:
+        sign = 1.0 if which == "max" else -1.0
+        certified = exact_absolute(case, kind, which)
+        best: tuple[float, float, Governing, Envelope | None] | None = None
+        if ends is not None:
+            values = ends.max(kind) if which == "max" else ends.min(kind)
+            j = int(np.argmax(sign * values))
+            best = (float(values[j]), (a, b)[j], ends.governing(kind, which)[j], ends)
+        if certified and which == "max":
+            best = _under_axles(beam, case, span, case_index, best, ends)
+        elif not certified:
+            if coarse is None:
+                coarse = envelope(beam, [case], sections=np.linspace(a, b, samples + 1),
+                                  effects=(kind,), refine=False)
+            found = _sampled_extreme(beam, case, kind, which, a, b, coarse)
+            if best is None or sign * found[0] > sign * best[0]:
+                best = found
+        value, x, governing, source = best
+        if source is not None:
+            governing = _standalone(source, governing,
+                                    case_index if governing.case >= 0 else -1)
+        out.append(AbsoluteExtreme(span, case_index, which, value, x, governing, certified))
+    return tuple(out)
+
+
+def _under_axles(beam: Beam, case: LoadCase, span: int, case_index: int,
+                 best: tuple, ends: Envelope) -> tuple:
+    """The span ends' best (``best``) or, where larger, the exact maximum under a load."""
+    a, b = float(beam.support_positions[span]), float(beam.support_positions[span + 1])
+    knots, moment, shear = _span_end_lines(beam, span)
+    scale = max(abs(float(ends.max("moment").max())), abs(float(ends.min("moment").min())))
+    for direction, arrangement in _arrangements(case).items():
+        found = moment_under_axles(knots, moment, shear, a, b, arrangement.base,
+                                   arrangement.weights, arrangement.confined)
+        # above the ends by more than rounding (an empty span reads ~1e-13 of its ends)
+        if found.value > best[0] + 1e-12 * max(scale, abs(found.value)):
+            g = Governing(found.value, case_index, direction, found.reference, found.side,
+                          load=case.name)
+            best = (found.value, found.x, g, None)
+    return best
+
+
+def _sampled_extreme(beam: Beam, case: LoadCase, kind: str, which: str, a: float, b: float,
+                     coarse: Envelope) -> tuple[float, float, Governing, Envelope]:
+    """The sampled search (not certified): the best of the sampled sections, refined by a
+    bounded scalar search between its neighbours."""
     tol = 1e-9 * beam.length
     inside = np.flatnonzero((coarse.sections >= a - tol) & (coarse.sections <= b + tol))
     xs = coarse.sections[inside]
     searched = (isinstance(case, LoadCase) and not isinstance(case.load, UniformLoad)
                 and bool(case.load.parameters()))
-    out = []
-    for which in extremes:
-        values = (coarse.max(kind) if which == "max" else coarse.min(kind))[inside]
-        sign = 1.0 if which == "max" else -1.0
-        i = int(np.argmax(sign * values))
-        lo, hi = xs[max(i - 1, 0)], xs[min(i + 1, len(xs) - 1)]
-        best_x, best_value = float(xs[i]), float(values[i])
-        governing = coarse.governing(kind, which)[inside[i]]
-        source = coarse
-        rounds = 0 if governing.case < 0 else 2 if searched else 1  # nothing to refine if empty
-        for _round in range(rounds):
-            trial_case = case
-            if searched:
-                trial_case = LoadCase(_Frozen(case.load, governing.searched), case.impact,
-                                      case.factors, case.name)
+    values = (coarse.max(kind) if which == "max" else coarse.min(kind))[inside]
+    sign = 1.0 if which == "max" else -1.0
+    i = int(np.argmax(sign * values))
+    lo, hi = xs[max(i - 1, 0)], xs[min(i + 1, len(xs) - 1)]
+    best_x, best_value = float(xs[i]), float(values[i])
+    governing = coarse.governing(kind, which)[inside[i]]
+    source = coarse
+    rounds = 0 if governing.case < 0 else 2 if searched else 1  # nothing to refine if empty
+    for _round in range(rounds):
+        trial_case = case
+        if searched:
+            trial_case = LoadCase(_Frozen(case.load, governing.searched), case.impact,
+                                  case.factors, case.name)
 
-            def score(x: float, trial_case: LoadCase = trial_case, which: str = which,
-                      sign: float = sign) -> float:
-                e = envelope(beam, [trial_case], sections=[x], effects=(kind,))
-                return -sign * float((e.max(kind) if which == "max" else e.min(kind))[0])
+        def score(x: float, trial_case: LoadCase = trial_case) -> float:
+            e = envelope(beam, [trial_case], sections=[x], effects=(kind,))
+            return -sign * float((e.max(kind) if which == "max" else e.min(kind))[0])
 
-            res = minimize_scalar(score, bounds=(lo, hi), method="bounded",
-                                  options={"xatol": 1e-7 * (b - a)})
-            # the full search (spacings and gaps free again) at the refined section
-            e = envelope(beam, [case], sections=[float(res.x)], effects=(kind,))
-            value = float((e.max(kind) if which == "max" else e.min(kind))[0])
-            if sign * value <= sign * best_value:
-                break
-            best_x, best_value = float(res.x), value
-            governing = e.governing(kind, which)[0]
-            source = e
-        governing = _standalone(source, governing, case_index if governing.case >= 0 else -1)
-        out.append(AbsoluteExtreme(span, case_index, which, best_value, best_x, governing))
-    return tuple(out)
+        res = minimize_scalar(score, bounds=(lo, hi), method="bounded",
+                              options={"xatol": 1e-7 * (b - a)})
+        # the full search (spacings and gaps free again) at the refined section
+        e = envelope(beam, [case], sections=[float(res.x)], effects=(kind,))
+        value = float((e.max(kind) if which == "max" else e.min(kind))[0])
+        if sign * value <= sign * best_value:
+            break
+        best_x, best_value = float(res.x), value
+        governing = e.governing(kind, which)[0]
+        source = e
+    return best_value, best_x, governing, source
 
 
 def _together(batch: LineBatch, together: Together, c: int, single: Any,
@@ -799,13 +911,21 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
         ``analysis.search``); without it the values are those of the best point of a coarse
         grid of the searched values, lower bounds of the exact extremes
     """
+    return _envelope(beam, loads, sections, effects, refine)
+
+
+def _envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None,
+              effects: Sequence[str], refine: bool,
+              moment_sides: tuple[str | None, ...] | None = None) -> Envelope:
+    """``envelope``; ``moment_sides`` (one per section) reads the moment just left or just
+    right of a support whose couple makes it jump (the span ends of absolute extremes)."""
     cases = tuple(as_case(item) for item in loads)
     if not cases:
         raise ModelError("loads: at least one load is needed")
     sections = beam.tenth_points() if sections is None else np.atleast_1d(
         np.asarray(sections, dtype=float))
     line_effects, index_all, full_batch, keep, inverse, index, batch = _prepared_lines(
-        beam, sections, tuple(effects))
+        beam, sections, tuple(effects), moment_sides)
     n = batch.n_lines
     # largest and smallest ordinate of every line: where a placed load's point load stands
     placed = any(isinstance(p.load, UniformLoad) for c in cases
@@ -859,14 +979,15 @@ _PREPARED: dict[tuple, tuple] = {}
 _PREPARED_KEEP = 8
 
 
-def _prepared_lines(beam: Beam, sections: NDArray[np.float64], families: tuple[str, ...]
-                    ) -> tuple:
+def _prepared_lines(beam: Beam, sections: NDArray[np.float64], families: tuple[str, ...],
+                    moment_sides: tuple[str | None, ...] | None = None) -> tuple:
     """(effects, index, every line, keep, inverse, distinct index, distinct lines)."""
     # a Beam compares by identity; its repr spells out every value that defines it
-    key = (repr(beam), np.ascontiguousarray(sections, dtype=float).tobytes(), families)
+    key = (repr(beam), np.ascontiguousarray(sections, dtype=float).tobytes(), families,
+           moment_sides)
     found = _PREPARED.get(key)
     if found is None:
-        line_effects, index = _line_effects(beam, sections, families)
+        line_effects, index = _line_effects(beam, sections, families, moment_sides)
         # each line on its own breaks: memory and work grow with lines x structural pieces
         full_batch = LineBatch.from_pieces(line_pieces(beam, line_effects))
         # identical lines (shear just left and right of a section inside a span, zero lines)
