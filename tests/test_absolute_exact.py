@@ -268,3 +268,40 @@ def test_quartic_maxima_against_numpy_roots() -> None:
         reference = max(np.polyval(p, c) for c in candidates)
         assert v >= reference - 1e-12 * max(1.0, np.abs(p).sum())
         assert 0.0 <= s <= 1.0 and np.polyval(p, s) == pytest.approx(v, abs=1e-15)
+
+
+# --- every output says which "anywhere" values are certified ------------------------------------
+
+_MODEL = """units = "SI"
+[beam]
+spans = [14.0, 14.0]
+supports = ["pin", "pin", "pin"]
+EI = 1e5
+[[load]]
+name = "truck"
+axles = ["35 kN", "145 kN", "145 kN"]
+spacings = ["4.3 m", {spacing}]
+"""
+
+
+@pytest.mark.parametrize(("spacing", "certified"), [('"4.3 m"', True),
+                                                     ('{ min = "4.3 m", max = "9.0 m" }', False)])
+def test_outputs_mark_only_the_values_of_the_sampled_search(tmp_path, spacing, certified):
+    import json
+
+    from cli_helpers import run
+
+    model = tmp_path / "truck.toml"
+    model.write_text(_MODEL.replace("{spacing}", spacing))
+    out = tmp_path / "out"
+    result = run("envelope", model, "--out", out)
+    assert result.exit_code == 0, result.output
+    terminal = " ".join(result.output.split())
+    html = " ".join((out / "report.html").read_text(encoding="utf-8").split())
+    document = json.loads((out / "envelope.json").read_text(encoding="utf-8"))
+    for span in document["spans"]:
+        assert span["moment"]["max_anywhere"]["certified"] is certified
+        assert span["moment"]["min_anywhere"]["certified"] is True  # at a span end: exact
+    for text in (terminal, html):
+        assert ("not certified" in text) is (not certified)
+        assert "exact like the values at sections" in text

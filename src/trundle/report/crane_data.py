@@ -317,8 +317,13 @@ def _moment_anywhere(report: RunwayReport) -> dict[int, CranePlacement]:
     """Per span: the worst sagging moment with impact over every section of the span, as the
     workflow found it (:attr:`RunwayResult.moment_anywhere`)."""
     env = report.runway.strength
-    return {span: placement(report, env, "moment", "max", best.governing, best.x)
-            for span, best in enumerate(report.runway.moment_anywhere) if best is not None}
+    out = {}
+    for span, best in enumerate(report.runway.moment_anywhere):
+        if best is not None:
+            found = placement(report, env, "moment", "max", best.governing, best.x)
+            out[span] = dataclasses.replace(
+                found, extreme=dataclasses.replace(found.extreme, certified=best.certified))
+    return out
 
 
 # ------------------------------------------------------------------------------------------

@@ -45,6 +45,8 @@ from trundle.report.envelope_tables import (
     _length,
     _number,
     _position,
+    anywhere_label,
+    anywhere_note,
     extreme_json,
 )
 from trundle.report.format import verdict_cell
@@ -282,7 +284,8 @@ def moment_table(report: RunwayReport) -> TableData:
     for s in spans:
         groups.append(len(rows))
         for label, p in (("max at sections", s.moment_max),
-                         ("max anywhere", s.moment_anywhere),
+                         (anywhere_label("max", s.moment_anywhere.extreme
+                                         if s.moment_anywhere else None), s.moment_anywhere),
                          ("min at sections", s.moment_min)):
             if p is None:
                 continue
@@ -292,9 +295,8 @@ def moment_table(report: RunwayReport) -> TableData:
         f"Bending moment per span with impact [{M}] (sagging +)",
         ("span", "extreme", f"M [{M}]", f"at x [{L}]", *_governing_headers(L)), tuple(rows),
         (True, False, True, True, False, False, True, False), groups=tuple(groups),
-        note="'anywhere': the worst section of the span, found by a search over 40 sections "
-             "per span refined around the best of them; not yet proven to be the true extreme "
-             "(it assumes one peak between neighbouring samples): check it where it governs."))
+        note=anywhere_note([s.moment_anywhere.extreme for s in spans
+                            if s.moment_anywhere is not None])))
 
 
 def shear_table(report: RunwayReport) -> TableData:
@@ -687,7 +689,8 @@ def runway_json(report: RunwayReport, cautions: Sequence[str]) -> dict[str, Any]
             "span": s.span + 1, "from": s.start, "to": s.end,
             "moment_with_impact": {
                 "max": placement_json(s.moment_max), "min": placement_json(s.moment_min),
-                "max_anywhere": (placement_json(s.moment_anywhere)
+                "max_anywhere": ({**placement_json(s.moment_anywhere),
+                                  "certified": s.moment_anywhere.extreme.certified}
                                  if s.moment_anywhere is not None else None)},
             "shear_with_impact": {"max": {**placement_json(s.shear_max),
                                           "side": s.shear_max.extreme.family[6:]},
