@@ -35,6 +35,8 @@ from numpy.typing import NDArray
 _MERGE = 1e-12
 # bisection steps on [0, 1] for a root of the derivative: 2^-60 is below double precision
 _BISECTIONS = 60
+# pieces × loads handled per batch (bounds the memory of the work arrays)
+_CHUNK = 200_000
 
 
 @dataclass(frozen=True)
@@ -157,9 +159,9 @@ def moment_under_axles(knots: NDArray[np.float64], moment_coef: NDArray[np.float
     P = np.asarray(weights, dtype=float)
     length = float(knots[-1])
     tolerance = _MERGE * max(length, 1.0)
-    best = UnderAxleMaximum(-np.inf, np.nan, 0, -1, np.nan, 0)
     all_breaks = (knots[None, :] + u[:, None]).ravel()
-    total_pieces = 0
+    # every piece of every g_i: its start, its end and its axle i
+    starts, ends, axles = [], [], []
     for i in range(u.size):
         lo, hi = a + u[i], b + u[i]
         if confined:
@@ -170,39 +172,62 @@ def moment_under_axles(knots: NDArray[np.float64], moment_coef: NDArray[np.float
         t = _merged(np.concatenate([[lo, hi], inside]), tolerance)
         if t.size < 2:
             continue
-        t0, t1 = t[:-1], t[1:]
-        h = t1 - t0
-        mid = 0.5 * (t0 + t1)
-        x_mid = mid[:, None] - u[None, :]  # (N, n): where each load stands mid-piece
-        on = (x_mid > knots[0]) & (x_mid < knots[-1])
-        k = np.clip(np.searchsorted(knots, x_mid, side="right") - 1, 0, len(knots) - 2)
-        d = (t0[:, None] - u[None, :]) - knots[k]  # x − knot at τ = 0
-        weight = np.where(on, P[None, :], 0.0)
-        m = _taylor_shift(moment_coef[k], d)  # (N, n, 4) in τ = t − t0
-        v = _taylor_shift(shear_coef[k], d)
-        e = (t0 - u[i] - a)[:, None]  # x − a at τ = 0
-        poly = np.zeros((t0.size, 5))
-        poly[:, 1:] = np.einsum("qj,qjc->qc", weight, m)
-        vx = np.zeros((*v.shape[:2], 5))  # v · (τ + e)
-        vx[..., 0] = v[..., 0]
-        vx[..., 1] = v[..., 1] + e * v[..., 0]
-        vx[..., 2] = v[..., 2] + e * v[..., 1]
-        vx[..., 3] = v[..., 3] + e * v[..., 2]
-        vx[..., 4] = e * v[..., 3]
-        poly += np.einsum("qj,qjc->qc", weight, vx)
-        # loads between the span's left end and the section: − P_k (x − p_k) = − P_k (u_k − u_i)
-        between = (x_mid > a) & (u[None, :] > u[i])
-        poly[:, 4] -= np.where(between, P[None, :] * (u[None, :] - u[i]), 0.0).sum(axis=1)
-        # in s = τ / h ∈ [0, 1]: the coefficient of s^p is c_p h^p
-        scaled = poly * (h[:, None] ** np.arange(4, -1, -1)[None, :])
-        values, s = quartic_maxima(scaled)
-        total_pieces += t0.size
+        starts.append(t[:-1])
+        ends.append(t[1:])
+        axles.append(np.full(t.size - 1, i))
+    if not starts:
+        return UnderAxleMaximum(-np.inf, np.nan, 0, -1, np.nan, 0)
+    t0_all, t1_all = np.concatenate(starts), np.concatenate(ends)
+    i_all = np.concatenate(axles)
+    best = (-np.inf, 0)  # (value, piece)
+    best_s = 0.0
+    chunk = max(1, _CHUNK // max(u.size, 1))
+    for first in range(0, t0_all.size, chunk):
+        rows = slice(first, first + chunk)
+        values, s = _piece_maxima(knots, moment_coef, shear_coef, a, u, P, t0_all[rows],
+                                  t1_all[rows], i_all[rows])
         q = int(np.argmax(values))
-        if values[q] > best.value:
-            at_start, at_end = s[q] == 0.0, s[q] == 1.0
-            reference = t0[q] if at_start else t1[q] if at_end else t0[q] + s[q] * h[q]
-            side = 1 if at_start else -1 if at_end else 0
-            best = UnderAxleMaximum(float(values[q]), float(reference), side, i,
-                                    float(reference - u[i]), 0)
-    return UnderAxleMaximum(best.value, best.reference, best.side, best.axle, best.x,
-                            total_pieces)
+        if values[q] > best[0]:
+            best, best_s = (float(values[q]), first + q), float(s[q])
+    value, q = best
+    t0, t1, i = float(t0_all[q]), float(t1_all[q]), int(i_all[q])
+    at_start, at_end = best_s == 0.0, best_s == 1.0
+    reference = t0 if at_start else t1 if at_end else t0 + best_s * (t1 - t0)
+    side = 1 if at_start else -1 if at_end else 0
+    return UnderAxleMaximum(value, reference, side, i, reference - float(u[i]), t0_all.size)
+
+
+def _piece_maxima(knots: NDArray[np.float64], moment_coef: NDArray[np.float64],
+                  shear_coef: NDArray[np.float64], a: float, u: NDArray[np.float64],
+                  P: NDArray[np.float64], t0: NDArray[np.float64], t1: NDArray[np.float64],
+                  section_axle: NDArray[np.int64]
+                  ) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
+    """The maximum of g_i on each piece [t0, t1] (i = ``section_axle``) and where it is, as
+    s = (t − t0) / (t1 − t0) ∈ [0, 1]."""
+    h = t1 - t0
+    mid = 0.5 * (t0 + t1)
+    x_mid = mid[:, None] - u[None, :]  # (N, n): where each load stands mid-piece
+    on = (x_mid > knots[0]) & (x_mid < knots[-1])
+    k = np.clip(np.searchsorted(knots, x_mid, side="right") - 1, 0, len(knots) - 2)
+    d = (t0[:, None] - u[None, :]) - knots[k]  # x − knot at τ = 0
+    weight = np.where(on, P[None, :], 0.0)
+    m = _taylor_shift(moment_coef[k], d)  # (N, n, 4) in τ = t − t0
+    v = _taylor_shift(shear_coef[k], d)
+    u_i = u[section_axle]
+    e = (t0 - u_i - a)[:, None]  # x − a at τ = 0
+    poly = np.zeros((t0.size, 5))
+    poly[:, 1:] = np.einsum("qj,qjc->qc", weight, m)
+    # v · (τ + e), weighted and summed over the loads
+    wv = weight[:, :, None] * v
+    poly[:, 0] += wv[:, :, 0].sum(axis=1)
+    poly[:, 1] += (wv[:, :, 1] + e * wv[:, :, 0]).sum(axis=1)
+    poly[:, 2] += (wv[:, :, 2] + e * wv[:, :, 1]).sum(axis=1)
+    poly[:, 3] += (wv[:, :, 3] + e * wv[:, :, 2]).sum(axis=1)
+    poly[:, 4] += (e * wv[:, :, 3]).sum(axis=1)
+    # loads between the span's left end and the section: − P_k (x − p_k) = − P_k (u_k − u_i)
+    behind = u[None, :] - u_i[:, None]
+    between = (x_mid > a) & (behind > 0.0)
+    poly[:, 4] -= np.where(between, P[None, :] * behind, 0.0).sum(axis=1)
+    # in s = τ / h ∈ [0, 1]: the coefficient of s^p is c_p h^p
+    scaled = poly * (h[:, None] ** np.arange(4, -1, -1)[None, :])
+    return quartic_maxima(scaled)
