@@ -305,3 +305,16 @@ def test_outputs_mark_only_the_values_of_the_sampled_search(tmp_path, spacing, c
     for text in (terminal, html):
         assert ("not certified" in text) is (not certified)
         assert "exact like the values at sections" in text
+
+
+def test_a_job_beyond_the_size_limits_falls_back_labelled(monkeypatch) -> None:
+    # bounded time and memory: beyond MAX_WORK the sampled search answers, marked as such
+    from trundle.analysis import absolute_moment
+
+    beam = trundle.Beam(spans=[10.0, 10.0])
+    case = LoadCase(trundle.Vehicle(loads=[5.0, 5.0, 5.0], spacings=[2.0, 2.0]))
+    (exact,) = absolute_extremes(beam, case, 0, extremes=("max",))
+    monkeypatch.setattr(absolute_moment, "MAX_WORK", 1)
+    (fallback,) = absolute_extremes(beam, case, 0, extremes=("max",))
+    assert exact.certified and not fallback.certified
+    assert fallback.value <= exact.value * (1 + 1e-9)

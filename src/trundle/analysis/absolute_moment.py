@@ -37,6 +37,10 @@ _MERGE = 1e-12
 _BISECTIONS = 60
 # pieces × loads handled per batch (bounds the memory of the work arrays)
 _CHUNK = 200_000
+# beyond these sizes the exact method is not attempted (bounded time and memory); the caller
+# falls back to the sampled search and says it is not certified
+MAX_BREAKS = 4_000_000  # loads × knots of the lines
+MAX_WORK = 300_000_000  # pieces × loads
 
 
 @dataclass(frozen=True)
@@ -140,7 +144,7 @@ def _merged(breaks: NDArray[np.float64], tolerance: float) -> NDArray[np.float64
 def moment_under_axles(knots: NDArray[np.float64], moment_coef: NDArray[np.float64],
                        shear_coef: NDArray[np.float64], a: float, b: float,
                        offsets: NDArray[np.float64], weights: NDArray[np.float64],
-                       confined: bool = False) -> UnderAxleMaximum:
+                       confined: bool = False) -> UnderAxleMaximum | None:
     """The exact maximum of M(x) over a < x < b with x under a load, every position of the
     group (see the module docstring).
 
@@ -153,22 +157,35 @@ def moment_under_axles(knots: NDArray[np.float64], moment_coef: NDArray[np.float
     offsets : (n,) u of every load: it stands at t − u [length]
     weights : (n,) the loads P (≥ 0) [force]
     confined : the group only stands with every load on the beam
+
+    Returns None when the job exceeds ``MAX_BREAKS`` or ``MAX_WORK`` (not attempted).
     """
     knots = np.asarray(knots, dtype=float)
     u = np.asarray(offsets, dtype=float)
     P = np.asarray(weights, dtype=float)
     length = float(knots[-1])
     tolerance = _MERGE * max(length, 1.0)
-    all_breaks = (knots[None, :] + u[:, None]).ravel()
-    # every piece of every g_i: its start, its end and its axle i
-    starts, ends, axles = [], [], []
+    if u.size * knots.size > MAX_BREAKS:
+        return None
+    all_breaks = np.sort((knots[None, :] + u[:, None]).ravel())
+    domains = []
     for i in range(u.size):
         lo, hi = a + u[i], b + u[i]
         if confined:
             lo, hi = max(lo, float(u.max())), min(hi, length + float(u.min()))
+        domains.append((lo, hi))
+    lows = np.array([d[0] for d in domains])
+    highs = np.array([d[1] for d in domains])
+    count = (np.searchsorted(all_breaks, highs) - np.searchsorted(all_breaks, lows, "right"))
+    if float(np.maximum(count + 1, 0).sum()) * u.size > MAX_WORK:
+        return None
+    # every piece of every g_i: its start, its end and its axle i
+    starts, ends, axles = [], [], []
+    for i, (lo, hi) in enumerate(domains):
         if not hi > lo:
             continue
-        inside = all_breaks[(all_breaks > lo) & (all_breaks < hi)]
+        inside = all_breaks[np.searchsorted(all_breaks, lo, "right"):
+                            np.searchsorted(all_breaks, hi)]
         t = _merged(np.concatenate([[lo, hi], inside]), tolerance)
         if t.size < 2:
             continue

@@ -732,7 +732,9 @@ def exact_absolute(case: Any, kind: str, which: str) -> bool:
     factors; both directions; confined or not): the maximum stands under a load
     (``analysis.absolute_moment``). Searched spacings or gaps, uniform load attached to a
     train, placed uniform load, loads acting together and every deflection extreme are
-    found by the sampled search (not certified)."""
+    found by the sampled search (not certified), and so is a job beyond the exact method's
+    size limits (``absolute_moment.MAX_BREAKS``, ``MAX_WORK``: ``certified`` is then False
+    in the result though this says True)."""
     if kind != "moment":
         return False
     if which == "min":
@@ -808,8 +810,10 @@ def absolute_extremes(beam: Beam, case: LoadCase, span: int, kind: str = "moment
             j = int(np.argmax(sign * values))
             best = (float(values[j]), (a, b)[j], ends.governing(kind, which)[j], ends)
         if certified and which == "max":
-            best = _under_axles(beam, case, span, case_index, best, ends)
-        elif not certified:
+            found = _under_axles(beam, case, span, case_index, best, ends)
+            certified = found is not None  # None: too big a job for the exact method
+            best = found if found is not None else best
+        if not certified:
             if coarse is None:
                 coarse = envelope(beam, [case], sections=np.linspace(a, b, samples + 1),
                                   effects=(kind,), refine=False)
@@ -825,14 +829,17 @@ def absolute_extremes(beam: Beam, case: LoadCase, span: int, kind: str = "moment
 
 
 def _under_axles(beam: Beam, case: LoadCase, span: int, case_index: int,
-                 best: tuple, ends: Envelope) -> tuple:
-    """The span ends' best (``best``) or, where larger, the exact maximum under a load."""
+                 best: tuple, ends: Envelope) -> tuple | None:
+    """The span ends' best (``best``) or, where larger, the exact maximum under a load (None
+    when the job is beyond the exact method's limits: ``absolute_moment.MAX_WORK``)."""
     a, b = float(beam.support_positions[span]), float(beam.support_positions[span + 1])
     knots, moment, shear = _span_end_lines(beam, span)
     scale = max(abs(float(ends.max("moment").max())), abs(float(ends.min("moment").min())))
     for direction, arrangement in _arrangements(case).items():
         found = moment_under_axles(knots, moment, shear, a, b, arrangement.base,
                                    arrangement.weights, arrangement.confined)
+        if found is None:
+            return None
         # above the ends by more than rounding (an empty span reads ~1e-13 of its ends)
         if found.value > best[0] + 1e-12 * max(scale, abs(found.value)):
             g = Governing(found.value, case_index, direction, found.reference, found.side,

@@ -346,7 +346,9 @@ def deflection_table(report: RunwayReport) -> TableData:
         (True, False, True, True, True, False, True, True, False, False), groups=groups,
         note="Vertical: downward deflection under the vertical wheel loads; lateral: the top "
              "flange under the lateral wheel forces acting either way. The worst section of "
-             "each span is found by search.")
+             "each span is found by a search over 40 sections per span refined around the "
+             "best of them: not certified (it assumes one peak between neighbouring samples "
+             "and may read low; check it where it governs).")
 
 
 def lateral_table(report: RunwayReport) -> TableData | None:

@@ -208,8 +208,11 @@ def deflection_table(results: EnvelopeResults) -> TableData | None:
         ("span", f"δ\n[{D}]", f"at x\n[{L}]", "limit", f"allowable\n[{D}]", "utilisation",
          "verdict", "governing case"), rows,
         (True, True, True, False, True, True, False, False),
-        note="Service level: no load factor; the worst section of each span is found by "
-             "search. Loads acting together are summed each at its own worst (conservative).")
+        note="Service level: no load factor. The worst section of each span is found by a "
+             "search over 40 sections per span refined around the best of them: not "
+             "certified (it assumes one peak between neighbouring samples and may read low; "
+             "check it where it governs). Loads acting together are summed each at its own "
+             "worst (conservative).")
 
 
 def critical_table(results: EnvelopeResults) -> TableData | None:
