@@ -64,7 +64,9 @@ class DeflectionCheck:
     """Worst deflection in one span against span / ratio.
 
     Fields: span index, span length, deflection [length], x where it occurs, ratio, allowable
-    deflection [length], utilisation (deflection / allowable), governing combination name.
+    deflection [length], utilisation (deflection / allowable), governing combination name;
+    certified: False when a search between the sections could not prove its value (see
+    ``analysis.envelope.absolute_extremes``).
     """
 
     span: int
@@ -75,6 +77,7 @@ class DeflectionCheck:
     allowable: float
     utilisation: float
     governing: str
+    certified: bool = True
 
     @property
     def verdict(self) -> str:
@@ -143,6 +146,7 @@ def deflection_checks(env: Envelope, ratio: float, both_ways: bool
         inside = np.flatnonzero((env.sections >= ends[span]) & (env.sections <= ends[span + 1]))
         value, x, name = 0.0, 0.5 * (ends[span] + ends[span + 1]), "none"
         searches: list[tuple[int, str]] = []
+        certified = True
         if inside.size:
             candidates = [(high[i], i, "max") for i in inside]
             if both_ways:
@@ -159,12 +163,13 @@ def deflection_checks(env: Envelope, ratio: float, both_ways: bool
         for case, which in searches:
             for extreme in absolute_extremes(beam, env.cases[case], span, "deflection",
                                              extremes=(which,)):
+                certified &= extreme.certified
                 if abs(extreme.value) > value:
                     value, x, name = abs(extreme.value), extreme.x, env.cases[case].name
         length = beam.spans[span]
         allowable = length / ratio
         out.append(DeflectionCheck(span, length, float(value), x, ratio, allowable,
-                                   float(value) / allowable, name))
+                                   float(value) / allowable, name, certified))
     return tuple(out)
 
 

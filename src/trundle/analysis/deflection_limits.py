@@ -35,6 +35,8 @@ class DeflectionCheck:
     ratio : the ratio given (800 for span/800)
     utilisation : |value| / limit (:func:`trundle.analysis.checks.utilisation_of`)
     verdict : PASS or EXCEEDS, from :func:`trundle.analysis.checks.verdict`
+    certified : False when the search between sections could not prove ``value`` (see
+        ``trundle.analysis.envelope.absolute_extremes``)
     """
 
     span: int
@@ -44,6 +46,7 @@ class DeflectionCheck:
     limit: float
     ratio: float
     utilisation: float
+    certified: bool = True
 
     @property
     def verdict(self) -> str:
@@ -83,12 +86,14 @@ def live_load_deflection_checks(beam: Beam, cases: Sequence[Any], ratio: float
     ends = beam.support_positions
     for span in range(beam.n_spans):
         best = (0.0, float("nan"), "")
+        certified = True
         for item in cases:
             for name, case, factor in _loads_of(item, beam):
                 total = {"max": 0.0, "min": 0.0}
                 where = {"max": math.nan, "min": math.nan}
                 for part in _parts(case):
                     for extreme in absolute_extremes(beam, part, span, "deflection"):
+                        certified &= extreme.certified
                         value = factor * extreme.value  # service level already
                         total[extreme.which] += value
                         if math.isnan(where[extreme.which]):
@@ -99,5 +104,5 @@ def live_load_deflection_checks(beam: Beam, cases: Sequence[Any], ratio: float
         length = float(ends[span + 1] - ends[span])
         limit = length / ratio
         checks.append(DeflectionCheck(span, best[0], best[1], best[2], limit, float(ratio),
-                                      utilisation_of(best[0], limit)))
+                                      utilisation_of(best[0], limit), certified))
     return checks

@@ -20,10 +20,11 @@ from numpy.typing import ArrayLike, NDArray
 from scipy.optimize import minimize_scalar
 
 from trundle.analysis.absolute_moment import moment_under_axles
-from trundle.analysis.search import searched_extremes
+from trundle.analysis.search import SearchError, searched_extremes
 from trundle.core._repr import html_table, short
 from trundle.core.beam import Beam, ModelError, Spring
-from trundle.core.influence import Effect, line_pieces, piece_sign_intervals
+from trundle.core.fem import assembly_for
+from trundle.core.influence import Effect, LinePieces, line_pieces, piece_sign_intervals
 from trundle.loads.cases import LoadCase, Together, as_case
 from trundle.loads.patterns import UniformLoad
 from trundle.scan.engine import (
@@ -731,12 +732,15 @@ def exact_absolute(case: Any, kind: str, which: str) -> bool:
     loads (vehicles, axle groups, cranes, trains with fixed spacings and gaps; impact and
     factors; both directions; confined or not): the maximum stands under a load
     (``analysis.absolute_moment``). Searched spacings or gaps, uniform load attached to a
-    train, placed uniform load, loads acting together and every deflection extreme are
-    found by the sampled search (not certified), and so is a job beyond the exact method's
-    size limits (``absolute_moment.MAX_BREAKS``, ``MAX_WORK``: ``certified`` is then False
-    in the result though this says True)."""
-    if kind != "moment":
-        return False
+    train, placed uniform load and loads acting together are found by the sampled search
+    (not certified), and so is a job beyond the exact method's size limits
+    (``absolute_moment.MAX_BREAKS``, ``MAX_WORK``: ``certified`` is then False in the result
+    though this says True). Deflection anywhere, for every load, comes from a branch and
+    bound with a certificate (``_bounded_deflection``: within 1e-9 of the span's largest
+    deflection), or, where its budget of boxes runs out, from the sampled search (then
+    ``certified`` is False in the result)."""
+    if kind == "deflection":
+        return True  # certified unless the box budget runs out (see _bounded_deflection)
     if which == "min":
         return True
     if not isinstance(case, LoadCase) or isinstance(case.load, UniformLoad):
@@ -809,10 +813,13 @@ def absolute_extremes(beam: Beam, case: LoadCase, span: int, kind: str = "moment
             values = ends.max(kind) if which == "max" else ends.min(kind)
             j = int(np.argmax(sign * values))
             best = (float(values[j]), (a, b)[j], ends.governing(kind, which)[j], ends)
-        if certified and which == "max":
+        if certified and which == "max" and kind == "moment":
             found = _under_axles(beam, case, span, case_index, best, ends)
             certified = found is not None  # None: too big a job for the exact method
             best = found if found is not None else best
+        if kind == "deflection":
+            best = _bounded_deflection(beam, case, span, which)
+            certified = best is not None  # None: the box budget did not suffice
         if not certified:
             if coarse is None:
                 coarse = envelope(beam, [case], sections=np.linspace(a, b, samples + 1),
@@ -845,6 +852,126 @@ def _under_axles(beam: Beam, case: LoadCase, span: int, case_index: int,
             g = Governing(found.value, case_index, direction, found.reference, found.side,
                           load=case.name)
             best = (found.value, found.x, g, None)
+    return best
+
+
+# the certified search of the absolute deflection: boxes per span at the start, the largest
+# number of boxes examined before giving up (then the sampled search, not certified), the
+# relative tolerance of the certificate
+DEFLECTION_START_BOXES = 40
+DEFLECTION_BOX_BUDGET = 4000
+DEFLECTION_TOLERANCE = 1e-9
+DEFLECTION_SPLIT = 8
+
+
+def _moment_bounds(beam: Beam, case: Any, span: int) -> tuple[float, float] | None:
+    """(lower, upper) bounds of the moment anywhere in the span under every placement, at
+    service level (without the load factor): the moment is concave along the span, so it is
+    above the smaller end and below the exact maximum where there is one, else below each
+    end's value continued with its end shear. None where the end shear cannot be had."""
+    a, b = float(beam.support_positions[span]), float(beam.support_positions[span + 1])
+    ends = _envelope(beam, [case], [a, b], ("moment",), True, ("right", "left"))
+    low = float(min(ends.min("moment")))
+    found = (absolute_extremes(beam, case, span, "moment", extremes=("max",))[0]
+             if exact_absolute(case, "moment", "max") else None)
+    if found is not None and found.certified:
+        up = found.value
+    else:
+        try:
+            shear = envelope(beam, [case], sections=[a, b], effects=("shear",))
+        except SearchError:
+            return None  # the exact search of spacings at a free end: not certified here
+        length = b - a
+        up = min(float(ends.max("moment")[0])
+                 + max(float(shear.max("shear", "right")[0]), 0.0) * length,
+                 float(ends.max("moment")[1])
+                 + max(-float(shear.min("shear", "left")[1]), 0.0) * length)
+    parts = case.parts if isinstance(case, Together) else (case,)
+    factor = min(p.load_factor for p in parts)  # service level; an upper bound for each part
+    return low / factor, up / factor
+
+
+def _least_stiffness(beam: Beam, a: float, b: float) -> float:
+    mesh = assembly_for(beam, ()).mesh
+    inside = (mesh.x[1:] > a) & (mesh.x[:-1] < b)
+    return float(mesh.element_EI[inside].min())
+
+
+def _bounded_deflection(beam: Beam, case: Any, span: int, which: str
+                        ) -> tuple[float, float, Governing, Envelope] | None:
+    """The extreme deflection anywhere in the span, certified to ``DEFLECTION_TOLERANCE`` of
+    the span's largest deflection, or None when ``DEFLECTION_BOX_BUDGET`` boxes do not
+    suffice.
+
+    Branch and bound over boxes [x_m − r, x_m + r] of the span (never across a hinge, where
+    the rotation jumps). For one placement δ'' = −M/EI, so by Taylor's theorem with the
+    remainder in integral form δ(x_m + s) ≤ δ(x_m) + θ(x_m)·s + K s²/2 with K the largest
+    −M/EI over the span (from ``_moment_bounds`` and the least EI). Over every placement the
+    first two terms are the envelope of the line δ + s·θ at x_m, convex in s, so largest at
+    s = ±r: the box's bound is the larger envelope of δ ± r·θ plus K r²/2 (the same with
+    signs turned for the minimum). The value is the exact envelope at a box's middle; boxes
+    whose bound cannot beat it by the tolerance are dropped, the others split.
+    """
+    sign = 1.0 if which == "max" else -1.0
+    a, b = float(beam.support_positions[span]), float(beam.support_positions[span + 1])
+    bounds = _moment_bounds(beam, case, span)
+    if bounds is None:
+        return None
+    low, up = bounds
+    curvature = (max(-low, 0.0) if which == "max" else max(up, 0.0)) / _least_stiffness(
+        beam, a, b)
+    # boxes never straddle a node (hinge: the rotation jumps; stiffness step) and a node is
+    # evaluated itself, not a hair from it (a section a hair from a node costs digits)
+    nodes = assembly_for(beam, ()).mesh.x
+    tol = 1e-9 * beam.length
+    cuts = [a, *[float(x) for x in nodes if a + tol < x < b - tol], b]
+    boxes = []
+    for lo, hi in zip(cuts[:-1], cuts[1:], strict=True):
+        n = max(2, int(np.ceil(DEFLECTION_START_BOXES * (hi - lo) / (b - a))))
+        edges = np.linspace(lo, hi, n + 1)
+        boxes.extend(zip(edges[:-1], edges[1:], strict=True))
+    box = np.array(boxes)
+    best: tuple[float, float, Governing, Envelope] | None = None
+    scale = 0.0
+    examined = 0
+    while box.size:
+        examined += len(box)
+        if examined > DEFLECTION_BOX_BUDGET:
+            return None
+        mid, r = box.mean(axis=1), 0.5 * (box[:, 1] - box[:, 0])
+        # the exact envelope at every box's middle and ends: an extreme at an end of a box
+        # (a free tip, a node) is then found as it is, not approached from inside
+        where = np.unique(np.concatenate([mid, box.ravel()]))
+        at = envelope(beam, [case], sections=where, effects=("deflection",))
+        values = at.max("deflection") if which == "max" else at.min("deflection")
+        scale = max(scale, float(np.abs(at.max("deflection")).max()),
+                    float(np.abs(at.min("deflection")).max()))
+        j = int(np.argmax(sign * values))
+        if best is None or sign * values[j] > sign * best[0]:
+            best = (float(values[j]), float(where[j]), at.governing("deflection", which)[j],
+                    at)
+        pieces = line_pieces(beam, [e for x in mid for e in (Effect("deflection", at=float(x)),
+                                                             Effect("rotation", at=float(x)))])
+        if not np.array_equal(pieces.knots[0::2], pieces.knots[1::2]):
+            return None  # not expected: both lines break where the structure and x_m do
+        deflection, rotation = pieces.coefficients[0::2], pieces.coefficients[1::2]
+        combined = np.concatenate([deflection + r[:, None, None] * rotation,
+                                   deflection - r[:, None, None] * rotation])
+        n = len(mid)
+        lines = LinePieces(np.concatenate([pieces.knots[0::2]] * 2),
+                           np.concatenate([pieces.n_pieces[0::2]] * 2), combined,
+                           tuple(pieces.effects[0::2]) * 2, pieces.nodes, pieces.sections,
+                           np.arange(2 * n, dtype=np.int64),
+                           np.concatenate([pieces.split_at[0::2]] * 2))
+        reach = _envelope(beam, [case], mid, ("deflection",), True, deflection_lines=lines)
+        linear = reach.max("deflection") if which == "max" else reach.min("deflection")
+        bound = np.maximum(sign * linear[:n], sign * linear[n:]) + curvature * r * r / 2
+        open_box = bound > sign * best[0] + DEFLECTION_TOLERANCE * max(scale, 1e-300)
+        # each open box in DEFLECTION_SPLIT (fewer rounds: a round costs two envelopes)
+        kept = box[open_box]
+        edges = kept[:, :1] + (kept[:, 1:] - kept[:, :1]) * np.linspace(
+            0.0, 1.0, DEFLECTION_SPLIT + 1)[None, :]
+        box = np.stack([edges[:, :-1], edges[:, 1:]], axis=2).reshape(-1, 2)
     return best
 
 
@@ -923,16 +1050,27 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
 
 def _envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None,
               effects: Sequence[str], refine: bool,
-              moment_sides: tuple[str | None, ...] | None = None) -> Envelope:
+              moment_sides: tuple[str | None, ...] | None = None,
+              deflection_lines: LinePieces | None = None) -> Envelope:
     """``envelope``; ``moment_sides`` (one per section) reads the moment just left or just
-    right of a support whose couple makes it jump (the span ends of absolute extremes)."""
+    right of a support whose couple makes it jump (the span ends of absolute extremes);
+    ``deflection_lines`` are scanned as the deflection family instead of the lines of the
+    sections (any lines: the bounds of the absolute deflection; service level like it)."""
     cases = tuple(as_case(item) for item in loads)
     if not cases:
         raise ModelError("loads: at least one load is needed")
     sections = beam.tenth_points() if sections is None else np.atleast_1d(
         np.asarray(sections, dtype=float))
-    line_effects, index_all, full_batch, keep, inverse, index, batch = _prepared_lines(
-        beam, sections, tuple(effects), moment_sides)
+    if deflection_lines is None:
+        line_effects, index_all, full_batch, keep, inverse, index, batch = _prepared_lines(
+            beam, sections, tuple(effects), moment_sides)
+    else:
+        n_custom = len(deflection_lines)
+        line_effects = deflection_lines.effects
+        index = {f: np.zeros(0, dtype=np.int64) for f in FAMILIES}
+        index["deflection"] = np.arange(n_custom, dtype=np.int64)
+        index_all, keep, inverse = index, index["deflection"], index["deflection"]
+        full_batch = batch = LineBatch.from_pieces(deflection_lines)
     n = batch.n_lines
     # largest and smallest ordinate of every line: where a placed load's point load stands
     placed = any(isinstance(p.load, UniformLoad) for c in cases

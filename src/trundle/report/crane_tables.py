@@ -47,6 +47,7 @@ from trundle.report.envelope_tables import (
     _position,
     anywhere_label,
     anywhere_note,
+    deflection_search_note,
     extreme_json,
 )
 from trundle.report.format import verdict_cell
@@ -322,7 +323,8 @@ def _check_rows(checks: Sequence[DeflectionCheck], kind: str, to_display: float,
                 decimals: int) -> list[tuple[str, ...]]:
     rows = []
     for c in checks:
-        rows.append((str(c.span + 1), kind, _length(c.span_length),
+        rows.append((str(c.span + 1) + ("" if c.certified else " *"), kind,
+                     _length(c.span_length),
                      _fixed(c.deflection * to_display, decimals), _position(c.x),
                      _ratio(c.ratio), _fixed(c.allowable * to_display, decimals),
                      f"{c.utilisation:.3f}", verdict_cell(c.verdict), c.governing))
@@ -345,10 +347,8 @@ def deflection_table(report: RunwayReport) -> TableData:
          f"allowable\n[{D}]", "utilisation", "verdict", "combination"), tuple(rows),
         (True, False, True, True, True, False, True, True, False, False), groups=groups,
         note="Vertical: downward deflection under the vertical wheel loads; lateral: the top "
-             "flange under the lateral wheel forces acting either way. The worst section of "
-             "each span is found by a search over 40 sections per span refined around the "
-             "best of them: not certified (it assumes one peak between neighbouring samples "
-             "and may read low; check it where it governs).")
+             "flange under the lateral wheel forces acting either way. "
+             + deflection_search_note(checks))
 
 
 def lateral_table(report: RunwayReport) -> TableData | None:

@@ -516,6 +516,19 @@ def anywhere_note(extremes: Sequence[Extreme | None]) -> str:
     return text
 
 
+def deflection_search_note(checks) -> str:
+    """What the 'anywhere' deflection of a check is, and what a span marked * is."""
+    text = ("The worst section of each span is certified to 1e-9 of the span's largest "
+            "deflection (branch and bound with a bound on the curvature M/EI).")
+    if any(not c.certified for c in checks):
+        text += (" * not certified: the bound could not close in its budget (a flat "
+                 "stretch, or searched spacings at a free end); the value comes from a "
+                 "search over 40 sections per span refined around the best of them, which "
+                 "assumes one peak between neighbouring samples and may read low: check it "
+                 "where it governs.")
+    return text
+
+
 def anywhere_json(e: Extreme | None) -> dict[str, Any] | None:
     return None if e is None else {**extreme_json(e), "certified": e.certified}
 
