@@ -86,6 +86,8 @@ class DeflectionCheck:
     ratio : the ratio given (600 for span/600)
     limit : the allowable deflection span_length / ratio [length]
     utilisation : |value| / limit (:func:`utilisation_of`)
+    certified : False when a search between the sections could not prove its value (see
+        ``analysis.envelope.absolute_extremes``)
     """
 
     span: int
@@ -96,14 +98,15 @@ class DeflectionCheck:
     ratio: float
     limit: float
     utilisation: float
+    certified: bool = True
 
     @classmethod
     def of(cls, span: int, span_length: float, value: float, x: float, governing: str,
-           ratio: float) -> DeflectionCheck:
+           ratio: float, certified: bool = True) -> DeflectionCheck:
         """The check of ``value`` in a span of ``span_length`` against span / ``ratio``."""
         limit = span_length / ratio
         return cls(span, float(span_length), float(value), float(x), governing, float(ratio),
-                   limit, utilisation_of(float(value), limit))
+                   limit, utilisation_of(float(value), limit), certified)
 
     @property
     def verdict(self) -> str:
@@ -161,16 +164,19 @@ class FatigueSection:
 
 def deflection_checks(env: Envelope, ratio: float, both_ways: bool
                        ) -> tuple[DeflectionCheck, ...]:
-    """Per span: the worst deflection at the envelope's sections, then refined over every
-    section of the span for the combination that governs there."""
+    """Per span: the worst deflection anywhere in the span over every combination.
+
+    Every combination is searched between the sections (not only the one that governs at the
+    sections: another may peak between them), so no case is skipped on a guess."""
     beam = env.beam
     out = []
     ends = beam.support_positions
     high, low = env.max("deflection"), env.min("deflection")
+    senses = ("max", "min") if both_ways else ("max",)
     for span in range(beam.n_spans):
         inside = beam.sections_in_span(env.sections, span)
         value, x, name = 0.0, 0.5 * (ends[span] + ends[span + 1]), "none"
-        searches: list[tuple[int, str]] = []
+        certified = True
         if inside.size:
             candidates = [(high[i], i, "max") for i in inside]
             if both_ways:
@@ -180,16 +186,17 @@ def deflection_checks(env: Envelope, ratio: float, both_ways: bool
             x = float(env.sections[i])
             if governing.case >= 0:
                 name = env.cases[governing.case].name
-                searches.append((governing.case, which))
-        if not searches:  # no loaded section asked for in this span: try every combination
-            searches = [(c, w) for c in range(len(env.cases))
-                        for w in (("max", "min") if both_ways else ("max",))]
-        for case, which in searches:
-            for extreme in absolute_extremes(beam, env.cases[case], span, "deflection",
-                                             extremes=(which,)):
-                if abs(extreme.value) > value:
-                    value, x, name = abs(extreme.value), extreme.x, env.cases[case].name
-        out.append(DeflectionCheck.of(span, beam.spans[span], value, x, name, ratio))
+        # every sense of every combination; each search asks only for values beyond the
+        # worst already held (a sense that cannot reach it is proven, not searched to 1e-9)
+        for which in senses:
+            for case in range(len(env.cases)):
+                for extreme in absolute_extremes(beam, env.cases[case], span, "deflection",
+                                                 extremes=(which,), beyond=value):
+                    certified &= extreme.certified
+                    if abs(extreme.value) > value:
+                        value, x, name = abs(extreme.value), extreme.x, env.cases[case].name
+        out.append(DeflectionCheck.of(span, beam.spans[span], value, x, name, ratio,
+                                      certified))
     return tuple(out)
 
 
@@ -225,12 +232,21 @@ def live_load_deflection_checks(beam: Beam, cases: Sequence[Any], ratio: float
     ends = beam.support_positions
     for span in range(beam.n_spans):
         best = (0.0, float("nan"), "")
+        certified = True
         for item in cases:
             for name, case, factor in _live_loads_of(item, beam):
                 total = {"max": 0.0, "min": 0.0}
                 where = {"max": math.nan, "min": math.nan}
-                for part in _parts_of(case):
-                    for extreme in absolute_extremes(beam, part, span, "deflection"):
+                parts = _parts_of(case)
+                for part in parts:
+                    # one part alone: ask only for values beyond the worst held (a sense that
+                    # cannot reach it is proven, not searched to 1e-9); parts are summed, so
+                    # each of several is searched in full
+                    beyond = abs(best[0]) if len(parts) == 1 else 0.0
+                    found = [e for which in ("max", "min") for e in absolute_extremes(
+                        beam, part, span, "deflection", extremes=(which,), beyond=beyond)]
+                    for extreme in found:
+                        certified &= extreme.certified
                         value = factor * extreme.value  # service level already
                         total[extreme.which] += value
                         if math.isnan(where[extreme.which]):
@@ -239,7 +255,7 @@ def live_load_deflection_checks(beam: Beam, cases: Sequence[Any], ratio: float
                     if abs(total[which]) > abs(best[0]):
                         best = (total[which], where[which], name)
         checks.append(DeflectionCheck.of(span, float(ends[span + 1] - ends[span]), best[0],
-                                         best[1], best[2], ratio))
+                                         best[1], best[2], ratio, certified))
     return checks
 
 

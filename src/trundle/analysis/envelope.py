@@ -19,10 +19,12 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 from scipy.optimize import minimize_scalar
 
-from trundle.analysis.search import searched_extremes
+from trundle.analysis.absolute_moment import moment_under_axles
+from trundle.analysis.search import SearchError, searched_extremes
 from trundle.core._repr import html_table, short
 from trundle.core.beam import Beam, ModelError, Spring
-from trundle.core.influence import Effect, line_pieces, piece_sign_intervals
+from trundle.core.fem import assembly_for
+from trundle.core.influence import Effect, LinePieces, line_pieces, piece_sign_intervals
 from trundle.loads.cases import LoadCase, Together, as_case
 from trundle.loads.patterns import UniformLoad
 from trundle.scan.engine import (
@@ -105,8 +107,12 @@ class Governing:
 EMPTY = Governing(0.0)
 
 
-def _line_effects(beam: Beam, sections: NDArray[np.float64], requested: Sequence[str]
+def _line_effects(beam: Beam, sections: NDArray[np.float64], requested: Sequence[str],
+                  moment_sides: tuple[str | None, ...] | None = None
                   ) -> tuple[list[Effect], dict[str, NDArray[np.int64]]]:
+    """The lines of the requested families; ``moment_sides`` (one per section) reads the
+    moment just left or just right of a support whose couple makes it jump (default: right,
+    the ``Effect`` default)."""
     effects: list[Effect] = []
     index: dict[str, list[int]] = {f: [] for f in FAMILIES}
 
@@ -117,9 +123,10 @@ def _line_effects(beam: Beam, sections: NDArray[np.float64], requested: Sequence
     for kind in requested:
         if kind not in REQUESTABLE:
             raise ModelError(f"effects: expected some of {', '.join(REQUESTABLE)}, found {kind!r}")
-    for x in sections:
+    for row, x in enumerate(sections):
         if "moment" in requested:
-            add("moment", Effect("moment", at=float(x)))
+            side = None if moment_sides is None else moment_sides[row]
+            add("moment", Effect("moment", at=float(x), side=side))
         if "shear" in requested:
             add("shear_left", Effect("shear", at=float(x), side="left"))
             add("shear_right", Effect("shear", at=float(x), side="right"))
@@ -471,7 +478,9 @@ class Envelope:
         if key not in self._cache:
             found: list[AbsoluteExtreme] = []
             for c, case in enumerate(self.cases):
-                coarse = _coarse_sections(self.beam, case, kind)
+                # the sampled search's grid, only where some extreme still needs it
+                coarse = (None if all(exact_absolute(case, kind, w) for w in ("max", "min"))
+                          else _coarse_sections(self.beam, case, kind))
                 found.extend((span, c, extreme) for span in range(self.beam.n_spans)
                              for extreme in absolute_extremes(self.beam, case, span, kind,
                                                               case_index=c, coarse=coarse))
@@ -652,6 +661,9 @@ class AbsoluteExtreme:
     value : the extreme [effect units]
     x : section where it occurs [length]
     governing : the load configuration that produces it
+    certified : True when ``value`` is the exact extreme over every section of the span (to
+        rounding; see ``exact_absolute``); False when it comes from a sampled search refined
+        locally, which assumes one peak between samples and may read low
     """
 
     span: int
@@ -660,6 +672,7 @@ class AbsoluteExtreme:
     value: float
     x: float
     governing: Governing
+    certified: bool = True
 
 
 @dataclass(frozen=True)
@@ -697,7 +710,7 @@ def _standalone(source: Envelope, g: Governing, case: int) -> Governing:
     return dataclasses.replace(g, case=case, pattern=pattern, parts=parts)
 
 
-ABSOLUTE_SAMPLES = 40  # sections per span searched before the bounded refinement
+ABSOLUTE_SAMPLES = 40  # sections per span of the sampled search (where no exact method applies)
 
 
 def _coarse_sections(beam: Beam, case: LoadCase, kind: str,
@@ -710,63 +723,304 @@ def _coarse_sections(beam: Beam, case: LoadCase, kind: str,
     return envelope(beam, [case], sections=xs, effects=(kind,), refine=False)
 
 
+def exact_absolute(case: Any, kind: str, which: str) -> bool:
+    """Whether ``absolute_extremes`` gives the exact (certified) extreme for this case.
+
+    The smallest moment anywhere in a span is always exact: every load acts downward, so
+    under any placement the moment is concave along a span and least at one of its ends,
+    whose envelopes are exact. The largest moment is exact for a rigid group of concentrated
+    loads (vehicles, axle groups, cranes, trains with fixed spacings and gaps; impact and
+    factors; both directions; confined or not): the maximum stands under a load
+    (``analysis.absolute_moment``). Searched spacings or gaps, uniform load attached to a
+    train, placed uniform load and loads acting together are found by the sampled search
+    (not certified), and so is a job beyond the exact method's size limits
+    (``absolute_moment.MAX_BREAKS``, ``MAX_WORK``: ``certified`` is then False in the result
+    though this says True). Deflection anywhere, for every load, comes from a branch and
+    bound with a certificate (``_bounded_deflection``: within 1e-9 of the span's largest
+    deflection), or, where its budget of boxes runs out, from the sampled search (then
+    ``certified`` is False in the result)."""
+    if kind == "deflection":
+        return True  # certified unless the box budget runs out (see _bounded_deflection)
+    if which == "min":
+        return True
+    if not isinstance(case, LoadCase) or isinstance(case.load, UniformLoad):
+        return False
+    if case.load.parameters():
+        return False
+    return not case.load.group((), case.impact).uniform
+
+
+def _span_end_lines(beam: Beam, span: int) -> tuple:
+    """(knots, moment line, shear line) just right of the span's left end, on shared knots."""
+    key = (repr(beam), span)
+    found = _SPAN_LINES.get(key)
+    if found is None:
+        a = float(beam.support_positions[span])
+        pieces = line_pieces(beam, [Effect("moment", at=a, side="right"),
+                                    Effect("shear", at=a, side="right")])
+        knots = np.unique(pieces.knots[:, :int(pieces.n_pieces.max()) + 1])
+        # both lines on the union of their breaks (the structural nodes: a is one)
+        coef = []
+        for j in range(2):
+            own = pieces.knots[j, :pieces.n_pieces[j] + 1]
+            k = np.clip(np.searchsorted(own, knots[:-1], side="right") - 1, 0,
+                        pieces.n_pieces[j] - 1)
+            shift = knots[:-1] - own[k]
+            c = pieces.coefficients[j, k]
+            c3, c2, c1, c0 = c[:, 0], c[:, 1], c[:, 2], c[:, 3]
+            coef.append(np.stack([c3, c2 + 3 * c3 * shift,
+                                  c1 + (2 * c2 + 3 * c3 * shift) * shift,
+                                  c0 + (c1 + (c2 + c3 * shift) * shift) * shift], axis=1))
+        found = (knots, coef[0], coef[1])
+        if len(_SPAN_LINES) >= 64:
+            _SPAN_LINES.pop(next(iter(_SPAN_LINES)))
+        _SPAN_LINES[key] = found
+    return found
+
+
+_SPAN_LINES: dict[tuple, tuple] = {}
+
+
 def absolute_extremes(beam: Beam, case: LoadCase, span: int, kind: str = "moment",
                       samples: int = ABSOLUTE_SAMPLES, case_index: int = 0,
                       extremes: Sequence[str] = ("max", "min"),
-                      coarse: Envelope | None = None) -> tuple[AbsoluteExtreme, ...]:
-    """Max and min of ``kind`` over all sections of a span: a grid of sections, then a bounded
-    search around the best one (the worst section under a moving group is rarely a tenth point).
+                      coarse: Envelope | None = None, beyond: float = 0.0
+                      ) -> tuple[AbsoluteExtreme, ...]:
+    """Max and min of ``kind`` over all sections of a span (just right of its left support
+    to just left of its right support).
 
-    Every trial section gets the exact scan over all positions and both directions. Searched
-    spacings and gaps are held at their best values while the section is refined, then
-    searched again at the refined section, and the section refined once more (coordinate
-    ascent; each step can only improve the value).
+    Exact where ``exact_absolute`` says so: the moment's minimum from the envelopes of the
+    span's two ends, its maximum also under every load of a rigid group of concentrated
+    loads (``analysis.absolute_moment``; no sampling, no assumption of one peak). Otherwise
+    (``certified`` False in the result) a grid of ``samples`` sections then a bounded search
+    around the best one, never below the span's ends: every trial section gets the exact
+    scan over all positions and both directions; searched spacings and gaps are held at
+    their best values while the section is refined, then searched again at the refined
+    section, and the section refined once more (coordinate ascent). That search assumes one
+    peak between neighbouring samples and may read low.
+
+    ``beyond`` (deflection only, a size ≥ 0): a caller that already holds a deflection of
+    that size (a check taking the worst of both senses) asks only for values beyond it; a
+    certified result smaller than ``beyond`` then proves that nothing in the span exceeds
+    ``beyond`` (to the tolerance), not that the value returned is the extreme.
     """
     if kind not in ("moment", "deflection"):
         raise ModelError(f"absolute extremes: expected moment or deflection, found {kind!r}")
-    a, b = beam.support_positions[span], beam.support_positions[span + 1]
-    if coarse is None:
-        coarse = envelope(beam, [case], sections=np.linspace(a, b, samples + 1),
-                          effects=(kind,), refine=False)
+    a, b = float(beam.support_positions[span]), float(beam.support_positions[span + 1])
+    ends = None
+    if kind == "moment":
+        ends = _envelope(beam, [case], [a, b], ("moment",), True, ("right", "left"))
+    out = []
+    for which in extremes:
+        sign = 1.0 if which == "max" else -1.0
+        certified = exact_absolute(case, kind, which)
+        best: tuple[float, float, Governing, Envelope | None] | None = None
+        if ends is not None:
+            values = ends.max(kind) if which == "max" else ends.min(kind)
+            j = int(np.argmax(sign * values))
+            best = (float(values[j]), (a, b)[j], ends.governing(kind, which)[j], ends)
+        if certified and which == "max" and kind == "moment":
+            found = _under_axles(beam, case, span, case_index, best, ends)
+            certified = found is not None  # None: too big a job for the exact method
+            best = found if found is not None else best
+        if kind == "deflection":
+            best = _bounded_deflection(beam, case, span, which, beyond)
+            certified = best is not None  # None: the box budget did not suffice
+        if not certified:
+            if coarse is None:
+                coarse = envelope(beam, [case], sections=np.linspace(a, b, samples + 1),
+                                  effects=(kind,), refine=False)
+            found = _sampled_extreme(beam, case, kind, which, a, b, coarse)
+            if best is None or sign * found[0] > sign * best[0]:
+                best = found
+        value, x, governing, source = best
+        if source is not None:
+            governing = _standalone(source, governing,
+                                    case_index if governing.case >= 0 else -1)
+        out.append(AbsoluteExtreme(span, case_index, which, value, x, governing, certified))
+    return tuple(out)
+
+
+def _under_axles(beam: Beam, case: LoadCase, span: int, case_index: int,
+                 best: tuple, ends: Envelope) -> tuple | None:
+    """The span ends' best (``best``) or, where larger, the exact maximum under a load (None
+    when the job is beyond the exact method's limits: ``absolute_moment.MAX_WORK``)."""
+    a, b = float(beam.support_positions[span]), float(beam.support_positions[span + 1])
+    knots, moment, shear = _span_end_lines(beam, span)
+    scale = max(abs(float(ends.max("moment").max())), abs(float(ends.min("moment").min())))
+    for direction, arrangement in _arrangements(case).items():
+        found = moment_under_axles(knots, moment, shear, a, b, arrangement.base,
+                                   arrangement.weights, arrangement.confined)
+        if found is None:
+            return None
+        # above the ends by more than rounding (an empty span reads ~1e-13 of its ends)
+        if found.value > best[0] + 1e-12 * max(scale, abs(found.value)):
+            g = Governing(found.value, case_index, direction, found.reference, found.side,
+                          load=case.name)
+            best = (found.value, found.x, g, None)
+    return best
+
+
+# the certified search of the absolute deflection: boxes per span at the start, the largest
+# number of boxes examined before giving up (then the sampled search, not certified), the
+# relative tolerance of the certificate
+DEFLECTION_START_BOXES = 40
+DEFLECTION_BOX_BUDGET = 4000
+DEFLECTION_TOLERANCE = 1e-9
+DEFLECTION_SPLIT = 8
+
+
+def _moment_bounds(beam: Beam, case: Any, span: int) -> tuple[float, float] | None:
+    """(lower, upper) bounds of the moment anywhere in the span under every placement, at
+    service level (without the load factor): the moment is concave along the span, so it is
+    above the smaller end and below the exact maximum where there is one, else below each
+    end's value continued with its end shear. None where the end shear cannot be had."""
+    a, b = float(beam.support_positions[span]), float(beam.support_positions[span + 1])
+    ends = _envelope(beam, [case], [a, b], ("moment",), True, ("right", "left"))
+    low = float(min(ends.min("moment")))
+    found = (absolute_extremes(beam, case, span, "moment", extremes=("max",))[0]
+             if exact_absolute(case, "moment", "max") else None)
+    if found is not None and found.certified:
+        up = found.value
+    else:
+        try:
+            shear = envelope(beam, [case], sections=[a, b], effects=("shear",))
+        except SearchError:
+            return None  # the exact search of spacings at a free end: not certified here
+        length = b - a
+        up = min(float(ends.max("moment")[0])
+                 + max(float(shear.max("shear", "right")[0]), 0.0) * length,
+                 float(ends.max("moment")[1])
+                 + max(-float(shear.min("shear", "left")[1]), 0.0) * length)
+    parts = case.parts if isinstance(case, Together) else (case,)
+    factor = min(p.load_factor for p in parts)  # service level; an upper bound for each part
+    return low / factor, up / factor
+
+
+def _least_stiffness(beam: Beam, a: float, b: float) -> float:
+    mesh = assembly_for(beam, ()).mesh
+    inside = (mesh.x[1:] > a) & (mesh.x[:-1] < b)
+    return float(mesh.element_EI[inside].min())
+
+
+def _bounded_deflection(beam: Beam, case: Any, span: int, which: str, beyond: float = 0.0
+                        ) -> tuple[float, float, Governing, Envelope] | None:
+    """The extreme deflection anywhere in the span, certified to ``DEFLECTION_TOLERANCE`` of
+    the span's largest deflection, or None when ``DEFLECTION_BOX_BUDGET`` boxes do not
+    suffice.
+
+    Branch and bound over boxes [x_m − r, x_m + r] of the span (never across a hinge, where
+    the rotation jumps). For one placement δ'' = −M/EI, so by Taylor's theorem with the
+    remainder in integral form δ(x_m + s) ≤ δ(x_m) + θ(x_m)·s + K s²/2 with K the largest
+    −M/EI over the span (from ``_moment_bounds`` and the least EI). Over every placement the
+    first two terms are the envelope of the line δ + s·θ at x_m, convex in s, so largest at
+    s = ±r: the box's bound is the larger envelope of δ ± r·θ plus K r²/2 (the same with
+    signs turned for the minimum). The value is the exact envelope at a box's middle; boxes
+    whose bound cannot beat it by the tolerance are dropped, the others split.
+    """
+    sign = 1.0 if which == "max" else -1.0
+    a, b = float(beam.support_positions[span]), float(beam.support_positions[span + 1])
+    bounds = _moment_bounds(beam, case, span)
+    if bounds is None:
+        return None
+    low, up = bounds
+    curvature = (max(-low, 0.0) if which == "max" else max(up, 0.0)) / _least_stiffness(
+        beam, a, b)
+    # boxes never straddle a node (hinge: the rotation jumps; stiffness step) and a node is
+    # evaluated itself, not a hair from it (a section a hair from a node costs digits)
+    nodes = assembly_for(beam, ()).mesh.x
+    tol = 1e-9 * beam.length
+    cuts = [a, *[float(x) for x in nodes if a + tol < x < b - tol], b]
+    boxes = []
+    for lo, hi in zip(cuts[:-1], cuts[1:], strict=True):
+        n = max(2, int(np.ceil(DEFLECTION_START_BOXES * (hi - lo) / (b - a))))
+        edges = np.linspace(lo, hi, n + 1)
+        boxes.extend(zip(edges[:-1], edges[1:], strict=True))
+    box = np.array(boxes)
+    best: tuple[float, float, Governing, Envelope] | None = None
+    scale = 0.0
+    examined = 0
+    while box.size:
+        examined += len(box)
+        if examined > DEFLECTION_BOX_BUDGET:
+            return None
+        mid, r = box.mean(axis=1), 0.5 * (box[:, 1] - box[:, 0])
+        # the exact envelope at every box's middle and ends: an extreme at an end of a box
+        # (a free tip, a node) is then found as it is, not approached from inside
+        where = np.unique(np.concatenate([mid, box.ravel()]))
+        at = envelope(beam, [case], sections=where, effects=("deflection",))
+        values = at.max("deflection") if which == "max" else at.min("deflection")
+        scale = max(scale, float(np.abs(at.max("deflection")).max()),
+                    float(np.abs(at.min("deflection")).max()))
+        j = int(np.argmax(sign * values))
+        if best is None or sign * values[j] > sign * best[0]:
+            best = (float(values[j]), float(where[j]), at.governing("deflection", which)[j],
+                    at)
+        pieces = line_pieces(beam, [e for x in mid for e in (Effect("deflection", at=float(x)),
+                                                             Effect("rotation", at=float(x)))])
+        if not np.array_equal(pieces.knots[0::2], pieces.knots[1::2]):
+            return None  # not expected: both lines break where the structure and x_m do
+        deflection, rotation = pieces.coefficients[0::2], pieces.coefficients[1::2]
+        combined = np.concatenate([deflection + r[:, None, None] * rotation,
+                                   deflection - r[:, None, None] * rotation])
+        n = len(mid)
+        lines = LinePieces(np.concatenate([pieces.knots[0::2]] * 2),
+                           np.concatenate([pieces.n_pieces[0::2]] * 2), combined,
+                           tuple(pieces.effects[0::2]) * 2, pieces.nodes, pieces.sections,
+                           np.arange(2 * n, dtype=np.int64),
+                           np.concatenate([pieces.split_at[0::2]] * 2))
+        reach = _envelope(beam, [case], mid, ("deflection",), True, deflection_lines=lines)
+        linear = reach.max("deflection") if which == "max" else reach.min("deflection")
+        bound = np.maximum(sign * linear[:n], sign * linear[n:]) + curvature * r * r / 2
+        # a box stays open only where it could beat both the best found and ``beyond``
+        open_box = bound > max(sign * best[0], beyond) + DEFLECTION_TOLERANCE * max(scale,
+                                                                                    1e-300)
+        # each open box in DEFLECTION_SPLIT (fewer rounds: a round costs two envelopes)
+        kept = box[open_box]
+        edges = kept[:, :1] + (kept[:, 1:] - kept[:, :1]) * np.linspace(
+            0.0, 1.0, DEFLECTION_SPLIT + 1)[None, :]
+        box = np.stack([edges[:, :-1], edges[:, 1:]], axis=2).reshape(-1, 2)
+    return best
+
+
+def _sampled_extreme(beam: Beam, case: LoadCase, kind: str, which: str, a: float, b: float,
+                     coarse: Envelope) -> tuple[float, float, Governing, Envelope]:
+    """The sampled search (not certified): the best of the sampled sections, refined by a
+    bounded scalar search between its neighbours."""
     tol = 1e-9 * beam.length
     inside = np.flatnonzero((coarse.sections >= a - tol) & (coarse.sections <= b + tol))
     xs = coarse.sections[inside]
     searched = (isinstance(case, LoadCase) and not isinstance(case.load, UniformLoad)
                 and bool(case.load.parameters()))
-    out = []
-    for which in extremes:
-        values = (coarse.max(kind) if which == "max" else coarse.min(kind))[inside]
-        sign = 1.0 if which == "max" else -1.0
-        i = int(np.argmax(sign * values))
-        lo, hi = xs[max(i - 1, 0)], xs[min(i + 1, len(xs) - 1)]
-        best_x, best_value = float(xs[i]), float(values[i])
-        governing = coarse.governing(kind, which)[inside[i]]
-        source = coarse
-        rounds = 0 if governing.case < 0 else 2 if searched else 1  # nothing to refine if empty
-        for _round in range(rounds):
-            trial_case = case
-            if searched:
-                trial_case = LoadCase(_Frozen(case.load, governing.searched), case.impact,
-                                      case.factors, case.name)
+    values = (coarse.max(kind) if which == "max" else coarse.min(kind))[inside]
+    sign = 1.0 if which == "max" else -1.0
+    i = int(np.argmax(sign * values))
+    lo, hi = xs[max(i - 1, 0)], xs[min(i + 1, len(xs) - 1)]
+    best_x, best_value = float(xs[i]), float(values[i])
+    governing = coarse.governing(kind, which)[inside[i]]
+    source = coarse
+    rounds = 0 if governing.case < 0 else 2 if searched else 1  # nothing to refine if empty
+    for _round in range(rounds):
+        trial_case = case
+        if searched:
+            trial_case = LoadCase(_Frozen(case.load, governing.searched), case.impact,
+                                  case.factors, case.name)
 
-            def score(x: float, trial_case: LoadCase = trial_case, which: str = which,
-                      sign: float = sign) -> float:
-                e = envelope(beam, [trial_case], sections=[x], effects=(kind,))
-                return -sign * float((e.max(kind) if which == "max" else e.min(kind))[0])
+        def score(x: float, trial_case: LoadCase = trial_case) -> float:
+            e = envelope(beam, [trial_case], sections=[x], effects=(kind,))
+            return -sign * float((e.max(kind) if which == "max" else e.min(kind))[0])
 
-            res = minimize_scalar(score, bounds=(lo, hi), method="bounded",
-                                  options={"xatol": 1e-7 * (b - a)})
-            # the full search (spacings and gaps free again) at the refined section
-            e = envelope(beam, [case], sections=[float(res.x)], effects=(kind,))
-            value = float((e.max(kind) if which == "max" else e.min(kind))[0])
-            if sign * value <= sign * best_value:
-                break
-            best_x, best_value = float(res.x), value
-            governing = e.governing(kind, which)[0]
-            source = e
-        governing = _standalone(source, governing, case_index if governing.case >= 0 else -1)
-        out.append(AbsoluteExtreme(span, case_index, which, best_value, best_x, governing))
-    return tuple(out)
+        res = minimize_scalar(score, bounds=(lo, hi), method="bounded",
+                              options={"xatol": 1e-7 * (b - a)})
+        # the full search (spacings and gaps free again) at the refined section
+        e = envelope(beam, [case], sections=[float(res.x)], effects=(kind,))
+        value = float((e.max(kind) if which == "max" else e.min(kind))[0])
+        if sign * value <= sign * best_value:
+            break
+        best_x, best_value = float(res.x), value
+        governing = e.governing(kind, which)[0]
+        source = e
+    return best_value, best_x, governing, source
 
 
 def _together(batch: LineBatch, together: Together, c: int, single: Any,
@@ -799,13 +1053,32 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
         ``analysis.search``); without it the values are those of the best point of a coarse
         grid of the searched values, lower bounds of the exact extremes
     """
+    return _envelope(beam, loads, sections, effects, refine)
+
+
+def _envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None,
+              effects: Sequence[str], refine: bool,
+              moment_sides: tuple[str | None, ...] | None = None,
+              deflection_lines: LinePieces | None = None) -> Envelope:
+    """``envelope``; ``moment_sides`` (one per section) reads the moment just left or just
+    right of a support whose couple makes it jump (the span ends of absolute extremes);
+    ``deflection_lines`` are scanned as the deflection family instead of the lines of the
+    sections (any lines: the bounds of the absolute deflection; service level like it)."""
     cases = tuple(as_case(item) for item in loads)
     if not cases:
         raise ModelError("loads: at least one load is needed")
     sections = beam.tenth_points() if sections is None else np.atleast_1d(
         np.asarray(sections, dtype=float))
-    line_effects, index_all, full_batch, keep, inverse, index, batch = _prepared_lines(
-        beam, sections, tuple(effects))
+    if deflection_lines is None:
+        line_effects, index_all, full_batch, keep, inverse, index, batch = _prepared_lines(
+            beam, sections, tuple(effects), moment_sides)
+    else:
+        n_custom = len(deflection_lines)
+        line_effects = deflection_lines.effects
+        index = {f: np.zeros(0, dtype=np.int64) for f in FAMILIES}
+        index["deflection"] = np.arange(n_custom, dtype=np.int64)
+        index_all, keep, inverse = index, index["deflection"], index["deflection"]
+        full_batch = batch = LineBatch.from_pieces(deflection_lines)
     n = batch.n_lines
     # largest and smallest ordinate of every line: where a placed load's point load stands
     placed = any(isinstance(p.load, UniformLoad) for c in cases
@@ -859,14 +1132,15 @@ _PREPARED: dict[tuple, tuple] = {}
 _PREPARED_KEEP = 8
 
 
-def _prepared_lines(beam: Beam, sections: NDArray[np.float64], families: tuple[str, ...]
-                    ) -> tuple:
+def _prepared_lines(beam: Beam, sections: NDArray[np.float64], families: tuple[str, ...],
+                    moment_sides: tuple[str | None, ...] | None = None) -> tuple:
     """(effects, index, every line, keep, inverse, distinct index, distinct lines)."""
     # a Beam compares by identity; its repr spells out every value that defines it
-    key = (repr(beam), np.ascontiguousarray(sections, dtype=float).tobytes(), families)
+    key = (repr(beam), np.ascontiguousarray(sections, dtype=float).tobytes(), families,
+           moment_sides)
     found = _PREPARED.get(key)
     if found is None:
-        line_effects, index = _line_effects(beam, sections, families)
+        line_effects, index = _line_effects(beam, sections, families, moment_sides)
         # each line on its own breaks: memory and work grow with lines x structural pieces
         full_batch = LineBatch.from_pieces(line_pieces(beam, line_effects))
         # identical lines (shear just left and right of a section inside a span, zero lines)

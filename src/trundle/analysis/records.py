@@ -60,6 +60,8 @@ class ExtremeRecord:
         right of it, for shear, whose line jumps there) or "" when none stands there
     searched : ((name, value), …) the searched spacings and gaps found [length]
     parts : for loads acting together, the record of each part that is loaded
+    certified : for an extreme anywhere in a span: False when a sampled search found it (see
+        ``AbsoluteExtreme.certified``); True otherwise
     """
 
     family: str
@@ -77,6 +79,7 @@ class ExtremeRecord:
     face: str = ""
     searched: tuple[tuple[str, float], ...] = ()
     parts: tuple[ExtremeRecord, ...] = field(default=())
+    certified: bool = True
 
     @property
     def governed(self) -> bool:
@@ -227,7 +230,8 @@ class EnvelopeRecords:
 
     def absolute(self, extreme: AbsoluteExtreme) -> ExtremeRecord:
         """An absolute moment extreme (anywhere in a span) as a record."""
-        return extreme_record(self.env, "moment", extreme.which, extreme.governing, extreme.x)
+        record = extreme_record(self.env, "moment", extreme.which, extreme.governing, extreme.x)
+        return dataclasses.replace(record, certified=extreme.certified)
 
     def concurrent_shear(self, which: str) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
         """Shear just left and just right of each section under the load that gives its max

@@ -299,8 +299,13 @@ def _moment_anywhere(report: RunwayReport) -> dict[int, CranePlacement]:
     """Per span: the worst sagging moment with impact over every section of the span, as the
     workflow found it (:attr:`RunwayResult.moment_anywhere`)."""
     records = report.runway.records["strength"]
-    return {span: placement(report, records.absolute(best))
-            for span, best in enumerate(report.runway.moment_anywhere) if best is not None}
+    out = {}
+    for span, best in enumerate(report.runway.moment_anywhere):
+        if best is not None:
+            found = placement(report, records.absolute(best))
+            out[span] = dataclasses.replace(
+                found, extreme=dataclasses.replace(found.extreme, certified=best.certified))
+    return out
 
 
 # ------------------------------------------------------------------------------------------

@@ -38,7 +38,12 @@ from trundle.report.envelope_data import (
     direction_ascii,
     span_of_section,
 )
-from trundle.report.envelope_tables import extreme_json
+from trundle.report.envelope_tables import (
+    anywhere_label,
+    anywhere_note,
+    deflection_search_note,
+    extreme_json,
+)
 from trundle.report.export import csv_text, jsonable
 from trundle.report.format import decimals as _decimals
 from trundle.report.format import fixed as _fixed
@@ -279,7 +284,8 @@ def moment_table(report: RunwayReport) -> TableData:
     for s in spans:
         groups.append(len(rows))
         for label, p in (("max at sections", s.moment_max),
-                         ("max anywhere", s.moment_anywhere),
+                         (anywhere_label("max", s.moment_anywhere.extreme
+                                         if s.moment_anywhere else None), s.moment_anywhere),
                          ("min at sections", s.moment_min)):
             if p is None:
                 continue
@@ -289,9 +295,8 @@ def moment_table(report: RunwayReport) -> TableData:
         f"Bending moment per span with impact [{M}] (sagging +)",
         ("span", "extreme", f"M [{M}]", f"at x [{L}]", *_governing_headers(L)), tuple(rows),
         (True, False, True, True, False, False, True, False), groups=tuple(groups),
-        note="'anywhere': the worst section of the span, found by a search over 40 sections "
-             "per span refined around the best of them; not yet proven to be the true extreme "
-             "(it assumes one peak between neighbouring samples): check it where it governs."))
+        note=anywhere_note([s.moment_anywhere.extreme for s in spans
+                            if s.moment_anywhere is not None])))
 
 
 def shear_table(report: RunwayReport) -> TableData:
@@ -317,7 +322,8 @@ def _check_rows(checks: Sequence[DeflectionCheck], kind: str, to_display: float,
                 decimals: int) -> list[tuple[str, ...]]:
     rows = []
     for c in checks:
-        rows.append((str(c.span + 1), kind, _length(c.span_length),
+        rows.append((str(c.span + 1) + ("" if c.certified else " *"), kind,
+                     _length(c.span_length),
                      _fixed(c.value * to_display, decimals), _position(c.x),
                      _ratio(c.ratio), _fixed(c.limit * to_display, decimals),
                      f"{c.utilisation:.3f}", verdict_cell(c.verdict), c.governing))
@@ -340,8 +346,8 @@ def deflection_table(report: RunwayReport) -> TableData:
          f"allowable\n[{D}]", "utilisation", "verdict", "combination"), tuple(rows),
         (True, False, True, True, True, False, True, True, False, False), groups=groups,
         note="Vertical: downward deflection under the vertical wheel loads; lateral: the top "
-             "flange under the lateral wheel forces acting either way. The worst section of "
-             "each span is found by search.")
+             "flange under the lateral wheel forces acting either way. "
+             + deflection_search_note(checks))
 
 
 def lateral_table(report: RunwayReport) -> TableData | None:
@@ -670,7 +676,8 @@ def runway_json(report: RunwayReport, cautions: Sequence[str]) -> dict[str, Any]
             "span": s.span + 1, "from": s.start, "to": s.end,
             "moment_with_impact": {
                 "max": placement_json(s.moment_max), "min": placement_json(s.moment_min),
-                "max_anywhere": (placement_json(s.moment_anywhere)
+                "max_anywhere": ({**placement_json(s.moment_anywhere),
+                                  "certified": s.moment_anywhere.extreme.certified}
                                  if s.moment_anywhere is not None else None)},
             "shear_with_impact": {"max": {**placement_json(s.shear_max),
                                           "side": kind_and_side(s.shear_max.extreme.family)[1]},

@@ -23,6 +23,7 @@ from trundle.report.envelope_data import (
     display_factor,
     quantity_unit,
 )
+from trundle.report.envelope_tables import deflection_search_note
 from trundle.report.export import csv_text, jsonable
 from trundle.report.format import decimals, fixed, length, number, verdict_cell
 
@@ -198,7 +199,8 @@ def deflection_table(results: EnvelopeResults) -> TableData | None:
     L, D = units.label("length"), units.deflection
     to_display = display_factor("deflection", units)
     d = decimals([c.limit * to_display for c in result.deflection])
-    rows = tuple((str(c.span + 1), fixed(c.value * to_display, d), length(c.x),
+    rows = tuple((str(c.span + 1) + ("" if c.certified else " *"),
+                  fixed(c.value * to_display, d), length(c.x),
                   f"span/{c.ratio:g}", fixed(c.limit * to_display, d),
                   fixed(c.utilisation, 3) if np.isfinite(c.utilisation) else "—",
                   verdict_cell(c.verdict), c.governing or "—") for c in result.deflection)
@@ -207,8 +209,8 @@ def deflection_table(results: EnvelopeResults) -> TableData | None:
         ("span", f"δ\n[{D}]", f"at x\n[{L}]", "limit", f"allowable\n[{D}]", "utilisation",
          "verdict", "governing case"), rows,
         (True, True, True, False, True, True, False, False),
-        note="Service level: no load factor; the worst section of each span is found by "
-             "search. Loads acting together are summed each at its own worst (conservative).")
+        note="Service level: no load factor. " + deflection_search_note(result.deflection)
+             + " Loads acting together are summed each at its own worst (conservative).")
 
 
 def critical_table(results: EnvelopeResults) -> TableData | None:

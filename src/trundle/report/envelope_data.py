@@ -242,6 +242,8 @@ class Extreme:
     side_note : where an axle standing at the section stands: on it, or just left or right of
         it (for shear, whose line jumps there); "" when no axle stands at the section
     searched : ((label, value), …) the searched spacings and gaps found [length]
+    certified : for an extreme anywhere in a span: True when it is the exact extreme (see
+        ``AbsoluteExtreme.certified``), False when a sampled search found it; True elsewhere
     """
 
     family: str
@@ -256,6 +258,7 @@ class Extreme:
     placement: str = ""
     side_note: str = ""
     searched: tuple[tuple[str, float], ...] = ()
+    certified: bool = True
 
     @property
     def governed(self) -> bool:
@@ -464,7 +467,8 @@ def _worst(candidates: Sequence[Extreme | None], which: str) -> Extreme | None:
 
 
 def describe_absolute(results: EnvelopeResults, extreme: AbsoluteExtreme) -> Extreme:
-    return describe(results.records.absolute(extreme), results.units, results.beam)
+    return dataclasses.replace(describe(results.records.absolute(extreme), results.units,
+                                        results.beam), certified=extreme.certified)
 
 
 def concurrent_shear(results: EnvelopeResults, which: str) -> tuple[NDArray[np.float64],

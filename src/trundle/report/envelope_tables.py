@@ -187,9 +187,9 @@ def moment_table(results: EnvelopeResults) -> TableData:
     for s in summaries:
         groups.append(len(rows))
         entries = [("max at sections", s.moment_max, "max"),
-                   ("max anywhere", s.absolute_max, None),
+                   (anywhere_label("max", s.absolute_max), s.absolute_max, None),
                    ("min at sections", s.moment_min, "min"),
-                   ("min anywhere", s.absolute_min, None)]
+                   (anywhere_label("min", s.absolute_min), s.absolute_min, None)]
         for label, e, which in entries:
             if e is None:
                 continue
@@ -205,11 +205,9 @@ def moment_table(results: EnvelopeResults) -> TableData:
                       f"V left with it [{force}]", f"V right with it [{force}]",
                       *_governing_headers(L)), tuple(rows),
                      (True, False, True, True, True, True, False, False, False, False),
-                     note="'anywhere': the worst section of the span, found by a search over 40 "
-                          "sections per span refined around the best of them; unlike the "
-                          "values at sections it is not yet proven to be the true extreme "
-                          "(it assumes one peak between neighbouring samples): check it where "
-                          "it governs. 'V left/right with it': the shear just left and just "
+                     note=anywhere_note([e for s in summaries
+                                         for e in (s.absolute_max, s.absolute_min)])
+                     + " 'V left/right with it': the shear just left and just "
                           "right of the section under the load that gives the moment (an axle "
                           "on the section is right of the cut for the left face, left of it "
                           "for the right face).", groups=tuple(groups))
@@ -483,6 +481,41 @@ def reactions_csv(results: EnvelopeResults) -> str:
 # envelope.json
 
 
+def anywhere_label(which: str, e: Extreme | None) -> str:
+    """The row label of an extreme anywhere in a span: marked where it is not certified."""
+    return f"{which} anywhere" + ("" if e is None or e.certified else " (not certified)")
+
+
+def anywhere_note(extremes: Sequence[Extreme | None]) -> str:
+    """What 'anywhere' means, and what 'not certified' means where some row is."""
+    text = ("'anywhere': the worst section of the span, exact like the values at sections "
+            "(the largest moment stands under an axle of the governing load or at an end of "
+            "the span, the smallest at an end of the span).")
+    if any(e is not None and not e.certified for e in extremes):
+        text += (" 'not certified': no exact method yet for that load (searched spacings or "
+                 "gaps, uniform load, loads acting together); found by a search over 40 "
+                 "sections per span refined around the best of them, which assumes one peak "
+                 "between neighbouring samples and may read low: check it where it governs.")
+    return text
+
+
+def deflection_search_note(checks) -> str:
+    """What the 'anywhere' deflection of a check is, and what a span marked * is."""
+    text = ("The worst section of each span is certified to 1e-9 of the span's largest "
+            "deflection (branch and bound with a bound on the curvature M/EI).")
+    if any(not c.certified for c in checks):
+        text += (" * not certified: the bound could not close in its budget (a flat "
+                 "stretch, or searched spacings at a free end); the value comes from a "
+                 "search over 40 sections per span refined around the best of them, which "
+                 "assumes one peak between neighbouring samples and may read low: check it "
+                 "where it governs.")
+    return text
+
+
+def anywhere_json(e: Extreme | None) -> dict[str, Any] | None:
+    return None if e is None else {**extreme_json(e), "certified": e.certified}
+
+
 def extreme_json(e: Extreme) -> dict[str, Any]:
     """One extreme as JSON values (numbers made plain by :func:`export.jsonable`)."""
     return jsonable({
@@ -586,8 +619,8 @@ def _load_parts(results: EnvelopeResults) -> tuple[list[Any], list[Any], list[An
         spans.append({
             "span": s.span + 1, "from": s.start, "to": s.end,
             "moment": {"max": extreme_json(s.moment_max), "min": extreme_json(s.moment_min),
-                       "max_anywhere": extreme_json(s.absolute_max) if s.absolute_max else None,
-                       "min_anywhere": extreme_json(s.absolute_min) if s.absolute_min else None},
+                       "max_anywhere": anywhere_json(s.absolute_max),
+                       "min_anywhere": anywhere_json(s.absolute_min)},
             "shear": {"max": shear_json(s.shear_max), "min": shear_json(s.shear_min)},
             "deflection": {"max": extreme_json(s.deflection_max),
                            "min": extreme_json(s.deflection_min)},

@@ -12,6 +12,7 @@ themselves (utilisation and verdict) are in :mod:`trundle.analysis.checks`.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
@@ -369,10 +370,15 @@ def _moment_anywhere(env: Envelope) -> tuple[AbsoluteExtreme | None, ...]:
     out: list[AbsoluteExtreme | None] = []
     for span in range(beam.n_spans):
         best = None
+        certified = True  # only if every combination's is (one read low could be worst)
         for c, case in enumerate(env.cases):
             for extreme in absolute_extremes(beam, case, span, "moment", case_index=c,
                                              extremes=("max",)):
+                certified &= extreme.certified
                 if best is None or extreme.value > best.value:
                     best = extreme
-        out.append(best if best is not None and best.governing.case >= 0 else None)
+        if best is not None and best.governing.case >= 0:
+            out.append(dataclasses.replace(best, certified=certified))
+        else:
+            out.append(None)
     return tuple(out)

@@ -7,6 +7,7 @@ span, the worst absolute moment over all loads (found between the sections too).
 
 from __future__ import annotations
 
+import dataclasses
 from collections.abc import Sequence
 from dataclasses import dataclass, field
 from functools import cached_property
@@ -96,12 +97,22 @@ def run(spec: MovingLoadsSpec) -> MovingLoadsResult:
 
 
 def worst_absolute(env: Envelope) -> tuple[dict[str, AbsoluteExtreme | None], ...]:
-    """Per span, the worst absolute moment max and min over all loads (None: none found)."""
+    """Per span, the worst absolute moment max and min over all loads (None: none found).
+
+    The worst is certified only when every load's is: a load whose value is not certified
+    may read low, so the worst of the others is not proven to be the worst."""
     worst: list[dict[str, AbsoluteExtreme | None]] = [{"max": None, "min": None}
                                                       for _ in range(env.beam.n_spans)]
+    certified = [{"max": True, "min": True} for _ in range(env.beam.n_spans)]
     for extreme in env.absolute("moment"):
         current = worst[extreme.span][extreme.which]
+        certified[extreme.span][extreme.which] &= extreme.certified
         sign = 1.0 if extreme.which == "max" else -1.0
         if current is None or sign * extreme.value > sign * current.value:
             worst[extreme.span][extreme.which] = extreme
+    for span, pair in enumerate(worst):
+        for which, extreme in pair.items():
+            if extreme is not None:
+                pair[which] = dataclasses.replace(extreme,
+                                                  certified=certified[span][which])
     return tuple(worst)
