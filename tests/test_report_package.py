@@ -29,7 +29,7 @@ import pytest
 from cli_helpers import assert_one_line_error, read_csv, run
 from trundle.io.modelfile import read_model
 from trundle.io.project import ProjectInfo, project_of
-from trundle.report.package import css_string, inline_svg
+from trundle.report.package import css_string, inline_svg, model_text_lines
 
 ROOT = Path(__file__).resolve().parents[1]
 EXAMPLES = sorted([*(ROOT / "examples").glob("*.toml"), *(ROOT / "examples" / "cranes").glob(
@@ -89,6 +89,11 @@ def test_inline_svg_prefixes_every_id():
     out = str(inline_svg(svg, "f3-"))
     assert out.startswith("<svg") and 'id="f3-m1"' in out and 'href="#f3-m1"' in out
     assert "url(#f3-p2)" in out and 'width="10pt"' not in out
+
+
+def test_model_text_shows_every_character_visibly():
+    # a direction override in a comment would make the appendix read differently from the file
+    assert model_text_lines('a = 1\r\n# b\u202ec\x07\n') == "a = 1\n# b⟨U+202E⟩c⟨U+0007⟩\n"
 
 
 # ------------------------------------------------------------------------------------------
@@ -250,6 +255,29 @@ def test_the_numbers_are_those_of_the_csv_files(example):
         for row in rows:
             i = int(np.argmin(np.abs(csv_x - float(row[0]))))
             assert _same(row[column], float(body[i][moment])), row
+
+
+def test_the_design_numbers_are_those_of_the_design_csv(example):
+    _, out, page = example
+    if not (out / "design-envelope.csv").exists():
+        pytest.skip("no design tables in this example")
+    header, body = read_csv(out / "design-envelope.csv")
+    at = {h: header.index(h) for h in ("combination_or_case", "kind", "x_or_support",
+                                        "family", "which", "value")}
+    values = {(r[at["combination_or_case"]], float(r[at["x_or_support"]]), r[at["family"]],
+               r[at["which"]]): float(r[at["value"]])
+              for r in body if r[at["kind"]] == "design"}
+    combinations = sorted({key[0] for key in values})
+    assert combinations
+    for name in combinations:
+        headers, rows = _table(page, f"{name}: design envelope (factored) at the sections")
+        assert rows
+        for row in rows:
+            x = float(row[0].rstrip(" *"))
+            csv_x = min((key[1] for key in values if key[0] == name), key=lambda v: abs(v - x))
+            assert abs(csv_x - x) <= 1e-6 * max(1.0, abs(x))
+            assert _same(row[1], values[name, csv_x, "moment", "max"]), row
+            assert _same(row[3], values[name, csv_x, "moment", "min"]), row
 
 
 def test_the_critical_load_positions_are_drawn(example):

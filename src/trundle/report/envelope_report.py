@@ -165,8 +165,7 @@ def _short_sections_table(results: EnvelopeResults) -> TableData:
     """The envelope at the tenth points and supports (every section: envelope.csv)."""
     table = sections_table(results)
     keep = body_rows([float(x) for x in results.sections], results)
-    return shortened(table, keep, "envelope.csv, one row per section with what governs "
-                                  "each value.")
+    return shortened(table, keep, "envelope.csv")
 
 
 def _short_detail(results: EnvelopeResults, table: TableData, section: ExtraSection
@@ -179,7 +178,7 @@ def _short_detail(results: EnvelopeResults, table: TableData, section: ExtraSect
     csv_files = [name for name in section.files if name.endswith(".csv")]
     where = (section.detail_files.get(table.title)
              or (csv_files[0] if len(csv_files) == 1 else "the CSV files of this section"))
-    return shortened(table, body_rows(x, results), f"{where}.")
+    return shortened(table, body_rows(x, results), where)
 
 
 def _templates() -> Environment:

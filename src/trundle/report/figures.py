@@ -78,6 +78,8 @@ _STYLE = {
     "lines.linewidth": 1.4,
     "savefig.dpi": 200,
     "svg.fonttype": "none",
+    # fixed ids in SVG output: the same model gives the same file (and the same report)
+    "svg.hashsalt": "trundle",
     # text from model files ("$" in a title or load name) is shown as written, never as maths
     "text.parse_math": False,
 }

@@ -84,13 +84,13 @@ def body_rows(x_values: Sequence[float], results: EnvelopeResults) -> list[int]:
     return keep or list(range(len(x_values)))
 
 
-def shortened(table: TableData, keep: Sequence[int], where_all: str) -> TableData:
-    """``table`` with only the rows ``keep``; the note says where every row is."""
+def shortened(table: TableData, keep: Sequence[int], file: str) -> TableData:
+    """``table`` with only the rows ``keep``; the note says that ``file`` has every row."""
     if len(keep) == len(table.rows):
-        note = f"Every section of the model is shown. {where_all}"
+        note = f"All {len(table.rows)} sections of the model are shown (and are in {file})."
     else:
-        note = (f"{len(keep)} of {len(table.rows)} sections shown ({BODY_SECTIONS}); "
-                f"every section: {where_all}")
+        note = (f"{len(keep)} of {len(table.rows)} sections shown ({BODY_SECTIONS}); every "
+                f"section is in {file}.")
     rows = tuple(table.rows[i] for i in keep)
     groups = tuple(sorted({sum(1 for k in keep if k < g) for g in table.groups}))
     if table.note:

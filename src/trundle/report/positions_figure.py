@@ -122,17 +122,18 @@ def draw_panel(ax: Axes, results: EnvelopeResults, panel: Panel) -> None:
                                 "lw": 1.2, "ls": "-" if on_beam else "--",
                                 "fc": INK if on_beam else "white", "shrinkA": 0,
                                 "shrinkB": 0}, zorder=6, annotation_clip=False)
-    ax.plot([e.x, e.x], [-0.9, 0.95], color=INK, lw=0.8, ls=(0, (3, 2)), zorder=1)
-    ax.annotate(panel.mark, (e.x, -0.75), xytext=(3, 0), textcoords="offset points",
-                ha="left", va="center", fontsize=6.5, color=INK,
-                bbox={"boxstyle": "round,pad=0.1", "fc": "white", "ec": "none"}, zorder=7)
+    ax.plot([e.x, e.x], [-0.45, 0.95], color=INK, lw=0.8, ls=(0, (3, 2)), zorder=1)
+    # the mark above the loads, clear of the support numbers and the beam
+    ax.annotate(panel.mark, (e.x, 0.95), xytext=(0, 1), textcoords="offset points",
+                ha="center", va="bottom", fontsize=6.5, color=INK, annotation_clip=False,
+                zorder=7)
     lows = [0.0, *e.axles]
     highs = [length, *e.axles]
     span = max(highs) - min(lows)
     ax.set_xlim(min(lows) - 0.03 * span, max(highs) + 0.03 * span)
     words = _configuration_words(e, units.label("length"))
     heading = figure_text(f"{panel.heading}\n{_wrap(words)}", parse_math=False)
-    ax.set_title(heading, fontsize=7, color=INK, loc="left", pad=4)
+    ax.set_title(heading, fontsize=7, color=INK, loc="left", pad=12)
 
 
 def _wrap(text: str) -> str:
@@ -153,7 +154,7 @@ def positions_figure(results: EnvelopeResults, panels: list[Panel] | None = None
     columns = 2 if len(panels) > 1 else 1
     rows = -(-len(panels) // columns)
     with figure_style():
-        figure = new_figure(7.5, 0.35 + 1.45 * rows)
+        figure = new_figure(7.5, 0.35 + 1.7 * rows)
         grid = figure.add_gridspec(rows, columns)
         axes = []
         for i, panel in enumerate(panels):
