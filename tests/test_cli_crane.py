@@ -208,11 +208,13 @@ def test_report_has_the_crane_summary_the_figures_and_the_cautions(si):
     for phrase in ("Cranes as given", "Vertical wheel loads on this runway rail",
                    "Horizontal crane forces", "Defaults in use", "Vertical reactions per support",
                    "Bending moment per span with impact", "Deflection per span against the limits",
-                   "Fatigue at every section", "20 t process crane", "10 t workshop crane",
+                   "Fatigue per span and crane", "runway-fatigue.csv", "20 t process crane",
+                   "10 t workshop crane",
                    "checking by a qualified engineer", "local codes and licensed practice govern",
                    "verify against the governing guide/code"):
         assert phrase in text, phrase
-    assert len(re.findall(r'<img src="data:image/png;base64,', html)) == 4
+    # four runway figures and the critical load positions, inline SVG
+    assert len(re.findall(r'<svg role="img" class="figure"', html)) == 5 and "<img" not in html
     assert not re.search(r'(src|href)="(https?:|//|file:)', html)
     assert f"{runway.strength.max('reaction')[1]:.1f}" in text
 

@@ -45,7 +45,7 @@ def test_every_design_example_writes_every_output(path: Path, tmp_path: Path) ->
     assert set(data["combinations"]) == {c.name for c in design.combinations}
     assert data["cases"]
     html = (out / "report.html").read_text()
-    assert "Design envelope" in html and "data:image/png;base64" in html
+    assert "Design envelope" in html and '<svg role="img" class="figure"' in html
     assert "every live case combined on its own" in html
 
 

@@ -157,7 +157,8 @@ def test_report_stands_alone_with_the_cautions_and_the_figures(si_run):
     assert "checking by a qualified engineer" in text
     assert "must be verified against the edition in force" in text
     assert "local codes and licensed practice govern" in text
-    assert len(re.findall(r'<img src="data:image/png;base64,', html)) == 4
+    # four envelope figures and the critical load positions, inline SVG
+    assert len(re.findall(r'<svg role="img" class="figure"', html)) == 5 and "<img" not in html
     assert not re.search(r'(src|href)="(https?:|//|file:)', html)
     assert hashlib.sha256(SI_EXAMPLE.read_bytes()).hexdigest() in html
     assert trundle.__version__ in html
@@ -270,7 +271,7 @@ def test_extra_sections_reach_the_json_and_the_report():
     assert [s.title for s in results.extra] == ["Crane runway checks"]
     document = envelope_document(results)
     assert document["extra"] == {"Crane runway checks": {"wheels": [12.5]}}
-    html = envelope_html(results, pngs={})
+    html = envelope_html(results, svgs={})
     assert "Crane runway checks" in html and "Wheel loads" in html and "A note." in html
     files = envelope_files(results, with_figures=False, with_report=False)
     assert files["extra.txt"] == "hello\n"

@@ -12,6 +12,7 @@ table name is never silently ignored.
 
 from __future__ import annotations
 
+import dataclasses
 import difflib
 import math
 import re
@@ -71,6 +72,8 @@ class Model:
     sha256 : hex SHA-256 of the very bytes that were parsed ("" when read from a string);
         provenance uses it, so the file is never read a second time
     description : the model's description, whitespace collapsed ("" when it has none)
+    text : the text that was parsed, as decoded (a UTF-8 byte-order mark dropped); the
+        report reproduces it ("" when built from parsed data)
     """
 
     title: str
@@ -83,6 +86,7 @@ class Model:
     tables: Mapping[str, Any] = field(default_factory=dict, repr=False)
     sha256: str = ""
     description: str = ""
+    text: str = field(default="", repr=False)
 
     @property
     def name(self) -> str:
@@ -291,7 +295,8 @@ def read_model(text: str, name: str = "<model>", source: Path | None = None,
         raise _syntax_error(name, error) from None
     except SourceError as error:
         raise ModelFileError(name, error.key, error.detail) from None
-    return read_model_data(raw, name, source, allowed=allowed, sha256=sha256)
+    model = read_model_data(raw, name, source, allowed=allowed, sha256=sha256)
+    return dataclasses.replace(model, text=text)
 
 
 def read_model_data(raw: dict[str, Any], name: str = "<model>", source: Path | None = None,

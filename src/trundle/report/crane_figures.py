@@ -31,6 +31,7 @@ from trundle.report.figures import (
     figure_style,
     new_figure,
     plot_beam,
+    wrapped,
 )
 from trundle.report.format import position as _position
 from trundle.report.safe_text import figure_text
@@ -44,7 +45,7 @@ CRANE_COLORS = (PALETTE[0], PALETTE[1], PALETTE[4], PALETTE[5], PALETTE[2])
 
 
 def _title(report: RunwayReport, what: str) -> str:
-    return figure_text(f"{report.results.model.title}\n{what}", parse_math=False)
+    return wrapped(figure_text(f"{report.results.model.title}\n{what}", parse_math=False))
 
 
 def _finish(report: RunwayReport, figure: Figure, what: str) -> None:
@@ -75,7 +76,9 @@ def _bands(ax: Axes, x: np.ndarray, top: np.ndarray, bottom: np.ndarray, labels:
     ax.fill_between(x, top, 0.0, color=colors[0], alpha=0.12, lw=0, zorder=2)
     ax.fill_between(x, bottom, 0.0, color=colors[1], alpha=0.12, lw=0, zorder=2)
     ax.plot(x, top, color=colors[0], lw=1.5, marker="o", ms=2.4, zorder=3, label=labels[0])
-    ax.plot(x, bottom, color=colors[1], lw=1.5, marker="o", ms=2.4, zorder=3, label=labels[1])
+    # min dashed with squares: told apart from max in black and white too
+    ax.plot(x, bottom, color=colors[1], lw=1.5, ls=(0, (4, 1.5)), marker="s", ms=2.2, zorder=3,
+            label=labels[1])
 
 
 def _legend(ax: Axes, columns: int = 3) -> None:
@@ -213,9 +216,11 @@ def runway_reactions_figure(report: RunwayReport) -> Figure:
         ax = figure.add_subplot()
         positions = np.arange(len(items))
         width = 0.8 / len(series)
+        hatches = ("", "////", "xxxx")  # told apart in black and white too
         for j, (values, label, color) in enumerate(series):
             bars = ax.bar(positions + (j - (len(series) - 1) / 2) * width, values, width,
-                          color=color, label=label, zorder=3)
+                          color=color if j == 0 else "white", edgecolor=color,
+                          hatch=hatches[j], lw=0.8, label=label, zorder=3)
             ax.bar_label(bars, labels=[f"{v:.4g}" for v in values], fontsize=6.5, padding=2,
                          color=INK)
         ax.axhline(0.0, color=MUTED, lw=0.8, zorder=2)
@@ -229,9 +234,10 @@ def runway_reactions_figure(report: RunwayReport) -> Figure:
     return figure
 
 
-def _draw_cranes(ax: Axes, report: RunwayReport, p: CranePlacement, label: str) -> None:
+def _draw_cranes(ax: Axes, report: RunwayReport, p: CranePlacement, label: str
+                 ) -> tuple[float, float]:
     """The wheels of a placement as arrows onto the runway, each crane bracketed between its
-    buffers, and the section it governs marked."""
+    buffers, and the section it governs marked; returns the x range it needs."""
     units = report.units
     F = units.label("force")
     wheels = np.asarray(p.extreme.axles)
@@ -271,6 +277,7 @@ def _draw_cranes(ax: Axes, report: RunwayReport, p: CranePlacement, label: str) 
                       "alpha": 0.85})
     span = max(highs) - min(lows)
     ax.set_xlim(min(lows) - 0.03 * span, max(highs) + 0.03 * span)
+    return min(lows) - 0.03 * span, max(highs) + 0.03 * span
 
 
 def _placement_words(report: RunwayReport, p: CranePlacement) -> str:
@@ -311,12 +318,16 @@ def runway_positions_figure(report: RunwayReport) -> Figure | None:
     with figure_style():
         figure = new_figure(7.5, 0.9 + 2.2 * len(panels) + 0.3)
         grid = figure.add_gridspec(len(panels), 1)
+        axes, ranges = [], []
         for row, (title, label, p) in enumerate(panels):
             ax = figure.add_subplot(grid[row])
             plot_beam(report.beam, units, ax=ax, span_labels=False)
-            _draw_cranes(ax, report, p, label)
-            ax.set_title(f"{title}\n{_placement_words(report, p)}", fontsize=7.5, color=INK,
-                         loc="left", pad=26)
+            ranges.append(_draw_cranes(ax, report, p, label))
+            axes.append(ax)
+            ax.set_title(wrapped(f"{title}\n{_placement_words(report, p)}", fontsize=7.5),
+                         fontsize=7.5, color=INK, loc="left", pad=26)
+        for ax in axes:  # every panel on the same x range: positions compare at a glance
+            ax.set_xlim(min(r[0] for r in ranges), max(r[1] for r in ranges))
         _finish(report, figure, "crane runway: governing crane positions\n(wheel loads with "
                                 "impact; dashed: unloaded crane; grey: wheel beyond the "
                                 "runway end)")

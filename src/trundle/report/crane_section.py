@@ -11,7 +11,6 @@ from trundle.report.crane_tables import (
     cranes_table,
     defaults_table,
     deflection_table,
-    fatigue_sections_table,
     fatigue_table,
     horizontal_forces_table,
     lateral_table,
@@ -60,7 +59,10 @@ def crane_section(results: EnvelopeResults) -> ExtraSection | None:
               runway_settings_table(report), reactions_table(report), moment_table(report),
               shear_table(report), deflection_table(report), lateral_table(report),
               longitudinal_table(report), fatigue_table(report)]
-    detail = [sections_table(report), fatigue_sections_table(report)]
+    # the report keeps per-section tables short: the runway envelope at the tenth points and
+    # supports (every section: runway-sections.csv); fatigue per span (every section and
+    # crane: runway-fatigue.csv, named in the fatigue table's note)
+    detail = [sections_table(report)]
     figures, captions = runway_figures(report)
     cautions = (CRANE_CAUTION,)
     several = any(len(c.members) > 1 for c in report.runway.combinations)
@@ -69,5 +71,6 @@ def crane_section(results: EnvelopeResults) -> ExtraSection | None:
                         figures=figures, files=dict(runway_csv_files(report)),
                         data=runway_json(report, cautions),
                         detail_tables=tuple(t for t in detail if t is not None),
-                        captions=captions, cautions=cautions)
+                        captions=captions, cautions=cautions,
+                        detail_files={t.title: "runway-sections.csv" for t in detail})
 

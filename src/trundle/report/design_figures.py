@@ -14,8 +14,17 @@ from matplotlib.figure import Figure
 from trundle.analysis.combinations import PERMANENT_ONLY
 from trundle.report import CAUTION
 from trundle.report.envelope_data import EnvelopeResults, display_factor, quantity_unit
-from trundle.report.figures import INK, MUTED, PALETTE, figure_style, new_figure, plot_beam
+from trundle.report.figures import (
+    INK,
+    MUTED,
+    PALETTE,
+    figure_style,
+    new_figure,
+    plot_beam,
+    wrapped,
+)
 from trundle.report.format import length
+from trundle.report.safe_text import figure_text
 
 _KINDS = {"moment": ("moment",), "shear": ("shear_left", "shear_right")}
 
@@ -60,16 +69,17 @@ def design_figure(results: EnvelopeResults, combination: str, kind: str) -> Figu
         beam_ax = figure.add_subplot(grid[2])
         ax = figure.add_subplot(grid[0], sharex=beam_ax)
         strip = figure.add_subplot(grid[1], sharex=beam_ax)
-        for name, values in env.by_case.items():
+        dashes = ("--", ":", "-.", (0, (6, 2, 1, 2, 1, 2)), (0, (1, 3)))
+        for k, (name, values) in enumerate(env.by_case.items()):
             for which in ("max", "min"):
                 if (family, which) not in values:
                     continue
                 curve = _family_curve(values, kind, which) * scale
-                ax.plot(x, curve, color=colors[name], lw=1.0, ls="--",
+                ax.plot(x, curve, color=colors[name], lw=1.0, ls=dashes[k % len(dashes)],
                         label=f"{name} (on its own)" if which == "max" else None, zorder=4)
-        for which, color in (("max", PALETTE[0]), ("min", PALETTE[1])):
+        for which, color, marker in (("max", PALETTE[0], "o"), ("min", PALETTE[1], "s")):
             curve = _family_curve(env.values, kind, which) * scale
-            ax.plot(x, curve, color=color, lw=2.2, alpha=0.55, marker="o", ms=2.5,
+            ax.plot(x, curve, color=color, lw=2.2, alpha=0.55, marker=marker, ms=2.5,
                     label=f"design {which}", zorder=3)
         ax.axhline(0.0, color=MUTED, lw=0.8)
         what = "bending moment, sagging positive" if kind == "moment" else "shear"
@@ -93,8 +103,9 @@ def design_figure(results: EnvelopeResults, combination: str, kind: str) -> Figu
         strip.grid(False)
         strip.tick_params(axis="x", labelbottom=False)
         plot_beam(results.beam, units, ax=beam_ax, sections=list(x))
-        figure.suptitle(f"{results.model.title}\n{combination}: design {kind} envelope and "
-                        "every case", fontsize=9.5, color=INK)
+        figure.suptitle(wrapped(figure_text(f"{results.model.title}\n{combination}: design "
+                                            f"{kind} envelope and every case",
+                                            parse_math=False)), fontsize=9.5, color=INK)
         trace = " · ".join((f"trundle {results.version}", results.model_file,
                             f"SHA-256 {results.sha256[:16]}…", results.date))
         figure.supxlabel(f"{trace}\n{CAUTION}", fontsize=6, color=MUTED)

@@ -81,6 +81,8 @@ class ExtraSection:
         past them; their numbers are in the section's files too)
     captions : figure name -> caption in the HTML report (default: the name)
     cautions : added to the cautions of every output (terminal, JSON, report)
+    detail_files : detail table title -> the file that has every row of it (the report
+        shows a per-section table at the tenth points and supports and says where the rest is)
     """
 
     title: str
@@ -92,6 +94,7 @@ class ExtraSection:
     detail_tables: tuple[TableData, ...] = ()
     captions: dict[str, str] = field(default_factory=dict)
     cautions: tuple[str, ...] = ()
+    detail_files: dict[str, str] = field(default_factory=dict)
 
 
 SectionProvider = Callable[["EnvelopeResults"], "ExtraSection | None"]

@@ -29,6 +29,7 @@ from trundle.report.figures import (
     figure_style,
     new_figure,
     plot_beam,
+    wrapped,
 )
 from trundle.report.safe_text import figure_text
 
@@ -84,7 +85,9 @@ def plot_envelope(results: EnvelopeResults, kind: str, ax: Axes | None = None) -
         ax.fill_between(x, top, 0.0, color=MAX_COLOR, alpha=0.12, lw=0, zorder=2)
         ax.fill_between(x, bottom, 0.0, color=MIN_COLOR, alpha=0.12, lw=0, zorder=2)
         ax.plot(x, top, color=MAX_COLOR, lw=1.5, marker="o", ms=2.4, zorder=3, label="max")
-        ax.plot(x, bottom, color=MIN_COLOR, lw=1.5, marker="o", ms=2.4, zorder=3, label="min")
+        # max solid with dots, min dashed with squares: told apart in black and white too
+        ax.plot(x, bottom, color=MIN_COLOR, lw=1.5, ls=(0, (4, 1.5)), marker="s", ms=2.2,
+                zorder=3, label="min")
         anywhere = _mark_anywhere(ax, results) if kind == "moment" else {}
         _label_extremes(ax, results, x, top, bottom, limits, anywhere)
         ax.set_ylabel(f"{kind} ({SIGN_CONVENTION[kind]})\n[{unit}]")
@@ -187,8 +190,8 @@ def reactions_figure(results: EnvelopeResults) -> Figure:
         width = 0.36
         bars_top = ax.bar(positions - width / 2, top[supports], width, color=MAX_COLOR,
                           label="max", zorder=3)
-        bars_bottom = ax.bar(positions + width / 2, bottom[supports], width, color=MIN_COLOR,
-                             label="min", zorder=3)
+        bars_bottom = ax.bar(positions + width / 2, bottom[supports], width, color="white",
+                             edgecolor=MIN_COLOR, hatch="////", lw=0.8, label="min", zorder=3)
         for bars in (bars_top, bars_bottom):
             ax.bar_label(bars, labels=[f"{b.get_height():.4g}" for b in bars], fontsize=7,
                          padding=2, color=INK)
@@ -214,8 +217,8 @@ def _title(results: EnvelopeResults, what: str) -> str:
     names = ", ".join(entry.name for entry in results.loads)
     if len(names) > 70:
         names = f"{len(results.loads)} loads"
-    return figure_text(f"{results.model.title}\n{what}: {names} "
-                       "(with dynamic allowance and factors)", parse_math=False)
+    return wrapped(figure_text(f"{results.model.title}\n{what}: {names} "
+                               "(with dynamic allowance and factors)", parse_math=False))
 
 
 def _footer(results: EnvelopeResults) -> str:

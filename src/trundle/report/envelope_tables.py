@@ -60,10 +60,13 @@ CAUTIONS = (CAUTION, LOAD_MODEL_CAUTION)
 
 
 def _where(extreme: Extreme, length_unit: str) -> str:
-    """Lead axle or placement, as one cell."""
+    """Lead axle or placement with the loaded stretches, as one cell."""
     if not extreme.governed:
         return "empty beam"
     if extreme.placement:
+        if extreme.loaded:
+            stretches = "; ".join(f"{_length(a)}–{_length(b)}" for a, b in extreme.loaded)
+            return f"{extreme.placement}; loaded {stretches}"
         return extreme.placement
     return f"lead axle at {_position(extreme.lead_x)}"
 
@@ -82,7 +85,7 @@ def _governing_cells(extreme: Extreme, length_unit: str) -> list[str]:
             "; ".join(notes)]
 
 
-_GOVERNING_COLUMNS = ("load", "travel", "lead axle x [{L}] or placement",
+_GOVERNING_COLUMNS = ("load", "travel", "lead axle x or placement, loaded stretches [{L}]",
                       "searched [{L}] / notes")
 
 

@@ -78,6 +78,8 @@ _STYLE = {
     "lines.linewidth": 1.4,
     "savefig.dpi": 200,
     "svg.fonttype": "none",
+    # fixed ids in SVG output: the same model gives the same file (and the same report)
+    "svg.hashsalt": "trundle",
     # text from model files ("$" in a title or load name) is shown as written, never as maths
     "text.parse_math": False,
 }
@@ -96,6 +98,19 @@ def new_figure(width: float, height: float) -> Figure:
         figure = Figure(figsize=(width, height), layout="constrained")
     FigureCanvasAgg(figure)
     return figure
+
+
+def wrapped(text: str, width_inches: float = 7.5, fontsize: float = 9.5) -> str:
+    """``text`` broken into lines that fit a figure ``width_inches`` wide at ``fontsize``
+    points (a DejaVu Sans character is at most about 0.62 em wide on average), so a long title
+    is never clipped at the figure's edges."""
+    import textwrap
+
+    per_line = max(20, int(0.94 * width_inches * 72.0 / (0.62 * fontsize)))
+    lines = []
+    for line in text.split("\n"):
+        lines.extend(textwrap.wrap(line, per_line, break_long_words=True) or [""])
+    return "\n".join(lines)
 
 
 def figure_bytes(figure: Figure, fmt: str = "png") -> bytes:
@@ -263,14 +278,15 @@ def plot_influence(lines: InfluenceSet, beam: Beam, units: UnitSystem,
             y = sampled.values[:, j]
             label = effect_label(effect, beam, units).removeprefix(
                 effect.kind.replace("_", " ") + " ")
+            if annotate:  # the extremes' values go in the legend, never over the curves
+                label += _extremes_words(extremes[j], units)
             ax.plot(sampled.x, y, color=color, lw=0.9 if many else 1.5, label=label, zorder=3)
             if len(chosen) == 1:
                 ax.fill_between(sampled.x, y, 0.0, color=color, alpha=0.12, lw=0, zorder=2)
             if effect.at is not None and not many:
                 ax.axvline(effect.at, color=color, lw=0.8, ls=(0, (2, 2)), zorder=2)
             if annotate:
-                _mark_extremes(ax, extremes[j], color, beam.length, units,
-                               stagger=chosen.index(j))
+                _mark_extremes(ax, extremes[j], color)
         kind = first.kind.replace("_", " ")
         ax.set_ylabel(f"{kind} ({SIGN_CONVENTION[first.kind]})\n[{ou.label}]")
         ax.set_xlim(-0.03 * beam.length, 1.03 * beam.length)
@@ -280,7 +296,8 @@ def plot_influence(lines: InfluenceSet, beam: Beam, units: UnitSystem,
                          "light = right; sections ticked on the beam)", loc="right",
                          fontsize=7, color=MUTED)
         else:
-            ax.legend(loc="lower left", bbox_to_anchor=(0.0, 1.0), ncols=min(len(chosen), 3),
+            ax.legend(loc="lower left", bbox_to_anchor=(0.0, 1.0),
+                      ncols=1 if annotate else min(len(chosen), 3),
                       handlelength=1.6, borderaxespad=0.2)
     return ax
 
@@ -295,27 +312,31 @@ def _colors(lines: InfluenceSet, chosen: Sequence[int], beam: Beam) -> list[str]
     return result
 
 
-def _mark_extremes(ax: Axes, extremes: dict[str, Any], color: str, length: float,
-                   units: UnitSystem, stagger: int = 0) -> None:
+def _shown_extremes(extremes: dict[str, Any]) -> list[tuple[str, float, float]]:
+    """(name, value, x) of the extremes worth marking: a non-zero max above and min below 0."""
     top, x_top = extremes["max"], extremes["x_max"]
     bottom, x_bottom = extremes["min"], extremes["x_min"]
     if x_top is None:  # the line vanishes
-        return
+        return []
     scale = max(abs(top), abs(bottom))
-    offset = 8 + 11 * stagger  # labels of several lines at one place stack, not overlap
+    return [(name, value, x) for name, value, x in (("max", top, x_top),
+                                                    ("min", bottom, x_bottom))
+            if abs(value) > 1e-6 * scale and (value > 0.0 if name == "max" else value < 0.0)]
+
+
+def _extremes_words(extremes: dict[str, Any], units: UnitSystem) -> str:
     unit = units.label("length")
-    for name, value, x, dy in (("max", top, x_top, offset), ("min", bottom, x_bottom, -offset)):
-        if abs(value) <= 1e-6 * scale or (name == "min" and value >= 0.0) or \
-                (name == "max" and value <= 0.0):
-            continue
-        shown = value
-        ax.plot([x], [shown], marker="o", ms=3.5, color=color, zorder=5)
-        ha = "left" if x < 0.15 * length else "right" if x > 0.85 * length else "center"
-        ax.annotate(f"{name} {shown:#.4g} at {x:.4g} {unit}", (x, shown),
-                    xytext=(0, dy), textcoords="offset points", ha=ha,
-                    va="bottom" if dy > 0 else "top", fontsize=7, color=color,
-                    bbox={"boxstyle": "round,pad=0.15", "fc": "white", "ec": "none",
-                          "alpha": 0.85}, zorder=6)
+    words = [f"{name} {value:#.4g} at {x:.4g} {unit}"
+             for name, value, x in _shown_extremes(extremes)]
+    return (": " + ", ".join(words) + " (● max, ○ min)") if words else ""
+
+
+def _mark_extremes(ax: Axes, extremes: dict[str, Any], color: str) -> None:
+    """A filled dot at the max, an open one at the min (told apart in black and white);
+    their values are in the legend, so no label lies over a curve."""
+    for name, value, x in _shown_extremes(extremes):
+        ax.plot([x], [value], marker="o", ms=4.0, color=color,
+                mfc=color if name == "max" else "white", mew=1.2, zorder=5)
 
 
 def influence_figure(lines: InfluenceSet, beam: Beam, units: UnitSystem, title: str,
