@@ -25,6 +25,7 @@ from trundle.core.beam import Beam, ModelError, Spring
 from trundle.core.influence import Effect, line_pieces, piece_sign_intervals
 from trundle.loads.cases import LoadCase, Together, as_case
 from trundle.loads.patterns import UniformLoad
+from trundle.loads.vehicles import Train, Vehicle
 from trundle.scan.engine import (
     KIND_POINT,
     LineBatch,
@@ -159,9 +160,22 @@ class _CaseResult:
         self.pattern: list[list[Any]] | None = None
         self.parts: list[_CaseResult] = []  # loads acting together: one result per part
 
-    def offer(self, w: int, rows: NDArray[np.int64], value, xi, side, direction, searched
-              ) -> None:
-        """Keep, row by row, whichever is worse (larger for max, smaller for min)."""
+    def offer(self, w: int, rows: NDArray[np.int64] | None, value, xi, side, direction,
+              searched) -> None:
+        """Keep, row by row, whichever is worse (larger for max, smaller for min); ``rows``
+        None: one row per line, in order."""
+        if rows is None:  # every line, in order (the common call): masks, no index arrays
+            current = self.value[w]
+            better = (value > current) if w == 0 else (value < current)
+            better &= ~np.isnan(xi)
+            np.copyto(current, value, where=better)
+            np.copyto(self.xi[w], xi, where=better)
+            np.copyto(self.side[w], side, where=better, casting="unsafe")
+            np.copyto(self.direction[w], direction, where=better, casting="unsafe")
+            if self.searched.shape[2]:
+                np.copyto(self.searched[w], searched,
+                          where=better if searched.ndim == 1 else better[:, None])
+            return
         sign = 1.0 if w == 0 else -1.0
         better = (sign * value > sign * self.value[w, rows]) & ~np.isnan(xi)
         r = rows[better]
@@ -201,7 +215,28 @@ class _Arrangement:
         return self.base[None, :] + np.atleast_2d(values) @ self.slope
 
 
+# arrangements by value (the repr of a load case spells out every number of its load, its
+# impact and its factors), for the load kinds whose repr is known to do so: a load checked
+# again on another beam, or at other sections, reuses them
+_ARRANGEMENTS: dict[str, dict[int, _Arrangement]] = {}
+_ARRANGEMENTS_KEEP = 64
+
+
 def _arrangements(case: LoadCase) -> dict[int, _Arrangement]:
+    load = case.load
+    inner = load.load if isinstance(load, _Frozen) else load
+    key = repr(case) if type(inner) in (Vehicle, Train) else None
+    found = _ARRANGEMENTS.get(key) if key is not None else None
+    if found is None:
+        found = _build_arrangements(case)
+        if key is not None:
+            if len(_ARRANGEMENTS) >= _ARRANGEMENTS_KEEP:
+                _ARRANGEMENTS.pop(next(iter(_ARRANGEMENTS)))
+            _ARRANGEMENTS[key] = found
+    return found
+
+
+def _build_arrangements(case: LoadCase) -> dict[int, _Arrangement]:
     load = case.load
     k = len(load.parameters())
     out = {}
@@ -238,6 +273,9 @@ def _check_fits(case: LoadCase, arrangement: _Arrangement, length: float) -> Non
                          f"{length:g}: it cannot stand on the beam")
 
 
+_NOTHING_SEARCHED = np.zeros(0)
+
+
 def _moving_grid(batch: LineBatch, case: LoadCase, case_index: int,
                  arrangements: dict[int, _Arrangement]) -> _CaseResult:
     """Every line, every grid value of the searched dimensions, both directions: one kernel
@@ -245,8 +283,16 @@ def _moving_grid(batch: LineBatch, case: LoadCase, case_index: int,
     params = case.load.parameters()
     n = batch.n_lines
     result = _CaseResult(case_index, n, len(params))
-    grid = np.array(_grid(params), dtype=float).reshape(len(_grid(params)), len(params))
     lines = np.arange(n)
+    if not params:  # nothing searched: one row per line, every row the same offsets
+        for direction, arr in arrangements.items():
+            r = scan_arrangements(batch, arr.weights, arr.kinds, arr.base[None, :], lines,
+                                  arr.constant, arr.confined)
+            for w, col in ((0, 0), (1, 3)):
+                result.offer(w, None, r[:, col], r[:, col + 1],
+                             r[:, col + 2].astype(np.int64), direction, _NOTHING_SEARCHED)
+        return result
+    grid = np.array(_grid(params), dtype=float).reshape(len(_grid(params)), len(params))
     for direction, arr in arrangements.items():
         offsets = np.repeat(arr.offsets(grid), n, axis=0)
         r = scan_arrangements(batch, arr.weights, arr.kinds, offsets, np.tile(lines, len(grid)),
@@ -256,7 +302,7 @@ def _moving_grid(batch: LineBatch, case: LoadCase, case_index: int,
             score = np.where(np.isnan(r[:, :, col + 1]), -np.inf, sign * r[:, :, col])
             g = np.argmax(score, axis=0)
             pick = r[g, lines]
-            result.offer(w, lines, pick[:, col], pick[:, col + 1],
+            result.offer(w, None, pick[:, col], pick[:, col + 1],
                          pick[:, col + 2].astype(np.int64), direction, grid[g])
     return result
 
@@ -269,13 +315,12 @@ def _searched_case(batch: LineBatch, case: LoadCase, case_index: int,
     low = np.array([p.low for p in params], dtype=float)
     high = np.array([p.high for p in params], dtype=float)
     result = _CaseResult(case_index, batch.n_lines, len(params))
-    lines = np.arange(batch.n_lines)
     for direction, arr in arrangements.items():
         found = searched_extremes(batch, arr.weights, arr.kinds, arr.constant, arr.base,
                                   arr.slope, low, high, arr.confined,
                                   what=f"load case {case.name!r}")
         for w in (0, 1):
-            result.offer(w, lines, found.value[w], found.xi[w], found.side[w], direction,
+            result.offer(w, None, found.value[w], found.xi[w], found.side[w], direction,
                          found.searched[w])
     return result
 
@@ -337,7 +382,8 @@ class Envelope:
     cases : the load cases, in the order given
     effects : one Effect per line; ``index[family]`` gives the lines of a family
         (moment, shear_left, shear_right, deflection, reaction, support_moment)
-    governing_max, governing_min : one Governing per line
+    governing_max, governing_min : one Governing per line (a sequence that builds each
+        Governing when first read)
     batch : the influence lines (shared knots) the envelope was scanned on
     """
 
@@ -346,8 +392,8 @@ class Envelope:
     cases: tuple[LoadCase, ...]
     effects: tuple[Effect, ...]
     index: dict[str, NDArray[np.int64]]
-    governing_max: tuple[Governing, ...]
-    governing_min: tuple[Governing, ...]
+    governing_max: Sequence[Governing]
+    governing_min: Sequence[Governing]
     batch: LineBatch = field(repr=False)
     _cache: dict = field(default_factory=dict, repr=False, compare=False)
 
@@ -371,11 +417,11 @@ class Envelope:
 
     @property
     def maximum(self) -> NDArray[np.float64]:
-        return np.array([g.value for g in self.governing_max])
+        return _values(self.governing_max)
 
     @property
     def minimum(self) -> NDArray[np.float64]:
-        return np.array([g.value for g in self.governing_min])
+        return _values(self.governing_min)
 
     def max(self, kind: str, side: str | None = None) -> NDArray[np.float64]:
         """Maximum per section (or per support for reactions; NaN where there is none)."""
@@ -634,6 +680,14 @@ class Envelope:
         return "right" if side > 0 else "left"
 
 
+def _values(governing: Sequence[Governing]) -> NDArray[np.float64]:
+    """The value of every Governing, without building them where they are kept as arrays."""
+    values = getattr(governing, "values", None)
+    if values is not None:
+        return values.copy()
+    return np.array([g.value for g in governing])
+
+
 def _at_point(g: Governing) -> Governing:
     """``g`` with its loads exactly where they stand (side 0), parts alike."""
     return Governing(g.value, g.case, g.direction, g.reference, 0, g.searched, g.pattern,
@@ -828,29 +882,82 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
             continue
         results.append(single(case, c)[0])
     # deflection stays at service level, without the strength load factor of each case
-    service = np.ones((len(cases), n))
-    for c, case in enumerate(cases):
-        service[c, index["deflection"]] = 1.0 / case.load_factor
-    for c, result in enumerate(results):
-        result.value *= service[c]
-    stacked = np.array([r.value for r in results])
+    deflection = index["deflection"]
+    for case, result in zip(cases, results, strict=True):
+        if deflection.size and case.load_factor != 1.0:
+            result.value[:, deflection] *= 1.0 / case.load_factor
+    stacked = np.array([r.value for r in results])  # (cases, 2, lines)
+    lines = np.arange(n)
     winners = np.stack([stacked[:, 0].argmax(axis=0), stacked[:, 1].argmin(axis=0)])
     scale = np.zeros(n)
     for lines_of_family in index.values():
         if lines_of_family.size:
             scale[lines_of_family] = np.abs(stacked[:, :, lines_of_family]).max()
-    governing = [[], []]
+    governing = []
     for w in (0, 1):
-        distinct = []
-        for j in range(n):
-            g = results[winners[w, j]].governing(w, j)
-            # rounding noise around an empty-beam zero is not a governing load
-            if abs(g.value) <= 1e-12 * scale[j]:
+        value = stacked[winners[w], w, lines]
+        # rounding noise around an empty-beam zero is not a governing load
+        empty = np.abs(value) <= 1e-12 * scale
+        governing.append(_Governors(w, results, winners[w], empty,
+                                    np.where(empty, 0.0, value)[inverse], keep, inverse,
+                                    cases))
+    return Envelope(beam, sections, cases, line_effects, index_all, governing[0],
+                    governing[1], full_batch)
+
+
+class _Governors(Sequence):
+    """The Governing of every line for the maxima (w = 0) or the minima (w = 1), built when
+    first asked for: most callers read only the values (``values``, an array), and building
+    thousands of Governing objects per call cost more than the scan itself.
+
+    Line j is distinct line ``inverse[j]``; its extreme comes from case ``winners[u]``
+    (``results``, per distinct line u), or from the empty beam where ``empty[u]``.
+    """
+
+    def __init__(self, w: int, results: Sequence[_CaseResult], winners: NDArray[np.int64],
+                 empty: NDArray[np.bool_], values: NDArray[np.float64],
+                 keep: NDArray[np.int64], inverse: NDArray[np.int64], cases: Sequence[Any]):
+        self._w = w
+        self._results = results
+        self._winners = winners
+        self._empty = empty
+        self._keep = keep
+        self._inverse = inverse
+        self._cases = cases
+        self._built: dict[int, Governing] = {}
+        values.setflags(write=False)
+        self.values = values  # (n_lines,) the extreme of every line
+
+    def __len__(self) -> int:
+        return self._inverse.size
+
+    def _distinct(self, u: int) -> Governing:
+        g = self._built.get(u)
+        if g is None:
+            if self._empty[u]:
                 g = EMPTY
-            distinct.append(_renumbered(g, keep, cases))
-        governing[w] = [distinct[u] for u in inverse]
-    return Envelope(beam, sections, cases, tuple(line_effects), index_all,
-                    tuple(governing[0]), tuple(governing[1]), full_batch)
+            else:
+                g = self._results[self._winners[u]].governing(self._w, u)
+                g = _renumbered(g, self._keep, self._cases)
+            self._built[u] = g
+        return g
+
+    def __getitem__(self, j):
+        if isinstance(j, slice):
+            return tuple(self[i] for i in range(*j.indices(len(self))))
+        j = int(j)
+        if j < 0:
+            j += len(self)
+        if not 0 <= j < len(self):
+            raise IndexError("line index out of range")
+        return self._distinct(int(self._inverse[j]))
+
+    def __iter__(self):
+        for u in self._inverse:
+            yield self._distinct(int(u))
+
+    def __repr__(self) -> str:
+        return f"<Governing of {len(self)} lines ({'max' if self._w == 0 else 'min'})>"
 
 
 # lines ready to scan, by beam, sections and families (values, not identities): a beam

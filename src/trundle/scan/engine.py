@@ -394,8 +394,46 @@ def _own_points(knots: NDArray[np.float64], n_pieces: NDArray[np.int64],
     own_knot = np.full(n, -1, dtype=np.int64)
     own_value = np.zeros(n)
     end_live = np.zeros(n, dtype=bool)
-    if effects is None:
+    if effects is None or n == 0:
         return own_knot, own_value, end_live
+    # every line at once (a loop over thousands of lines cost more than the scan)
+    rows = np.arange(n)
+    m = np.asarray(n_pieces, dtype=np.int64)
+    h = knots[rows, m] - knots[rows, m - 1]
+    c = coef[rows, m - 1]
+    start = coef[:, 0, 3]
+    end = ((c[:, 0] * h + c[:, 1]) * h + c[:, 2]) * h + c[:, 3]
+    valid = np.arange(coef.shape[1])[None, :] < m[:, None]
+    largest = np.where(valid[:, :, None], np.abs(coef), 0.0).max(axis=(1, 2))
+    scale = np.maximum(largest, 1.0) * _NOISE
+    live = (np.abs(start) > scale) | (np.abs(end) > scale)
+    shear = np.array([getattr(e, "kind", None) == "shear" and e.at is not None
+                      for e in effects], dtype=bool)
+    if shear.any():
+        j = np.flatnonzero(shear)
+        at = np.array([effects[i].at for i in j], dtype=float)
+        left = np.array([effects[i].side == "left" for i in j], dtype=bool)
+        mj = m[j]
+        distance = np.abs(knots[j] - at[:, None])
+        distance[np.arange(knots.shape[1])[None, :] > mj[:, None]] = np.inf
+        k = np.argmin(distance, axis=1)
+        own_knot[j] = k
+        # just left of the section: the right-hand limit, or the left-hand one + 1 at the
+        # right end of the beam
+        value_left = np.where(k < mj, coef[j, np.minimum(k, mj - 1), 3], end[j] + 1.0)
+        # just right of it: the left-hand limit, or the right-hand one − 1 at the left end
+        before = np.maximum(k - 1, 0)
+        cp = coef[j, before]
+        hk = knots[j, k] - knots[j, before]
+        value_right = np.where(
+            k > 0, ((cp[:, 0] * hk + cp[:, 1]) * hk + cp[:, 2]) * hk + cp[:, 3],
+            start[j] - 1.0)
+        own_value[j] = np.where(left, value_left, value_right)
+        at_start = (k == 0) & (np.abs(own_value[j] - start[j]) > scale[j])
+        at_end = (k == mj) & (np.abs(own_value[j] - end[j]) > scale[j])
+        live[j] |= at_start | at_end
+    end_live[:] = live
+    return own_knot, own_value, end_live
     for j, effect in enumerate(effects):
         m = int(n_pieces[j])
         h = knots[j, m] - knots[j, m - 1]
