@@ -18,7 +18,14 @@ import numpy as np
 from numpy.typing import NDArray
 
 from trundle.core.influence import InfluenceSet, LinePieces, signed_areas
-from trundle.scan.kernels import KIND_POINT, KIND_RUNNING_INTEGRAL, evaluate_lines, scan_rows
+from trundle.scan.kernels import (
+    KIND_POINT,
+    KIND_RUNNING_INTEGRAL,
+    could_use_threads,
+    evaluate_lines,
+    scan_chunk,
+    scan_rows,
+)
 
 # lines with at least this many pieces are swept from their largest piece outwards and stop
 # where a bound proves nothing further can matter (see kernels._scan_chunk); shorter lines
@@ -356,6 +363,38 @@ def scan_arrangements(batch: LineBatch, weights: NDArray[np.float64], kinds: NDA
                      np.ascontiguousarray(lines, dtype=np.int64), constant,
                      4 if uniform else 3, confined, prune, own_knot=batch.own_knot,
                      own_value=batch.own_value, end_live=batch.end_live)
+
+
+class ScanPlan:
+    """Every argument of one kernel call, checked and laid out once, so a load scanned again
+    over the same lines (the envelope keeps plans with its lines) pays only the kernel."""
+
+    def __init__(self, batch: LineBatch, weights: NDArray[np.float64],
+                 kinds: NDArray[np.int64], offsets: NDArray[np.float64],
+                 lines: NDArray[np.int64], constant: float = 0.0, confined: bool = False):
+        uniform = bool((kinds == KIND_RUNNING_INTEGRAL).any())
+        prune = (not uniform and constant == 0.0
+                 and int(batch.n_pieces.max()) >= PRUNE_FROM_PIECES)
+        self.n_rows = int(lines.shape[0])
+        self.args = (batch.line_knots, batch.n_pieces, batch.line_coef, batch.line_running,
+                     batch.running_end, batch.head, batch.tail, batch.peak,
+                     np.ascontiguousarray(weights, dtype=float),
+                     np.ascontiguousarray(kinds, dtype=np.int64),
+                     np.ascontiguousarray(offsets, dtype=float),
+                     np.ascontiguousarray(lines, dtype=np.int64), float(constant),
+                     4 if uniform else 3, bool(confined), bool(prune))
+        self.own = (batch.own_knot, batch.own_value, batch.end_live)
+        # most calls are far too small for threads: decided here once
+        self.small = not could_use_threads(batch.n_pieces, self.n_rows, weights.shape[0])
+
+    def run(self) -> NDArray[np.float64]:
+        """(n_rows, 6), as ``scan_arrangements``."""
+        if self.small:
+            result = np.empty((self.n_rows, 6))
+            scan_chunk(0, self.n_rows, *self.args, *self.own, result)
+            return result
+        return scan_rows(*self.args, own_knot=self.own[0], own_value=self.own[1],
+                         end_live=self.own[2])
 
 
 def group_response(batch: LineBatch, group: TermGroup, xi: float, side: float = 0.0

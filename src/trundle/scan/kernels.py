@@ -522,6 +522,23 @@ def row_work(n_pieces: np.ndarray, lines: np.ndarray, n_terms: int, prune: bool
     return (pieces + n_terms) * float(n_terms * n_terms)
 
 
+def could_use_threads(n_pieces: np.ndarray, n_rows: int, n_terms: int) -> bool:
+    """Whether a call could hold enough work for two threads (an upper bound of the work:
+    every row visiting every piece of the longest line)."""
+    most = n_rows * (int(n_pieces.max()) + n_terms) * float(n_terms * n_terms)
+    return most >= 2 * PARALLEL_FROM_WORK_PER_THREAD and _threads() > 1
+
+
+def scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, tail, peak,
+               weight, kind, offsets, lines, constant_weight, degree, confined, prune,
+               own_knot, own_value, end_live, result):
+    """The compiled loop body on rows start … stop − 1, arguments already checked and laid
+    out (``engine.ScanPlan``); see ``scan_rows_serial``."""
+    _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, tail, peak,
+                weight, kind, offsets, lines, constant_weight, degree, confined, prune,
+                own_knot, own_value, end_live, result)
+
+
 def scan_rows(knots, n_pieces, coef, running, running_end, head, tail, peak, weight, kind,
               offsets, lines, constant_weight, degree, confined=False, prune=False,
               threads: int | None = None, own_knot=None, own_value=None, end_live=None):
@@ -533,8 +550,7 @@ def scan_rows(knots, n_pieces, coef, running, running_end, head, tail, peak, wei
         threads = 1
         n_terms = weight.shape[0]
         # an upper bound first: most calls are far too small to ask about threads at all
-        most = lines.shape[0] * (int(n_pieces.max()) + n_terms) * float(n_terms * n_terms)
-        if most >= 2 * PARALLEL_FROM_WORK_PER_THREAD and _threads() > 1:
+        if could_use_threads(n_pieces, lines.shape[0], n_terms):
             total = float(row_work(n_pieces, lines, n_terms, prune).sum())
             threads = int(min(_threads(), _idle_cores(),
                               total // PARALLEL_FROM_WORK_PER_THREAD))
