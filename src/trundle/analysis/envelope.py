@@ -35,6 +35,7 @@ from trundle.scan.engine import (
     scan_arrangements,
     scan_group,
 )
+from trundle.scan.kernels import merge_directions
 
 FAMILIES = ("moment", "shear_left", "shear_right", "deflection", "reaction", "support_moment")
 REQUESTABLE = ("moment", "shear", "deflection", "reaction", "support_moment")
@@ -303,8 +304,10 @@ _PLANS_KEEP = 16
 
 
 def _both_directions(batch: LineBatch, case: LoadCase,
-                     arrangements: dict[int, _Arrangement]) -> list[tuple[int, Any]]:
-    """[(direction, (n_lines, 6) scan of every line)] for a load without searched values:
+                     arrangements: dict[int, _Arrangement]
+                     ) -> list[tuple[NDArray[np.int64], NDArray[np.float64]]]:
+    """[(directions, (n_directions · n_lines, 6) scan of every line)] for a load without
+    searched values:
     both directions in one kernel call when they differ only in their offsets (a group and
     its mirror image: the same weights and kinds). The kernel's arguments are laid out once
     and kept with the lines, by the value of the load case."""
@@ -317,16 +320,11 @@ def _both_directions(batch: LineBatch, case: LoadCase,
             if len(kept) >= _PLANS_KEEP:  # a sweep over load values: the oldest go
                 kept.pop(next(iter(kept)))
             kept[key] = plans
-    if len(plans) == 1:  # both directions in one call
-        (directions, plan), = plans
-        r = plan.run()
-        n = batch.n_lines
-        return [(d, r[k * n:(k + 1) * n]) for k, d in enumerate(directions)]
-    return [(directions[0], plan.run()) for directions, plan in plans]
+    return [(directions, plan.run()) for directions, plan in plans]
 
 
 def _scan_plans(batch: LineBatch, arrangements: dict[int, _Arrangement]
-                ) -> list[tuple[tuple[int, ...], ScanPlan]]:
+                ) -> list[tuple[NDArray[np.int64], ScanPlan]]:
     n = batch.n_lines
     arrs = list(arrangements.items())
     if len(arrs) == 2:
@@ -336,11 +334,13 @@ def _scan_plans(batch: LineBatch, arrangements: dict[int, _Arrangement]
                 and np.array_equal(a0.kinds, a1.kinds)):
             offsets = np.repeat(np.stack([a0.base, a1.base]), n, axis=0)
             rows = np.tile(np.arange(n), 2)
-            return [((d0, d1), ScanPlan(batch, a0.weights, a0.kinds, offsets, rows,
-                                        a0.constant, a0.confined))]
+            return [(np.array([d0, d1], dtype=np.int64),
+                     ScanPlan(batch, a0.weights, a0.kinds, offsets, rows, a0.constant,
+                              a0.confined))]
     lines = np.arange(n)
-    return [((direction,), ScanPlan(batch, arr.weights, arr.kinds, arr.base[None, :], lines,
-                                    arr.constant, arr.confined))
+    return [(np.array([direction], dtype=np.int64),
+             ScanPlan(batch, arr.weights, arr.kinds, arr.base[None, :], lines, arr.constant,
+                      arr.confined))
             for direction, arr in arrs]
 
 
@@ -353,8 +353,14 @@ def _moving_grid(batch: LineBatch, case: LoadCase, case_index: int,
     result = _CaseResult(case_index, n, len(params))
     lines = np.arange(n)
     if not params:  # nothing searched: one row per line and direction
-        for direction, r in _both_directions(batch, case, arrangements):
-            result.offer_scan(r, direction)
+        scans = _both_directions(batch, case, arrangements)
+        if len(scans) == 1:  # both directions in one scan: merged in one compiled loop
+            directions, r = scans[0]
+            merge_directions(r, directions, result.value, result.xi, result.side,
+                             result.direction)
+            return result
+        for directions, r in scans:
+            result.offer_scan(r, directions[0])
         return result
     grid = np.array(_grid(params), dtype=float).reshape(len(_grid(params)), len(params))
     for direction, arr in arrangements.items():
@@ -950,16 +956,23 @@ def envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None = None
     for case, result in zip(cases, results, strict=True):
         if deflection.size and case.load_factor != 1.0:
             result.value[:, deflection] *= 1.0 / case.load_factor
-    stacked = np.array([r.value for r in results])  # (cases, 2, lines)
-    lines = np.arange(n)
-    winners = np.stack([stacked[:, 0].argmax(axis=0), stacked[:, 1].argmin(axis=0)])
+    if len(results) == 1:  # one case (the common call): it governs every line
+        best = results[0].value  # (2, lines)
+        winners = np.zeros((2, n), dtype=np.int64)
+        magnitude = np.abs(best)
+    else:
+        stacked = np.array([r.value for r in results])  # (cases, 2, lines)
+        lines = np.arange(n)
+        winners = np.stack([stacked[:, 0].argmax(axis=0), stacked[:, 1].argmin(axis=0)])
+        best = np.stack([stacked[winners[w], w, lines] for w in (0, 1)])
+        magnitude = np.abs(stacked).max(axis=0)
     scale = np.zeros(n)
     for lines_of_family in index.values():
         if lines_of_family.size:
-            scale[lines_of_family] = np.abs(stacked[:, :, lines_of_family]).max()
+            scale[lines_of_family] = magnitude[:, lines_of_family].max()
     governing = []
     for w in (0, 1):
-        value = stacked[winners[w], w, lines]
+        value = best[w]
         # rounding noise around an empty-beam zero is not a governing load
         empty = np.abs(value) <= 1e-12 * scale
         governing.append(_Governors(w, results, winners[w], empty,

@@ -582,6 +582,30 @@ def _idle_cores() -> int:
 
 
 @njit(**JIT_OPTIONS)
+def merge_directions(scan, directions, value, xi, side, direction):
+    """Keep, per line, the worse of the directions' extremes, as offering each direction's
+    scan in turn to an empty beam would (value 0, ξ NaN): ``scan`` (n_dir · n, 6) holds the
+    rows of direction k at k·n … k·n + n − 1 (as ``scan_rows`` returns them); ``value``,
+    ``xi``, ``side``, ``direction`` (2, n) get max (row 0) and min (row 1). A row whose ξ is
+    NaN (nothing loads the line that way) is never taken; ties keep the earlier direction."""
+    n = value.shape[1]
+    for j in range(n):
+        for w in range(2):
+            best = value[w, j]
+            for k in range(directions.shape[0]):
+                v = scan[k * n + j, 3 * w]
+                x = scan[k * n + j, 3 * w + 1]
+                if x != x:
+                    continue
+                if (w == 0 and v > best) or (w == 1 and v < best):
+                    best = v
+                    value[w, j] = v
+                    xi[w, j] = x
+                    side[w, j] = int(scan[k * n + j, 3 * w + 2])
+                    direction[w, j] = directions[k]
+
+
+@njit(**JIT_OPTIONS)
 def evaluate_lines(knots, n_pieces, coef, x, from_left):
     """(len(x), n_lines): every line's piecewise polynomial at every x (each line on its own
     knots, ``coef`` highest power first); at a knot the piece on the left if ``from_left``,
