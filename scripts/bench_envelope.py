@@ -410,16 +410,19 @@ def large_jobs(quick: bool) -> None:
 FIRST_CODE = """
 import time
 import numpy as np
-t0 = time.perf_counter()
+marks = []
+def mark():
+    marks.append((time.perf_counter(), time.process_time()))
+mark()
 import trundle
-t1 = time.perf_counter()
+mark()
 beam = trundle.Beam([24.0, 30.0, 24.0])
 truck = trundle.Vehicle([35.0, 145.0, 145.0], [4.3, 4.3])
 trundle.envelope(beam, [truck], effects=("moment",))
-t2 = time.perf_counter()
+mark()
 searched = trundle.Vehicle([35.0, 145.0, 145.0], [4.3, (4.3, 9.0)])
 trundle.envelope(beam, [searched], effects=("moment",))
-t3 = time.perf_counter()
+mark()
 from trundle.core.influence import Effect, influence_set
 from trundle.scan.batched import scan_fleet
 from trundle.scan.engine import LineBatch
@@ -428,7 +431,7 @@ lines = LineBatch.from_set(influence_set(beam, [Effect("moment", at=12.0),
 start = np.array([0, 3, 5]); weight = np.array([35.0, 145.0, 145.0, 100.0, 100.0])
 offset = np.array([0.0, 4.3, 8.6, 0.0, 1.8])
 scan_fleet(lines, start, weight, offset, parallel=False)
-t4 = time.perf_counter()
+mark()
 env = trundle.envelope(trundle.Beam([25.0] * 100), [truck], effects=("moment", "shear"))
 from trundle.scan import kernels
 b = env.batch
@@ -436,16 +439,17 @@ w, o, k, _ = truck.group().terms()
 kernels.scan_rows(b.line_knots, b.n_pieces, b.line_coef, b.line_running, b.running_end,
                   b.head, b.tail, b.peak, w, k, o[None, :], np.arange(b.n_lines), 0.0, 3,
                   threads=2)
-t5 = time.perf_counter()
-print(t1 - t0, t2 - t1, t3 - t2, t4 - t3, t5 - t4)
+mark()
+print(*(b[k] - a[k] for k in (0, 1) for a, b in zip(marks[:-1], marks[1:])))
 """
 
 
 def first_run(quick: bool) -> None:
-    print("\n4. first run in a fresh process [s]: import trundle; then the first use of each "
-          "kind of job, in this order: a plain envelope (3 spans, moment, truck); an envelope "
-          "with a searched spacing (the exact search's kernels); the fleet kernel (2 trucks, "
-          "serial as in a Dask worker); the parallel scan kernel")
+    print("\n4. first run in a fresh process [s] (wall clock, and CPU time of the process: "
+          "on a loaded machine the CPU time is what the work costs): import trundle; then the "
+          "first use of each kind of job, in this order: a plain envelope (3 spans, moment, "
+          "truck); an envelope with a searched spacing (the exact search's kernels); the "
+          "fleet kernel (2 trucks, serial as in a Dask worker); the parallel scan kernel")
     if quick:
         print("   (skipped in --quick: compiling takes seconds)")
         return
@@ -454,9 +458,11 @@ def first_run(quick: bool) -> None:
         for label in ("cold numba cache (compiles)", "warm numba cache"):
             out = subprocess.run([sys.executable, "-c", FIRST_CODE], env=env,
                                  capture_output=True, text=True, check=True)
-            a, b, c, d, e = (float(v) for v in out.stdout.split())
-            print(f"   {label:28s} import {a:6.2f}  envelope {b:6.2f}  searched {c:6.2f}  "
-                  f"fleet {d:6.2f}  parallel {e:6.2f}")
+            values = [float(v) for v in out.stdout.split()]
+            for clock, part in (("wall", values[:5]), ("CPU", values[5:])):
+                a, b, c, d, e = part
+                print(f"   {label:28s} {clock:4s} import {a:6.2f}  envelope {b:6.2f}  "
+                      f"searched {c:6.2f}  fleet {d:6.2f}  parallel {e:6.2f}")
 
 
 def main(quick: bool = False) -> None:
