@@ -253,7 +253,7 @@ def _arrangements(case: LoadCase) -> dict[int, _Arrangement]:
         found = _build_arrangements(case)
         if key is not None:
             if len(_ARRANGEMENTS) >= _ARRANGEMENTS_KEEP:
-                _ARRANGEMENTS.pop(next(iter(_ARRANGEMENTS)))
+                _ARRANGEMENTS.pop(next(iter(_ARRANGEMENTS)), None)
             _ARRANGEMENTS[key] = found
     return found
 
@@ -318,7 +318,7 @@ def _both_directions(batch: LineBatch, case: LoadCase,
         plans = _scan_plans(batch, arrangements)
         if key is not None:
             if len(kept) >= _PLANS_KEEP:  # a sweep over load values: the oldest go
-                kept.pop(next(iter(kept)))
+                kept.pop(next(iter(kept)), None)
             kept[key] = plans
     return [(directions, plan.run()) for directions, plan in plans]
 
