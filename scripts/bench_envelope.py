@@ -94,33 +94,61 @@ def first_call(beam, sections, load, effects=("moment",)) -> float:
     return timed(fresh, repeat=3)
 
 
-def kernel_args(env, load, mirrored: bool):
-    """The arguments the envelope passes the kernel for one direction (its distinct lines)."""
-    batch = env.batch.subset(np.unique(env.batch.identity))
-    group = load.group() if not mirrored else load.group().mirrored()
-    weights, offsets, kinds, _ = group.terms()
-    prune = int(batch.n_pieces.max()) >= trundle.scan.engine.PRUNE_FROM_PIECES
-    return batch, (batch.line_knots, batch.n_pieces, batch.line_coef, batch.line_running,
-                   batch.running_end, batch.head, batch.tail, batch.peak, weights, kinds,
-                   np.ascontiguousarray(offsets[None, :]), np.arange(batch.n_lines), 0.0, 3,
-                   False, prune)
+def prepared(env):
+    """The distinct lines the envelope scans (shear left/right inside a span are one)."""
+    families = tuple(f for f in envelope_module.REQUESTABLE
+                     if any(k.startswith(f) for k, v in env.index.items() if v.size))
+    return envelope_module._prepared_lines(env.beam, env.sections, families)[-1]
+
+
+def kernel_calls(env, load):
+    """The kernel calls the envelope makes for ``load`` (both directions in one call), as
+    (arguments, loads-on-ends arrays)."""
+    batch = prepared(env)
+    case = trundle.LoadCase(load)
+    plans = envelope_module._scan_plans(batch, envelope_module._arrangements(case))
+    return batch, [(plan.args, plan.own) for _, plan in plans]
 
 
 def kernel_time(env, load, threads: int | None = 1) -> float:
-    """The scan kernel's own time, both directions, on ``threads`` threads."""
-    calls = [kernel_args(env, load, m)[1] for m in (False, True)]
+    """The scan kernel's own time (as the envelope calls it), on ``threads`` threads."""
+    _, calls = kernel_calls(env, load)
 
     def go():
-        for args in calls:
-            kernels.scan_rows(*args, threads=threads)
+        for args, own in calls:
+            kernels.scan_rows(*args, threads=threads, own_knot=own[0], own_value=own[1],
+                              end_live=own[2])
     go()
     return timed(go, repeat=7)
+
+
+def slice_balance(env, load) -> tuple[float, float]:
+    """(serial kernel time, the slowest of the two slices the parallel kernel would give its
+    threads, each run serially): t / (2 · slowest) bounds the two-thread efficiency by the
+    split of the work alone; measured serially, so a loaded machine spoils it less."""
+    _, calls = kernel_calls(env, load)
+    total, slowest = 0.0, 0.0
+    for args, own in calls:
+        lines, n_terms, prune = args[11], args[8].shape[0], args[15]
+        work = np.cumsum(kernels.row_work(args[1], lines, n_terms, prune))
+        cut = int(np.searchsorted(work, work[-1] / 2))
+        halves = []
+        for lo, hi in ((0, cut), (cut, lines.shape[0])):
+            part = list(args)
+            part[10] = args[10] if args[10].shape[0] == 1 else args[10][lo:hi]
+            part[11] = lines[lo:hi]
+            halves.append(timed(lambda part=part, own=own: kernels.scan_rows(
+                *part, threads=1, own_knot=own[0], own_value=own[1], end_live=own[2]),
+                repeat=7))
+        total += sum(halves)
+        slowest += max(halves)
+    return total, slowest
 
 
 def response_pieces(env, load) -> int:
     """Pieces of the response a sweep visits without pruning: per line and direction, every
     line piece once for every axle, plus the entry and exit."""
-    batch, _ = kernel_args(env, load, False)
+    batch = prepared(env)
     n_axles = len(load.loads)
     return int(2 * ((batch.n_pieces + 1) * n_axles).sum())
 
@@ -298,9 +326,10 @@ def _growth_table(name, sizes, first, repeat, kernel) -> None:
 
 
 BIG_CODE = """
-import resource, sys, time
+import resource, sys, time, tracemalloc
 import numpy as np
 import trundle
+from trundle.analysis import envelope as envelope_module
 per, effects = int(sys.argv[1]), tuple(sys.argv[2].split(","))
 beam = trundle.Beam([24.0, 30.0, 24.0])
 ends = beam.support_positions
@@ -312,8 +341,18 @@ before = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
 t0 = time.perf_counter()
 env = trundle.envelope(beam, [truck], sections=sections, effects=effects)
 t = time.perf_counter() - t0
+t0 = time.perf_counter()
+env = trundle.envelope(beam, [truck], sections=sections, effects=effects)
+again = time.perf_counter() - t0
 after = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
-print(len(sections), len(env.effects), t, before / 1024, after / 1024)
+# the call's own allocations (numpy reports its arrays to tracemalloc), lines built afresh
+envelope_module._PREPARED.clear()
+trundle.core.fem._cached_assembly.cache_clear()
+tracemalloc.start()
+env = trundle.envelope(beam, [truck], sections=sections, effects=effects)
+peak = tracemalloc.get_traced_memory()[1]
+tracemalloc.stop()
+print(len(sections), len(env.effects), t, again, before / 1024, after / 1024, peak / 2**20)
 """
 
 
@@ -323,11 +362,13 @@ def large_jobs(quick: bool) -> None:
     effects = "moment,shear,deflection"
     out = subprocess.run([sys.executable, "-c", BIG_CODE, str(per), effects],
                          capture_output=True, text=True, check=True, env=os.environ.copy())
-    n_sec, n_lines, t, before, after = out.stdout.split()
+    n_sec, n_lines, t, again, before, after, peak = out.stdout.split()
     print(f"   3 spans, {n_sec} sections, moment + shear L/R + deflection ({n_lines} lines), "
-          f"three-axle truck, fresh process, first call: {float(t):.3f} s; peak memory "
-          f"{float(after):.0f} MB (before the call {float(before):.0f} MB: interpreter, "
-          "numpy, scipy, numba)")
+          f"three-axle truck, fresh process: first call {float(t):.3f} s (target < 1 s), "
+          f"again with the lines kept {float(again):.3f} s; memory: the call's own peak "
+          f"{float(peak):.0f} MB (tracemalloc), the process's peak resident set "
+          f"{float(after):.0f} MB (target < 500 MB; before the call {float(before):.0f} MB: "
+          "interpreter, numpy, scipy, numba)")
 
     beam = trundle.Beam([30.0] * (2 if quick else 10))
     sections = beam.tenth_points()
@@ -342,7 +383,10 @@ def large_jobs(quick: bool) -> None:
           f"{t_first * 1e3:.1f} ms), kernel {t_kernel * 1e3:.1f} ms, floor "
           f"{t_floor * 1e3:.2f} ms; whole call / floor {t_call / t_floor:.1f}")
 
-    print("   kernel on 1 and 2 threads (efficiency = t1 / (2 · t2)):")
+    print("   kernel on 1 and 2 threads: efficiency = t1 / (2 · t2) on the wall clock (spoilt "
+          "by any other load on the machine: see the load average); balance = t1 / (2 · the "
+          "slower of the two thread slices, each run alone): the efficiency the split of the "
+          "work allows")
     big_beam = trundle.Beam([24.0, 30.0, 24.0])
     jobs = [("3 spans, 3,001 sections, moment + shear + deflection, truck", big_beam,
              sections_of(big_beam, 3 if quick else 1000), truck(),
@@ -356,35 +400,56 @@ def large_jobs(quick: bool) -> None:
         one = kernel_time(env, ld, threads=1)
         two = kernel_time(env, ld, threads=2)
         auto = kernel_time(env, ld, threads=None)
-        print(f"     {label:62s} 1: {one * 1e3:8.2f} ms  2: {two * 1e3:8.2f} ms  "
-              f"efficiency {one / (2 * two):.2f}  (chosen automatically: {auto * 1e3:.2f} ms)")
+        alone, slowest = slice_balance(env, ld)
+        print(f"     {label:60s} 1: {one * 1e3:7.2f} ms  2: {two * 1e3:7.2f} ms  "
+              f"efficiency {one / (2 * two):.2f}  balance {alone / (2 * slowest):.2f}  "
+              f"(threads chosen by trundle: {auto * 1e3:.2f} ms; load "
+              f"{load_average().split()[0]})")
 
 
 FIRST_CODE = """
 import time
-t0 = time.perf_counter()
+import numpy as np
+marks = []
+def mark():
+    marks.append((time.perf_counter(), time.process_time()))
+mark()
 import trundle
-t1 = time.perf_counter()
+mark()
 beam = trundle.Beam([24.0, 30.0, 24.0])
 truck = trundle.Vehicle([35.0, 145.0, 145.0], [4.3, 4.3])
 trundle.envelope(beam, [truck], effects=("moment",))
-t2 = time.perf_counter()
+mark()
+searched = trundle.Vehicle([35.0, 145.0, 145.0], [4.3, (4.3, 9.0)])
+trundle.envelope(beam, [searched], effects=("moment",))
+mark()
+from trundle.core.influence import Effect, influence_set
+from trundle.scan.batched import scan_fleet
+from trundle.scan.engine import LineBatch
+lines = LineBatch.from_set(influence_set(beam, [Effect("moment", at=12.0),
+                                                Effect("reaction", support=1)]))
+start = np.array([0, 3, 5]); weight = np.array([35.0, 145.0, 145.0, 100.0, 100.0])
+offset = np.array([0.0, 4.3, 8.6, 0.0, 1.8])
+scan_fleet(lines, start, weight, offset, parallel=False)
+mark()
 env = trundle.envelope(trundle.Beam([25.0] * 100), [truck], effects=("moment", "shear"))
 from trundle.scan import kernels
-import numpy as np
 b = env.batch
 w, o, k, _ = truck.group().terms()
 kernels.scan_rows(b.line_knots, b.n_pieces, b.line_coef, b.line_running, b.running_end,
                   b.head, b.tail, b.peak, w, k, o[None, :], np.arange(b.n_lines), 0.0, 3,
                   threads=2)
-t3 = time.perf_counter()
-print(t1 - t0, t2 - t1, t3 - t2)
+mark()
+print(*(b[k] - a[k] for k in (0, 1) for a, b in zip(marks[:-1], marks[1:])))
 """
 
 
 def first_run(quick: bool) -> None:
-    print("\n4. first run in a fresh process [s]: import trundle; first envelope (3 spans, "
-          "moment, truck); first use of the parallel kernel")
+    print("\n4. first run in a fresh process [s] (wall clock, and CPU time of the process: "
+          "on a loaded machine the CPU time is what the work costs): import trundle; then the "
+          "first use of each kind of job, in this order: a plain envelope (3 spans, moment, "
+          "truck); an envelope with a searched spacing (the exact search's kernels); the "
+          "fleet kernel (2 trucks, serial as in a Dask worker); the parallel scan kernel")
     if quick:
         print("   (skipped in --quick: compiling takes seconds)")
         return
@@ -393,9 +458,11 @@ def first_run(quick: bool) -> None:
         for label in ("cold numba cache (compiles)", "warm numba cache"):
             out = subprocess.run([sys.executable, "-c", FIRST_CODE], env=env,
                                  capture_output=True, text=True, check=True)
-            a, b, c = (float(v) for v in out.stdout.split())
-            print(f"   {label:28s} import {a:6.2f}  first envelope {b:6.2f}  "
-                  f"parallel kernel {c:6.2f}")
+            values = [float(v) for v in out.stdout.split()]
+            for clock, part in (("wall", values[:5]), ("CPU", values[5:])):
+                a, b, c, d, e = part
+                print(f"   {label:28s} {clock:4s} import {a:6.2f}  envelope {b:6.2f}  "
+                      f"searched {c:6.2f}  fleet {d:6.2f}  parallel {e:6.2f}")
 
 
 def main(quick: bool = False) -> None:

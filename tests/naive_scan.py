@@ -764,3 +764,24 @@ def dense_grid_search(beam, load, section: float, kind: str = "moment", which: s
                 best = -res.fun
                 values[k] = float(res.x)
     return sign * best
+
+
+def plain_merge_directions(scans: list[np.ndarray], directions: list[int]
+                           ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Twin of kernels.merge_directions: each direction's (n, 6) scan offered in turn to the
+    empty beam (value 0, ξ NaN); a NaN ξ is never taken, a tie keeps the earlier one."""
+    n = scans[0].shape[0]
+    value = np.zeros((2, n))
+    xi = np.full((2, n), np.nan)
+    side = np.zeros((2, n), dtype=np.int64)
+    direction = np.zeros((2, n), dtype=np.int64)
+    for scan, d in zip(scans, directions, strict=True):
+        for j in range(n):
+            for w, col in ((0, 0), (1, 3)):
+                v, x = scan[j, col], scan[j, col + 1]
+                if math.isnan(x):
+                    continue
+                if (v > value[w, j]) if w == 0 else (v < value[w, j]):
+                    value[w, j], xi[w, j] = v, x
+                    side[w, j], direction[w, j] = int(scan[j, col + 2]), d
+    return value, xi, side, direction

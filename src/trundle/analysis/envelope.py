@@ -27,14 +27,17 @@ from trundle.core.fem import assembly_for
 from trundle.core.influence import Effect, LinePieces, line_pieces, piece_sign_intervals
 from trundle.loads.cases import LoadCase, Together, as_case
 from trundle.loads.patterns import UniformLoad
+from trundle.loads.vehicles import Train, Vehicle
 from trundle.scan.engine import (
     KIND_POINT,
     LineBatch,
+    ScanPlan,
     TermGroup,
     group_response,
     scan_arrangements,
     scan_group,
 )
+from trundle.scan.kernels import merge_directions
 
 FAMILIES = ("moment", "shear_left", "shear_right", "deflection", "reaction", "support_moment")
 REQUESTABLE = ("moment", "shear", "deflection", "reaction", "support_moment")
@@ -149,6 +152,9 @@ def _grid(params: Sequence[Any]) -> list[tuple[float, ...]]:
     return list(itertools.product(*axes))
 
 
+_SIGNS = np.array([[1.0], [-1.0]])  # max, min: larger is worse, smaller is worse
+
+
 class _CaseResult:
     """Per-line extremes of one load case, as arrays, and the Governing of any of them.
 
@@ -166,9 +172,22 @@ class _CaseResult:
         self.pattern: list[list[Any]] | None = None
         self.parts: list[_CaseResult] = []  # loads acting together: one result per part
 
-    def offer(self, w: int, rows: NDArray[np.int64], value, xi, side, direction, searched
-              ) -> None:
-        """Keep, row by row, whichever is worse (larger for max, smaller for min)."""
+    def offer(self, w: int, rows: NDArray[np.int64] | None, value, xi, side, direction,
+              searched) -> None:
+        """Keep, row by row, whichever is worse (larger for max, smaller for min); ``rows``
+        None: one row per line, in order."""
+        if rows is None:  # every line, in order (the common call): masks, no index arrays
+            current = self.value[w]
+            better = (value > current) if w == 0 else (value < current)
+            better &= ~np.isnan(xi)
+            np.copyto(current, value, where=better)
+            np.copyto(self.xi[w], xi, where=better)
+            np.copyto(self.side[w], side, where=better, casting="unsafe")
+            np.copyto(self.direction[w], direction, where=better, casting="unsafe")
+            if self.searched.shape[2]:
+                np.copyto(self.searched[w], searched,
+                          where=better if searched.ndim == 1 else better[:, None])
+            return
         sign = 1.0 if w == 0 else -1.0
         better = (sign * value > sign * self.value[w, rows]) & ~np.isnan(xi)
         r = rows[better]
@@ -177,6 +196,17 @@ class _CaseResult:
         self.side[w, r] = side[better]
         self.direction[w, r] = direction if np.isscalar(direction) else direction[better]
         self.searched[w, r] = searched if searched.ndim == 1 else searched[better]
+
+    def offer_scan(self, r: NDArray[np.float64], direction: int) -> None:
+        """``offer`` of a kernel's (n_lines, 6) result for every line, max and min at once
+        (nothing searched): the same choices, in fewer array operations."""
+        value = r[:, 0::3].T  # (2, n): max, min
+        xi = r[:, 1::3].T
+        better = (value * _SIGNS > self.value * _SIGNS) & ~np.isnan(xi)
+        np.copyto(self.value, value, where=better)
+        np.copyto(self.xi, xi, where=better)
+        np.copyto(self.side, r[:, 2::3].T, where=better, casting="unsafe")
+        np.copyto(self.direction, direction, where=better, casting="unsafe")
 
     def governing(self, w: int, j: int) -> Governing:
         if self.parts:
@@ -208,7 +238,34 @@ class _Arrangement:
         return self.base[None, :] + np.atleast_2d(values) @ self.slope
 
 
+# arrangements by value (the repr of a load case spells out every number of its load, its
+# impact and its factors), for the load kinds whose repr is known to do so: a load checked
+# again on another beam, or at other sections, reuses them
+_ARRANGEMENTS: dict[str, dict[int, _Arrangement]] = {}
+_ARRANGEMENTS_KEEP = 64
+
+
+def _case_key(case: LoadCase) -> str | None:
+    """The value of a moving load case, for caches (None: a load kind not known to spell
+    out every value in its repr, which is then not cached)."""
+    load = case.load
+    inner = load.load if isinstance(load, _Frozen) else load
+    return repr(case) if type(inner) in (Vehicle, Train) else None
+
+
 def _arrangements(case: LoadCase) -> dict[int, _Arrangement]:
+    key = _case_key(case)
+    found = _ARRANGEMENTS.get(key) if key is not None else None
+    if found is None:
+        found = _build_arrangements(case)
+        if key is not None:
+            if len(_ARRANGEMENTS) >= _ARRANGEMENTS_KEEP:
+                _ARRANGEMENTS.pop(next(iter(_ARRANGEMENTS)), None)
+            _ARRANGEMENTS[key] = found
+    return found
+
+
+def _build_arrangements(case: LoadCase) -> dict[int, _Arrangement]:
     load = case.load
     k = len(load.parameters())
     out = {}
@@ -230,8 +287,10 @@ def _arrangements(case: LoadCase) -> dict[int, _Arrangement]:
 def _check_fits(case: LoadCase, arrangement: _Arrangement, length: float) -> None:
     """A confined load (a crane between its end stops) longer than the beam cannot stand on
     it anywhere: refuse it rather than report the empty beam's zeros as its envelope."""
+    if not arrangement.confined:
+        return
     point = arrangement.kinds == KIND_POINT
-    if not arrangement.confined or not point.any():
+    if not point.any():
         return
     # every spacing and gap adds to the offsets of the loads behind it, so the group is
     # shortest with every searched value at its low end
@@ -245,6 +304,53 @@ def _check_fits(case: LoadCase, arrangement: _Arrangement, length: float) -> Non
                          f"{length:g}: it cannot stand on the beam")
 
 
+# kernel arguments of the loads scanned over a batch of lines, by the value of the load
+# case, kept for as long as the lines are (see _PREPARED)
+_PLANS: weakref.WeakKeyDictionary[LineBatch, dict[str, Any]] = weakref.WeakKeyDictionary()
+_PLANS_KEEP = 16
+
+
+def _both_directions(batch: LineBatch, case: LoadCase,
+                     arrangements: dict[int, _Arrangement]
+                     ) -> list[tuple[NDArray[np.int64], NDArray[np.float64]]]:
+    """[(directions, (n_directions · n_lines, 6) scan of every line)] for a load without
+    searched values:
+    both directions in one kernel call when they differ only in their offsets (a group and
+    its mirror image: the same weights and kinds). The kernel's arguments are laid out once
+    and kept with the lines, by the value of the load case."""
+    key = _case_key(case)
+    kept = _PLANS.setdefault(batch, {}) if key is not None else {}
+    plans = kept.get(key)
+    if plans is None:
+        plans = _scan_plans(batch, arrangements)
+        if key is not None:
+            if len(kept) >= _PLANS_KEEP:  # a sweep over load values: the oldest go
+                kept.pop(next(iter(kept)), None)
+            kept[key] = plans
+    return [(directions, plan.run()) for directions, plan in plans]
+
+
+def _scan_plans(batch: LineBatch, arrangements: dict[int, _Arrangement]
+                ) -> list[tuple[NDArray[np.int64], ScanPlan]]:
+    n = batch.n_lines
+    arrs = list(arrangements.items())
+    if len(arrs) == 2:
+        (d0, a0), (d1, a1) = arrs
+        if (a0.constant == a1.constant and a0.confined == a1.confined
+                and np.array_equal(a0.weights, a1.weights)
+                and np.array_equal(a0.kinds, a1.kinds)):
+            offsets = np.repeat(np.stack([a0.base, a1.base]), n, axis=0)
+            rows = np.tile(np.arange(n), 2)
+            return [(np.array([d0, d1], dtype=np.int64),
+                     ScanPlan(batch, a0.weights, a0.kinds, offsets, rows, a0.constant,
+                              a0.confined))]
+    lines = np.arange(n)
+    return [(np.array([direction], dtype=np.int64),
+             ScanPlan(batch, arr.weights, arr.kinds, arr.base[None, :], lines, arr.constant,
+                      arr.confined))
+            for direction, arr in arrs]
+
+
 def _moving_grid(batch: LineBatch, case: LoadCase, case_index: int,
                  arrangements: dict[int, _Arrangement]) -> _CaseResult:
     """Every line, every grid value of the searched dimensions, both directions: one kernel
@@ -252,8 +358,18 @@ def _moving_grid(batch: LineBatch, case: LoadCase, case_index: int,
     params = case.load.parameters()
     n = batch.n_lines
     result = _CaseResult(case_index, n, len(params))
-    grid = np.array(_grid(params), dtype=float).reshape(len(_grid(params)), len(params))
     lines = np.arange(n)
+    if not params:  # nothing searched: one row per line and direction
+        scans = _both_directions(batch, case, arrangements)
+        if len(scans) == 1:  # both directions in one scan: merged in one compiled loop
+            directions, r = scans[0]
+            merge_directions(r, directions, result.value, result.xi, result.side,
+                             result.direction)
+            return result
+        for directions, r in scans:
+            result.offer_scan(r, directions[0])
+        return result
+    grid = np.array(_grid(params), dtype=float).reshape(len(_grid(params)), len(params))
     for direction, arr in arrangements.items():
         offsets = np.repeat(arr.offsets(grid), n, axis=0)
         r = scan_arrangements(batch, arr.weights, arr.kinds, offsets, np.tile(lines, len(grid)),
@@ -263,7 +379,7 @@ def _moving_grid(batch: LineBatch, case: LoadCase, case_index: int,
             score = np.where(np.isnan(r[:, :, col + 1]), -np.inf, sign * r[:, :, col])
             g = np.argmax(score, axis=0)
             pick = r[g, lines]
-            result.offer(w, lines, pick[:, col], pick[:, col + 1],
+            result.offer(w, None, pick[:, col], pick[:, col + 1],
                          pick[:, col + 2].astype(np.int64), direction, grid[g])
     return result
 
@@ -276,13 +392,12 @@ def _searched_case(batch: LineBatch, case: LoadCase, case_index: int,
     low = np.array([p.low for p in params], dtype=float)
     high = np.array([p.high for p in params], dtype=float)
     result = _CaseResult(case_index, batch.n_lines, len(params))
-    lines = np.arange(batch.n_lines)
     for direction, arr in arrangements.items():
         found = searched_extremes(batch, arr.weights, arr.kinds, arr.constant, arr.base,
                                   arr.slope, low, high, arr.confined,
                                   what=f"load case {case.name!r}")
         for w in (0, 1):
-            result.offer(w, lines, found.value[w], found.xi[w], found.side[w], direction,
+            result.offer(w, None, found.value[w], found.xi[w], found.side[w], direction,
                          found.searched[w])
     return result
 
@@ -344,7 +459,8 @@ class Envelope:
     cases : the load cases, in the order given
     effects : one Effect per line; ``index[family]`` gives the lines of a family
         (moment, shear_left, shear_right, deflection, reaction, support_moment)
-    governing_max, governing_min : one Governing per line
+    governing_max, governing_min : one Governing per line (a sequence that builds each
+        Governing when first read)
     batch : the influence lines (shared knots) the envelope was scanned on
     """
 
@@ -353,8 +469,8 @@ class Envelope:
     cases: tuple[LoadCase, ...]
     effects: tuple[Effect, ...]
     index: dict[str, NDArray[np.int64]]
-    governing_max: tuple[Governing, ...]
-    governing_min: tuple[Governing, ...]
+    governing_max: Sequence[Governing]
+    governing_min: Sequence[Governing]
     batch: LineBatch = field(repr=False)
     _cache: dict = field(default_factory=dict, repr=False, compare=False)
 
@@ -378,11 +494,11 @@ class Envelope:
 
     @property
     def maximum(self) -> NDArray[np.float64]:
-        return np.array([g.value for g in self.governing_max])
+        return _values(self.governing_max)
 
     @property
     def minimum(self) -> NDArray[np.float64]:
-        return np.array([g.value for g in self.governing_min])
+        return _values(self.governing_min)
 
     def max(self, kind: str, side: str | None = None) -> NDArray[np.float64]:
         """Maximum per section (or per support for reactions; NaN where there is none)."""
@@ -641,6 +757,14 @@ class Envelope:
         if kind != "shear" or side == 0:
             return "on"
         return "right" if side > 0 else "left"
+
+
+def _values(governing: Sequence[Governing]) -> NDArray[np.float64]:
+    """The value of every Governing, without building them where they are kept as arrays."""
+    values = getattr(governing, "values", None)
+    if values is not None:
+        return values.copy()
+    return np.array([g.value for g in governing])
 
 
 def _at_point(g: Governing) -> Governing:
@@ -1101,29 +1225,89 @@ def _envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None,
             continue
         results.append(single(case, c)[0])
     # deflection stays at service level, without the strength load factor of each case
-    service = np.ones((len(cases), n))
-    for c, case in enumerate(cases):
-        service[c, index["deflection"]] = 1.0 / case.load_factor
-    for c, result in enumerate(results):
-        result.value *= service[c]
-    stacked = np.array([r.value for r in results])
-    winners = np.stack([stacked[:, 0].argmax(axis=0), stacked[:, 1].argmin(axis=0)])
+    deflection = index["deflection"]
+    for case, result in zip(cases, results, strict=True):
+        if deflection.size and case.load_factor != 1.0:
+            result.value[:, deflection] *= 1.0 / case.load_factor
+    if len(results) == 1:  # one case (the common call): it governs every line
+        best = results[0].value  # (2, lines)
+        winners = np.zeros((2, n), dtype=np.int64)
+        magnitude = np.abs(best)
+    else:
+        stacked = np.array([r.value for r in results])  # (cases, 2, lines)
+        lines = np.arange(n)
+        winners = np.stack([stacked[:, 0].argmax(axis=0), stacked[:, 1].argmin(axis=0)])
+        best = np.stack([stacked[winners[w], w, lines] for w in (0, 1)])
+        magnitude = np.abs(stacked).max(axis=0)
     scale = np.zeros(n)
     for lines_of_family in index.values():
         if lines_of_family.size:
-            scale[lines_of_family] = np.abs(stacked[:, :, lines_of_family]).max()
-    governing = [[], []]
+            scale[lines_of_family] = magnitude[:, lines_of_family].max()
+    governing = []
     for w in (0, 1):
-        distinct = []
-        for j in range(n):
-            g = results[winners[w, j]].governing(w, j)
-            # rounding noise around an empty-beam zero is not a governing load
-            if abs(g.value) <= 1e-12 * scale[j]:
+        value = best[w]
+        # rounding noise around an empty-beam zero is not a governing load
+        empty = np.abs(value) <= 1e-12 * scale
+        governing.append(_Governors(w, results, winners[w], empty,
+                                    np.where(empty, 0.0, value)[inverse], keep, inverse,
+                                    cases))
+    return Envelope(beam, sections, cases, line_effects, index_all, governing[0],
+                    governing[1], full_batch)
+
+
+class _Governors(Sequence):
+    """The Governing of every line for the maxima (w = 0) or the minima (w = 1), built when
+    first asked for: most callers read only the values (``values``, an array), and building
+    thousands of Governing objects per call cost more than the scan itself.
+
+    Line j is distinct line ``inverse[j]``; its extreme comes from case ``winners[u]``
+    (``results``, per distinct line u), or from the empty beam where ``empty[u]``.
+    """
+
+    def __init__(self, w: int, results: Sequence[_CaseResult], winners: NDArray[np.int64],
+                 empty: NDArray[np.bool_], values: NDArray[np.float64],
+                 keep: NDArray[np.int64], inverse: NDArray[np.int64], cases: Sequence[Any]):
+        self._w = w
+        self._results = results
+        self._winners = winners
+        self._empty = empty
+        self._keep = keep
+        self._inverse = inverse
+        self._cases = cases
+        self._built: dict[int, Governing] = {}
+        values.setflags(write=False)
+        self.values = values  # (n_lines,) the extreme of every line
+
+    def __len__(self) -> int:
+        return self._inverse.size
+
+    def _distinct(self, u: int) -> Governing:
+        g = self._built.get(u)
+        if g is None:
+            if self._empty[u]:
                 g = EMPTY
-            distinct.append(_renumbered(g, keep, cases))
-        governing[w] = [distinct[u] for u in inverse]
-    return Envelope(beam, sections, cases, tuple(line_effects), index_all,
-                    tuple(governing[0]), tuple(governing[1]), full_batch)
+            else:
+                g = self._results[self._winners[u]].governing(self._w, u)
+                g = _renumbered(g, self._keep, self._cases)
+            self._built[u] = g
+        return g
+
+    def __getitem__(self, j):
+        if isinstance(j, slice):
+            return tuple(self[i] for i in range(*j.indices(len(self))))
+        j = int(j)
+        if j < 0:
+            j += len(self)
+        if not 0 <= j < len(self):
+            raise IndexError("line index out of range")
+        return self._distinct(int(self._inverse[j]))
+
+    def __iter__(self):
+        for u in self._inverse:
+            yield self._distinct(int(u))
+
+    def __repr__(self) -> str:
+        return f"<Governing of {len(self)} lines ({'max' if self._w == 0 else 'min'})>"
 
 
 # lines ready to scan, by beam, sections and families (values, not identities): a beam

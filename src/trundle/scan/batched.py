@@ -65,14 +65,19 @@ def _fleet_truck(truck, out, line_knots, n_pieces, line_coef, line_running, runn
         out[truck, line, 5] = 0.0
         out[truck, line, 6] = 0.0
         out[truck, line, 7] = 0.0
+    # the loop body takes these typed as the envelope passes them (int64, bool): literal
+    # constants (0, 3, False) would make numba compile a second copy of the whole body
+    first_row = n_lines - n_lines
+    degree = first_row + 3
+    confined = n_lines < 0
     for d in (1, -1):
         if direction[truck] != 0 and direction[truck] != d:
             continue
         offsets = forward if d == 1 else backward
         # every line of the bridge is one row of the single-vehicle loop body
-        _scan_chunk(0, n_lines, line_knots, n_pieces, line_coef, line_running, running_end,
-                    head, tail, peak, weight, kind, offsets, all_lines, 0.0, 3, False, prune,
-                    own_knot, own_value, end_live, found)
+        _scan_chunk(first_row, n_lines, line_knots, n_pieces, line_coef, line_running,
+                    running_end, head, tail, peak, weight, kind, offsets, all_lines, 0.0,
+                    degree, confined, prune, own_knot, own_value, end_live, found)
         for line in range(n_lines):
             # the envelope's rule: strictly better, and a real position (not the empty beam)
             if not np.isnan(found[line, 1]) and found[line, 0] > out[truck, line, 0]:

@@ -217,7 +217,9 @@ def search_lines(knots, n_pieces, coef, running, running_end, lines, block_term_
     for row in range(n_rows):
         line = lines[row]
         m = n_pieces[line]
-        k = 0
+        # an int64 from the start: a literal 0 here makes numba compile the candidate kernels
+        # twice (once for the literal, once for the int64 it widens to)
+        k = np.int64(0)
         for b in range(n_blocks):
             block_start[b] = k
             t0, t1 = block_term_start[b], block_term_start[b + 1]

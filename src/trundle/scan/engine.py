@@ -18,7 +18,14 @@ import numpy as np
 from numpy.typing import NDArray
 
 from trundle.core.influence import InfluenceSet, LinePieces, signed_areas
-from trundle.scan.kernels import KIND_POINT, KIND_RUNNING_INTEGRAL, evaluate_lines, scan_rows
+from trundle.scan.kernels import (
+    KIND_POINT,
+    KIND_RUNNING_INTEGRAL,
+    could_use_threads,
+    evaluate_lines,
+    scan_chunk,
+    scan_rows,
+)
 
 # lines with at least this many pieces are swept from their largest piece outwards and stop
 # where a bound proves nothing further can matter (see kernels._scan_chunk); shorter lines
@@ -358,6 +365,38 @@ def scan_arrangements(batch: LineBatch, weights: NDArray[np.float64], kinds: NDA
                      own_value=batch.own_value, end_live=batch.end_live)
 
 
+class ScanPlan:
+    """Every argument of one kernel call, checked and laid out once, so a load scanned again
+    over the same lines (the envelope keeps plans with its lines) pays only the kernel."""
+
+    def __init__(self, batch: LineBatch, weights: NDArray[np.float64],
+                 kinds: NDArray[np.int64], offsets: NDArray[np.float64],
+                 lines: NDArray[np.int64], constant: float = 0.0, confined: bool = False):
+        uniform = bool((kinds == KIND_RUNNING_INTEGRAL).any())
+        prune = (not uniform and constant == 0.0
+                 and int(batch.n_pieces.max()) >= PRUNE_FROM_PIECES)
+        self.n_rows = int(lines.shape[0])
+        self.args = (batch.line_knots, batch.n_pieces, batch.line_coef, batch.line_running,
+                     batch.running_end, batch.head, batch.tail, batch.peak,
+                     np.ascontiguousarray(weights, dtype=float),
+                     np.ascontiguousarray(kinds, dtype=np.int64),
+                     np.ascontiguousarray(offsets, dtype=float),
+                     np.ascontiguousarray(lines, dtype=np.int64), float(constant),
+                     4 if uniform else 3, bool(confined), bool(prune))
+        self.own = (batch.own_knot, batch.own_value, batch.end_live)
+        # most calls are far too small for threads: decided here once
+        self.small = not could_use_threads(batch.n_pieces, self.n_rows, weights.shape[0])
+
+    def run(self) -> NDArray[np.float64]:
+        """(n_rows, 6), as ``scan_arrangements``."""
+        if self.small:
+            result = np.empty((self.n_rows, 6))
+            scan_chunk(0, self.n_rows, *self.args, *self.own, result)
+            return result
+        return scan_rows(*self.args, own_knot=self.own[0], own_value=self.own[1],
+                         end_live=self.own[2])
+
+
 def group_response(batch: LineBatch, group: TermGroup, xi: float, side: float = 0.0
                    ) -> NDArray[np.float64]:
     """The group's effect on every line with its reference point at ξ: the limit from
@@ -394,8 +433,46 @@ def _own_points(knots: NDArray[np.float64], n_pieces: NDArray[np.int64],
     own_knot = np.full(n, -1, dtype=np.int64)
     own_value = np.zeros(n)
     end_live = np.zeros(n, dtype=bool)
-    if effects is None:
+    if effects is None or n == 0:
         return own_knot, own_value, end_live
+    # every line at once (a loop over thousands of lines cost more than the scan)
+    rows = np.arange(n)
+    m = np.asarray(n_pieces, dtype=np.int64)
+    h = knots[rows, m] - knots[rows, m - 1]
+    c = coef[rows, m - 1]
+    start = coef[:, 0, 3]
+    end = ((c[:, 0] * h + c[:, 1]) * h + c[:, 2]) * h + c[:, 3]
+    valid = np.arange(coef.shape[1])[None, :] < m[:, None]
+    largest = np.where(valid[:, :, None], np.abs(coef), 0.0).max(axis=(1, 2))
+    scale = np.maximum(largest, 1.0) * _NOISE
+    live = (np.abs(start) > scale) | (np.abs(end) > scale)
+    shear = np.array([getattr(e, "kind", None) == "shear" and e.at is not None
+                      for e in effects], dtype=bool)
+    if shear.any():
+        j = np.flatnonzero(shear)
+        at = np.array([effects[i].at for i in j], dtype=float)
+        left = np.array([effects[i].side == "left" for i in j], dtype=bool)
+        mj = m[j]
+        distance = np.abs(knots[j] - at[:, None])
+        distance[np.arange(knots.shape[1])[None, :] > mj[:, None]] = np.inf
+        k = np.argmin(distance, axis=1)
+        own_knot[j] = k
+        # just left of the section: the right-hand limit, or the left-hand one + 1 at the
+        # right end of the beam
+        value_left = np.where(k < mj, coef[j, np.minimum(k, mj - 1), 3], end[j] + 1.0)
+        # just right of it: the left-hand limit, or the right-hand one − 1 at the left end
+        before = np.maximum(k - 1, 0)
+        cp = coef[j, before]
+        hk = knots[j, k] - knots[j, before]
+        value_right = np.where(
+            k > 0, ((cp[:, 0] * hk + cp[:, 1]) * hk + cp[:, 2]) * hk + cp[:, 3],
+            start[j] - 1.0)
+        own_value[j] = np.where(left, value_left, value_right)
+        at_start = (k == 0) & (np.abs(own_value[j] - start[j]) > scale[j])
+        at_end = (k == mj) & (np.abs(own_value[j] - end[j]) > scale[j])
+        live[j] |= at_start | at_end
+    end_live[:] = live
+    return own_knot, own_value, end_live
     for j, effect in enumerate(effects):
         m = int(n_pieces[j])
         h = knots[j, m] - knots[j, m - 1]

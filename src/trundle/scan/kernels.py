@@ -522,6 +522,23 @@ def row_work(n_pieces: np.ndarray, lines: np.ndarray, n_terms: int, prune: bool
     return (pieces + n_terms) * float(n_terms * n_terms)
 
 
+def could_use_threads(n_pieces: np.ndarray, n_rows: int, n_terms: int) -> bool:
+    """Whether a call could hold enough work for two threads (an upper bound of the work:
+    every row visiting every piece of the longest line)."""
+    most = n_rows * (int(n_pieces.max()) + n_terms) * float(n_terms * n_terms)
+    return most >= 2 * PARALLEL_FROM_WORK_PER_THREAD and _threads() > 1
+
+
+def scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, tail, peak,
+               weight, kind, offsets, lines, constant_weight, degree, confined, prune,
+               own_knot, own_value, end_live, result):
+    """The compiled loop body on rows start … stop − 1, arguments already checked and laid
+    out (``engine.ScanPlan``); see ``scan_rows_serial``."""
+    _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, tail, peak,
+                weight, kind, offsets, lines, constant_weight, degree, confined, prune,
+                own_knot, own_value, end_live, result)
+
+
 def scan_rows(knots, n_pieces, coef, running, running_end, head, tail, peak, weight, kind,
               offsets, lines, constant_weight, degree, confined=False, prune=False,
               threads: int | None = None, own_knot=None, own_value=None, end_live=None):
@@ -533,8 +550,7 @@ def scan_rows(knots, n_pieces, coef, running, running_end, head, tail, peak, wei
         threads = 1
         n_terms = weight.shape[0]
         # an upper bound first: most calls are far too small to ask about threads at all
-        most = lines.shape[0] * (int(n_pieces.max()) + n_terms) * float(n_terms * n_terms)
-        if most >= 2 * PARALLEL_FROM_WORK_PER_THREAD and _threads() > 1:
+        if could_use_threads(n_pieces, lines.shape[0], n_terms):
             total = float(row_work(n_pieces, lines, n_terms, prune).sum())
             threads = int(min(_threads(), _idle_cores(),
                               total // PARALLEL_FROM_WORK_PER_THREAD))
@@ -563,6 +579,30 @@ def _idle_cores() -> int:
     except OSError:
         return _threads()
     return max(1, int((os.cpu_count() or 1) - load + 1.0))
+
+
+@njit(**JIT_OPTIONS)
+def merge_directions(scan, directions, value, xi, side, direction):
+    """Keep, per line, the worse of the directions' extremes, as offering each direction's
+    scan in turn to an empty beam would (value 0, ξ NaN): ``scan`` (n_dir · n, 6) holds the
+    rows of direction k at k·n … k·n + n − 1 (as ``scan_rows`` returns them); ``value``,
+    ``xi``, ``side``, ``direction`` (2, n) get max (row 0) and min (row 1). A row whose ξ is
+    NaN (nothing loads the line that way) is never taken; ties keep the earlier direction."""
+    n = value.shape[1]
+    for j in range(n):
+        for w in range(2):
+            best = value[w, j]
+            for k in range(directions.shape[0]):
+                v = scan[k * n + j, 3 * w]
+                x = scan[k * n + j, 3 * w + 1]
+                if x != x:
+                    continue
+                if (w == 0 and v > best) or (w == 1 and v < best):
+                    best = v
+                    value[w, j] = v
+                    xi[w, j] = x
+                    side[w, j] = int(scan[k * n + j, 3 * w + 2])
+                    direction[w, j] = directions[k]
 
 
 @njit(**JIT_OPTIONS)
