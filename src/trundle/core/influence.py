@@ -21,7 +21,15 @@ from scipy.interpolate import PPoly
 
 from trundle.core._repr import html_table, short
 from trundle.core.beam import Beam, ModelError, Spring
-from trundle.core.fem import assembly_for, element_stiffness, hermite_coefficients
+from trundle.core.fem import (
+    HAUNCH_TOLERANCE,
+    assembly_for,
+    hermite_coefficients,
+    interior_values,
+    inverse_EI_slope_bounds,
+    stiffness_between,
+)
+from trundle.core.fem import line_nodes as fem_line_nodes
 
 EFFECT_KINDS = ("reaction", "support_moment", "moment", "shear", "deflection", "rotation")
 # what each effect measures, for labels and unit lookup
@@ -315,6 +323,15 @@ def line_pieces(beam: Beam, effects: Iterable[Effect]) -> LinePieces:
     an element splits it into two sub-elements whose shared node is condensed out exactly: the
     adjoint load of the section enters the element's end dofs, and the section's own
     deflection and rotation are recovered from the end values afterwards.
+
+    Haunches: a varying-EI element has its exact stiffness (``fem.stiffness_between``), so
+    every nodal value is exact; inside it the line breaks at the nodes of ``fem.line_nodes``,
+    where its exact values are recovered from the element's end values
+    (``fem.interior_values``), and it is the Hermite cubic of those values between them. With
+    ``beam.haunch_divisions`` None every line is checked against the bound of
+    ``fem.hermite_error_bound`` and must stay within ``HAUNCH_TOLERANCE`` of the largest of its
+    nodal ordinates; a segment where some line misses it gets finer line nodes (the bound
+    falls as h⁴), without solving again.
     """
     effects = _as_effects(effects)
     length = beam.length
@@ -329,7 +346,7 @@ def line_pieces(beam: Beam, effects: Iterable[Effect]) -> LinePieces:
     xc = mesh.x
     h = mesh.lengths
     n_el = len(h)
-    k_el = element_stiffness(mesh.element_EI, h)
+    k_el = mesh.element_k
     n_lines = len(effects)
 
     rhs = np.zeros((asm.free.size, n_lines))
@@ -412,7 +429,7 @@ def line_pieces(beam: Beam, effects: Iterable[Effect]) -> LinePieces:
         add_element_load(j, element, k_el[element] @ r)
         recovery.append((j, element, r))
 
-    inner_data = _condense_inner_sections(inner, mesh, h)
+    inner_data = _condense_inner_sections(inner, beam, mesh, h)
     if inner_data is not None:
         lines_in, elements_in, dofs_in, loads_in = inner_data[:4]
         for k in range(4):
@@ -427,6 +444,39 @@ def line_pieces(beam: Beam, effects: Iterable[Effect]) -> LinePieces:
         values[element, :, j] -= r
     if zero_lines:
         values[:, :, zero_lines] = 0.0
+    left = right = None
+    if inner_data is not None:
+        left, right = _inner_values(values, inner_data)
+        if zero_lines:
+            gone = np.isin(inner_data[0], zero_lines)
+            left[gone] = right[gone] = 0.0
+
+    # where the lines break: the mesh's nodes, and inside a haunch the nodes of its division
+    varying = np.array([seg.varies for seg in beam.stiffness_segments])[mesh.element_segment]
+    if varying.any():
+        automatic = beam.haunch_divisions is None
+        refine = np.ones(len(beam.stiffness_segments))
+        for _ in range(_REFINEMENTS):
+            fine = _haunch_lines(beam, mesh, values, inner_data, left, right, refine)
+            if not automatic or (fine[-1] <= 1.0).all():
+                break
+            # the bound falls as h⁴: shrink h by the fourth root of the excess, with a margin
+            worse = fine[-1] > 1.0
+            refine[worse] *= np.maximum(fine[-1][worse] ** 0.25 * 1.1, 1.25)
+        else:
+            where = ", ".join(f"{seg.x0:g}..{seg.x1:g}" for seg, bad in
+                              zip(beam.stiffness_segments, fine[-1] > 1.0, strict=True) if bad)
+            raise ModelError(f"EI segment(s) at x = {where}: the influence lines do not reach "
+                             f"the relative accuracy {HAUNCH_TOLERANCE:g} with the most pieces "
+                             "allowed; set haunch_divisions to choose the count yourself")
+        xc, values, pieces_in, c_in = fine[:4]
+        if inner_data is not None:
+            left = np.concatenate([values[pieces_in, :2, inner_data[0]], left[:, 2:]], axis=1)
+            right = np.concatenate([right[:, :2], values[pieces_in, 2:, inner_data[0]]], axis=1)
+    elif inner_data is not None:
+        pieces_in, c_in = inner_data[1], inner_data[5]
+    h = np.diff(xc)
+    n_el = len(h)
     coarse = hermite_coefficients(values, h)  # (4, n_el, n_lines)
 
     # every line on the structural pieces; a padding piece of zero width at the end
@@ -439,9 +489,10 @@ def line_pieces(beam: Beam, effects: Iterable[Effect]) -> LinePieces:
     sections = np.zeros(0)
     split_at = np.full(n_lines, -1, dtype=np.int64)
     if inner_data is not None:
-        lines_in, elements_in = inner_data[0], inner_data[1]
+        lines_in, elements_in = inner_data[0], pieces_in
         sections = inner_data[4]
-        left_coef, right_coef = _inner_pieces(values, h, inner_data)
+        left_coef = hermite_coefficients(left, c_in)
+        right_coef = hermite_coefficients(right, h[elements_in] - c_in)
         # the element of the section splits: pieces after it move one place along
         piece = np.arange(n_el + 1)
         source = np.where(piece[None, :] <= elements_in[:, None], piece, piece - 1)
@@ -456,6 +507,120 @@ def line_pieces(beam: Beam, effects: Iterable[Effect]) -> LinePieces:
         split_at[lines_in] = elements_in + 1
     return LinePieces(knots, n_pieces, coefficients, tuple(effects), xc.copy(), sections,
                       identity, split_at)
+
+
+# how many times line_pieces may refine the line nodes of the haunches before it gives up
+_REFINEMENTS = 6
+
+
+def _haunch_lines(beam: Beam, mesh, values: NDArray[np.float64], inner_data: tuple | None,
+                  left: NDArray[np.float64] | None, right: NDArray[np.float64] | None,
+                  refine: NDArray[np.float64]) -> tuple:
+    """The lines on the line nodes of ``fem.line_nodes``: the mesh's nodes and, inside each
+    haunch, its division (sections inside elements are kept off those nodes).
+
+    Returns (nodes, values (n_pieces, 4, n_lines) exact at every node, the piece holding each
+    section inside an element, the section's distance from that piece's start, and per
+    stiffness segment the largest ratio of a line's Hermite error bound to
+    HAUNCH_TOLERANCE × its largest nodal ordinate)."""
+    n_lines = values.shape[2]
+    sections = inner_data[4] if inner_data is not None else np.zeros(0)
+    x, parent = fem_line_nodes(beam, mesh, refine, avoid=sections)
+    n_pieces = len(x) - 1
+    out = np.empty((n_pieces, 4, n_lines))
+    starts_element = x[:-1] == mesh.x[parent]
+    ends_element = x[1:] == mesh.x[parent + 1]
+    out[starts_element, :2] = values[parent[starts_element], :2]
+    out[ends_element, 2:] = values[parent[ends_element], 2:]
+    inside = np.flatnonzero(~ends_element)  # piece i ends at an inner node, piece i + 1 starts
+    element = parent[inside]
+    segment = mesh.element_segment[element]
+    xa, xb = mesh.x[element], mesh.x[element + 1]
+    v, theta = interior_values(beam, segment, xa, xb, values[element], mesh.element_k[element],
+                               x[inside + 1])
+    if inner_data is not None:
+        # lines with a section inside a haunch element: a sub-element on each side of it
+        lines_in, elements_in, xs = inner_data[0], inner_data[1], inner_data[4]
+        k_left, k_right = inner_data[9], inner_data[10]
+        pair_line, pair_node = [], []
+        for n, e in enumerate(elements_in):
+            nodes = np.flatnonzero(element == e)
+            pair_line.append(np.full(nodes.size, n))
+            pair_node.append(nodes)
+        pair_line = np.concatenate(pair_line)
+        pair_node = np.concatenate(pair_node)
+        if pair_node.size:
+            y = x[inside + 1][pair_node]
+            on_left = y < xs[pair_line]
+            e = elements_in[pair_line]
+            start = np.where(on_left, mesh.x[e], xs[pair_line])
+            stop = np.where(on_left, xs[pair_line], mesh.x[e + 1])
+            ends = np.where(on_left[:, None], left[pair_line], right[pair_line])[:, :, None]
+            k = np.where(on_left[:, None, None], k_left[pair_line], k_right[pair_line])
+            sv, st = interior_values(beam, mesh.element_segment[e], start, stop, ends, k, y)
+            v[pair_node, lines_in[pair_line]] = sv[:, 0]
+            theta[pair_node, lines_in[pair_line]] = st[:, 0]
+    out[inside, 2], out[inside, 3] = v, theta
+    out[inside + 1, 0], out[inside + 1, 1] = v, theta
+
+    pieces_in = c_in = None
+    if inner_data is not None:
+        pieces_in = np.searchsorted(x, inner_data[4], side="right") - 1
+        c_in = inner_data[4] - x[pieces_in]
+    return x, out, pieces_in, c_in, _haunch_excess(beam, mesh, values, x, parent, out,
+                                                   inner_data, left, right)
+
+
+def _haunch_excess(beam: Beam, mesh, values: NDArray[np.float64], x: NDArray[np.float64],
+                   parent: NDArray[np.int64], fine: NDArray[np.float64],
+                   inner_data: tuple | None, left: NDArray[np.float64] | None,
+                   right: NDArray[np.float64] | None) -> NDArray[np.float64]:
+    """Per stiffness segment: the largest (Hermite error bound) / (HAUNCH_TOLERANCE × the
+    line's largest nodal ordinate) over the lines and the pieces in its varying elements.
+
+    In an unloaded element the line's moment is linear, M = α + β(x − xa), from the
+    element's exact end forces; a line with its section inside the element has one such
+    moment on each side, and both are bounded together (the larger |M| and |β|)."""
+    excess = np.zeros(len(beam.stiffness_segments))
+    h = np.diff(x)
+    g1, g2 = inverse_EI_slope_bounds(beam, mesh.element_segment[parent], x[:-1], x[1:])
+    chosen = np.flatnonzero(g2 > 0.0)
+    if chosen.size == 0:
+        return excess
+    scale = np.abs(fine[:, [0, 2], :]).max(axis=(0, 1))  # (n_lines,)
+    if inner_data is not None:
+        np.maximum.at(scale, inner_data[0], np.abs(left[:, 2]))
+    allowed = HAUNCH_TOLERANCE * scale
+    element = parent[chosen]
+    Q = np.einsum("mij,mjn->min", mesh.element_k[element], values[element])
+    alpha, at_end = Q[:, 1], -Q[:, 3]
+    beta = (at_end - alpha) / mesh.lengths[element][:, None]
+    a = alpha + beta * (x[chosen] - mesh.x[element])[:, None]
+    b = alpha + beta * (x[chosen + 1] - mesh.x[element])[:, None]
+    largest = np.maximum(np.abs(a), np.abs(b))
+    steep = np.abs(beta)
+    if inner_data is not None:
+        lines_in, elements_in = inner_data[0], inner_data[1]
+        k_left, k_right = inner_data[9], inner_data[10]
+        QL = np.einsum("nij,nj->ni", k_left, left)
+        QR = np.einsum("nij,nj->ni", k_right, right)
+        ends = np.abs(np.stack([QL[:, 1], QL[:, 3], QR[:, 1], QR[:, 3]], axis=1)).max(axis=1)
+        c = inner_data[5]
+        slopes = np.maximum(np.abs(QL[:, 1] + QL[:, 3]) / c,
+                            np.abs(QR[:, 1] + QR[:, 3]) / (mesh.lengths[elements_in] - c))
+        rows = np.searchsorted(element, elements_in, side="left")
+        for n in range(len(lines_in)):  # the pieces of the section's element for that line
+            r = rows[n]
+            while r < len(element) and element[r] == elements_in[n]:
+                largest[r, lines_in[n]] = ends[n]
+                steep[r, lines_in[n]] = slopes[n]
+                r += 1
+    bound = (h[chosen] ** 4 / 384.0)[:, None] * (largest * g2[chosen, None]
+                                                 + 2.0 * steep * g1[chosen, None])
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ratio = np.where(bound > 0.0, bound / allowed[None, :], 0.0)
+    np.maximum.at(excess, mesh.element_segment[element], ratio.max(axis=1))
+    return excess
 
 
 def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
@@ -492,7 +657,8 @@ def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
     return InfluenceSet(knots, coefficients, pieces.effects, node_knots, own_knots, pieces)
 
 
-def _condense_inner_sections(inner: list, mesh, h: NDArray[np.float64]) -> tuple | None:
+def _condense_inner_sections(inner: list, beam: Beam, mesh, h: NDArray[np.float64]
+                             ) -> tuple | None:
     """Adjoint loads of sections that fall inside elements, condensed to the element ends.
 
     Each section splits its element into two sub-elements meeting at node s with dofs
@@ -506,9 +672,10 @@ def _condense_inner_sections(inner: list, mesh, h: NDArray[np.float64]) -> tuple
     x = np.array([xs for _, _, xs, _ in inner])
     kinds = [e.kind for *_, e in inner]
     c = x - mesh.x[elements]
-    EI = mesh.element_EI[elements]
-    k_left = element_stiffness(EI, c)
-    k_right = element_stiffness(EI, h[elements] - c)
+    # the exact stiffness of each sub-element (of its own part of a haunch)
+    segment = mesh.element_segment[elements]
+    k_left = stiffness_between(beam, segment, mesh.x[elements], x)
+    k_right = stiffness_between(beam, segment, x, mesh.x[elements + 1])
     n = len(inner)
     k6 = np.zeros((n, 6, 6))
     k6[:, :4, :4] += k_left
@@ -536,19 +703,19 @@ def _condense_inner_sections(inner: list, mesh, h: NDArray[np.float64]) -> tuple
     solved = np.linalg.solve(k6[:, 2:4, 2:4], rhs_local)
     loads = g6[:, ends] - np.einsum("nij,nj->ni", k6[:, ends, 2:4], solved[:, :, 0])
     dofs = mesh.element_dofs[elements]
-    return lines, elements, dofs, loads, x, c, solved, rows, sub
+    return lines, elements, dofs, loads, x, c, solved, rows, sub, k_left, k_right
 
 
-def _inner_pieces(values: NDArray[np.float64], h: NDArray[np.float64], inner_data: tuple
+def _inner_values(values: NDArray[np.float64], inner_data: tuple
                   ) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
-    """The exact sub-element cubics (4, n_inner) left and right of sections inside elements,
-    each local to its own start (the element's left node, the section)."""
-    lines, elements, _, _, x, c, solved, rows, sub = inner_data
+    """End values (n_inner, 4) of the sub-elements left and right of sections inside
+    elements (the line's exact cubics there are their Hermite cubics)."""
+    lines, elements, _, _, x, c, solved, rows, sub = inner_data[:9]
     z_end = values[elements, :, lines]  # (n, 4)
     z_s = solved[:, :, 0] - np.einsum("nij,nj->ni", solved[:, :, 1:], z_end)
     left = np.concatenate([z_end[:, :2], z_s], axis=1) - rows * (sub == 0)[:, None]
     right = np.concatenate([z_s, z_end[:, 2:]], axis=1) - rows * (sub == 1)[:, None]
-    return hermite_coefficients(left, c), hermite_coefficients(right, h[elements] - c)
+    return left, right
 
 
 def influence_batch(beam: Beam, kind: str, at: ArrayLike | None = None,
