@@ -12,10 +12,12 @@ flexibility is inverted. Nodal deflections and rotations are then exact for load
 Between nodes a line is kept as the Hermite cubic of its exact nodal values (the scan needs
 cubic pieces); its error is at most h⁴/384 · max|(M/EI)''| in each element (the classical
 bound of cubic Hermite interpolation), with M the line's own linear moment in that element.
-Unless ``Beam.haunch_divisions`` fixes the count, a varying segment is cut into elements
-graded by an a priori estimate of that bound (``HAUNCH_TOLERANCE``), and
-``influence.line_pieces`` checks the bound on every line it builds and refines the segments
-that miss it.
+A haunch is ONE element of the mesh (between supports, hinges and sections), so the
+stiffness stays as well conditioned as a prismatic beam's; its lines break at the nodes of
+``line_nodes``, where their exact values are recovered from the element's end values. Unless
+``Beam.haunch_divisions`` fixes the count, those nodes are graded by an a priori estimate of
+the bound (``HAUNCH_TOLERANCE``), and ``influence.line_pieces`` checks the bound on every line
+it builds and splits the pieces that miss it (no new solve).
 """
 
 from __future__ import annotations
@@ -122,7 +124,9 @@ def integrals_of_flexibility(segment: StiffnessSegment, xa: NDArray[np.float64],
     pole = poles[0]  # a parabola's two zeros are conjugate: equally far from the real axis
     nearest = np.clip(pole.real, xa, xb)
     reach = np.abs(nearest - pole)  # > 0: EI has no zero on the segment
-    k = np.arange(_MAX_GRADED_PANELS + 1)
+    farthest = np.maximum(xb - nearest, nearest - xa)
+    needed = int(np.ceil(np.log2(farthest / reach + 1.0)).max()) if n else 0
+    k = np.arange(min(max(needed, 0), _MAX_GRADED_PANELS) + 1)
     steps = reach[:, None] * (2.0 ** k[None, :] - 1.0)  # (n, K + 1)
     right = np.minimum(nearest[:, None] + steps, xb[:, None])
     left = np.maximum(nearest[:, None] - steps, xa[:, None])[:, ::-1]
@@ -208,9 +212,9 @@ def inverse_EI_slope_bounds(beam: Beam, segment: NDArray[np.int64], xa: NDArray[
     return g1, g2
 
 
-def _haunch_nodes(beam: Beam, index: int, refine: float) -> NDArray[np.float64]:
+def _haunch_nodes(beam: Beam, index: int) -> NDArray[np.float64]:
     """Nodes of a varying segment graded so that an a priori estimate of the Hermite error
-    stays below a quarter of ``HAUNCH_TOLERANCE`` (``refine`` > 1 makes them finer).
+    stays below a quarter of ``HAUNCH_TOLERANCE``.
 
     The estimate takes the line's moment M in the haunch as about 8·EI_ref/L² times its
     largest ordinate (a line's ordinates are of order M·L²/(8·EI) over a span L), with
@@ -238,7 +242,7 @@ def _haunch_nodes(beam: Beam, index: int, refine: float) -> NDArray[np.float64]:
     slope, curvature = seg.slopes(x)
     g1 = np.abs(slope) / EI**2
     g2 = 2.0 * slope**2 / EI**3 + np.abs(curvature) / EI**2
-    density = refine * (EI_ref * (g2 + 8.0 * g1 / span)
+    density = (EI_ref * (g2 + 8.0 * g1 / span)
                         / (48.0 * span**2 * 0.25 * HAUNCH_TOLERANCE)) ** 0.25
     density = np.maximum(density[:-1], density[1:])  # the worse end of each sample interval
     cumulative = np.concatenate([[0.0], np.cumsum(density * np.diff(u))])
@@ -378,15 +382,13 @@ def assembly_for(beam: Beam, points: NDArray[np.float64] | tuple[float, ...] = (
     return _cached_assembly(beam, key)
 
 
-def line_nodes(beam: Beam, mesh: Mesh, refine: NDArray[np.float64] | None = None,
-               avoid: NDArray[np.float64] = np.zeros(0)
-               ) -> tuple[NDArray[np.float64], NDArray[np.int64]]:
+def line_nodes(beam: Beam, mesh: Mesh, avoid: NDArray[np.float64] | None = None
+               ) -> NDArray[np.float64]:
     """Where lines break: the mesh's nodes plus, inside every varying element, the nodes of
     its segment's division (``haunch_divisions`` equal pieces, or graded by
-    ``_haunch_nodes`` with the segment's factor in ``refine``). A division node closer than
+    ``_haunch_nodes``). A division node closer than
     1e-3 of its spacing to a point of ``avoid`` (a section inside an element, which splits
-    the piece holding it) is left out. Returns the nodes and, for each piece between them,
-    the mesh element it lies in."""
+    the piece holding it) is left out."""
     points = [mesh.x]
     for i, seg in enumerate(beam.stiffness_segments):
         if not seg.varies:
@@ -394,11 +396,11 @@ def line_nodes(beam: Beam, mesh: Mesh, refine: NDArray[np.float64] | None = None
         if beam.haunch_divisions is not None:
             division = np.linspace(seg.x0, seg.x1, int(beam.haunch_divisions) + 1)
         else:
-            division = _haunch_nodes(beam, i, 1.0 if refine is None else float(refine[i]))
+            division = _haunch_nodes(beam, i)
         gap = np.diff(division).min()
         inner = division[1:-1]
         # off the mesh's nodes (supports, hinges inside a haunch) and off the sections
-        for near in (mesh.x, np.asarray(avoid, dtype=float)):
+        for near in (mesh.x, np.zeros(0) if avoid is None else np.asarray(avoid, dtype=float)):
             if near.size and inner.size:
                 sorted_near = np.sort(near)
                 j = np.clip(np.searchsorted(sorted_near, inner), 0, near.size - 1)
@@ -406,10 +408,7 @@ def line_nodes(beam: Beam, mesh: Mesh, refine: NDArray[np.float64] | None = None
                 d = np.minimum(d, np.abs(sorted_near[np.maximum(j - 1, 0)] - inner))
                 inner = inner[d > 1e-3 * gap]
         points.append(inner)
-    x = np.unique(np.concatenate(points))
-    parent = np.clip(np.searchsorted(mesh.x, 0.5 * (x[:-1] + x[1:])) - 1, 0,
-                     len(mesh.x) - 2)
-    return x, parent
+    return np.unique(np.concatenate(points))
 
 
 _INTERIOR_POWERS = ((0, 0), (1, 0), (0, 1), (1, 1))

@@ -5,8 +5,11 @@ E = r·(k_e u_e − q_e(ξ)), where q_e is the consistent load vector of the uni
 With z = K⁻¹ (L_eᵀ k_e r) the line is the Hermite cubic of z in every element, less r in the
 element the effect is read from: the deflected shape of the structure under the unit
 dislocation (kink, slide, lift) that releases the effect. A reaction at a rigid support is the
-shape with that support displaced by one unit. Between nodes the line is exactly cubic, so a
-``scipy.interpolate.PPoly`` with knots at the nodes holds it without approximation.
+shape with that support displaced by one unit. Where EI is constant the line is exactly cubic
+between nodes, so a ``scipy.interpolate.PPoly`` with knots at the nodes holds it without
+approximation. Inside a haunch (EI varying) the nodal values are exact and the line is the
+Hermite cubic of them between closely spaced nodes, within ``fem.HAUNCH_TOLERANCE`` of its
+largest ordinate (checked on every line; see ``line_pieces``).
 """
 
 from __future__ import annotations
@@ -25,7 +28,7 @@ from trundle.core.fem import (
     HAUNCH_TOLERANCE,
     assembly_for,
     hermite_coefficients,
-    interior_values,
+    integrals_of_flexibility,
     inverse_EI_slope_bounds,
     stiffness_between,
 )
@@ -454,22 +457,33 @@ def line_pieces(beam: Beam, effects: Iterable[Effect]) -> LinePieces:
     # where the lines break: the mesh's nodes, and inside a haunch the nodes of its division
     varying = np.array([seg.varies for seg in beam.stiffness_segments])[mesh.element_segment]
     if varying.any():
-        automatic = beam.haunch_divisions is None
-        refine = np.ones(len(beam.stiffness_segments))
+        x = fem_line_nodes(beam, mesh, avoid=inner_data[4] if inner_data is not None
+                           else np.zeros(0))
         for _ in range(_REFINEMENTS):
-            fine = _haunch_lines(beam, mesh, values, inner_data, left, right, refine)
-            if not automatic or (fine[-1] <= 1.0).all():
+            fine = _haunch_lines(beam, mesh, values, inner_data, left, right, x)
+            ratio = fine[-1]
+            if beam.haunch_divisions is not None or (ratio <= 1.0).all():
                 break
-            # the bound falls as h⁴: shrink h by the fourth root of the excess, with a margin
-            worse = fine[-1] > 1.0
-            refine[worse] *= np.maximum(fine[-1][worse] ** 0.25 * 1.1, 1.25)
-        else:
-            where = ", ".join(f"{seg.x0:g}..{seg.x1:g}" for seg, bad in
-                              zip(beam.stiffness_segments, fine[-1] > 1.0, strict=True) if bad)
+            if len(x) > _MAX_LINE_NODES:
+                break
+            # the bound falls as h⁴: split each piece that misses it into enough equal parts
+            parts = np.where(ratio > 1.0, np.ceil(np.maximum(ratio, 1.0) ** 0.25 * 1.1), 1)
+            parts = parts.astype(np.int64)
+            start = np.repeat(x[:-1], parts)
+            step = np.repeat(np.diff(x) / parts, parts)
+            within = np.arange(parts.sum()) - np.repeat(np.cumsum(parts) - parts, parts)
+            x = np.append(start + within * step, x[-1])
+        if beam.haunch_divisions is None and (ratio > 1.0).any():
+            bad = mesh.element_segment[np.clip(np.searchsorted(mesh.x, x[:-1][ratio > 1.0],
+                                                               side="right") - 1, 0,
+                                               n_el - 1)]
+            where = ", ".join(f"{beam.stiffness_segments[i].x0:g}.."
+                              f"{beam.stiffness_segments[i].x1:g}" for i in np.unique(bad))
             raise ModelError(f"EI segment(s) at x = {where}: the influence lines do not reach "
                              f"the relative accuracy {HAUNCH_TOLERANCE:g} with the most pieces "
                              "allowed; set haunch_divisions to choose the count yourself")
-        xc, values, pieces_in, c_in = fine[:4]
+        xc = x
+        values, pieces_in, c_in = fine[:3]
         if inner_data is not None:
             left = np.concatenate([values[pieces_in, :2, inner_data[0]], left[:, 2:]], axis=1)
             right = np.concatenate([right[:, :2], values[pieces_in, 2:, inner_data[0]]], axis=1)
@@ -509,23 +523,31 @@ def line_pieces(beam: Beam, effects: Iterable[Effect]) -> LinePieces:
                       identity, split_at)
 
 
-# how many times line_pieces may refine the line nodes of the haunches before it gives up
+# how many times line_pieces may refine the line nodes of the haunches before it gives up,
+# and the most line nodes it refines to
 _REFINEMENTS = 6
+_MAX_LINE_NODES = 20_000
 
 
 def _haunch_lines(beam: Beam, mesh, values: NDArray[np.float64], inner_data: tuple | None,
                   left: NDArray[np.float64] | None, right: NDArray[np.float64] | None,
-                  refine: NDArray[np.float64]) -> tuple:
-    """The lines on the line nodes of ``fem.line_nodes``: the mesh's nodes and, inside each
-    haunch, its division (sections inside elements are kept off those nodes).
+                  x: NDArray[np.float64]) -> tuple:
+    """The lines on the nodes ``x`` (the mesh's nodes and, inside each haunch, its division;
+    sections inside elements lie off them).
 
-    Returns (nodes, values (n_pieces, 4, n_lines) exact at every node, the piece holding each
-    section inside an element, the section's distance from that piece's start, and per
-    stiffness segment the largest ratio of a line's Hermite error bound to
-    HAUNCH_TOLERANCE × its largest nodal ordinate)."""
+    Returns (values (n_pieces, 4, n_lines) exact at every node, the piece holding each section
+    inside an element, the section's distance from that piece's start, and for every piece
+    the largest ratio of a line's Hermite error bound to HAUNCH_TOLERANCE × its largest nodal
+    ordinate).
+
+    In an unloaded element a line's moment is linear, M = α + β·t (t from the element's left
+    end xa; α, β from its exact end forces), and v'' = −M/EI, so at a node y inside it
+    v(y) = v(xa) + θ(xa)·(y − xa) − α·I01(y) − β·I11(y), θ(y) = θ(xa) − α·I00(y) − β·I10(y),
+    with Ipq(y) = ∫ t^p (y − x)^q / EI over [xa, y], shared by all lines. A line with its
+    section s inside the element has one such moment on each side; right of s the same
+    integrals serve, less their part over [xa, s]."""
     n_lines = values.shape[2]
-    sections = inner_data[4] if inner_data is not None else np.zeros(0)
-    x, parent = fem_line_nodes(beam, mesh, refine, avoid=sections)
+    parent = np.clip(np.searchsorted(mesh.x, 0.5 * (x[:-1] + x[1:])) - 1, 0, len(mesh.x) - 2)
     n_pieces = len(x) - 1
     out = np.empty((n_pieces, 4, n_lines))
     starts_element = x[:-1] == mesh.x[parent]
@@ -534,32 +556,47 @@ def _haunch_lines(beam: Beam, mesh, values: NDArray[np.float64], inner_data: tup
     out[ends_element, 2:] = values[parent[ends_element], 2:]
     inside = np.flatnonzero(~ends_element)  # piece i ends at an inner node, piece i + 1 starts
     element = parent[inside]
-    segment = mesh.element_segment[element]
-    xa, xb = mesh.x[element], mesh.x[element + 1]
-    v, theta = interior_values(beam, segment, xa, xb, values[element], mesh.element_k[element],
-                               x[inside + 1])
+    y = x[inside + 1]
+    xa = mesh.x[element]
+    I = _integrals(beam, mesh.element_segment[element], xa, y)  # (m, 4): I00 I10 I01 I11
+    Q = np.einsum("mij,mjn->min", mesh.element_k[element], values[element])
+    alpha = Q[:, 1]
+    beta = (-Q[:, 3] - alpha) / mesh.lengths[element][:, None]
+    ends = values[element]
+    t = (y - xa)[:, None]
+    v = ends[:, 0] + ends[:, 1] * t - alpha * I[:, 2:3] - beta * I[:, 3:4]
+    theta = ends[:, 1] - alpha * I[:, 0:1] - beta * I[:, 1:2]
     if inner_data is not None:
-        # lines with a section inside a haunch element: a sub-element on each side of it
         lines_in, elements_in, xs = inner_data[0], inner_data[1], inner_data[4]
-        k_left, k_right = inner_data[9], inner_data[10]
-        pair_line, pair_node = [], []
-        for n, e in enumerate(elements_in):
-            nodes = np.flatnonzero(element == e)
-            pair_line.append(np.full(nodes.size, n))
-            pair_node.append(nodes)
-        pair_line = np.concatenate(pair_line)
-        pair_node = np.concatenate(pair_node)
+        pair_line, pair_node = _pairs(element, elements_in)
         if pair_node.size:
-            y = x[inside + 1][pair_node]
-            on_left = y < xs[pair_line]
+            QL = np.einsum("nij,nj->ni", inner_data[9], left)
+            QR = np.einsum("nij,nj->ni", inner_data[10], right)
             e = elements_in[pair_line]
-            start = np.where(on_left, mesh.x[e], xs[pair_line])
-            stop = np.where(on_left, xs[pair_line], mesh.x[e + 1])
-            ends = np.where(on_left[:, None], left[pair_line], right[pair_line])[:, :, None]
-            k = np.where(on_left[:, None, None], k_left[pair_line], k_right[pair_line])
-            sv, st = interior_values(beam, mesh.element_segment[e], start, stop, ends, k, y)
-            v[pair_node, lines_in[pair_line]] = sv[:, 0]
-            theta[pair_node, lines_in[pair_line]] = st[:, 0]
+            s0 = mesh.x[e]
+            section = xs[pair_line]
+            yy = y[pair_node]
+            Iy = I[pair_node]
+            on_left = yy < section
+            # left of the section: the left sub-element's moment, from xa
+            a_l = QL[pair_line, 1]
+            b_l = (-QL[pair_line, 3] - a_l) / (section - s0)
+            lv = left[pair_line]
+            v_left = lv[:, 0] + lv[:, 1] * (yy - s0) - a_l * Iy[:, 2] - b_l * Iy[:, 3]
+            t_left = lv[:, 1] - a_l * Iy[:, 0] - b_l * Iy[:, 1]
+            # right of it: M = α' + β'·t with t from xa; the integrals less their part to s
+            Is = _integrals(beam, mesh.element_segment[elements_in], mesh.x[elements_in],
+                            xs)[pair_line]
+            b_r = (-QR[pair_line, 3] - QR[pair_line, 1]) / (mesh.x[e + 1] - section)
+            a_r = QR[pair_line, 1] - b_r * (section - s0)
+            rv = right[pair_line]
+            d = yy - section
+            v_right = (rv[:, 0] + rv[:, 1] * d
+                       - a_r * (Iy[:, 2] - Is[:, 2] - d * Is[:, 0])
+                       - b_r * (Iy[:, 3] - Is[:, 3] - d * Is[:, 1]))
+            t_right = rv[:, 1] - a_r * (Iy[:, 0] - Is[:, 0]) - b_r * (Iy[:, 1] - Is[:, 1])
+            v[pair_node, lines_in[pair_line]] = np.where(on_left, v_left, v_right)
+            theta[pair_node, lines_in[pair_line]] = np.where(on_left, t_left, t_right)
     out[inside, 2], out[inside, 3] = v, theta
     out[inside + 1, 0], out[inside + 1, 1] = v, theta
 
@@ -567,60 +604,100 @@ def _haunch_lines(beam: Beam, mesh, values: NDArray[np.float64], inner_data: tup
     if inner_data is not None:
         pieces_in = np.searchsorted(x, inner_data[4], side="right") - 1
         c_in = inner_data[4] - x[pieces_in]
-    return x, out, pieces_in, c_in, _haunch_excess(beam, mesh, values, x, parent, out,
-                                                   inner_data, left, right)
+    ratio = _haunch_excess(beam, mesh, values, x, parent, out, inner_data, left, right,
+                           pieces_in, c_in)
+    return out, pieces_in, c_in, ratio
+
+
+_INTEGRAL_POWERS = ((0, 0), (1, 0), (0, 1), (1, 1))
+
+
+def _integrals(beam: Beam, segment: NDArray[np.int64], xa: NDArray[np.float64],
+               y: NDArray[np.float64]) -> NDArray[np.float64]:
+    """(m, 4): ∫ t^p (y − x)^q / EI over [xa, y], t = x − xa, for (p, q) = (0, 0), (1, 0),
+    (0, 1), (1, 1)."""
+    out = np.zeros((len(y), 4))
+    for i in np.unique(segment):
+        rows = np.flatnonzero(segment == i)
+        out[rows] = integrals_of_flexibility(beam.stiffness_segments[int(i)], xa[rows],
+                                             y[rows], _INTEGRAL_POWERS)
+    return out
+
+
+def _pairs(element: NDArray[np.int64], wanted: NDArray[np.int64]
+           ) -> tuple[NDArray[np.int64], NDArray[np.int64]]:
+    """For each entry n of ``wanted``, every index i with element[i] == wanted[n]
+    (``element`` sorted): the pairs (n, i) as two flat arrays."""
+    start = np.searchsorted(element, wanted, side="left")
+    count = np.searchsorted(element, wanted, side="right") - start
+    pair = np.repeat(np.arange(len(wanted)), count)
+    offset = np.arange(count.sum()) - np.repeat(np.cumsum(count) - count, count)
+    return pair, start[pair] + offset
 
 
 def _haunch_excess(beam: Beam, mesh, values: NDArray[np.float64], x: NDArray[np.float64],
                    parent: NDArray[np.int64], fine: NDArray[np.float64],
                    inner_data: tuple | None, left: NDArray[np.float64] | None,
-                   right: NDArray[np.float64] | None) -> NDArray[np.float64]:
-    """Per stiffness segment: the largest (Hermite error bound) / (HAUNCH_TOLERANCE × the
-    line's largest nodal ordinate) over the lines and the pieces in its varying elements.
+                   right: NDArray[np.float64] | None, pieces_in: NDArray[np.int64] | None,
+                   c_in: NDArray[np.float64] | None) -> NDArray[np.float64]:
+    """For every piece between line nodes: the largest ratio, over the lines, of the bound of
+    its Hermite error to HAUNCH_TOLERANCE × the line's largest nodal ordinate (0 where EI is
+    constant: the cubic is exact there).
 
-    In an unloaded element the line's moment is linear, M = α + β(x − xa), from the
-    element's exact end forces; a line with its section inside the element has one such
-    moment on each side, and both are bounded together (the larger |M| and |β|)."""
-    excess = np.zeros(len(beam.stiffness_segments))
+    The bound: with w'' = −M/EI and M linear, w'''' = −(M·g'' + 2·M'·g'), g = 1/EI, and the
+    cubic Hermite interpolant on a piece of length h errs by at most h⁴/384 · max|w''''|
+    (the classical bound, e.g. Burden & Faires, Numerical Analysis, 9th ed., thm 3.9), here
+    ≤ h⁴/384 · (max|M|·max|g''| + 2·|β|·max|g'|) with |M| largest at an end of the piece."""
+    n_pieces = len(x) - 1
+    ratio_out = np.zeros(n_pieces)
     h = np.diff(x)
     g1, g2 = inverse_EI_slope_bounds(beam, mesh.element_segment[parent], x[:-1], x[1:])
     chosen = np.flatnonzero(g2 > 0.0)
     if chosen.size == 0:
-        return excess
+        return ratio_out
     scale = np.abs(fine[:, [0, 2], :]).max(axis=(0, 1))  # (n_lines,)
     if inner_data is not None:
         np.maximum.at(scale, inner_data[0], np.abs(left[:, 2]))
     allowed = HAUNCH_TOLERANCE * scale
     element = parent[chosen]
     Q = np.einsum("mij,mjn->min", mesh.element_k[element], values[element])
-    alpha, at_end = Q[:, 1], -Q[:, 3]
-    beta = (at_end - alpha) / mesh.lengths[element][:, None]
+    alpha = Q[:, 1]
+    beta = (-Q[:, 3] - alpha) / mesh.lengths[element][:, None]
     a = alpha + beta * (x[chosen] - mesh.x[element])[:, None]
     b = alpha + beta * (x[chosen + 1] - mesh.x[element])[:, None]
-    largest = np.maximum(np.abs(a), np.abs(b))
-    steep = np.abs(beta)
+    bound = (h[chosen] ** 4 / 384.0)[:, None] * (np.maximum(np.abs(a), np.abs(b))
+                                                 * g2[chosen, None]
+                                                 + 2.0 * np.abs(beta) * g1[chosen, None])
     if inner_data is not None:
-        lines_in, elements_in = inner_data[0], inner_data[1]
-        k_left, k_right = inner_data[9], inner_data[10]
-        QL = np.einsum("nij,nj->ni", k_left, left)
-        QR = np.einsum("nij,nj->ni", k_right, right)
-        ends = np.abs(np.stack([QL[:, 1], QL[:, 3], QR[:, 1], QR[:, 3]], axis=1)).max(axis=1)
-        c = inner_data[5]
-        slopes = np.maximum(np.abs(QL[:, 1] + QL[:, 3]) / c,
-                            np.abs(QR[:, 1] + QR[:, 3]) / (mesh.lengths[elements_in] - c))
-        rows = np.searchsorted(element, elements_in, side="left")
-        for n in range(len(lines_in)):  # the pieces of the section's element for that line
-            r = rows[n]
-            while r < len(element) and element[r] == elements_in[n]:
-                largest[r, lines_in[n]] = ends[n]
-                steep[r, lines_in[n]] = slopes[n]
-                r += 1
-    bound = (h[chosen] ** 4 / 384.0)[:, None] * (largest * g2[chosen, None]
-                                                 + 2.0 * steep * g1[chosen, None])
+        # a line with its section inside the element: the moment of the side each piece lies
+        # on; the piece holding the section is two cubics, each bounded on its own length
+        lines_in, elements_in, xs = inner_data[0], inner_data[1], inner_data[4]
+        pair_line, pair_row = _pairs(element, elements_in)
+        if pair_row.size:
+            QL = np.einsum("nij,nj->ni", inner_data[9], left)
+            QR = np.einsum("nij,nj->ni", inner_data[10], right)
+            e = elements_in[pair_line]
+            xa, xb, section = mesh.x[e], mesh.x[e + 1], xs[pair_line]
+            beta_l = (-QL[pair_line, 3] - QL[pair_line, 1]) / (section - xa)
+            beta_r = (-QR[pair_line, 3] - QR[pair_line, 1]) / (xb - section)
+            piece = chosen[pair_row]
+            p0, p1 = x[piece], x[piece + 1]
+            end_l = np.minimum(p1, section)
+            start_r = np.maximum(p0, section)
+            m_left = np.maximum(np.abs(QL[pair_line, 1] + beta_l * (p0 - xa)),
+                                np.abs(QL[pair_line, 1] + beta_l * (end_l - xa)))
+            m_right = np.maximum(np.abs(QR[pair_line, 1] + beta_r * (start_r - section)),
+                                 np.abs(QR[pair_line, 1] + beta_r * (p1 - section)))
+            len_l = np.maximum(end_l - p0, 0.0)
+            len_r = np.maximum(p1 - start_r, 0.0)
+            G1, G2 = g1[piece], g2[piece]
+            part_l = len_l**4 / 384.0 * (m_left * G2 + 2.0 * np.abs(beta_l) * G1)
+            part_r = len_r**4 / 384.0 * (m_right * G2 + 2.0 * np.abs(beta_r) * G1)
+            bound[pair_row, lines_in[pair_line]] = np.maximum(part_l, part_r)
     with np.errstate(divide="ignore", invalid="ignore"):
         ratio = np.where(bound > 0.0, bound / allowed[None, :], 0.0)
-    np.maximum.at(excess, mesh.element_segment[element], ratio.max(axis=1))
-    return excess
+    ratio_out[chosen] = ratio.max(axis=1)
+    return ratio_out
 
 
 def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:

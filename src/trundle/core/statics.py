@@ -193,7 +193,7 @@ def solve_static(beam: Beam, loads: Iterable[Load]) -> StaticResult:
     varying = np.array([seg.varies for seg in beam.stiffness_segments])[mesh.element_segment]
     # inside a haunch (one exact element) the deflection is not a polynomial: it is kept as
     # quintic pieces between the nodes its influence lines break at
-    points = [line_nodes(beam, mesh)[0] if varying.any() else xc]
+    points = [line_nodes(beam, mesh) if varying.any() else xc]
     for load in loads:
         points.append([load.x0, load.x1] if isinstance(load, DistributedLoad) else [load.x])
     knots = np.unique(np.clip(np.concatenate(points), 0.0, length))
