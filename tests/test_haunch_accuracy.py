@@ -271,10 +271,13 @@ def test_element_stiffness_against_the_inverted_flexibility() -> None:
     for seg, xa, xb in ((0, 0.5, 3.5), (1, 4.0, 10.0), (1, 9.0, 9.7)):
         EI = beam.stiffness_segments[seg].at
         h = xb - xa
-        f11 = quad(lambda x: ((xb - x) / h) ** 2 / EI(x), xa, xb, epsabs=0, epsrel=1e-13)[0]
-        f22 = quad(lambda x: ((x - xa) / h) ** 2 / EI(x), xa, xb, epsabs=0, epsrel=1e-13)[0]
-        f12 = -quad(lambda x: (x - xa) * (xb - x) / h**2 / EI(x), xa, xb, epsabs=0,
-                    epsrel=1e-13)[0]
+
+        def flexibility(weight, EI=EI, xa=xa, xb=xb):
+            return quad(lambda x: weight(x) / EI(x), xa, xb, epsabs=0, epsrel=1e-13)[0]
+
+        f11 = flexibility(lambda x, xb=xb, h=h: ((xb - x) / h) ** 2)
+        f22 = flexibility(lambda x, xa=xa, h=h: ((x - xa) / h) ** 2)
+        f12 = -flexibility(lambda x, xa=xa, xb=xb, h=h: (x - xa) * (xb - x) / h**2)
         S = np.linalg.inv(np.array([[f11, f12], [f12, f22]]))
         T = np.array([[1 / h, 1, -1 / h, 0], [1 / h, 0, -1 / h, 1]])
         expected = T.T @ S @ T
@@ -307,7 +310,7 @@ def test_fixed_loads_on_a_haunched_beam() -> None:
     assert result.reactions[0] == pytest.approx(w * L_B + 3.0 - prop, rel=1e-11)
     for c in (1.3, 2.7, 3.6, 6.5):
         mc = _cantilever_moment(c)
-        exact = _integral(lambda x: (cantilever_load(x) + prop * (L_B - x)) * mc(x)
+        exact = _integral(lambda x, mc=mc: (cantilever_load(x) + prop * (L_B - x)) * mc(x)
                           / _EI_B(x), 0.0, L_B, [c, 2.7, HAUNCH_B])
         assert result.deflection(c)[0] == pytest.approx(exact, rel=1e-9)
         assert result.moment(c)[0] == pytest.approx(cantilever_load(c) + prop * (L_B - c),

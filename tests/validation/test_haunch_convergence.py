@@ -72,7 +72,7 @@ def test_cantilever_deflection_line_inside_the_haunch() -> None:
     line = _cantilever(None).influence("deflection", at=L)
     largest = tip_flexibility()
     for a in (0.37, 1.5, 2.22, 3.01, 3.9):
-        exact = _quad(lambda s: (L - s) * (a - s) / parabolic_EI(s), 0.0, a)
+        exact = _quad(lambda s, a=a: (L - s) * (a - s) / parabolic_EI(s), 0.0, a)
         assert abs(line(a) - exact) <= 1e-8 * largest
 
 
