@@ -559,9 +559,7 @@ def _haunch_lines(beam: Beam, mesh, values: NDArray[np.float64], inner_data: tup
     y = x[inside + 1]
     xa = mesh.x[element]
     I = _integrals(beam, mesh.element_segment[element], xa, y)  # (m, 4): I00 I10 I01 I11
-    Q = np.einsum("mij,mjn->min", mesh.element_k[element], values[element])
-    alpha = Q[:, 1]
-    beta = (-Q[:, 3] - alpha) / mesh.lengths[element][:, None]
+    alpha, beta = _linear_moment(mesh, values, element)
     ends = values[element]
     t = (y - xa)[:, None]
     v = ends[:, 0] + ends[:, 1] * t - alpha * I[:, 2:3] - beta * I[:, 3:4]
@@ -655,19 +653,22 @@ def _haunch_excess(beam: Beam, mesh, values: NDArray[np.float64], x: NDArray[np.
     chosen = np.flatnonzero(g2 > 0.0)
     if chosen.size == 0:
         return ratio_out
-    scale = np.abs(fine[:, [0, 2], :]).max(axis=(0, 1))  # (n_lines,)
+    scale = np.maximum(np.abs(fine[:, 0]).max(axis=0), np.abs(fine[:, 2]).max(axis=0))
     if inner_data is not None:
         np.maximum.at(scale, inner_data[0], np.abs(left[:, 2]))
     allowed = HAUNCH_TOLERANCE * scale
     element = parent[chosen]
-    Q = np.einsum("mij,mjn->min", mesh.element_k[element], values[element])
-    alpha = Q[:, 1]
-    beta = (-Q[:, 3] - alpha) / mesh.lengths[element][:, None]
+    alpha, beta = _linear_moment(mesh, values, element)
     a = alpha + beta * (x[chosen] - mesh.x[element])[:, None]
     b = alpha + beta * (x[chosen + 1] - mesh.x[element])[:, None]
-    bound = (h[chosen] ** 4 / 384.0)[:, None] * (np.maximum(np.abs(a), np.abs(b))
-                                                 * g2[chosen, None]
-                                                 + 2.0 * np.abs(beta) * g1[chosen, None])
+    np.abs(a, out=a)
+    np.abs(b, out=b)
+    np.maximum(a, b, out=a)
+    a *= (h[chosen] ** 4 / 384.0 * g2[chosen])[:, None]
+    np.abs(beta, out=beta)
+    beta *= (h[chosen] ** 4 / 192.0 * g1[chosen])[:, None]
+    bound = a
+    bound += beta
     if inner_data is not None:
         # a line with its section inside the element: the moment of the side each piece lies
         # on; the piece holding the section is two cubics, each bounded on its own length
@@ -694,10 +695,23 @@ def _haunch_excess(beam: Beam, mesh, values: NDArray[np.float64], x: NDArray[np.
             part_l = len_l**4 / 384.0 * (m_left * G2 + 2.0 * np.abs(beta_l) * G1)
             part_r = len_r**4 / 384.0 * (m_right * G2 + 2.0 * np.abs(beta_r) * G1)
             bound[pair_row, lines_in[pair_line]] = np.maximum(part_l, part_r)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        ratio = np.where(bound > 0.0, bound / allowed[None, :], 0.0)
-    ratio_out[chosen] = ratio.max(axis=1)
+    # a line that is zero at every node is zero: nothing to bound
+    inverse = np.divide(1.0, allowed, out=np.zeros_like(allowed), where=allowed > 0.0)
+    bound *= inverse[None, :]
+    ratio_out[chosen] = bound.max(axis=1)
     return ratio_out
+
+
+def _linear_moment(mesh, values: NDArray[np.float64], element: NDArray[np.int64]
+                   ) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
+    """The linear moment M = α + β·(x − xa) of every line in each of ``element`` (repeats
+    allowed; each distinct element is worked out once) from its exact end forces:
+    α = Q_θ1, α + β·h = −Q_θ2."""
+    distinct, where = np.unique(element, return_inverse=True)
+    Q = np.matmul(mesh.element_k[distinct], values[distinct])  # (d, 4, n_lines)
+    alpha = Q[:, 1]
+    beta = (-Q[:, 3] - alpha) / mesh.lengths[distinct][:, None]
+    return alpha[where], beta[where]
 
 
 def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
