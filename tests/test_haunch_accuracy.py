@@ -315,3 +315,31 @@ def test_fixed_loads_on_a_haunched_beam() -> None:
         assert result.deflection(c)[0] == pytest.approx(exact, rel=1e-9)
         assert result.moment(c)[0] == pytest.approx(cantilever_load(c) + prop * (L_B - c),
                                                     rel=1e-11)
+
+
+def test_a_hinge_inside_a_haunch() -> None:
+    """Fixed at 0, hinge at 3 inside the parabolic haunch 0..4, pin at 10 (statically
+    determinate, so statics and the unit-load method give the reference directly): the part
+    3..10 is simply supported on the hinge and the pin, the part 0..3 a cantilever carrying
+    the hinge force V_h = (10 − a)/7 for a load at a ≥ 3."""
+    beam = trundle.Beam(spans=[L_B], supports=["fixed", "pin"], hinges=[3.0], EI=SEGMENTS_B)
+
+    def cantilever_deflection(c: float, a: float) -> float:  # at c, unit load at a (≤ 3)
+        return _integral(lambda x: (c - x) * (a - x) / _EI_B(x), 0.0, min(a, c), [])
+
+    def hinge_force(a: float) -> float:
+        return (L_B - a) / 7.0 if a >= 3.0 else 0.0
+
+    def deflection(c: float, a: float) -> float:
+        if a <= 3.0:
+            return cantilever_deflection(c, a)
+        return hinge_force(a) * cantilever_deflection(c, 3.0)
+
+    prop = beam.influence("reaction", support=1)
+    for a in (1.0, 3.0, 3.5, 6.2, 9.0):
+        assert prop(a) == pytest.approx((a - 3.0) / 7.0 if a > 3.0 else 0.0, abs=1e-12)
+    for c in (1.6, 3.0):
+        line = beam.influence("deflection", at=c)
+        scale = _largest(line)
+        for a in (0.4, 1.6, 2.35, 2.99, 3.0, 3.7, 5.0, 8.8):
+            assert abs(line(a) - deflection(c, a)) <= HAUNCH_TOLERANCE * scale, (c, a)

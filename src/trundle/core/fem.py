@@ -36,8 +36,10 @@ from trundle.core.beam import Beam, ModelError, Spring, StiffnessSegment
 # what a haunch is analysed to: every influence line within this fraction of its largest
 # ordinate (relative to the exact varying-stiffness beam)
 HAUNCH_TOLERANCE = 1e-8
-# the most elements one varying segment may be cut into when chosen automatically
+# the most elements one varying segment may be cut into when chosen automatically, and the
+# most nodes the lines of a whole beam may break at (bounded memory: lines × pieces)
 MAX_AUTO_DIVISIONS = 4000
+MAX_LINE_NODES = 20_001
 
 
 @dataclass(frozen=True, eq=False)
@@ -408,7 +410,13 @@ def line_nodes(beam: Beam, mesh: Mesh, avoid: NDArray[np.float64] | None = None
                 d = np.minimum(d, np.abs(sorted_near[np.maximum(j - 1, 0)] - inner))
                 inner = inner[d > 1e-3 * gap]
         points.append(inner)
-    return np.unique(np.concatenate(points))
+    x = np.unique(np.concatenate(points))
+    if len(x) > MAX_LINE_NODES:
+        raise ModelError(f"EI segments: the haunches need {len(x) - 1:,} pieces for the "
+                         f"accuracy {HAUNCH_TOLERANCE:g} of the lines, more than the "
+                         f"{MAX_LINE_NODES - 1:,} allowed; make the haunches gentler or set "
+                         "haunch_divisions to choose the count yourself")
+    return x
 
 
 _INTERIOR_POWERS = ((0, 0), (1, 0), (0, 1), (1, 1))

@@ -26,6 +26,7 @@ from trundle.core._repr import html_table, short
 from trundle.core.beam import Beam, ModelError, Spring
 from trundle.core.fem import (
     HAUNCH_TOLERANCE,
+    MAX_LINE_NODES,
     assembly_for,
     hermite_coefficients,
     integrals_of_flexibility,
@@ -164,8 +165,9 @@ class InfluenceLine:
                 ["area where positive", short(positive), ""],
                 ["area where negative", short(negative), ""]]
         return html_table(f"Influence line: {self.effect.label}", ["", "value", "x"], rows,
-                          f"exact piecewise cubic, {len(self.knots) - 1} pieces; a unit "
-                          "downward load at x")
+                          f"piecewise cubic, {len(self.knots) - 1} pieces, exact (within "
+                          "1e-8 of the largest ordinate inside a haunch); a unit downward "
+                          "load at x")
 
 
 class InfluenceSet:
@@ -464,7 +466,7 @@ def line_pieces(beam: Beam, effects: Iterable[Effect]) -> LinePieces:
             ratio = fine[-1]
             if beam.haunch_divisions is not None or (ratio <= 1.0).all():
                 break
-            if len(x) > _MAX_LINE_NODES:
+            if len(x) > MAX_LINE_NODES:
                 break
             # the bound falls as h⁴: split each piece that misses it into enough equal parts
             parts = np.where(ratio > 1.0, np.ceil(np.maximum(ratio, 1.0) ** 0.25 * 1.1), 1)
@@ -523,10 +525,8 @@ def line_pieces(beam: Beam, effects: Iterable[Effect]) -> LinePieces:
                       identity, split_at)
 
 
-# how many times line_pieces may refine the line nodes of the haunches before it gives up,
-# and the most line nodes it refines to
+# how many times line_pieces may refine the line nodes of the haunches before it gives up
 _REFINEMENTS = 6
-_MAX_LINE_NODES = 20_000
 
 
 def _haunch_lines(beam: Beam, mesh, values: NDArray[np.float64], inner_data: tuple | None,
