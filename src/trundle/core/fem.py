@@ -214,6 +214,7 @@ def inverse_EI_slope_bounds(beam: Beam, segment: NDArray[np.int64], xa: NDArray[
     return g1, g2
 
 
+@lru_cache(maxsize=256)
 def _haunch_nodes(beam: Beam, index: int) -> NDArray[np.float64]:
     """Nodes of a varying segment graded so that an a priori estimate of the Hermite error
     stays below a quarter of ``HAUNCH_TOLERANCE``.
@@ -251,6 +252,7 @@ def _haunch_nodes(beam: Beam, index: int) -> NDArray[np.float64]:
     count = int(min(max(np.ceil(cumulative[-1]), 1), MAX_AUTO_DIVISIONS))
     nodes = seg.x0 + np.interp(np.linspace(0.0, cumulative[-1], count + 1), cumulative, u)
     nodes[0], nodes[-1] = seg.x0, seg.x1
+    nodes.flags.writeable = False  # cached: shared by every call for this beam
     return nodes
 
 

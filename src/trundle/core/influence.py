@@ -16,6 +16,7 @@ from __future__ import annotations
 
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
+from functools import lru_cache
 from typing import Literal
 
 import numpy as np
@@ -558,7 +559,7 @@ def _haunch_lines(beam: Beam, mesh, values: NDArray[np.float64], inner_data: tup
     element = parent[inside]
     y = x[inside + 1]
     xa = mesh.x[element]
-    I = _integrals(beam, mesh.element_segment[element], xa, y)  # (m, 4): I00 I10 I01 I11
+    I = _node_integrals(beam, x.tobytes())  # (m, 4): I00 I10 I01 I11 at the inner nodes
     alpha, beta = _linear_moment(mesh, values, element)
     ends = values[element]
     t = (y - xa)[:, None]
@@ -608,6 +609,20 @@ def _haunch_lines(beam: Beam, mesh, values: NDArray[np.float64], inner_data: tup
 
 
 _INTEGRAL_POWERS = ((0, 0), (1, 0), (0, 1), (1, 1))
+
+
+@lru_cache(maxsize=64)
+def _node_integrals(beam: Beam, nodes: bytes) -> NDArray[np.float64]:
+    """``_integrals`` at every line node inside a mesh element, from that element's left end
+    (the same nodes serve every call on a beam unless its sections move them: cached)."""
+    mesh = assembly_for(beam, ()).mesh
+    x = np.frombuffer(nodes, dtype=np.float64)
+    parent = np.clip(np.searchsorted(mesh.x, 0.5 * (x[:-1] + x[1:])) - 1, 0, len(mesh.x) - 2)
+    inside = np.flatnonzero(x[1:] != mesh.x[parent + 1])
+    element = parent[inside]
+    out = _integrals(beam, mesh.element_segment[element], mesh.x[element], x[inside + 1])
+    out.flags.writeable = False
+    return out
 
 
 def _integrals(beam: Beam, segment: NDArray[np.int64], xa: NDArray[np.float64],
