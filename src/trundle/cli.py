@@ -231,7 +231,8 @@ def lines_command(model_file: str, effects: tuple[str, ...], positions: tuple[st
     """Influence lines of a model: ordinates, extremes, CSV, JSON and a figure.
 
     An influence line gives an effect at a fixed section (or support) for a unit downward
-    load standing at x; the lines are exact piecewise cubics. Signs: moment positive
+    load standing at x; the lines are exact piecewise cubics (inside a haunch: within 1e-8
+    of the line's largest ordinate). Signs: moment positive
     sagging, shear = upward resultant left of the section, reactions positive upward,
     deflection positive downward.
 

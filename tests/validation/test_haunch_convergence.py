@@ -1,10 +1,10 @@
-"""Haunched (varying-EI) members: convergence of the piecewise-constant subdivision.
+"""Haunched (varying-EI) members against closed forms and the unit-load method.
 
-Source: the unit-load (virtual work) method, δ = ∫ M·m / EI dx, integrated for the exact
-varying EI by scipy.integrate.quad and, for a linear haunch, by sympy in closed form
-(common practice, no source). The subdivision takes EI at each element's middle, a midpoint
-rule, so the error must fall as h²: about four times smaller each time the number of
-divisions doubles.
+Source: the unit-load (virtual work) method, δ = ∫ M·m / EI dx (common practice, no source),
+integrated for the exact varying EI by scipy.integrate.quad and, for linear EI, by sympy in
+closed form (logarithms). trundle's haunch element has the exact varying stiffness, so an
+ordinate at a node is exact to rounding for any division, and between nodes the line is
+within HAUNCH_TOLERANCE (1e-8) of its largest ordinate.
 """
 
 from __future__ import annotations
@@ -54,30 +54,49 @@ def test_segment_shape_is_the_intended_parabola() -> None:
     assert segment.at(s) == pytest.approx([parabolic_EI(v) for v in s], rel=1e-14)
 
 
-def test_cantilever_tip_deflection_converges_as_h_squared() -> None:
+def test_cantilever_tip_deflection_is_exact_for_any_division() -> None:
     exact = tip_flexibility()
-    counts = [4, 8, 16, 32, 64]
-    errors = []
-    for n in counts:
+    for n in (1, 2, 8, None):
         beam = _cantilever(n)
         tip = beam.influence("deflection", at=L)(L)
-        # the static solve on the same mesh gives the same number
-        assert beam.static([PointLoad(L, 1.0)]).deflection(L)[0] == pytest.approx(tip,
-                                                                                   rel=1e-12)
-        errors.append(tip - exact)
-    errors = np.array(errors)
-    ratios = errors[:-1] / errors[1:]
-    assert ratios == pytest.approx(4.0, rel=0.05)  # h²
-    assert abs(errors[-1]) / exact < 1e-4
-    # the midpoint rule on the convex 1/EI underestimates the flexibility: same sign throughout
-    assert np.all(np.sign(errors) == np.sign(errors[0]))
+        assert tip == pytest.approx(exact, rel=1e-12)
+        # the static solve gives the same number
+        assert beam.static([PointLoad(L, 1.0)]).deflection(L)[0] == pytest.approx(exact,
+                                                                                  rel=1e-12)
 
 
-def test_default_divisions_are_close_enough() -> None:
-    """The default subdivision (24) is within 0.05 % of the exact tip deflection."""
-    beam = trundle.Beam(spans=[L], supports=["fixed", "free"],
-                        EI=[(0.0, HAUNCH, EI_WALL, EI_SPAN, "parabolic"), (HAUNCH, L, EI_SPAN)])
-    assert beam.influence("deflection", at=L)(L) == pytest.approx(tip_flexibility(), rel=5e-4)
+def test_cantilever_deflection_line_inside_the_haunch() -> None:
+    """Tip deflection for a unit load at a inside the haunch (Maxwell: the deflection at a
+    under a tip load), ∫ (L − s)(a − s)/EI over [0, a], within 1e-8 of the line's largest
+    ordinate (the tip's own)."""
+    line = _cantilever(None).influence("deflection", at=L)
+    largest = tip_flexibility()
+    for a in (0.37, 1.5, 2.22, 3.01, 3.9):
+        exact = _quad(lambda s, a=a: (L - s) * (a - s) / parabolic_EI(s), 0.0, a)
+        assert abs(line(a) - exact) <= 1e-8 * largest
+
+
+def test_linear_taper_cantilever_closed_form() -> None:
+    """A cantilever whose EI falls linearly from EI0 at the wall to EI1 at the tip: tip
+    deflection ∫ (L − x)²/EI(x) dx and tip rotation ∫ (L − x)/EI(x) dx under a unit tip load,
+    in closed form by sympy."""
+    x = sp.Symbol("x", positive=True)
+    Ls, EI0, EI1 = sp.Integer(8), sp.Integer(5), sp.Integer(1)
+    EI = EI0 + (EI1 - EI0) * x / Ls
+    deflection = sp.integrate((Ls - x) ** 2 / EI, (x, 0, Ls))
+    rotation = sp.integrate((Ls - x) / EI, (x, 0, Ls))
+    assert deflection.has(sp.log)  # a true closed form, not a polynomial
+    beam = trundle.Beam(spans=[8.0], supports=["fixed", "free"], EI=[(0.0, 8.0, 5.0, 1.0)])
+    tip = float(sp.N(deflection, 30))
+    assert beam.influence("deflection", at=8.0)(8.0) == pytest.approx(tip, rel=1e-12)
+    assert beam.static([PointLoad(8.0, 1.0)]).rotation(8.0)[0] == pytest.approx(
+        float(sp.N(rotation, 30)), rel=1e-12)
+    # the deflection at mid-length under the tip load, ∫ (L − x)(L/2 − x)/EI over [0, L/2]
+    middle = float(sp.N(sp.integrate((Ls - x) * (Ls / 2 - x) / EI, (x, 0, Ls / 2)), 30))
+    assert beam.static([PointLoad(8.0, 1.0)]).deflection(4.0)[0] == pytest.approx(middle,
+                                                                                 rel=1e-12)
+    line = beam.influence("deflection", at=8.0)
+    assert abs(line(4.0) - middle) <= 1e-8 * tip
 
 
 # --- an indeterminate haunched beam: propped cantilever with a linear haunch -----------------
@@ -106,18 +125,16 @@ def prop_reaction(xi: float) -> float:
     return float(sp.N(coupling / flex, 20))
 
 
-def test_propped_cantilever_with_linear_haunch_converges() -> None:
-    positions = [1.5, 5.0, 8.5]
+def test_propped_cantilever_with_linear_haunch() -> None:
+    positions = [1.5, 3.0, 5.0, 8.5]
     exact = np.array([prop_reaction(p) for p in positions])
-    counts = [6, 12, 24, 48]
-    errors = []
-    for n in counts:
-        line = _propped(n).influence("reaction", support=1)
-        errors.append(line(np.array(positions)) - exact)
-    errors = np.array(errors)
-    worst = np.abs(errors).max(axis=1)
-    assert worst[:-1] / worst[1:] == pytest.approx(4.0, rel=0.1)  # h²
-    assert worst[-1] < 2e-5 * np.abs(exact).max()
+    line = _propped(None).influence("reaction", support=1)
+    # the prop line's largest ordinate is 1 (a load on the prop)
+    assert np.abs(line(np.array(positions)) - exact).max() <= 1e-8
+    # at the haunch's end (a node) exact to rounding, whatever the division
+    for n in (1, 5, None):
+        assert _propped(n).influence("reaction", support=1)(3.0) == pytest.approx(
+            prop_reaction(3.0), rel=1e-12)
     # sanity: without the haunch the prop line is ξ²(3L − ξ)/(2L³); the stiff wall end draws
     # load to the wall, so the prop gets less
     prismatic = np.array([p**2 * (3 * L - p) / (2 * L**3) for p in positions])

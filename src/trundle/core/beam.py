@@ -75,6 +75,33 @@ class StiffnessSegment:
     def varies(self) -> bool:
         return self.shape != "constant" and self.EI0 != self.EI1
 
+    def slopes(self, x: NDArray[np.float64]) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
+        """(dEI/dx, d²EI/dx²) at x: what the accuracy of a haunch depends on."""
+        x = np.asarray(x, dtype=float)
+        span = self.x1 - self.x0
+        rise = self.EI1 - self.EI0
+        if not self.varies:
+            return np.zeros_like(x), np.zeros_like(x)
+        if self.shape == "linear":
+            return np.full_like(x, rise / span), np.zeros_like(x)
+        t = (x - self.x0) / span
+        if self.EI0 <= self.EI1:  # vertex at x0
+            return 2.0 * rise * t / span, np.full_like(x, 2.0 * rise / span**2)
+        return 2.0 * rise * (1.0 - t) / span, np.full_like(x, -2.0 * rise / span**2)
+
+    def zeros(self) -> NDArray[np.complex128]:
+        """Where the polynomial EI(x) of the segment, continued beyond it, is zero (complex
+        for a parabola): the poles of 1/EI that limit how fast quadrature converges."""
+        span = self.x1 - self.x0
+        if not self.varies:
+            return np.zeros(0, dtype=complex)
+        if self.shape == "linear":
+            return np.array([self.x0 - self.EI0 * span / (self.EI1 - self.EI0)], dtype=complex)
+        low, high = min(self.EI0, self.EI1), max(self.EI0, self.EI1)
+        vertex = self.x0 if self.EI0 <= self.EI1 else self.x1
+        offset = span * np.sqrt(low / (high - low))
+        return np.array([vertex + 1j * offset, vertex - 1j * offset])
+
 
 def _as_segments(EI: Any, length: float) -> tuple[StiffnessSegment, ...]:
     if not isinstance(EI, list | tuple | np.ndarray):
@@ -145,15 +172,19 @@ class Beam:
         One per span end (``len(spans) + 1``). Default: all pins.
     hinges : sequence of float [length]
         Positions of internal moment releases; a hinge may stand over a support.
-    haunch_divisions : int
-        Elements used for each varying-EI segment (piecewise-constant approximation).
+    haunch_divisions : int or None
+        ``None`` (the default): each varying-EI segment is cut into as many exact
+        varying-stiffness elements as make every influence line within 1e-8 of its largest
+        ordinate (chosen from the shape of EI and checked on the lines built; see
+        ``trundle.core.fem``). An int: exactly that many elements per varying segment, with no
+        accuracy control (an explicit override).
     """
 
     spans: tuple[float, ...]
     EI: Any = 1.0
     supports: tuple[SupportKind | Spring, ...] | None = None
     hinges: tuple[float, ...] = ()
-    haunch_divisions: int = 24
+    haunch_divisions: int | None = None
     stiffness_segments: tuple[StiffnessSegment, ...] = field(init=False, repr=False)
 
     def __post_init__(self) -> None:
@@ -188,8 +219,9 @@ class Beam:
         if any(b - a <= tol for a, b in zip(hinges, hinges[1:], strict=False)):
             raise ModelError("hinges: two hinges at the same position")
         object.__setattr__(self, "hinges", hinges)
-        if int(self.haunch_divisions) < 1:
-            raise ModelError("haunch_divisions must be at least 1")
+        if self.haunch_divisions is not None and int(self.haunch_divisions) < 1:
+            raise ModelError("haunch_divisions must be at least 1 (or None: chosen for 1e-8 "
+                             "accuracy)")
         object.__setattr__(self, "stiffness_segments", _as_segments(self.EI, length))
         for i, s in enumerate(supports):
             xs = self.support_positions[i]

@@ -5,14 +5,18 @@ E = r·(k_e u_e − q_e(ξ)), where q_e is the consistent load vector of the uni
 With z = K⁻¹ (L_eᵀ k_e r) the line is the Hermite cubic of z in every element, less r in the
 element the effect is read from: the deflected shape of the structure under the unit
 dislocation (kink, slide, lift) that releases the effect. A reaction at a rigid support is the
-shape with that support displaced by one unit. Between nodes the line is exactly cubic, so a
-``scipy.interpolate.PPoly`` with knots at the nodes holds it without approximation.
+shape with that support displaced by one unit. Where EI is constant the line is exactly cubic
+between nodes, so a ``scipy.interpolate.PPoly`` with knots at the nodes holds it without
+approximation. Inside a haunch (EI varying) the nodal values are exact and the line is the
+Hermite cubic of them between closely spaced nodes, within ``fem.HAUNCH_TOLERANCE`` of its
+largest ordinate (checked on every line; see ``line_pieces``).
 """
 
 from __future__ import annotations
 
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
+from functools import lru_cache
 from typing import Literal
 
 import numpy as np
@@ -21,7 +25,16 @@ from scipy.interpolate import PPoly
 
 from trundle.core._repr import html_table, short
 from trundle.core.beam import Beam, ModelError, Spring
-from trundle.core.fem import assembly_for, element_stiffness, hermite_coefficients
+from trundle.core.fem import (
+    HAUNCH_TOLERANCE,
+    MAX_LINE_NODES,
+    assembly_for,
+    hermite_coefficients,
+    integrals_of_flexibility,
+    inverse_EI_slope_bounds,
+    stiffness_between,
+)
+from trundle.core.fem import line_nodes as fem_line_nodes
 
 EFFECT_KINDS = ("reaction", "support_moment", "moment", "shear", "deflection", "rotation")
 # what each effect measures, for labels and unit lookup
@@ -153,8 +166,9 @@ class InfluenceLine:
                 ["area where positive", short(positive), ""],
                 ["area where negative", short(negative), ""]]
         return html_table(f"Influence line: {self.effect.label}", ["", "value", "x"], rows,
-                          f"exact piecewise cubic, {len(self.knots) - 1} pieces; a unit "
-                          "downward load at x")
+                          f"piecewise cubic, {len(self.knots) - 1} pieces, exact (within "
+                          "1e-8 of the largest ordinate inside a haunch); a unit downward "
+                          "load at x")
 
 
 class InfluenceSet:
@@ -315,6 +329,15 @@ def line_pieces(beam: Beam, effects: Iterable[Effect]) -> LinePieces:
     an element splits it into two sub-elements whose shared node is condensed out exactly: the
     adjoint load of the section enters the element's end dofs, and the section's own
     deflection and rotation are recovered from the end values afterwards.
+
+    Haunches: a varying-EI element has its exact stiffness (``fem.stiffness_between``), so
+    every nodal value is exact; inside it the line breaks at the nodes of ``fem.line_nodes``,
+    where its exact values are recovered from the element's end values
+    (``fem.interior_values``), and it is the Hermite cubic of those values between them. With
+    ``beam.haunch_divisions`` None every line is checked against the bound of
+    ``fem.hermite_error_bound`` and must stay within ``HAUNCH_TOLERANCE`` of the largest of its
+    nodal ordinates; a segment where some line misses it gets finer line nodes (the bound
+    falls as h⁴), without solving again.
     """
     effects = _as_effects(effects)
     length = beam.length
@@ -329,7 +352,7 @@ def line_pieces(beam: Beam, effects: Iterable[Effect]) -> LinePieces:
     xc = mesh.x
     h = mesh.lengths
     n_el = len(h)
-    k_el = element_stiffness(mesh.element_EI, h)
+    k_el = mesh.element_k
     n_lines = len(effects)
 
     rhs = np.zeros((asm.free.size, n_lines))
@@ -412,7 +435,7 @@ def line_pieces(beam: Beam, effects: Iterable[Effect]) -> LinePieces:
         add_element_load(j, element, k_el[element] @ r)
         recovery.append((j, element, r))
 
-    inner_data = _condense_inner_sections(inner, mesh, h)
+    inner_data = _condense_inner_sections(inner, beam, mesh, h)
     if inner_data is not None:
         lines_in, elements_in, dofs_in, loads_in = inner_data[:4]
         for k in range(4):
@@ -427,6 +450,50 @@ def line_pieces(beam: Beam, effects: Iterable[Effect]) -> LinePieces:
         values[element, :, j] -= r
     if zero_lines:
         values[:, :, zero_lines] = 0.0
+    left = right = None
+    if inner_data is not None:
+        left, right = _inner_values(values, inner_data)
+        if zero_lines:
+            gone = np.isin(inner_data[0], zero_lines)
+            left[gone] = right[gone] = 0.0
+
+    # where the lines break: the mesh's nodes, and inside a haunch the nodes of its division
+    varying = np.array([seg.varies for seg in beam.stiffness_segments])[mesh.element_segment]
+    if varying.any():
+        x = fem_line_nodes(beam, mesh, avoid=inner_data[4] if inner_data is not None
+                           else np.zeros(0))
+        for _ in range(_REFINEMENTS):
+            fine = _haunch_lines(beam, mesh, values, inner_data, left, right, x)
+            ratio = fine[-1]
+            if beam.haunch_divisions is not None or (ratio <= 1.0).all():
+                break
+            if len(x) > MAX_LINE_NODES:
+                break
+            # the bound falls as h⁴: split each piece that misses it into enough equal parts
+            parts = np.where(ratio > 1.0, np.ceil(np.maximum(ratio, 1.0) ** 0.25 * 1.1), 1)
+            parts = parts.astype(np.int64)
+            start = np.repeat(x[:-1], parts)
+            step = np.repeat(np.diff(x) / parts, parts)
+            within = np.arange(parts.sum()) - np.repeat(np.cumsum(parts) - parts, parts)
+            x = np.append(start + within * step, x[-1])
+        if beam.haunch_divisions is None and (ratio > 1.0).any():
+            bad = mesh.element_segment[np.clip(np.searchsorted(mesh.x, x[:-1][ratio > 1.0],
+                                                               side="right") - 1, 0,
+                                               n_el - 1)]
+            where = ", ".join(f"{beam.stiffness_segments[i].x0:g}.."
+                              f"{beam.stiffness_segments[i].x1:g}" for i in np.unique(bad))
+            raise ModelError(f"EI segment(s) at x = {where}: the influence lines do not reach "
+                             f"the relative accuracy {HAUNCH_TOLERANCE:g} with the most pieces "
+                             "allowed; set haunch_divisions to choose the count yourself")
+        xc = x
+        values, pieces_in, c_in = fine[:3]
+        if inner_data is not None:
+            left = np.concatenate([values[pieces_in, :2, inner_data[0]], left[:, 2:]], axis=1)
+            right = np.concatenate([right[:, :2], values[pieces_in, 2:, inner_data[0]]], axis=1)
+    elif inner_data is not None:
+        pieces_in, c_in = inner_data[1], inner_data[5]
+    h = np.diff(xc)
+    n_el = len(h)
     coarse = hermite_coefficients(values, h)  # (4, n_el, n_lines)
 
     # every line on the structural pieces; a padding piece of zero width at the end
@@ -439,9 +506,10 @@ def line_pieces(beam: Beam, effects: Iterable[Effect]) -> LinePieces:
     sections = np.zeros(0)
     split_at = np.full(n_lines, -1, dtype=np.int64)
     if inner_data is not None:
-        lines_in, elements_in = inner_data[0], inner_data[1]
+        lines_in, elements_in = inner_data[0], pieces_in
         sections = inner_data[4]
-        left_coef, right_coef = _inner_pieces(values, h, inner_data)
+        left_coef = hermite_coefficients(left, c_in)
+        right_coef = hermite_coefficients(right, h[elements_in] - c_in)
         # the element of the section splits: pieces after it move one place along
         piece = np.arange(n_el + 1)
         source = np.where(piece[None, :] <= elements_in[:, None], piece, piece - 1)
@@ -456,6 +524,209 @@ def line_pieces(beam: Beam, effects: Iterable[Effect]) -> LinePieces:
         split_at[lines_in] = elements_in + 1
     return LinePieces(knots, n_pieces, coefficients, tuple(effects), xc.copy(), sections,
                       identity, split_at)
+
+
+# how many times line_pieces may refine the line nodes of the haunches before it gives up
+_REFINEMENTS = 6
+
+
+def _haunch_lines(beam: Beam, mesh, values: NDArray[np.float64], inner_data: tuple | None,
+                  left: NDArray[np.float64] | None, right: NDArray[np.float64] | None,
+                  x: NDArray[np.float64]) -> tuple:
+    """The lines on the nodes ``x`` (the mesh's nodes and, inside each haunch, its division;
+    sections inside elements lie off them).
+
+    Returns (values (n_pieces, 4, n_lines) exact at every node, the piece holding each section
+    inside an element, the section's distance from that piece's start, and for every piece
+    the largest ratio of a line's Hermite error bound to HAUNCH_TOLERANCE × its largest nodal
+    ordinate).
+
+    In an unloaded element a line's moment is linear, M = α + β·t (t from the element's left
+    end xa; α, β from its exact end forces), and v'' = −M/EI, so at a node y inside it
+    v(y) = v(xa) + θ(xa)·(y − xa) − α·I01(y) − β·I11(y), θ(y) = θ(xa) − α·I00(y) − β·I10(y),
+    with Ipq(y) = ∫ t^p (y − x)^q / EI over [xa, y], shared by all lines. A line with its
+    section s inside the element has one such moment on each side; right of s the same
+    integrals serve, less their part over [xa, s]."""
+    n_lines = values.shape[2]
+    parent = np.clip(np.searchsorted(mesh.x, 0.5 * (x[:-1] + x[1:])) - 1, 0, len(mesh.x) - 2)
+    n_pieces = len(x) - 1
+    out = np.empty((n_pieces, 4, n_lines))
+    starts_element = x[:-1] == mesh.x[parent]
+    ends_element = x[1:] == mesh.x[parent + 1]
+    out[starts_element, :2] = values[parent[starts_element], :2]
+    out[ends_element, 2:] = values[parent[ends_element], 2:]
+    inside = np.flatnonzero(~ends_element)  # piece i ends at an inner node, piece i + 1 starts
+    element = parent[inside]
+    y = x[inside + 1]
+    xa = mesh.x[element]
+    I = _node_integrals(beam, x.tobytes())  # (m, 4): I00 I10 I01 I11 at the inner nodes
+    alpha, beta = _linear_moment(mesh, values, element)
+    ends = values[element]
+    t = (y - xa)[:, None]
+    v = ends[:, 0] + ends[:, 1] * t - alpha * I[:, 2:3] - beta * I[:, 3:4]
+    theta = ends[:, 1] - alpha * I[:, 0:1] - beta * I[:, 1:2]
+    if inner_data is not None:
+        lines_in, elements_in, xs = inner_data[0], inner_data[1], inner_data[4]
+        pair_line, pair_node = _pairs(element, elements_in)
+        if pair_node.size:
+            QL = np.einsum("nij,nj->ni", inner_data[9], left)
+            QR = np.einsum("nij,nj->ni", inner_data[10], right)
+            e = elements_in[pair_line]
+            s0 = mesh.x[e]
+            section = xs[pair_line]
+            yy = y[pair_node]
+            Iy = I[pair_node]
+            on_left = yy < section
+            # left of the section: the left sub-element's moment, from xa
+            a_l = QL[pair_line, 1]
+            b_l = (-QL[pair_line, 3] - a_l) / (section - s0)
+            lv = left[pair_line]
+            v_left = lv[:, 0] + lv[:, 1] * (yy - s0) - a_l * Iy[:, 2] - b_l * Iy[:, 3]
+            t_left = lv[:, 1] - a_l * Iy[:, 0] - b_l * Iy[:, 1]
+            # right of it: M = α' + β'·t with t from xa; the integrals less their part to s
+            Is = _integrals(beam, mesh.element_segment[elements_in], mesh.x[elements_in],
+                            xs)[pair_line]
+            b_r = (-QR[pair_line, 3] - QR[pair_line, 1]) / (mesh.x[e + 1] - section)
+            a_r = QR[pair_line, 1] - b_r * (section - s0)
+            rv = right[pair_line]
+            d = yy - section
+            v_right = (rv[:, 0] + rv[:, 1] * d
+                       - a_r * (Iy[:, 2] - Is[:, 2] - d * Is[:, 0])
+                       - b_r * (Iy[:, 3] - Is[:, 3] - d * Is[:, 1]))
+            t_right = rv[:, 1] - a_r * (Iy[:, 0] - Is[:, 0]) - b_r * (Iy[:, 1] - Is[:, 1])
+            v[pair_node, lines_in[pair_line]] = np.where(on_left, v_left, v_right)
+            theta[pair_node, lines_in[pair_line]] = np.where(on_left, t_left, t_right)
+    out[inside, 2], out[inside, 3] = v, theta
+    out[inside + 1, 0], out[inside + 1, 1] = v, theta
+
+    pieces_in = c_in = None
+    if inner_data is not None:
+        pieces_in = np.searchsorted(x, inner_data[4], side="right") - 1
+        c_in = inner_data[4] - x[pieces_in]
+    ratio = _haunch_excess(beam, mesh, values, x, parent, out, inner_data, left, right,
+                           pieces_in, c_in)
+    return out, pieces_in, c_in, ratio
+
+
+_INTEGRAL_POWERS = ((0, 0), (1, 0), (0, 1), (1, 1))
+
+
+@lru_cache(maxsize=64)
+def _node_integrals(beam: Beam, nodes: bytes) -> NDArray[np.float64]:
+    """``_integrals`` at every line node inside a mesh element, from that element's left end
+    (the same nodes serve every call on a beam unless its sections move them: cached)."""
+    mesh = assembly_for(beam, ()).mesh
+    x = np.frombuffer(nodes, dtype=np.float64)
+    parent = np.clip(np.searchsorted(mesh.x, 0.5 * (x[:-1] + x[1:])) - 1, 0, len(mesh.x) - 2)
+    inside = np.flatnonzero(x[1:] != mesh.x[parent + 1])
+    element = parent[inside]
+    out = _integrals(beam, mesh.element_segment[element], mesh.x[element], x[inside + 1])
+    out.flags.writeable = False
+    return out
+
+
+def _integrals(beam: Beam, segment: NDArray[np.int64], xa: NDArray[np.float64],
+               y: NDArray[np.float64]) -> NDArray[np.float64]:
+    """(m, 4): ∫ t^p (y − x)^q / EI over [xa, y], t = x − xa, for (p, q) = (0, 0), (1, 0),
+    (0, 1), (1, 1)."""
+    out = np.zeros((len(y), 4))
+    for i in np.unique(segment):
+        rows = np.flatnonzero(segment == i)
+        out[rows] = integrals_of_flexibility(beam.stiffness_segments[int(i)], xa[rows],
+                                             y[rows], _INTEGRAL_POWERS)
+    return out
+
+
+def _pairs(element: NDArray[np.int64], wanted: NDArray[np.int64]
+           ) -> tuple[NDArray[np.int64], NDArray[np.int64]]:
+    """For each entry n of ``wanted``, every index i with element[i] == wanted[n]
+    (``element`` sorted): the pairs (n, i) as two flat arrays."""
+    start = np.searchsorted(element, wanted, side="left")
+    count = np.searchsorted(element, wanted, side="right") - start
+    pair = np.repeat(np.arange(len(wanted)), count)
+    offset = np.arange(count.sum()) - np.repeat(np.cumsum(count) - count, count)
+    return pair, start[pair] + offset
+
+
+def _haunch_excess(beam: Beam, mesh, values: NDArray[np.float64], x: NDArray[np.float64],
+                   parent: NDArray[np.int64], fine: NDArray[np.float64],
+                   inner_data: tuple | None, left: NDArray[np.float64] | None,
+                   right: NDArray[np.float64] | None, pieces_in: NDArray[np.int64] | None,
+                   c_in: NDArray[np.float64] | None) -> NDArray[np.float64]:
+    """For every piece between line nodes: the largest ratio, over the lines, of the bound of
+    its Hermite error to HAUNCH_TOLERANCE × the line's largest nodal ordinate (0 where EI is
+    constant: the cubic is exact there).
+
+    The bound: with w'' = −M/EI and M linear, w'''' = −(M·g'' + 2·M'·g'), g = 1/EI, and the
+    cubic Hermite interpolant on a piece of length h errs by at most h⁴/384 · max|w''''|
+    (the classical bound, e.g. Burden & Faires, Numerical Analysis, 9th ed., thm 3.9), here
+    ≤ h⁴/384 · (max|M|·max|g''| + 2·|β|·max|g'|) with |M| largest at an end of the piece."""
+    n_pieces = len(x) - 1
+    ratio_out = np.zeros(n_pieces)
+    h = np.diff(x)
+    g1, g2 = inverse_EI_slope_bounds(beam, mesh.element_segment[parent], x[:-1], x[1:])
+    chosen = np.flatnonzero(g2 > 0.0)
+    if chosen.size == 0:
+        return ratio_out
+    scale = np.maximum(np.abs(fine[:, 0]).max(axis=0), np.abs(fine[:, 2]).max(axis=0))
+    if inner_data is not None:
+        np.maximum.at(scale, inner_data[0], np.abs(left[:, 2]))
+    allowed = HAUNCH_TOLERANCE * scale
+    element = parent[chosen]
+    alpha, beta = _linear_moment(mesh, values, element)
+    a = alpha + beta * (x[chosen] - mesh.x[element])[:, None]
+    b = alpha + beta * (x[chosen + 1] - mesh.x[element])[:, None]
+    np.abs(a, out=a)
+    np.abs(b, out=b)
+    np.maximum(a, b, out=a)
+    a *= (h[chosen] ** 4 / 384.0 * g2[chosen])[:, None]
+    np.abs(beta, out=beta)
+    beta *= (h[chosen] ** 4 / 192.0 * g1[chosen])[:, None]
+    bound = a
+    bound += beta
+    if inner_data is not None:
+        # a line with its section inside the element: the moment of the side each piece lies
+        # on; the piece holding the section is two cubics, each bounded on its own length
+        lines_in, elements_in, xs = inner_data[0], inner_data[1], inner_data[4]
+        pair_line, pair_row = _pairs(element, elements_in)
+        if pair_row.size:
+            QL = np.einsum("nij,nj->ni", inner_data[9], left)
+            QR = np.einsum("nij,nj->ni", inner_data[10], right)
+            e = elements_in[pair_line]
+            xa, xb, section = mesh.x[e], mesh.x[e + 1], xs[pair_line]
+            beta_l = (-QL[pair_line, 3] - QL[pair_line, 1]) / (section - xa)
+            beta_r = (-QR[pair_line, 3] - QR[pair_line, 1]) / (xb - section)
+            piece = chosen[pair_row]
+            p0, p1 = x[piece], x[piece + 1]
+            end_l = np.minimum(p1, section)
+            start_r = np.maximum(p0, section)
+            m_left = np.maximum(np.abs(QL[pair_line, 1] + beta_l * (p0 - xa)),
+                                np.abs(QL[pair_line, 1] + beta_l * (end_l - xa)))
+            m_right = np.maximum(np.abs(QR[pair_line, 1] + beta_r * (start_r - section)),
+                                 np.abs(QR[pair_line, 1] + beta_r * (p1 - section)))
+            len_l = np.maximum(end_l - p0, 0.0)
+            len_r = np.maximum(p1 - start_r, 0.0)
+            G1, G2 = g1[piece], g2[piece]
+            part_l = len_l**4 / 384.0 * (m_left * G2 + 2.0 * np.abs(beta_l) * G1)
+            part_r = len_r**4 / 384.0 * (m_right * G2 + 2.0 * np.abs(beta_r) * G1)
+            bound[pair_row, lines_in[pair_line]] = np.maximum(part_l, part_r)
+    # a line that is zero at every node is zero: nothing to bound
+    inverse = np.divide(1.0, allowed, out=np.zeros_like(allowed), where=allowed > 0.0)
+    bound *= inverse[None, :]
+    ratio_out[chosen] = bound.max(axis=1)
+    return ratio_out
+
+
+def _linear_moment(mesh, values: NDArray[np.float64], element: NDArray[np.int64]
+                   ) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
+    """The linear moment M = α + β·(x − xa) of every line in each of ``element`` (repeats
+    allowed; each distinct element is worked out once) from its exact end forces:
+    α = Q_θ1, α + β·h = −Q_θ2."""
+    distinct, where = np.unique(element, return_inverse=True)
+    Q = np.matmul(mesh.element_k[distinct], values[distinct])  # (d, 4, n_lines)
+    alpha = Q[:, 1]
+    beta = (-Q[:, 3] - alpha) / mesh.lengths[distinct][:, None]
+    return alpha[where], beta[where]
 
 
 def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
@@ -492,7 +763,8 @@ def influence_set(beam: Beam, effects: Iterable[Effect]) -> InfluenceSet:
     return InfluenceSet(knots, coefficients, pieces.effects, node_knots, own_knots, pieces)
 
 
-def _condense_inner_sections(inner: list, mesh, h: NDArray[np.float64]) -> tuple | None:
+def _condense_inner_sections(inner: list, beam: Beam, mesh, h: NDArray[np.float64]
+                             ) -> tuple | None:
     """Adjoint loads of sections that fall inside elements, condensed to the element ends.
 
     Each section splits its element into two sub-elements meeting at node s with dofs
@@ -506,9 +778,10 @@ def _condense_inner_sections(inner: list, mesh, h: NDArray[np.float64]) -> tuple
     x = np.array([xs for _, _, xs, _ in inner])
     kinds = [e.kind for *_, e in inner]
     c = x - mesh.x[elements]
-    EI = mesh.element_EI[elements]
-    k_left = element_stiffness(EI, c)
-    k_right = element_stiffness(EI, h[elements] - c)
+    # the exact stiffness of each sub-element (of its own part of a haunch)
+    segment = mesh.element_segment[elements]
+    k_left = stiffness_between(beam, segment, mesh.x[elements], x)
+    k_right = stiffness_between(beam, segment, x, mesh.x[elements + 1])
     n = len(inner)
     k6 = np.zeros((n, 6, 6))
     k6[:, :4, :4] += k_left
@@ -536,19 +809,19 @@ def _condense_inner_sections(inner: list, mesh, h: NDArray[np.float64]) -> tuple
     solved = np.linalg.solve(k6[:, 2:4, 2:4], rhs_local)
     loads = g6[:, ends] - np.einsum("nij,nj->ni", k6[:, ends, 2:4], solved[:, :, 0])
     dofs = mesh.element_dofs[elements]
-    return lines, elements, dofs, loads, x, c, solved, rows, sub
+    return lines, elements, dofs, loads, x, c, solved, rows, sub, k_left, k_right
 
 
-def _inner_pieces(values: NDArray[np.float64], h: NDArray[np.float64], inner_data: tuple
+def _inner_values(values: NDArray[np.float64], inner_data: tuple
                   ) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
-    """The exact sub-element cubics (4, n_inner) left and right of sections inside elements,
-    each local to its own start (the element's left node, the section)."""
-    lines, elements, _, _, x, c, solved, rows, sub = inner_data
+    """End values (n_inner, 4) of the sub-elements left and right of sections inside
+    elements (the line's exact cubics there are their Hermite cubics)."""
+    lines, elements, _, _, x, c, solved, rows, sub = inner_data[:9]
     z_end = values[elements, :, lines]  # (n, 4)
     z_s = solved[:, :, 0] - np.einsum("nij,nj->ni", solved[:, :, 1:], z_end)
     left = np.concatenate([z_end[:, :2], z_s], axis=1) - rows * (sub == 0)[:, None]
     right = np.concatenate([z_s, z_end[:, 2:]], axis=1) - rows * (sub == 1)[:, None]
-    return hermite_coefficients(left, c), hermite_coefficients(right, h[elements] - c)
+    return left, right
 
 
 def influence_batch(beam: Beam, kind: str, at: ArrayLike | None = None,

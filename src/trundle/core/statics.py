@@ -15,7 +15,12 @@ from numpy.typing import ArrayLike, NDArray
 from scipy.interpolate import PPoly
 
 from trundle.core.beam import Beam, ModelError, Spring
-from trundle.core.fem import assembly_for, element_stiffness
+from trundle.core.fem import (
+    assembly_for,
+    integrals_of_flexibility,
+    interior_values,
+    line_nodes,
+)
 from trundle.core.influence import _eval_sided
 
 
@@ -139,6 +144,34 @@ def _shape(s: NDArray[np.float64], h: float) -> tuple[NDArray[np.float64], NDArr
 
 
 _GAUSS_T, _GAUSS_W = np.polynomial.legendre.leggauss(3)  # exact for the quartic N·w
+# inside a haunch N is not a polynomial; its pieces are short (the lines' nodes) and N is
+# smooth there, so 12 points reach rounding
+_GAUSS_T_VARYING, _GAUSS_W_VARYING = np.polynomial.legendre.leggauss(12)
+_MOMENT_POWERS = tuple((k, q) for k in range(4) for q in (0, 1))
+
+
+def _varying_piece(segment, xa: float, xb: float, moment: NDArray[np.float64], v: float,
+                   theta: float) -> tuple[NDArray[np.float64], float, float]:
+    """Deflection over a piece [xa, xb] of a haunch as a quintic, and its end values.
+
+    ``moment``: the cubic M(τ) on the piece (highest power first), v and θ at its start. With
+    v'' = −M/EI: θ(end) = θ − ∫M/EI, v(end) = v + θ·hp − ∫(hp − τ)M/EI, integrated to
+    rounding (``fem.integrals_of_flexibility``); the quintic takes the exact v, θ and
+    v'' = −M/EI at both ends (Hermite, error ~ hp⁶)."""
+    hp = xb - xa
+    I = integrals_of_flexibility(segment, np.array([xa]), np.array([xb]), _MOMENT_POWERS)[0]
+    powers = moment[::-1]  # M = Σ powers[k] τ^k
+    theta_end = theta - sum(powers[k] * I[2 * k] for k in range(4))
+    v_end = v + theta * hp - sum(powers[k] * I[2 * k + 1] for k in range(4))
+    curv_start = -powers[0] / float(segment.at(np.array(xa)))
+    curv_end = -np.polyval(moment, hp) / float(segment.at(np.array(xb)))
+    # v(τ) = v + θτ + κ0 τ²/2 + c3 τ³ + c4 τ⁴ + c5 τ⁵ meeting v, θ, κ at the end
+    A = np.array([[hp**3, hp**4, hp**5], [3 * hp**2, 4 * hp**3, 5 * hp**4],
+                  [6 * hp, 12 * hp**2, 20 * hp**3]])
+    rhs = np.array([v_end - v - theta * hp - 0.5 * curv_start * hp**2,
+                    theta_end - theta - curv_start * hp, curv_end - curv_start])
+    c3, c4, c5 = np.linalg.solve(A, rhs)
+    return np.array([c5, c4, c3, 0.5 * curv_start, theta, v]), float(v_end), float(theta_end)
 
 
 def solve_static(beam: Beam, loads: Iterable[Load]) -> StaticResult:
@@ -157,7 +190,10 @@ def solve_static(beam: Beam, loads: Iterable[Load]) -> StaticResult:
     xc = mesh.x
     h = mesh.lengths
     n_el = len(h)
-    points = [xc]
+    varying = np.array([seg.varies for seg in beam.stiffness_segments])[mesh.element_segment]
+    # inside a haunch (one exact element) the deflection is not a polynomial: it is kept as
+    # quintic pieces between the nodes its influence lines break at
+    points = [line_nodes(beam, mesh) if varying.any() else xc]
     for load in loads:
         points.append([load.x0, load.x1] if isinstance(load, DistributedLoad) else [load.x])
     knots = np.unique(np.clip(np.concatenate(points), 0.0, length))
@@ -188,21 +224,34 @@ def solve_static(beam: Beam, loads: Iterable[Load]) -> StaticResult:
     # consistent nodal loads
     q = np.zeros((n_el, 4))
     F = np.zeros(mesh.n_dof)
+
+    def shapes(e: int, s: NDArray[np.float64]) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
+        """Shape functions of element e at s (its deflected shapes under unit end values,
+        exact for varying EI too: by reciprocity they are its fixed-end forces)."""
+        if not varying[e]:
+            return _shape(s, h[e])
+        m = len(s)
+        v, theta = interior_values(beam, np.full(m, mesh.element_segment[e]), np.full(m, xc[e]),
+                                   np.full(m, xc[e + 1]), np.broadcast_to(np.eye(4), (m, 4, 4)),
+                                   np.broadcast_to(mesh.element_k[e], (m, 4, 4)), xc[e] + s)
+        return v, theta
+
     for p in range(n_pieces):
         if wa[p] == 0.0 and wb[p] == 0.0:
             continue
         e = piece_element[p]
         a, b = knots[p] - xc[e], knots[p + 1] - xc[e]
-        s = 0.5 * (a + b) + 0.5 * (b - a) * _GAUSS_T
+        t, weights = (_GAUSS_T_VARYING, _GAUSS_W_VARYING) if varying[e] else (_GAUSS_T, _GAUSS_W)
+        s = 0.5 * (a + b) + 0.5 * (b - a) * t
         w = wa[p] + (wb[p] - wa[p]) * (s - a) / (b - a)
-        n, _ = _shape(s, h[e])
-        q[e] += 0.5 * (b - a) * (_GAUSS_W * w) @ n
+        n, _ = shapes(e, s)
+        q[e] += 0.5 * (b - a) * (weights * w) @ n
     interior = ~np.isin(knots, xc)
     for k in np.flatnonzero((force_at != 0.0) | (couple_at != 0.0)):
         if interior[k]:
             e = int(np.searchsorted(xc, knots[k], side="right")) - 1
-            n, dn = _shape(np.array(knots[k] - xc[e]), h[e])
-            q[e] += force_at[k] * n + couple_at[k] * dn
+            n, dn = shapes(e, np.array([knots[k] - xc[e]]))
+            q[e] += force_at[k] * n[0] + couple_at[k] * dn[0]
         else:
             node = int(np.abs(xc - knots[k]).argmin())
             F[mesh.v_dof[node]] += force_at[k]
@@ -222,7 +271,7 @@ def solve_static(beam: Beam, loads: Iterable[Load]) -> StaticResult:
             if sup == "fixed":
                 couples[i] = -R_dof[th]
 
-    k_el = element_stiffness(mesh.element_EI, h)
+    k_el = mesh.element_k
     ue = u[mesh.element_dofs]
     Q = np.einsum("eij,ej->ei", k_el, ue) - q
     shear_c = np.zeros((6, n_pieces))
@@ -243,6 +292,13 @@ def solve_static(beam: Beam, loads: Iterable[Load]) -> StaticResult:
         # polynomials in the piece's local t, highest power first
         shear_c[3:, p] = [-dw / (2 * hp), -a, V]
         moment_c[2:, p] = [-dw / (6 * hp), -a / 2, V, M]
+        if varying[e]:
+            V_end, M_end = np.polyval(shear_c[:, p], hp), np.polyval(moment_c[:, p], hp)
+            defl_c[:, p], v, theta = _varying_piece(beam.stiffness_segments[
+                mesh.element_segment[e]], knots[p], knots[p + 1], moment_c[2:, p], v, theta)
+            rot_c[1:, p] = np.polyder(defl_c[:, p])
+            V, M = V_end, M_end
+            continue
         rot_c[1:, p] = [dw / (24 * hp * EI), a / (6 * EI), -V / (2 * EI), -M / EI, theta]
         defl_c[:, p] = [dw / (120 * hp * EI), a / (24 * EI), -V / (6 * EI), -M / (2 * EI),
                         theta, v]

@@ -40,7 +40,8 @@ LIMITS: dict[str, Limit] = {limit.name: limit for limit in (
     Limit("spans", 200, "a continuous girder has a few spans; 200 is far beyond any"),
     Limit("hinges", 200, "one per span is already unusual"),
     Limit("stiffness segments", 2_000, "a stepped or haunched beam needs a few per span"),
-    Limit("haunch divisions", 200, "24 (the default) already converges to rounding"),
+    Limit("haunch divisions", 200, "an explicit override; by default a haunch is divided "
+          "for 1e-8 accuracy on the lines"),
     Limit("sections", 5_000, "tenth points of 200 spans are 2,001 sections"),
     Limit("loads", 100, "[[load]] tables in one model file"),
     Limit("axles", 200, "axles of one vehicle"),

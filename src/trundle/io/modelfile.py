@@ -378,9 +378,11 @@ def _read_beam(value: Any, reader: Reader) -> tuple[Beam, tuple[str, ...]]:
                             f"beam.hinges[{j}], found the same ({h:g} {length_unit})")
 
     segments, given = _read_stiffness(table, length, reader)
-    divisions = (reader.integer(table["haunch_divisions"], "beam.haunch_divisions", 1)
-                 if "haunch_divisions" in table else 24)
-    reader.limit("beam.haunch_divisions", "haunch divisions", divisions)
+    # absent: each haunch is divided for 1e-8 accuracy on the lines (trundle.core.fem)
+    divisions = None
+    if "haunch_divisions" in table:
+        divisions = reader.integer(table["haunch_divisions"], "beam.haunch_divisions", 1)
+        reader.limit("beam.haunch_divisions", "haunch divisions", divisions)
     try:
         beam = Beam(spans=spans, EI=segments, supports=supports, hinges=hinges,
                     haunch_divisions=divisions)
