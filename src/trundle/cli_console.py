@@ -246,7 +246,8 @@ def fit_table(table: Table, width: int) -> list[Table]:
         widths = _widths([natural[j] for j in chosen], [needed[j] for j in chosen],
                          width - 1 - _EDGE * len(chosen))
         part.columns = [replace(columns[j], _cells=list(columns[j]._cells), _index=i,
-                                width=w, min_width=None, max_width=None)
+                                width=w, min_width=None, max_width=None,
+                                overflow="fold", no_wrap=False)
                         for i, (j, w) in enumerate(zip(chosen, widths, strict=True))]
         part.rows = list(table.rows)
         parts.append(part)

@@ -232,15 +232,19 @@ def permit_command(vehicle: str, route: Path, design: str, impact: float, limit:
     console = _console()
     table = Table(title=f"Permit check: {', '.join(vehicles)} (+{impact:g} % dynamic "
                         f"allowance) against {design}, limit {limit:g}")
-    for column in ("bridge", "effect", "vehicle", "permit", "design", "ratio", "verdict",
-                   "front axle at", "direction"):
-        table.add_column(column)
+    several = len(vehicles) > 1  # one vehicle is named in the title
+    for column in ("bridge", "effect", *(("vehicle",) if several else ()), "permit", "design",
+                   "ratio", "verdict", "front axle at", "direction"):
+        table.add_column(column, overflow="fold",
+                         justify="right" if column in ("permit", "design", "ratio",
+                                                       "front axle at") else "left")
     for r in result.rows:
         value = r.permit_max if r.side == "max" else r.permit_min
         d = r.design_max if r.side == "max" else r.design_min
         places = decimals([value, d])
         cell = verdict_cell(r.verdict)
-        table.add_row(r.bridge, r.effect, r.vehicle, fixed(value, places), fixed(d, places),
+        table.add_row(Text(r.bridge), Text(r.effect), *((Text(r.vehicle),) if several else ()),
+                      fixed(value, places), fixed(d, places),
                       fixed(r.ratio, 3) if r.ratio == r.ratio else verdict_cell(None),
                       Text(cell, style="bold red") if r.verdict == EXCEEDS else cell,
                       position(r.x_front_axle), {1: "→ +x", -1: "← −x"}.get(r.direction, "-"))
