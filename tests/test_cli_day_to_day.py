@@ -13,8 +13,8 @@ import pytest
 from rich.cells import cell_len
 from rich.console import Console
 from rich.table import Table
-
 from tests.cli_helpers import assert_one_line_error, run
+
 from trundle import cli_console
 from trundle._version import __version__
 from trundle.io.units import SI, US, UnitError, parse_quantity
