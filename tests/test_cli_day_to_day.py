@@ -260,3 +260,23 @@ def test_a_wrong_kind_of_unit_is_not_guessed_into_another():
         parse_quantity("5 kN/m", "force", SI)
     assert "did you mean" not in str(caught.value)
     assert "force per length" in str(caught.value)
+
+
+# ------------------------------------------------------------------------------------------
+# one number format
+
+
+@pytest.mark.parametrize(("value", "shown"), [
+    (37256944.4, "37256900"), (115920.0, "115920"), (48573.0, "48573"),
+    (0.000123456789, "0.000123457"), (-0.0, "0"), (1234567.89, "1234570"),
+    (2.5e5, "250000"), (1e20, "1.00000e+20"), (float("nan"), "—"),
+])
+def test_a_property_of_the_structure_is_written_without_an_exponent(value, shown):
+    from trundle.report.format import significant
+
+    assert significant(value) == shown
+
+
+def test_the_summary_writes_EI_like_the_numbers_beside_it():
+    result = run("summary", ROOT / "examples" / "design" / "alder_creek_overpass_hl93_us.toml")
+    assert "37256900" in result.stdout and "e+0" not in result.stdout
