@@ -649,12 +649,84 @@ def _envelope_run(model: Model, model_file: str, outputs: OutputSet | None,
     if outputs is not None and files is not None:
         written, removed = outputs.commit(files)
         _print_written(console, written, removed)
-    for line in _verdict_summary(results):
+    for line in [*_governing_summary(model, moving, runway, design), *_verdict_summary(results)]:
         term.say(line)
     for caution in _envelope_cautions(results):
         console.print(caution, style="dim")
     if term.quiet():
         term.say(_short_caution(), style="dim")
+
+
+def _governing_summary(model: Model, moving: Any, runway: Any, design: Any) -> list[str]:
+    """The governing values in a few lines (printed even with --quiet): the largest sagging
+    and hogging moment and the largest reaction of each part of the run, with the load or
+    case that causes them; every value is one of the envelope's own (nothing recomputed)."""
+    import numpy as np
+
+    from trundle.report.format import decimals, fixed
+    from trundle.report.format import length as fmt
+
+    units = model.units
+    M, F, L = units.label("moment"), units.label("force"), units.label("length")
+
+    def value(v: float, unit: str) -> str:
+        return f"{fixed(v, decimals([v]))} {unit}"
+
+    def words(label: str, values: Any, sections: Any, names: Any, unit: str, pick: Any,
+              where: str) -> str | None:
+        values = np.asarray(values, dtype=float)
+        if not np.isfinite(values).any():
+            return None
+        i = int(pick(np.where(np.isfinite(values), values, np.nan)))
+        at = f"x = {fmt(sections[i])} {L}" if where == "x" else f"support {i}"
+        name = names(i)
+        if not name and values[i] == 0.0:  # nothing loads it that way: not worth a line
+            return None
+        return f"{label} {value(values[i], unit)} at {at}" + (f" ({name})" if name else "")
+
+    lines = []
+    envelopes = []
+    if moving is not None:
+        envelopes.append(("loads", moving.env))
+    if runway is not None:
+        envelopes.append(("cranes, with impact", runway.strength))
+    for title, env in envelopes:
+        parts = []
+        for label, kind, which, pick, where in (
+                ("max moment", "moment", "max", np.nanargmax, "x"),
+                ("min moment", "moment", "min", np.nanargmin, "x"),
+                ("max reaction", "reaction", "max", np.nanargmax, "support")):
+            try:
+                values = env.max(kind) if which == "max" else env.min(kind)
+                governing = env.governing(kind, which)
+            except (KeyError, ValueError):
+                continue
+            unit = M if kind == "moment" else F
+            text = words(label, values, env.sections, lambda i, g=governing: g[i].load, unit,
+                         pick, where)
+            if text:
+                parts.append(text)
+        if parts:
+            lines.append(f"{title}: " + "; ".join(parts))
+    if design is not None:
+        for name, d in design.designs.items():
+            parts = []
+            for label, family, which, pick, where in (
+                    ("max moment", "moment", "max", np.nanargmax, "x"),
+                    ("min moment", "moment", "min", np.nanargmin, "x"),
+                    ("max reaction", "reaction", "max", np.nanargmax, "support")):
+                key = (family, which)
+                if key not in d.values:
+                    continue
+                cases = d.governing.get(key, ())
+                text = words(label, d.values[key], d.sections,
+                             lambda i, c=cases: c[i] if i < len(c) else "",
+                             M if family == "moment" else F, pick, where)
+                if text:
+                    parts.append(text)
+            if parts:
+                lines.append(f"{_one_line(name)}: " + "; ".join(parts))
+    return [_one_line(line) for line in lines]
 
 
 def _short_caution() -> str:

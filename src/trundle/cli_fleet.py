@@ -143,7 +143,9 @@ def fleet_command(trucks: Path, inventory: Path, units: str, bad_rows: str, desi
                         f"({result.engine})")
     for column in ("bridge", "effect", "max", "min", "ratio", f"{period:g}-year level",
                    "interval"):
-        table.add_column(column, overflow="fold")
+        table.add_column(column, overflow="fold",
+                         justify="left" if column in ("bridge", "effect", "interval")
+                         else "right")
     for s in result.summaries:
         sign = -1.0 if s.fit_note.startswith("statistics of −min") else 1.0
         rl = s.return_level
@@ -164,6 +166,13 @@ def fleet_command(trucks: Path, inventory: Path, units: str, bad_rows: str, desi
                   + (f" and {len(written) - 6} more" if len(written) > 6 else ""))
     for caution in cautions(traffic.invented):
         console.print(caution, style="dim")
+    ratios = [(max(s.ratio_max, s.ratio_min) if s.ratio_max == s.ratio_max else s.ratio_min,
+               s.bridge, s.effect) for s in result.summaries]
+    ratios = [r for r in ratios if r[0] == r[0]]
+    if ratios:
+        worst = max(ratios)
+        term.say(f"largest ratio of the recorded extremes to the design model: "
+                 f"{fixed(worst[0], 3)} ({worst[1]}, {worst[2]})")
     if term.quiet():
         term.say(f"{traffic.n_trucks} trucks over {len(bridges)} bridges: "
                  f"{len(result.summaries)} bridge effects summarised; wrote {len(written)} "
