@@ -23,8 +23,23 @@ spec="."
 stamp=".venv/.installed-${extra:-base}"
 # reinstall only when the project definition changed since the last install
 if [ ! -f "$stamp" ] || [ pyproject.toml -nt "$stamp" ]; then
+  # say what is installed and about how long it takes, and show that it is still working
+  what="trundle and numpy, scipy, numba, matplotlib, click, pint, rich, jinja2, rainflow,"
+  what="$what dask[distributed], pyarrow"
+  [ "$extra" = "test" ] && what="$what, and the test tools (pytest, hypothesis, sympy, ruff)"
+  echo "installing into .venv: $what"
+  echo "  (the first time this downloads about 300 MB and takes 1-5 minutes, depending on the"
+  echo "   network; later runs skip it unless pyproject.toml changed; a dot every 10 s)"
+  ( while sleep 10; do printf '.' >&2; done ) &
+  ticker=$!
+  trap 'kill "$ticker" 2>/dev/null || true' EXIT
+  started=$SECONDS
   "$venv_python" -m pip install --quiet --quiet --upgrade pip
   "$venv_python" -m pip install --quiet --quiet -e "$spec"
+  kill "$ticker" 2>/dev/null || true
+  trap - EXIT
+  echo
+  echo "installed in $((SECONDS - started)) s"
   touch "$stamp"
 fi
 export PATH="$root/.venv/bin:$PATH"

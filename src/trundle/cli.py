@@ -1,14 +1,17 @@
 """The ``trundle`` command: parse, call the library, print.
 
-Bad input of any kind (model file, option values, output folder) ends with one line on
-stderr, ``error: …``, and exit code 2; never a traceback, never a half-written output.
+Exit codes: 0 when the command ran (a check that EXCEEDS is shown as such in the output;
+``permit`` alone returns 3 when a check exceeds its limit, for scripts); 2 for bad input of
+any kind (model file, option values, output folder): one line on stderr, ``error: …``, never a
+traceback, never a half-written output; 1 for an internal error (a defect of trundle): one
+line with a hint to rerun with ``--verbose``, which adds the traceback.
 """
 
 from __future__ import annotations
 
 import difflib
-import os
 import sys
+import traceback
 from collections.abc import Sequence
 from pathlib import Path
 from typing import Any, NoReturn
@@ -17,6 +20,7 @@ import click
 from rich.console import Console
 from rich.text import Text
 
+from trundle import cli_console as term
 from trundle._version import __version__
 from trundle.core.beam import Beam, ModelError, Spring
 from trundle.core.influence import Effect, InfluenceSet
@@ -60,6 +64,7 @@ class _Commands(click.Group):
     def main(self, args: Sequence[str] | None = None, prog_name: str | None = None,
              complete_var: str | None = None, standalone_mode: bool = True,
              **extra: Any) -> Any:
+        term.set_level(term.NORMAL)  # every invocation starts afresh (tests run in-process)
         if not standalone_mode:
             return super().main(args, prog_name, complete_var, standalone_mode=False, **extra)
         try:
@@ -78,7 +83,22 @@ class _Commands(click.Group):
         except click.exceptions.Abort:
             click.echo("aborted", err=True)
             sys.exit(1)
+        except Exception as error:  # a defect of trundle, not of the input: short, exit 1
+            _internal_error(error)
         sys.exit(result if isinstance(result, int) else 0)
+
+
+def _internal_error(error: BaseException) -> NoReturn:
+    """One line (exit code 1) for an error that is trundle's, not the input's; the traceback
+    only with --verbose."""
+    if term.verbose():
+        traceback.print_exception(error, file=sys.stderr)
+        hint = "please report it with the traceback above and the model file"
+    else:
+        hint = "rerun with --verbose for the traceback"
+    click.echo(f"error: internal error ({type(error).__name__}: "
+               f"{_one_line(str(error))[:200]}); {hint}", err=True)
+    sys.exit(1)
 
 
 def _fail(message: str) -> NoReturn:
@@ -87,9 +107,12 @@ def _fail(message: str) -> NoReturn:
 
 
 def _console() -> Console:
-    interactive = sys.stdout.isatty()
-    return Console(highlight=False, markup=False, width=None if interactive else 140,
-                   soft_wrap=False)
+    return term.console()
+
+
+def _show(console: Console, renderable: Any, style: str | None = None) -> None:
+    """A table fitted to the width (cut into parts if need be), or any other renderable."""
+    term.print_renderable(console, renderable, style)
 
 
 def _out_folder(value: str | None) -> Path | None:
@@ -126,6 +149,7 @@ def _allow_path_option(function: Any) -> Any:
 @click.group(cls=_Commands, context_settings={"help_option_names": ["-h", "--help"]},
              invoke_without_command=True)
 @click.version_option(__version__, prog_name="trundle")
+@term.verbosity_options
 @click.pass_context
 def cli(context: click.Context) -> None:
     """trundle: exact influence lines for continuous beams, from a model file.
@@ -136,6 +160,12 @@ def cli(context: click.Context) -> None:
       trundle lines examples/harbour_lane_floor_girder_si.toml --effect moment --at 3.6
       trundle envelope examples/harbour_lane_floor_girder_si.toml --out results/
       trundle library
+
+    \b
+    Exit codes: 0 done, 2 bad input (one line naming the file, key, expected and found),
+    1 internal error (rerun with --verbose for the traceback), 3 permit: a check exceeds.
+    Shell completion (bash): eval "$(_TRUNDLE_COMPLETE=bash_source trundle)"; zsh and fish:
+    see the README.
     """
     if context.invoked_subcommand is None:
         click.echo(context.get_help())
@@ -145,23 +175,30 @@ def cli(context: click.Context) -> None:
 # trundle summary
 
 
-@cli.command("summary")
+@cli.command("summary", epilog=_SAFETY_HELP)
+@term.verbosity_options
 @click.argument("model_file", metavar="MODEL")
 @_allow_path_option
 def summary_command(model_file: str, allow_paths: tuple[str, ...]) -> None:
-    """Check a model file and summarise the beam it describes.
+    """Check a model file and summarise everything it describes.
 
-    Prints spans, supports, hinges, flexural stiffness, the degree of indeterminacy and the
-    sections where results will be reported. A model that cannot be analysed (unknown keys,
-    wrong units, a mechanism, …) gives one line saying where and why.
+    Prints the beam (spans, supports, hinges, flexural stiffness, degree of indeterminacy),
+    the sections where results will be reported, the [[load]] tables, the cranes and the
+    [runway] settings, the design tables ([[design_load]], [[permanent]], [[live_pattern]],
+    [[lane_length_load]], [[combination]], [design]) and any other table of the file, as read.
+    A model that cannot be analysed (unknown keys, wrong units, a mechanism, …) gives one
+    line saying where and why.
 
     \b
     Example:
       trundle summary examples/millrace_access_bridge_us.toml
+      trundle summary examples/design/quarry_yard_floor_beam_si.toml
     """
+    from trundle.report.envelope_tables import to_rich
     from trundle.report.tables import format_length, model_tables
 
-    model = _load(model_file, allow_paths)
+    with term.step("read and check the model file"):
+        model = _load(model_file, allow_paths)
     beam, units = model.beam, model.units
     console = _console()
     length = units.label("length")
@@ -175,22 +212,126 @@ def summary_command(model_file: str, allow_paths: tuple[str, ...]) -> None:
     console.print(f"{beam.n_spans} span(s), total length {format_length(beam.length)} {length}; "
                   f"degree of indeterminacy {beam.degree_of_indeterminacy}")
     for table in model_tables(model):
-        console.print(table)
+        _show(console, table)
     positions = ", ".join(format_length(x) for x in model.sections)
     console.print(f"{len(model.sections)} sections [{length}]: {positions}")
+    parts = [f"{beam.n_spans} span(s)", f"{len(model.sections)} sections"]
     if loads_of(model):
-        from trundle.report.envelope_tables import model_loads_table, to_rich
+        from trundle.report.envelope_tables import model_loads_table
 
-        console.print(to_rich(model_loads_table(model)))
+        _show(console, to_rich(model_loads_table(model)))
+        parts.append(f"{len(loads_of(model))} load(s)")
     if cranes_of(model):
         from trundle.report.crane_tables import model_cranes_tables
-        from trundle.report.envelope_tables import to_rich
 
         for table in model_cranes_tables(model):
-            console.print(to_rich(table))
+            _show(console, to_rich(table))
+        parts.append(f"{len(cranes_of(model))} crane(s)")
+    for title, table in _as_written_tables(model):
+        _show(console, _key_value_table(title, table))
+    design_parts = _design_summary(console, model)
+    parts.extend(design_parts)
     console.print(f"model is stable and complete: {len(beam.supports)} supports, "
                   f"{len(beam.hinges)} hinge(s), {len(beam.stiffness_segments)} stiffness "
                   "segment(s)")
+    if term.quiet():
+        term.say(terminal_text(f"{model_file}: model is stable and complete ("
+                               + ", ".join(parts) + ")"))
+
+
+# tables the summary shows as written (key = value), beside those it describes in detail
+_DESCRIBED = frozenset({"title", "units", "description", "beam", "sections", "load", "crane",
+                        "design_load", "permanent", "live_pattern", "lane_length_load",
+                        "combination"})
+
+
+def _as_written_tables(model: Model) -> list[tuple[str, dict[str, Any]]]:
+    """The single tables of the file not described elsewhere ([runway], [design], [project],
+    …): shown key by key as written, so the summary leaves out no part of the model."""
+    return [(f"[{key}] as written", value) for key, value in model.raw.items()
+            if key not in _DESCRIBED and isinstance(value, dict)]
+
+
+def _key_value_table(title: str, table: dict[str, Any]) -> Any:
+    from rich.table import Table
+
+    from trundle.io.units import show_value
+
+    out = Table(title=Text(terminal_text(title), style="bold"), title_justify="left")
+    out.add_column("key", overflow="fold")
+    out.add_column("value", overflow="fold")
+    for key, value in table.items():
+        out.add_row(terminal_text(str(key)), terminal_text(show_value(value)))
+    return out
+
+
+def _design_summary(console: Console, model: Model) -> list[str]:
+    """Tables of the design tables the model has (what each design case, permanent load,
+    pattern and combination is, as read); the parts for the one-line summary."""
+    from rich.table import Table
+
+    from trundle.io.design_tables import design_model_of, has_design_tables
+    from trundle.report.format import length as fmt
+
+    if not has_design_tables(model):
+        return []
+    design = design_model_of(model)
+    units = model.units
+    L, F = units.label("length"), units.label("force")
+    parts: list[str] = []
+
+    def table(title: str, *columns: str) -> Table:
+        out = Table(title=Text(title, style="bold"), title_justify="left")
+        for column in columns:
+            out.add_column(column, overflow="fold")
+        return out
+
+    if design.design_loads:
+        cases = table("Design cases ([[design_load]])", "case", "alternatives (factor)",
+                      "parameters")
+        for case in design.design_loads:
+            alternatives = "; ".join(f"{a.name} ({fmt(a.factor)})" for a in case.alternatives)
+            parameters = ", ".join(f"{k} = {v}" for k, v in case.parameters) or "—"
+            cases.add_row(terminal_text(case.name), terminal_text(alternatives),
+                          terminal_text(parameters))
+        _show(console, cases)
+        parts.append(f"{len(design.design_loads)} design case(s)")
+    if design.permanent:
+        per_length = f"{F}/{L}"
+        unit_of = {"point": F, "couple": units.label("moment")}
+        loads = table("Permanent loads ([[permanent]])", "name", "category", "kind",
+                      "value", f"where [{L}]")
+        for p in design.permanent:
+            where = (f"{fmt(p.start)} to {fmt(p.end)}" if p.start is not None
+                     else fmt(p.at) if p.at is not None else "whole beam")
+            loads.add_row(terminal_text(p.name), terminal_text(p.category), p.kind,
+                          f"{fmt(p.value)} {unit_of.get(p.kind, per_length)}", where)
+        _show(console, loads)
+        parts.append(f"{len(design.permanent)} permanent load(s)")
+    if design.live_patterns or design.lane_length_loads:
+        live = table("Patterned live load ([[live_pattern]], [[lane_length_load]])", "name",
+                     "load", "placement")
+        for name, w, placement in design.live_patterns:
+            live.add_row(terminal_text(name), f"{fmt(w)} {F}/{L}",
+                         "whole spans, worst set" if placement == "spans"
+                         else "wherever adverse")
+        for name, _intensity, loaded_set in design.lane_length_loads:
+            live.add_row(terminal_text(name), "by loaded length",
+                         "worst loaded set" if loaded_set else "as given")
+        _show(console, live)
+        parts.append(f"{len(design.live_patterns) + len(design.lane_length_loads)} "
+                     "live pattern(s)")
+    if design.combinations:
+        combos = table("Combinations ([[combination]])", "name", "permanent factors "
+                       "(max / min)", "live", "source")
+        for c in design.combinations:
+            factors = ", ".join(f"{k} {fmt(hi)} / {fmt(lo)}" for k, (hi, lo)
+                                in c.permanent.items()) or "—"
+            combos.add_row(terminal_text(c.name), factors, fmt(c.live),
+                           terminal_text(c.provenance or "—"))
+        _show(console, combos)
+        parts.append(f"{len(design.combinations)} combination(s)")
+    return parts
 
 
 # ------------------------------------------------------------------------------------------
@@ -198,6 +339,7 @@ def summary_command(model_file: str, allow_paths: tuple[str, ...]) -> None:
 
 
 @cli.command("lines", epilog=_SAFETY_HELP)
+@term.verbosity_options
 @click.argument("model_file", metavar="MODEL")
 @click.option("-e", "--effect", "effects", multiple=True, type=click.Choice(EFFECT_CHOICES),
               help="Effect to draw; repeat for several. Default: moment (reaction if only "
@@ -243,10 +385,12 @@ def lines_command(model_file: str, effects: tuple[str, ...], positions: tuple[st
           --at 3.6 --at 7.2 -e reaction --support 1 --out results/
       trundle lines examples/millrace_access_bridge_us.toml -e deflection --at "33 ft"
     """
-    model = _load(model_file, allow_paths)
+    with term.step("read and check the model file"):
+        model = _load(model_file, allow_paths)
     chosen = _choose_effects(model, effects, positions, supports, side)
     with _output_set(out_dir, "lines") as outputs:  # locked before the work, swapped at the end
-        lines = model.beam.influence_set(chosen)
+        with term.step(f"{len(chosen)} influence line(s)"):
+            lines = model.beam.influence_set(chosen)
         _lines_report(model, model_file, lines, outputs, figure_format, no_figure, ordinates)
 
 
@@ -261,10 +405,10 @@ def _lines_report(model: Model, model_file: str, lines: InfluenceSet,
     console.print(terminal_text(f"model file {model_file}; {len(lines)} influence line(s) "
                                 f"for a unit load of 1 {units.force}; x in "
                                 f"{units.label('length')}"))
-    console.print(extremes_table(lines, beam, units))
+    _show(console, extremes_table(lines, beam, units))
     if ordinates or (ordinates is None and len(lines) <= 6):
         for table in ordinates_tables(lines, beam, units):
-            console.print(table)
+            _show(console, table)
     elif ordinates is None:
         console.print(f"(ordinates at tenth points are not printed for {len(lines)} lines; "
                       "use --ordinates, or --out for the full CSV)", style="dim")
@@ -273,6 +417,11 @@ def _lines_report(model: Model, model_file: str, lines: InfluenceSet,
                                                        not no_figure))
         _print_written(console, written, removed)
     console.print(CAUTION, style="dim")
+    if term.quiet():
+        term.say(terminal_text(f"{model_file}: {len(lines)} influence line(s)"
+                               + (f"; wrote {len(written)} file(s) in {outputs.shown}"
+                                  if outputs is not None else "")))
+        term.say(_short_caution(), style="dim")
 
 
 class _NoOutputs:
@@ -405,6 +554,7 @@ def _lines_files(model: Model, model_file: str, lines: InfluenceSet, figure_form
 
 
 @cli.command("envelope", epilog=_DESIGN_SAFETY_HELP)
+@term.verbosity_options
 @click.argument("model_file", metavar="MODEL")
 @click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False),
               callback=lambda _context, _option, value: _out_folder(value),
@@ -449,7 +599,8 @@ def envelope_command(model_file: str, out_dir: Path | None, figure_format: str,
       trundle envelope examples/cranes/hall_kestrel_quay_si.toml --out results/
       trundle envelope examples/design/alder_creek_overpass_hl93_us.toml --out results/
     """
-    model = _load(model_file, allow_paths)
+    with term.step("read and check the model file"):
+        model = _load(model_file, allow_paths)
     with _output_set(out_dir, "envelope") as outputs:  # locked before the work
         _envelope_run(model, model_file, outputs, figure_format, no_figure, no_report)
 
@@ -463,29 +614,163 @@ def _envelope_run(model: Model, model_file: str, outputs: OutputSet | None,
     from trundle.workflows.crane_runway import analyse_runway
 
     entries = loads_of(model)
-    moving = None
-    if entries:
-        moving = moving_loads.run(moving_loads.MovingLoadsSpec(
-            model.beam, [entry.case for entry in entries], sections=model.sections))
-        _warn(_deflection_warnings(model, moving.env))
     spec = runway_spec(model)
-    runway = (analyse_runway(model.beam, spec, sections=model.sections)
-              if spec is not None else None)
-    design = (design_envelope.run(design_spec_of(design_model_of(model)))
-              if has_design_tables(model) else None)
-    results = collect(model, Provenance.of_model(model, model_file), moving,
-                      providers=SECTIONS, runway=runway, design=design)
+    designed = has_design_tables(model)
+    n_sections = len(model.sections)
+    steps = int(bool(entries)) + int(spec is not None) + int(designed) + 1 + int(
+        outputs is not None)
+    moving = runway = design = None
+    with term.Progress(steps, "envelope") as bar:
+        if entries:
+            with bar.step(f"moving loads: {len(entries)} load(s) over {n_sections} sections"):
+                moving = moving_loads.run(moving_loads.MovingLoadsSpec(
+                    model.beam, [entry.case for entry in entries], sections=model.sections))
+            _warn(_deflection_warnings(model, moving.env))
+        if spec is not None:
+            with bar.step(f"crane runway: {len(spec.cranes)} crane(s) over {n_sections} "
+                          "sections, checks and fatigue"):
+                runway = analyse_runway(model.beam, spec, sections=model.sections)
+        if designed:
+            with bar.step("design envelope: every live case and every combination"):
+                design = design_envelope.run(design_spec_of(design_model_of(model)))
+        with bar.step("tables"):
+            results = collect(model, Provenance.of_model(model, model_file), moving,
+                              providers=SECTIONS, runway=runway, design=design)
+        files = None
+        if outputs is not None:
+            from trundle.report.envelope_report import envelope_files
+
+            with bar.step("files" + ("" if no_figure else ", figures")
+                          + ("" if no_report else ", report")):
+                files = envelope_files(results, figure_format, with_figures=not no_figure,
+                                       with_report=not no_report)
     console = _console()
     for renderable in _envelope_summary(results):
-        console.print(renderable)
-    if outputs is not None:
-        from trundle.report.envelope_report import envelope_files
-
-        written, removed = outputs.commit(envelope_files(
-            results, figure_format, with_figures=not no_figure, with_report=not no_report))
+        _show(console, renderable)
+    if outputs is not None and files is not None:
+        written, removed = outputs.commit(files)
         _print_written(console, written, removed)
+    for line in [*_governing_summary(model, moving, runway, design), *_verdict_summary(results)]:
+        term.say(line)
     for caution in _envelope_cautions(results):
         console.print(caution, style="dim")
+    if term.quiet():
+        term.say(_short_caution(), style="dim")
+
+
+def _governing_summary(model: Model, moving: Any, runway: Any, design: Any) -> list[str]:
+    """The governing values in a few lines (printed even with --quiet): the largest sagging
+    and hogging moment and the largest reaction of each part of the run, with the load or
+    case that causes them; every value is one of the envelope's own (nothing recomputed)."""
+    import numpy as np
+
+    from trundle.report.format import decimals, fixed
+    from trundle.report.format import length as fmt
+
+    units = model.units
+    M, F, L = units.label("moment"), units.label("force"), units.label("length")
+
+    def value(v: float, unit: str) -> str:
+        return f"{fixed(v, decimals([v]))} {unit}"
+
+    def words(label: str, values: Any, sections: Any, names: Any, unit: str, pick: Any,
+              where: str) -> str | None:
+        values = np.asarray(values, dtype=float)
+        if not np.isfinite(values).any():
+            return None
+        i = int(pick(np.where(np.isfinite(values), values, np.nan)))
+        at = f"x = {fmt(sections[i])} {L}" if where == "x" else f"support {i}"
+        name = names(i)
+        if not name and values[i] == 0.0:  # nothing loads it that way: not worth a line
+            return None
+        return f"{label} {value(values[i], unit)} at {at}" + (f" ({name})" if name else "")
+
+    lines = []
+    envelopes = []
+    if moving is not None:
+        envelopes.append(("loads", moving.env))
+    if runway is not None:
+        envelopes.append(("cranes, with impact", runway.strength))
+    for title, env in envelopes:
+        parts = []
+        for label, kind, which, pick, where in (
+                ("max moment", "moment", "max", np.nanargmax, "x"),
+                ("min moment", "moment", "min", np.nanargmin, "x"),
+                ("max reaction", "reaction", "max", np.nanargmax, "support")):
+            try:
+                values = env.max(kind) if which == "max" else env.min(kind)
+                governing = env.governing(kind, which)
+            except (KeyError, ValueError):
+                continue
+            unit = M if kind == "moment" else F
+            text = words(label, values, env.sections, lambda i, g=governing: g[i].load, unit,
+                         pick, where)
+            if text:
+                parts.append(text)
+        if parts:
+            lines.append(f"{title}: " + "; ".join(parts))
+    if design is not None:
+        for name, d in design.designs.items():
+            parts = []
+            for label, family, which, pick, where in (
+                    ("max moment", "moment", "max", np.nanargmax, "x"),
+                    ("min moment", "moment", "min", np.nanargmin, "x"),
+                    ("max reaction", "reaction", "max", np.nanargmax, "support")):
+                key = (family, which)
+                if key not in d.values:
+                    continue
+                cases = d.governing.get(key, ())
+                text = words(label, d.values[key], d.sections,
+                             lambda i, c=cases: c[i] if i < len(c) else "",
+                             M if family == "moment" else F, pick, where)
+                if text:
+                    parts.append(text)
+            if parts:
+                lines.append(f"{_one_line(name)}: " + "; ".join(parts))
+    return [_one_line(line) for line in lines]
+
+
+def _short_caution() -> str:
+    return ("CAUTION: for checking by a qualified engineer; verify load models against the "
+            "edition in force; local codes and licensed practice govern.")
+
+
+def _verdict_summary(results: Any) -> list[str]:
+    """One line per table that holds verdicts: how many checks PASS and which EXCEED (the
+    verdicts come from analysis.checks through the tables; nothing is decided here)."""
+    from trundle.report.format import verdict_cell
+
+    tables = [*(_tables_of(section) for section in results.extra)]
+    lines = []
+    exceeded: list[str] = []
+    counts = {"PASS": 0, "EXCEEDS": 0}
+    for section_tables in tables:
+        for table in section_tables:
+            if "verdict" not in table.columns:
+                continue
+            column = table.columns.index("verdict")
+            for row in table.rows:
+                verdict = row[column]
+                if verdict in counts:
+                    counts[verdict] += 1
+                if verdict == verdict_cell("EXCEEDS"):
+                    exceeded.append(f"{_one_line(table.title)}: "
+                                    f"{_one_line(table.columns[0])} {_one_line(row[0])}")
+    total = counts["PASS"] + counts["EXCEEDS"]
+    if total == 0:
+        return []
+    if counts["EXCEEDS"]:
+        lines.append(f"checks: {counts['EXCEEDS']} of {total} EXCEED")
+        lines.extend(f"  EXCEEDS {where}" for where in exceeded[:20])
+        if len(exceeded) > 20:
+            lines.append(f"  … and {len(exceeded) - 20} more")
+    else:
+        lines.append(f"checks: all {total} PASS")
+    return lines
+
+
+def _tables_of(section: Any) -> list[Any]:
+    return list(section.tables)
 
 
 def _deflection_warnings(model: Model, env: Any) -> list[str]:
@@ -531,6 +816,7 @@ def _envelope_cautions(results: Any) -> list[str]:
 
 
 @cli.command("library", epilog=_DESIGN_SAFETY_HELP)
+@term.verbosity_options
 @click.argument("name", required=False, metavar="[NAME]")
 def library_command(name: str | None) -> None:
     """List the built-in load models, or show one in detail.
@@ -553,7 +839,7 @@ def library_command(name: str | None) -> None:
 
     console = _console()
     if name is None:
-        console.print(to_rich(library_table(read_library())))
+        _show(console, to_rich(library_table(read_library())))
         console.print(f"folder: {library.folder()}", style="dim")
     else:
         names = library.names()
@@ -563,8 +849,8 @@ def library_command(name: str | None) -> None:
             raise UserError(f"library NAME: expected one of {', '.join(names)}, found "
                             f'"{name}"{extra}')
         for renderable in library_detail(read_library_model(name)):
-            console.print(to_rich(renderable) if not isinstance(renderable, str)
-                          else Text(renderable))
+            _show(console, to_rich(renderable) if not isinstance(renderable, str)
+                  else Text(renderable))
     console.print(LOAD_MODEL_CAUTION, style="dim")
 
 
@@ -575,6 +861,7 @@ _MAX_ROWS_SHOWN = 41
 
 
 @cli.command("sweep", epilog=_DESIGN_SAFETY_HELP)
+@term.verbosity_options
 @click.argument("model_file", metavar="MODEL")
 @click.option("--vary", "vary", multiple=True, metavar="PATH=START:STOP:STEP",
               help="A number of the model and its values, e.g. "
@@ -635,11 +922,9 @@ def sweep_command(model_file: str, vary: tuple[str, ...], effects: tuple[str, ..
     from trundle.report.sweep_section import displayed as shown_values
     from trundle.workflows.sweep import SweepError
 
-    model = _load(model_file)
-    # a terminal, or COLUMNS when set, gives the width; piped output is 140 columns otherwise
-    free = sys.stdout.isatty() or os.environ.get("COLUMNS", "").isdigit()
-    console = Console(highlight=False, markup=False, soft_wrap=False,
-                      width=None if free else 140)
+    with term.step("read and check the model file"):
+        model = _load(model_file)
+    console = _console()
     if list_paths:
         paths = valid_paths(model.raw)
         console.print(f"{len(paths)} numbers of {model_file} can be varied:")
@@ -655,12 +940,13 @@ def sweep_command(model_file: str, vary: tuple[str, ...], effects: tuple[str, ..
         raise UserError(f"--out {out_dir}: expected a folder, found a file")
     try:
         spec = build_spec(model, vary, effects or DEFAULT_EFFECTS)
-        result = _run_with_progress(spec)
+        with term.step(f"sweep: {spec.n_points} point(s)"):
+            result = _run_with_progress(spec)
     except (ModelPathError, SweepError) as error:
         raise UserError(str(error)) from None
     console.print(Text(model.title, style="bold"))
     for line in summary_lines(result):
-        console.print(line)
+        term.say(line)
     for note in spec.notes:
         console.print(Text(f"note: {note}"))
     table = Table(title=Text("the governing effects at each point", style="bold"),
@@ -680,7 +966,7 @@ def sweep_command(model_file: str, vary: tuple[str, ...], effects: tuple[str, ..
         for e in range(len(result.effects)):
             cells += [columns[e][p], result.load[p][e] or "—"]
         table.add_row(*cells)
-    console.print(table)
+    _show(console, table)
     if len(rows) < len(result.points):
         console.print(f"({len(result.points)} points; every point is in sweep.csv with --out)",
                       style="dim")
@@ -697,6 +983,8 @@ def sweep_command(model_file: str, vary: tuple[str, ...], effects: tuple[str, ..
             console.print("removed the earlier run's " + ", ".join(p.name for p in removed))
     for caution in CAUTIONS:
         console.print(caution, style="dim")
+    if term.quiet():
+        term.say(_short_caution(), style="dim")
 
 
 def _rows_shown(n: int) -> list[int]:
@@ -711,7 +999,7 @@ def _run_with_progress(spec: Any) -> Any:
     """Run the sweep with a progress bar on a terminal, silently otherwise."""
     from trundle.workflows.sweep import run
 
-    if not sys.stderr.isatty() or spec.n_points < 2:
+    if not sys.stderr.isatty() or term.quiet() or spec.n_points < 2:
         return run(spec)
     from rich.progress import BarColumn, MofNCompleteColumn, Progress, TimeRemainingColumn
 

@@ -13,7 +13,9 @@ from typing import Any
 import click
 from rich.console import Console
 from rich.table import Table
+from rich.text import Text
 
+from trundle import cli_console as term
 from trundle.io.inventory import InventoryError, read_inventory
 from trundle.io.output_set import write_output_set
 from trundle.io.outputs import Provenance
@@ -22,17 +24,11 @@ from trundle.report import CAUTION, LOAD_MODEL_CAUTION
 from trundle.report.format import decimals, fixed, position, verdict_cell
 
 _CAUTIONS = (f"CAUTION: {CAUTION} {LOAD_MODEL_CAUTION}")
+EXIT_EXCEEDS = 3  # permit: the run worked and a check exceeds its limit (1 is an internal error)
 
 
 def _console() -> Console:
-    # wide enough for the tables when the output is a file or a pipe
-    return Console(highlight=False, soft_wrap=False, width=None if _is_tty() else 140)
-
-
-def _is_tty() -> bool:
-    import sys
-
-    return sys.stdout.isatty()
+    return term.console()
 
 
 def _inputs_error(error: Exception) -> click.ClickException:
@@ -65,6 +61,7 @@ def _write(out_dir: Path, files: dict[str, Any]) -> list[Path]:
 
 
 @click.command("fleet", epilog=_CAUTIONS)
+@term.verbosity_options
 @click.argument("trucks", metavar="TRUCKS", type=click.Path(path_type=Path))
 @click.argument("inventory", metavar="INVENTORY", type=click.Path(path_type=Path))
 @click.option("--units", type=click.Choice(["SI", "US"], case_sensitive=False), default="SI",
@@ -135,17 +132,20 @@ def fleet_command(trucks: Path, inventory: Path, units: str, bad_rows: str, desi
     work_dir = out_dir.with_name(out_dir.name + ".work")
     spec = FleetSpec(traffic, bridges, work_dir, model, truck_chunk, bridge_chunk,
                      "none" if single_process else scheduler, workers, block, fit, period,
-                     fatigue=fatigue, progress=not no_progress)
+                     fatigue=fatigue, progress=not no_progress and term.progress_shown())
     console = _console()
     if traffic.skipped:
         console.print(f"skipped {len(traffic.skipped)} bad row(s) of {trucks} "
                       f"(listed in bad_rows_skipped.csv)")
-    result = run(spec)
+    with term.step(f"fleet: {traffic.n_trucks} trucks over {len(bridges)} bridges"):
+        result = run(spec)
     table = Table(title=f"{traffic.n_trucks} trucks over {len(bridges)} bridges "
                         f"({result.engine})")
     for column in ("bridge", "effect", "max", "min", "ratio", f"{period:g}-year level",
                    "interval"):
-        table.add_column(column, overflow="fold")
+        table.add_column(column, overflow="fold",
+                         justify="left" if column in ("bridge", "effect", "interval")
+                         else "right")
     for s in result.summaries:
         sign = -1.0 if s.fit_note.startswith("statistics of −min") else 1.0
         rl = s.return_level
@@ -156,7 +156,7 @@ def fleet_command(trucks: Path, inventory: Path, units: str, bad_rows: str, desi
                       fixed(sign * rl.value, places) if rl else verdict_cell(None),
                       f"{fixed(sign * rl.low, places)} … {fixed(sign * rl.high, places)}"
                       if rl else s.fit_note)
-    console.print(table)
+    term.print_renderable(console, table)
     written = _write(out_dir, fleet_files(result, figures=not no_figure,
                                           provenance=_provenance(("traffic file", trucks),
                                                                  ("inventory", inventory))))
@@ -166,9 +166,22 @@ def fleet_command(trucks: Path, inventory: Path, units: str, bad_rows: str, desi
                   + (f" and {len(written) - 6} more" if len(written) > 6 else ""))
     for caution in cautions(traffic.invented):
         console.print(caution, style="dim")
+    ratios = [(max(s.ratio_max, s.ratio_min) if s.ratio_max == s.ratio_max else s.ratio_min,
+               s.bridge, s.effect) for s in result.summaries]
+    ratios = [r for r in ratios if r[0] == r[0]]
+    if ratios:
+        worst = max(ratios)
+        term.say(f"largest ratio of the recorded extremes to the design model: "
+                 f"{fixed(worst[0], 3)} ({worst[1]}, {worst[2]})")
+    if term.quiet():
+        term.say(f"{traffic.n_trucks} trucks over {len(bridges)} bridges: "
+                 f"{len(result.summaries)} bridge effects summarised; wrote {len(written)} "
+                 f"file(s) in {out_dir}")
+        term.say(_CAUTIONS, style="dim")
 
 
 @click.command("permit", epilog=_CAUTIONS)
+@term.verbosity_options
 @click.argument("vehicle", metavar="VEHICLE")
 @click.argument("route", metavar="ROUTE", type=click.Path(path_type=Path))
 @click.option("--design", metavar="MODEL", required=True,
@@ -194,7 +207,7 @@ def permit_command(vehicle: str, route: Path, design: str, impact: float, limit:
 
     VEHICLE is a load-model file or library name with fixed spacings; several are joined
     by commas. ROUTE is an inventory CSV (one bridge a row) or a folder of model files.
-    Exit code 1 when any check exceeds the limit.
+    Exit code 3 when any check exceeds the limit (2: bad input, 1: internal error).
 
     \b
     Example:
@@ -219,35 +232,43 @@ def permit_command(vehicle: str, route: Path, design: str, impact: float, limit:
     for name in vehicles:  # refuse an unknown or indefinite vehicle before any scan
         permit_vehicle(name, bridges[0].units)
     try:
-        result = run(PermitSpec(vehicles, permit_vehicle, bridges, model, impact / 100.0,
-                                limit, "none" if single_process else scheduler, workers))
+        with term.step(f"permit: {len(vehicles)} vehicle(s) over {len(bridges)} bridges"):
+            result = run(PermitSpec(vehicles, permit_vehicle, bridges, model, impact / 100.0,
+                                    limit, "none" if single_process else scheduler, workers,
+                                    progress=term.progress_shown()))
     except PermitError as error:
         raise _inputs_error(error) from None
     console = _console()
     table = Table(title=f"Permit check: {', '.join(vehicles)} (+{impact:g} % dynamic "
                         f"allowance) against {design}, limit {limit:g}")
-    for column in ("bridge", "effect", "vehicle", "permit", "design", "ratio", "verdict",
-                   "front axle at", "direction"):
-        table.add_column(column)
+    several = len(vehicles) > 1  # one vehicle is named in the title
+    for column in ("bridge", "effect", *(("vehicle",) if several else ()), "permit", "design",
+                   "ratio", "verdict", "front axle at", "direction"):
+        table.add_column(column, overflow="fold",
+                         justify="right" if column in ("permit", "design", "ratio",
+                                                       "front axle at") else "left")
     for r in result.rows:
         value = r.permit_max if r.side == "max" else r.permit_min
         d = r.design_max if r.side == "max" else r.design_min
         places = decimals([value, d])
         cell = verdict_cell(r.verdict)
-        table.add_row(r.bridge, r.effect, r.vehicle, fixed(value, places), fixed(d, places),
+        table.add_row(Text(r.bridge), Text(r.effect), *((Text(r.vehicle),) if several else ()),
+                      fixed(value, places), fixed(d, places),
                       fixed(r.ratio, 3) if r.ratio == r.ratio else verdict_cell(None),
-                      f"[bold red]{cell}[/]" if r.verdict == EXCEEDS else cell,
+                      Text(cell, style="bold red") if r.verdict == EXCEEDS else cell,
                       position(r.x_front_axle), {1: "→ +x", -1: "← −x"}.get(r.direction, "-"))
-    console.print(table)
-    console.print(f"{result.exceeds} of {len(result.rows)} checks EXCEED the limit"
-                  if result.exceeds else f"all {len(result.rows)} checks PASS (within the limit)")
+    term.print_renderable(console, table)
+    term.say(f"{result.exceeds} of {len(result.rows)} checks EXCEED the limit"
+             if result.exceeds else f"all {len(result.rows)} checks PASS (within the limit)")
     if out_dir is not None:
         inputs = [("vehicle", Path(v)) for v in vehicles] + [("route", route)]
         written = _write(out_dir, permit_files(result, _provenance(*inputs)))
         console.print("wrote " + ", ".join(str(p) for p in written))
     console.print(CAUTION, style="dim")
     console.print(LOAD_MODEL_CAUTION, style="dim")
-    return 1 if result.exceeds else 0
+    if term.quiet():
+        term.say(_CAUTIONS, style="dim")
+    return EXIT_EXCEEDS if result.exceeds else 0
 
 
 def register(cli_group: click.Group) -> None:

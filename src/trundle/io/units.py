@@ -10,6 +10,7 @@ and are rounded to float once, so "10 ft" is exactly the float nearest 3.048 m.
 
 from __future__ import annotations
 
+import difflib
 import math
 import re
 from dataclasses import dataclass
@@ -148,7 +149,8 @@ def _known_dimensions() -> tuple[tuple[Any, str], ...]:
         ("N/m", "a force per length (distributed load or spring stiffness)"),
         ("Pa", "a stress or modulus (force/length²)"), ("m**4", "a second moment of area"),
         ("m**2", "an area"), ("m**3", "a volume"), ("kg", "a mass (use a force unit)"),
-        ("s", "a time"),
+        ("s", "a time"), ("m/s", "a speed"), ("m/s**2", "an acceleration"),
+        ("Hz", "a frequency"), ("J", "an energy or a moment (write a moment as kN*m)"),
         ("mol/m**3", "a molar concentration (a chemistry unit)"),
         ("N/m**3", "a force per volume"), ("dimensionless", "a plain number"),
     ]
@@ -160,11 +162,35 @@ def describe_dimension(dimensionality: Any) -> str:
     for known, name in _known_dimensions():
         if dimensionality == known:
             return name
-    parts = []
+    above, below = [], []
     for dimension, power in sorted(dict(dimensionality).items()):
-        exponent = "" if power == 1 else f"^{Fraction(power)}"
-        parts.append(f"{dimension}{exponent}")
-    return "a quantity of dimension " + "·".join(parts)
+        word = _DIMENSION_WORDS.get(dimension, dimension.strip("[]"))
+        size = abs(Fraction(power))
+        part = word if size == 1 else f"{word}^{size}"
+        (above if power > 0 else below).append(part)
+    text = "·".join(above) or "1"
+    if below:
+        text += "/" + ("·".join(below) if len(below) == 1 else "(" + "·".join(below) + ")")
+    return f"a unit of another kind ({text})"
+
+
+_DIMENSION_WORDS = {"[length]": "length", "[mass]": "mass", "[time]": "time",
+                    "[substance]": "amount of substance", "[current]": "electric current",
+                    "[temperature]": "temperature", "[luminosity]": "luminosity"}
+
+# Units an engineer writes for each quantity: the suggestions of an error message.
+_USUAL_UNITS = {
+    "length": ("m", "mm", "cm", "km", "ft", "in", "yd"),
+    "force": ("kN", "N", "MN", "kip", "lbf"),
+    "moment": ("kN*m", "N*m", "MN*m", "kN*mm", "kip*ft", "kip*in", "lbf*ft"),
+    "flexural rigidity": ("kN*m^2", "MN*m^2", "N*mm^2", "kip*ft^2", "kip*in^2"),
+    "distributed load": ("kN/m", "N/mm", "kip/ft", "lbf/ft", "kip/in"),
+    "spring stiffness": ("kN/m", "MN/m", "kN/mm", "kip/in", "kip/ft"),
+    "rotational stiffness": ("kN*m/rad", "MN*m/rad", "kip*ft/rad", "kip*in/rad"),
+    "modulus": ("GPa", "MPa", "N/mm^2", "ksi", "psi"),
+    "second moment of area": ("cm^4", "mm^4", "m^4", "in^4", "ft^4"),
+}
+_USUAL_UNITS["position"] = _USUAL_UNITS["length"]
 
 
 _ARTICLE = {"length": "a length", "position": "a position (length)", "force": "a force",
@@ -244,9 +270,10 @@ def parse_quantity(value: Any, quantity: str, system: UnitSystem) -> float:
     try:
         parsed = ureg.Quantity(text)
     except Exception as error:  # pint's parser raises many kinds (undefined unit, syntax, …)
-        reason = _pint_reason(error) + _case_hint(text, _dimensionality(
-            system.pint_unit(quantity)), inside=True)
-        raise UnitError(f"expected {expected}, found {show_value(value)} ({reason})") from None
+        wanted = _dimensionality(system.pint_unit(quantity))
+        hint = _case_hint(text, wanted, inside=True) or _spelling_hint(text, quantity, wanted)
+        raise UnitError(f"expected {expected}, found {show_value(value)} "
+                        f"({_pint_reason(error)}{hint})") from None
     target = system.pint_unit(quantity)
     wanted = _dimensionality(target)
     if parsed.dimensionality != wanted:
@@ -255,7 +282,8 @@ def parse_quantity(value: Any, quantity: str, system: UnitSystem) -> float:
         if re.search(r"\bkn\b", text):  # "kn" is a knot; the kilonewton is kN
             hint = ' (the kilonewton is written "kN"; "kn" is a knot)'
         else:
-            hint = _case_hint(text, wanted)
+            hint = _case_hint(text, wanted) or _spelling_hint(text, quantity, wanted,
+                                                              inside=False)
         raise UnitError(f"expected {expected}, found {show_value(value)}, which is "
                         f"{found}{hint}")
     try:
@@ -284,6 +312,41 @@ def _case_hint(text: str, wanted: Any, inside: bool = False) -> str:
             except Exception:  # not a unit either way: no hint
                 continue
     return ""
+
+
+def _spelling_hint(text: str, quantity: str, wanted: Any, inside: bool = True) -> str:
+    """'; did you mean "5 kN*m"?' for a unit written together ("kNm"), with its power as a
+    plain digit ("cm4"), or misspelt ("fet"), when the corrected text is the quantity wanted;
+    else the usual units of the quantity ("; a length is written in m, mm, … ft, in")."""
+    usual = _USUAL_UNITS.get(quantity, ())
+    match = re.match(r"\s*([-+]?[\d.eE+-]*\d\.?)\s*(.+?)\s*$", text)
+    candidates: list[str] = []
+    if match:
+        number, unit = match.groups()
+        joined = re.fullmatch(r"([A-Za-z]+?)(\d)", unit)
+        if joined:  # cm4 -> cm^4
+            candidates.append(f"{joined.group(1)}^{joined.group(2)}")
+        for u in usual:  # kNm -> kN*m, kipft -> kip*ft, kNm2 -> kN*m^2
+            if u.replace("*", "").replace("^", "") == unit.replace("^", "").replace(".", ""):
+                candidates.append(u)
+        if inside:  # an unknown unit: perhaps misspelt (a known one of the wrong kind is not)
+            candidates += difflib.get_close_matches(unit, usual, n=2, cutoff=0.5)
+            candidates += difflib.get_close_matches(unit.lower(), [u.lower() for u in usual],
+                                                    n=1, cutoff=0.5)
+        lowered = {u.lower(): u for u in usual}
+        for candidate in dict.fromkeys(candidates):
+            unit_text = lowered.get(candidate, candidate)
+            proposal = f"{number} {unit_text}"
+            try:
+                if registry().Quantity(proposal).dimensionality == wanted:
+                    return f'{"; " if inside else " ("}did you mean "{proposal}"?' + \
+                        ("" if inside else ")")
+            except Exception:  # not a unit after all: try the next
+                continue
+    if not usual:
+        return ""
+    words = f"{_ARTICLE[quantity]} is written in {', '.join(usual)}"
+    return f"; {words}" if inside else f" ({words})"
 
 
 def _case_variants(name: str) -> list[str]:

@@ -50,7 +50,7 @@ from trundle.report.format import fixed as _fixed
 from trundle.report.format import length as _length
 from trundle.report.format import number as _number
 from trundle.report.format import position as _position
-from trundle.report.format import verdict_cell
+from trundle.report.format import significant, verdict_cell
 from trundle.workflows.crane_runway import COMBINATIONS, lateral_extremes
 
 # ------------------------------------------------------------------------------------------
@@ -225,7 +225,7 @@ def runway_settings_table(report: RunwayReport) -> TableData:
             ("vertical deflection limit (without impact)", _ratio(spec.vertical_limit_ratio),
              "given" if spec.vertical_ratio is not None else f"default; {VERIFY}")]
     if spec.lateral_EI is not None:
-        rows.append(("lateral stiffness of the top flange", f"{spec.lateral_EI:.6g} {EI}",
+        rows.append(("lateral stiffness of the top flange", f"{significant(spec.lateral_EI)} {EI}",
                      settings.lateral_EI_given))
         rows.append(("lateral deflection limit", _ratio(spec.lateral_limit_ratio),
                      "given" if spec.lateral_ratio is not None else f"default; {VERIFY}"))
@@ -235,7 +235,7 @@ def runway_settings_table(report: RunwayReport) -> TableData:
     if spec.section_modulus is not None:
         shown = "cm" if units.name == "SI" else "in"
         modulus = spec.section_modulus * units.factor(f"{units.length}**3", f"{shown}**3")
-        rows.append(("section modulus at the fatigue detail", f"{modulus:.6g} {shown}³",
+        rows.append(("section modulus at the fatigue detail", f"{significant(modulus)} {shown}³",
                      given_text(settings.given.get("section_modulus"))))
         cycles = spec.cycles
         rows.append(("loaded passages of each crane over the life",

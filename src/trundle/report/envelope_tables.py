@@ -54,6 +54,7 @@ from trundle.report.format import fixed as _fixed
 from trundle.report.format import length as _length
 from trundle.report.format import number as _number
 from trundle.report.format import position as _position
+from trundle.report.format import significant
 from trundle.report.safe_text import clean_text, terminal_text
 
 CAUTIONS = (CAUTION, LOAD_MODEL_CAUTION)
@@ -348,8 +349,8 @@ def input_tables(results: EnvelopeResults) -> list[TableData]:
     support_rows = []
     for i, support in enumerate(beam.supports):
         if isinstance(support, Spring):
-            rotation = f"{support.kr:.6g}" if support.kr is not None else "free"
-            support_rows.append((str(i), _length(ends[i]), "spring", f"{support.k:.6g}",
+            rotation = significant(support.kr) if support.kr is not None else "free"
+            support_rows.append((str(i), _length(ends[i]), "spring", significant(support.k),
                                  rotation))
         else:
             vertical = {"pin": "rigid", "fixed": "rigid", "free": "none"}[str(support)]
@@ -364,8 +365,8 @@ def input_tables(results: EnvelopeResults) -> list[TableData]:
     stiffness = TableData(
         "Flexural stiffness", (f"from [{L}]", f"to [{L}]", f"EI [{EI}]", f"EI at end [{EI}]",
                                "shape", "as given"),
-        tuple((_length(seg.x0), _length(seg.x1), f"{seg.EI0:.6g}",
-               f"{seg.EI1:.6g}" if seg.shape != "constant" else "", seg.shape, text)
+        tuple((_length(seg.x0), _length(seg.x1), significant(seg.EI0),
+               significant(seg.EI1) if seg.shape != "constant" else "", seg.shape, text)
               for seg, text in zip(beam.stiffness_segments, given, strict=False)),
         (True, True, True, True, False, False))
     tables = [spans, supports, stiffness]

@@ -6,6 +6,10 @@
   decimals that give ``significant`` digits to the largest value, then fixed-point, no "-0".
   A moment, shear, reaction or deflection in a report table is written by :func:`fixed`.
 - :func:`length` — a position or length in labels: at most 6 significant digits.
+- :func:`significant` — a property of the structure as given (EI, a spring stiffness, a
+  section modulus): 6 significant digits written out in full ("37256900", never
+  "3.72569e+07"), so that it reads like the results beside it; an exponent only beyond
+  1e15 or below 1e-6.
 - :func:`position` — where a load stands: to a thousandth of the length unit.
 - :func:`verdict_cell` — the verdict of a check (decided in :mod:`trundle.analysis.checks`,
   never here) as every output shows it: "PASS", "EXCEEDS", or "—" where nothing is checked.
@@ -47,6 +51,24 @@ def length(x: float | None) -> str:
     if x is None or (isinstance(x, float) and math.isnan(x)):
         return NO_VALUE
     return f"{round(float(x), 9) + 0.0:.6g}"
+
+
+def significant(value: float | None, digits: int = 6) -> str:
+    """``value`` to ``digits`` significant digits without an exponent (1e15 > |value| ≥
+    1e-6), no trailing zeros after the point, no "-0"; "—" for None, inf or NaN."""
+    if value is None or not math.isfinite(value):
+        return NO_VALUE
+    value = float(value) + 0.0
+    if value == 0.0:
+        return "0"
+    magnitude = math.floor(math.log10(abs(value)))
+    if magnitude >= 15 or magnitude < -6:
+        return f"{value:.{digits - 1}e}"
+    places = max(0, digits - 1 - magnitude)
+    text = f"{round(value, digits - 1 - magnitude) + 0.0:.{places}f}"
+    if "." in text:
+        text = text.rstrip("0").rstrip(".")
+    return "0" if text in ("-0", "") else text
 
 
 def position(x: float | None) -> str:

@@ -26,6 +26,7 @@ from trundle.report.export import csv_text, json_text
 from trundle.report.format import fixed as _cell
 from trundle.report.format import length as format_length
 from trundle.report.format import number as _number
+from trundle.report.format import significant
 from trundle.report.safe_text import clean_text
 
 if TYPE_CHECKING:
@@ -352,8 +353,8 @@ def model_tables(model: Model) -> list[Table]:
                         justify="right")
     for i, s in enumerate(beam.supports):
         if isinstance(s, Spring):
-            kr = f"{s.kr:.6g}" if s.kr is not None else "free"
-            _add_row(supports, str(i), format_length(ends[i]), "spring", f"{s.k:.6g}", kr)
+            kr = significant(s.kr) if s.kr is not None else "free"
+            _add_row(supports, str(i), format_length(ends[i]), "spring", significant(s.k), kr)
         else:
             vertical = {"pin": "rigid", "fixed": "rigid", "free": "none"}[str(s)]
             rotation = {"pin": "free", "fixed": "rigid", "free": "free"}[str(s)]
@@ -368,8 +369,8 @@ def model_tables(model: Model) -> list[Table]:
     stiffness.add_column(Text("as given"))
     given = list(model.stiffness_given) + [""] * len(beam.stiffness_segments)
     for seg, text in zip(beam.stiffness_segments, given, strict=False):
-        end = f"{seg.EI1:.6g}" if seg.shape != "constant" else ""
-        _add_row(stiffness, format_length(seg.x0), format_length(seg.x1), f"{seg.EI0:.6g}", end,
+        end = significant(seg.EI1) if seg.shape != "constant" else ""
+        _add_row(stiffness, format_length(seg.x0), format_length(seg.x1), significant(seg.EI0), end,
                           seg.shape, text)
 
     tables = [spans, supports, stiffness]
