@@ -223,7 +223,8 @@ def searched_extremes(batch: LineBatch, weights: NDArray[np.float64], kinds: NDA
     margin = 1e-12 * batch.length
     values, links = search_lines(
         batch.line_knots, batch.n_pieces, batch.line_coef, batch.line_running,
-        batch.running_end, np.ascontiguousarray(lines, dtype=np.int64), plan.block_term_start,
+        batch.running_end, batch.own_knot, batch.own_value, batch.end_live,
+        np.ascontiguousarray(lines, dtype=np.int64), plan.block_term_start,
         plan.term_weight, plan.term_kind, plan.term_offset, plan.block_degree,
         plan.block_shift, plan.block_last, bool(confined), plan.assign_blocks,
         plan.assign_count, plan.assign_codes, plan.link_lo, plan.link_hi, margin, capacity)

@@ -27,6 +27,7 @@ from trundle.scan.kernels import (
     _locate,
     _next_event,
     _piece_polynomial,
+    _point_value,
 )
 
 FREE = 2  # link code: strictly inside its range (0: at its lower bound, 1: at its upper)
@@ -35,13 +36,14 @@ FREE = 2  # link code: strictly inside its range (0: at its lower bound, 1: at i
 def candidate_capacity(n_terms: int, n_pieces: int) -> int:
     """Most candidates one block of ``n_terms`` terms can give on a line of ``n_pieces``
     pieces: every piece of its response gives both ends and at most three critical points,
-    plus the two stretches off the beam."""
-    return (n_terms * (n_pieces + 1) + 1) * 5 + 2
+    plus the two stretches off the beam, and one exact point value per break (a load standing
+    exactly on an end of the beam)."""
+    return (n_terms * (n_pieces + 1) + 1) * 6 + 3
 
 
 @njit(**JIT_OPTIONS)
 def block_candidates(knots, m, coef, running, end_value, weight, kind, offset, degree,
-                     confined, pos, val, side, start):
+                     confined, own, own_value, live, pos, val, side, start):
     """Every position where a rigid block can stand at a local extreme of its own response
     on one line, written from index ``start`` of ``pos``/``val``/``side``; returns the index
     after the last one written.
@@ -54,6 +56,11 @@ def block_candidates(knots, m, coef, running, end_value, weight, kind, offset, d
     ``confined``, the two stretches with the block wholly off the beam (at the first break
     from below and at the last from above). A ``confined`` block with concentrated loads
     stands only with every one of them on the beam; it gives nothing if it cannot.
+
+    On a line flagged ``live`` (``kernels._scan_chunk``: a load standing exactly on an end of
+    the beam reads something neither one-sided limit reads, e.g. shear at a free tip, whose
+    own section ``own`` reads ``own_value``) every position where a concentrated load stands
+    exactly on an end is a candidate too (side 0), valued as it stands.
     """
     n_terms = weight.shape[0]
     length = knots[m]
@@ -77,6 +84,7 @@ def block_candidates(knots, m, coef, running, end_value, weight, kind, offset, d
         return k
     piece = np.empty(n_terms, dtype=np.int64)
     upcoming = np.empty(n_terms)
+    arrived = np.zeros(n_terms, dtype=np.bool_)
     scratch = np.empty(23)
     poly = scratch[0:5]
     crit = scratch[5:8]
@@ -86,11 +94,22 @@ def block_candidates(knots, m, coef, running, end_value, weight, kind, offset, d
         pos[k], val[k], side[k] = lo, 0.0, -1.0  # every term still left of the beam
         k += 1
     xi = lo
+    at_end = False
     for t in range(n_terms):
-        p = _locate(knots[:m + 1], xi - offset[t])
+        x = xi - offset[t]
+        p = _locate(knots[:m + 1], x)
         piece[t] = p
         upcoming[t] = (offset[t] + knots[0] if p < 0 else
                        offset[t] + knots[p + 1] if p < m else np.inf)
+        arrived[t] = p >= 0 and x == knots[min(p, m)]
+        if arrived[t] and kind[t] == KIND_POINT and (p == 0 or p == m):
+            at_end = True
+    if live and at_end:
+        pos[k] = xi
+        val[k] = _point_value(xi, offset, piece, arrived, knots, m, coef, running, end_value,
+                              weight, kind, own, own_value, 0.0)
+        side[k] = 0.0
+        k += 1
     while xi < hi:
         nxt = _next_event(upcoming, n_terms, hi)
         width = nxt - xi
@@ -105,12 +124,24 @@ def block_candidates(knots, m, coef, running, end_value, weight, kind, offset, d
                 k += 1
             pos[k], val[k], side[k] = nxt, _horner(poly, degree, width), -1.0
             k += 1
+        if nxt == np.inf:
+            break
+        at_end = False
         for t in range(n_terms):
-            if upcoming[t] <= nxt:
+            arrived[t] = upcoming[t] <= nxt
+            if arrived[t]:
                 p = piece[t] + 1 if piece[t] < m else m
                 piece[t] = p
                 upcoming[t] = offset[t] + knots[p + 1] if p < m else np.inf
+                if kind[t] == KIND_POINT and (p == 0 or p == m):
+                    at_end = True
         xi = nxt
+        if live and at_end:
+            pos[k] = xi
+            val[k] = _point_value(xi, offset, piece, arrived, knots, m, coef, running,
+                                  end_value, weight, kind, own, own_value, 0.0)
+            side[k] = 0.0
+            k += 1
     if not restricted:
         beyond = 0.0  # every term right of the beam: uniform loads read all of ∫₀ᴸ IL
         for t in range(n_terms):
@@ -189,7 +220,8 @@ def chain_maximum(pos, signed, block_start, blocks, n_blocks, shift, link_of, li
 
 
 @njit(**JIT_OPTIONS)
-def search_lines(knots, n_pieces, coef, running, running_end, lines, block_term_start,
+def search_lines(knots, n_pieces, coef, running, running_end, own_knot, own_value, end_live,
+                 lines, block_term_start,
                  term_weight, term_kind, term_offset, block_degree, block_shift, block_last,
                  confined, assign_blocks, assign_count, assign_codes, link_lo, link_hi,
                  margin, capacity):
@@ -225,7 +257,8 @@ def search_lines(knots, n_pieces, coef, running, running_end, lines, block_term_
             t0, t1 = block_term_start[b], block_term_start[b + 1]
             k1 = block_candidates(knots[line], m, coef[line], running[line],
                                   running_end[line], term_weight[t0:t1], term_kind[t0:t1],
-                                  term_offset[t0:t1], block_degree[b], confined, pos, val,
+                                  term_offset[t0:t1], block_degree[b], confined,
+                                  own_knot[line], own_value[line], end_live[line], pos, val,
                                   side, k)
             _sort_block(pos, val, side, k, k1)
             k = k1
