@@ -301,13 +301,14 @@ def _chromium(*args: str, user_dir: str) -> None:
 
 @pytest.mark.skipif(CHROMIUM is None, reason="Debian's chromium is not installed")
 def test_chromium_prints_the_report_on_a_reasonable_number_of_pages(example, tmp_path):
-    _, out, _ = example
+    path, out, _ = example
     url = (out / "report.html").as_uri()
     pdf, png = tmp_path / "report.pdf", tmp_path / "report.png"
     with tempfile.TemporaryDirectory() as user_dir:
         _chromium("--no-pdf-header-footer", f"--print-to-pdf={pdf}", url, user_dir=user_dir)
-    with tempfile.TemporaryDirectory() as user_dir:
-        _chromium("--window-size=1100,1400", f"--screenshot={png}", url, user_dir=user_dir)
     pages = len(re.findall(rb"/Type\s*/Page(?![a-zA-Z])", pdf.read_bytes()))
     assert 2 <= pages <= MAX_PAGES, pages
-    assert png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n" and png.stat().st_size > 20_000
+    if path.stem in WITH_PROJECT:  # a screen shot of two examples is enough (time)
+        with tempfile.TemporaryDirectory() as user_dir:
+            _chromium("--window-size=1100,1400", f"--screenshot={png}", url, user_dir=user_dir)
+        assert png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n" and png.stat().st_size > 20_000
