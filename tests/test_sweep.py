@@ -15,7 +15,7 @@ from trundle.io.cranes import runway_spec
 from trundle.io.modelfile import load_model, read_model
 from trundle.io.sweeps import build_spec, sweep
 from trundle.workflows.crane_runway import analyse_runway
-from trundle.workflows.sweep import SweepError, parse_effect, run
+from trundle.workflows.sweep import NOT_CERTIFIED, SweepError, parse_effect, run
 
 ROOT = Path(__file__).resolve().parents[1]
 SPANS = [24.0, 30.0, 24.0]
@@ -135,6 +135,31 @@ spacings = [1.0]
         # where: under one load, a/4 from midspan (either side by symmetry)
         assert min(abs(result.x[p, 0] - (L / 2 - spacing / 4)),
                    abs(result.x[p, 0] - (L / 2 + spacing / 4))) < 1e-4 * L
+        # a fixed pair of loads: the exact method answers, nothing is marked
+        assert NOT_CERTIFIED not in result.load[p][0]
+
+
+def test_an_anywhere_value_of_the_sampled_search_is_marked_in_every_output(tmp_path) -> None:
+    """A searched spacing: the worst section of the span comes from the sampled search (no
+    exact method yet), so its load carries the mark into the table, the CSV, the JSON and
+    the terminal's worst line (the mark itself is ours; no source)."""
+    model = read_model("""
+units = "SI"
+[beam]
+spans = [20.0]
+supports = ["pin", "pin"]
+EI = 1e5
+[[load]]
+name = "triple"
+axles = [10.0, 10.0, 10.0]
+spacings = [1.0, { min = "1 m", max = "4 m" }]
+""")
+    result = sweep(model, {"load.triple.spacings[0]": "1:2:1"}, ["moment max span 1 anywhere"])
+    assert all(NOT_CERTIFIED in result.load[p][0] for p in range(len(result.points)))
+    # the mark reaches every output
+    from trundle.report.sweep_section import summary_lines, sweep_csv, sweep_json
+    assert NOT_CERTIFIED in sweep_csv(result) and NOT_CERTIFIED in sweep_json(result)
+    assert any(NOT_CERTIFIED in line for line in summary_lines(result))
 
 
 def test_load_sweeps_reuse_the_lines_and_span_sweeps_rebuild_them() -> None:

@@ -27,7 +27,7 @@ from trundle.report.envelope_data import display_factor, quantity_unit
 from trundle.report.export import csv_text, json_text
 from trundle.report.figures import INK, MUTED, PALETTE, SEQUENTIAL, figure_bytes, new_figure
 from trundle.report.format import decimals, fixed, length, number
-from trundle.workflows.sweep import SweepResult, effect_family
+from trundle.workflows.sweep import NOT_CERTIFIED, SweepResult, effect_family
 
 CAUTIONS = (CAUTION, LOAD_MODEL_CAUTION,
             "Each point is the model file with the swept numbers replaced; values at points "
@@ -93,7 +93,10 @@ def worst_points(result: SweepResult) -> list[tuple[str, str, str]]:
         p = result.worst(e)
         where = ", ".join(f"{r.name} = {length(result.points[p, a])} {r.unit}"
                           for a, r in enumerate(result.axes))
-        out.append((effect_title(result, e), _short(displayed(result, e)[p]), where))
+        value = _short(displayed(result, e)[p])
+        if NOT_CERTIFIED in result.load[p][e]:
+            value = f"{value} {NOT_CERTIFIED}"
+        out.append((effect_title(result, e), value, where))
     return out
 
 

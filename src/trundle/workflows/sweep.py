@@ -532,14 +532,25 @@ def _pick(env: Envelope, selector: EffectSelector, cases: Sequence[Any]) -> _Fou
             candidates.append((float(values[r]), float(x[r]), _name(env, governing[r])))
     value, where, name = max(candidates, key=lambda c: sign * c[0])
     if selector.anywhere:
+        certified = True
         for c, case in enumerate(cases):
             for found in absolute_extremes(beam, case, selector.span - 1, selector.kind,
                                            case_index=c, extremes=(which,)):
+                certified &= found.certified
                 # never less than at the sections: the search adds, it does not replace
                 if sign * found.value > sign * value:
                     value, where = found.value, found.x
                     name = case.name if found.governing.case >= 0 else ""
+        if not certified:
+            # some load's worst section was found by the sampled search, which may read
+            # low: the mark travels with the load's name into every output
+            name = f"{name} {NOT_CERTIFIED}".strip()
     return value, where, -1, name
+
+
+# appended to the governing load of an "anywhere" effect that is not certified (see
+# ``analysis.envelope.absolute_extremes``)
+NOT_CERTIFIED = "(anywhere: not certified)"
 
 
 def effect_family(selector: EffectSelector) -> str:
@@ -547,6 +558,7 @@ def effect_family(selector: EffectSelector) -> str:
     return "shear_left" if selector.kind == "shear" else selector.kind
 
 
-__all__ = ["DEFAULT_EFFECTS", "MAX_AXES", "MAX_EFFECTS", "MAX_POINTS", "EffectSelector",
+__all__ = ["DEFAULT_EFFECTS", "MAX_AXES", "MAX_EFFECTS", "MAX_POINTS", "NOT_CERTIFIED",
+           "EffectSelector",
            "SweepAxis", "SweepError", "SweepResult", "SweepSpec", "SweepSubject",
            "check_selector", "parse_effect", "run", "source_of"]
