@@ -562,7 +562,9 @@ def _lines_files(model: Model, model_file: str, lines: InfluenceSet, figure_form
                    "report.html into this folder; files of an earlier trundle run there "
                    "that this run does not write again are removed.")
 @click.option("--format", "figure_format", type=click.Choice(["png", "svg"]), default="png",
-              show_default=True, help="Format of the figure files (the report embeds PNG).")
+              show_default=True,
+              help="Format of the figure files (the report draws its figures inline as SVG "
+                   "either way).")
 @click.option("--no-figure", is_flag=True, help="With --out: write no figure files.")
 @click.option("--no-report", is_flag=True, help="With --out: write no report.html.")
 @_allow_path_option
