@@ -22,11 +22,12 @@ from numba import njit
 from trundle.scan._config import JIT_OPTIONS
 from trundle.scan.kernels import (
     KIND_POINT,
+    _advance_terms,
     _critical_points,
     _horner,
-    _locate,
     _next_event,
     _piece_polynomial,
+    _place_terms,
     _point_value,
 )
 
@@ -94,16 +95,7 @@ def block_candidates(knots, m, coef, running, end_value, weight, kind, offset, d
         pos[k], val[k], side[k] = lo, 0.0, -1.0  # every term still left of the beam
         k += 1
     xi = lo
-    at_end = False
-    for t in range(n_terms):
-        x = xi - offset[t]
-        p = _locate(knots[:m + 1], x)
-        piece[t] = p
-        upcoming[t] = (offset[t] + knots[0] if p < 0 else
-                       offset[t] + knots[p + 1] if p < m else np.inf)
-        arrived[t] = p >= 0 and x == knots[min(p, m)]
-        if arrived[t] and kind[t] == KIND_POINT and (p == 0 or p == m):
-            at_end = True
+    at_end = _place_terms(xi, offset, kind, knots, m, piece, upcoming, arrived)
     if live and at_end:
         pos[k] = xi
         val[k] = _point_value(xi, offset, piece, arrived, knots, m, coef, running, end_value,
@@ -124,17 +116,7 @@ def block_candidates(knots, m, coef, running, end_value, weight, kind, offset, d
                 k += 1
             pos[k], val[k], side[k] = nxt, _horner(poly, degree, width), -1.0
             k += 1
-        if nxt == np.inf:
-            break
-        at_end = False
-        for t in range(n_terms):
-            arrived[t] = upcoming[t] <= nxt
-            if arrived[t]:
-                p = piece[t] + 1 if piece[t] < m else m
-                piece[t] = p
-                upcoming[t] = offset[t] + knots[p + 1] if p < m else np.inf
-                if kind[t] == KIND_POINT and (p == 0 or p == m):
-                    at_end = True
+        at_end = _advance_terms(nxt, offset, kind, knots, m, piece, upcoming, arrived)
         xi = nxt
         if live and at_end:
             pos[k] = xi

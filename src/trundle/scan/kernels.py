@@ -227,6 +227,39 @@ def _point_value(xi, off, piece, arrived, line_knots, m, line_coef, line_running
 
 
 @njit(**JIT_OPTIONS)
+def _place_terms(xi, off, kind, knots, m, piece, upcoming, arrived):
+    """Put every term at reference position ξ: its piece, its next break and whether it stands
+    exactly on a knot; True when a concentrated load stands exactly on an end of the beam."""
+    at_end = False
+    for t in range(off.shape[0]):
+        x = xi - off[t]
+        p = _locate(knots[:m + 1], x)
+        piece[t] = p
+        upcoming[t] = (off[t] + knots[0] if p < 0 else
+                       off[t] + knots[p + 1] if p < m else np.inf)
+        arrived[t] = p >= 0 and x == knots[min(p, m)]
+        if arrived[t] and kind[t] == KIND_POINT and (p == 0 or p == m):
+            at_end = True
+    return at_end
+
+
+@njit(**JIT_OPTIONS)
+def _advance_terms(nxt, off, kind, knots, m, piece, upcoming, arrived):
+    """Move every term whose break is at ``nxt`` into its next piece (``arrived``); True when
+    a concentrated load has just reached an end of the beam."""
+    at_end = False
+    for t in range(off.shape[0]):
+        arrived[t] = upcoming[t] <= nxt
+        if arrived[t]:
+            p = piece[t] + 1 if piece[t] < m else m
+            piece[t] = p
+            upcoming[t] = off[t] + knots[p + 1] if p < m else np.inf
+            if kind[t] == KIND_POINT and (p == 0 or p == m):
+                at_end = True
+    return at_end
+
+
+@njit(**JIT_OPTIONS)
 def _next_event(upcoming, n_terms, until):
     """The nearest break ahead (a term reaching its next piece), or ``until``."""
     nxt = until
@@ -351,16 +384,7 @@ def _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, 
                 until, bounded = split, False
                 if xi >= split:
                     break
-            at_end = False
-            for t in range(n_terms):
-                x = xi - off[t]
-                p = _locate(line_knots[:m + 1], x)
-                piece[t] = p
-                upcoming[t] = (off[t] + line_knots[0] if p < 0 else
-                               off[t] + line_knots[p + 1] if p < m else np.inf)
-                arrived[t] = p >= 0 and x == line_knots[min(p, m)]
-                if arrived[t] and kind[t] == KIND_POINT and (p == 0 or p == m):
-                    at_end = True
+            at_end = _place_terms(xi, off, kind, line_knots, m, piece, upcoming, arrived)
             if live and at_end:
                 v = _point_value(xi, off, piece, arrived, line_knots, m, line_coef,
                                  line_running, end_value, weight, kind, own, own_at, constant)
@@ -399,15 +423,8 @@ def _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, 
                             best_min, pos_min, side_min = v, xi + crit[k], 0.0
                 if nxt == np.inf:
                     break
-                at_end = False
-                for t in range(n_terms):
-                    arrived[t] = upcoming[t] <= nxt
-                    if arrived[t]:
-                        p = piece[t] + 1 if piece[t] < m else m
-                        piece[t] = p
-                        upcoming[t] = off[t] + line_knots[p + 1] if p < m else np.inf
-                        if kind[t] == KIND_POINT and (p == 0 or p == m):
-                            at_end = True
+                at_end = _advance_terms(nxt, off, kind, line_knots, m, piece, upcoming,
+                                        arrived)
                 xi = nxt
                 if live and at_end:
                     v = _point_value(xi, off, piece, arrived, line_knots, m, line_coef,
