@@ -567,10 +567,8 @@ def _haunch_lines(beam: Beam, mesh, values: NDArray[np.float64], inner_data: tup
     theta = ends[:, 1] - alpha * I[:, 0:1] - beta * I[:, 1:2]
     if inner_data is not None:
         lines_in, elements_in, xs = inner_data[0], inner_data[1], inner_data[4]
-        pair_line, pair_node = _pairs(element, elements_in)
+        pair_line, pair_node, QL, QR = _inner_pairs(inner_data, element, left, right)
         if pair_node.size:
-            QL = np.einsum("nij,nj->ni", inner_data[9], left)
-            QR = np.einsum("nij,nj->ni", inner_data[10], right)
             e = elements_in[pair_line]
             s0 = mesh.x[e]
             section = xs[pair_line]
@@ -648,6 +646,19 @@ def _pairs(element: NDArray[np.int64], wanted: NDArray[np.int64]
     return pair, start[pair] + offset
 
 
+def _inner_pairs(inner_data: tuple, element: NDArray[np.int64], left: NDArray[np.float64],
+                 right: NDArray[np.float64]) -> tuple:
+    """Lines whose section lies inside a varying element, paired with the entries of
+    ``element`` in that element (:func:`_pairs`), and the end forces of each side of those
+    sections (left and right parts of the element)."""
+    pair_line, pair_other = _pairs(element, inner_data[1])
+    if not pair_other.size:
+        return pair_line, pair_other, None, None
+    QL = np.einsum("nij,nj->ni", inner_data[9], left)
+    QR = np.einsum("nij,nj->ni", inner_data[10], right)
+    return pair_line, pair_other, QL, QR
+
+
 def _haunch_excess(beam: Beam, mesh, values: NDArray[np.float64], x: NDArray[np.float64],
                    parent: NDArray[np.int64], fine: NDArray[np.float64],
                    inner_data: tuple | None, left: NDArray[np.float64] | None,
@@ -688,10 +699,8 @@ def _haunch_excess(beam: Beam, mesh, values: NDArray[np.float64], x: NDArray[np.
         # a line with its section inside the element: the moment of the side each piece lies
         # on; the piece holding the section is two cubics, each bounded on its own length
         lines_in, elements_in, xs = inner_data[0], inner_data[1], inner_data[4]
-        pair_line, pair_row = _pairs(element, elements_in)
+        pair_line, pair_row, QL, QR = _inner_pairs(inner_data, element, left, right)
         if pair_row.size:
-            QL = np.einsum("nij,nj->ni", inner_data[9], left)
-            QR = np.einsum("nij,nj->ni", inner_data[10], right)
             e = elements_in[pair_line]
             xa, xb, section = mesh.x[e], mesh.x[e + 1], xs[pair_line]
             beta_l = (-QL[pair_line, 3] - QL[pair_line, 1]) / (section - xa)
