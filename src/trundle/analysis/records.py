@@ -52,8 +52,8 @@ class ExtremeRecord:
     point_loads : the concentrated loads standing at ``axles`` (impact included; one moving
         case only, empty otherwise) [force]
     loaded : stretches loaded by a placed uniform load, adjacent ones joined [(x0, x1), …]
-    placement : how a placed uniform load is placed ("anywhere", "spans", "everywhere"); ""
-        for a moving load
+    placement : how a placed uniform load is placed ("anywhere", "spans", "everywhere"; "loaded
+        length" for a lane load w(L) on its worst loaded set); "" for a moving load
     point_side : for a placed load's point load standing at a shear section: −1 just left,
         +1 just right of it, 0 otherwise
     face : where an axle standing at the section stands: "on", "left", "right" (just left or
