@@ -26,7 +26,7 @@ from trundle.report.envelope_data import (
 )
 from trundle.report.export import csv_text
 from trundle.report.figures import figure_style, new_figure
-from trundle.report.format import fixed, number, position
+from trundle.report.format import fixed, number, position, position_decimals
 from trundle.report.positions_figure import Panel, draw_panel
 from trundle.workflows.design_records import DesignRecord
 
@@ -73,6 +73,9 @@ def load_words(load: ExtremeRecord, length_unit: str) -> str:
         else:
             text = (f"{name}{direction_arrow(part.direction)} lead axle at "
                     f"{position(part.lead_x)}")
+            if part.attached:
+                text += ", its uniform load on " + _stretches(
+                    [(a, b) for a, b, _ in part.attached])
         words.append(text)
     return "; ".join(words) + f" [{length_unit}]"
 
@@ -90,8 +93,9 @@ def _extreme(record: DesignRecord, words: str) -> Extreme:
     """The record as the positions figure draws it (the value is the design value)."""
     load = record.load
     assert load is not None
+    loaded = tuple(sorted([*load.loaded, *((a, b) for a, b, _ in load.attached)]))
     return Extreme(record.family, record.which, record.value, record.x, governing_words(record),
-                   load.direction, load.lead_x, load.axles, load.loaded, words)
+                   load.direction, load.lead_x, load.axles, loaded, words)
 
 
 def drawn(records: Sequence[DesignRecord]) -> list[DesignRecord]:
@@ -167,6 +171,7 @@ def positions_table(results: EnvelopeResults, combination: str,
         return None
     units = results.units
     L = units.label("length")
+    x_places = position_decimals([r.x for r in rows_of])
     rows = []
     for letter, r in zip(_letters(), rows_of, strict=False):
         d = places[quantity(r)]
@@ -178,18 +183,21 @@ def positions_table(results: EnvelopeResults, combination: str,
             words += " (NOT REPRODUCED: the configuration found again differs from the case's " \
                      "value; check by hand)"
         searched = searched_words(load)
+        live = fixed(r.live, d)
+        sums = (f"{fixed(r.value, d)} = {fixed(r.permanent, d)} + {r.live_factor:g} × "
+                + (f"({live})" if live.startswith("-") else live))
         rows.append((f"({letter})", label(r), f"{SYMBOL[r.family]} {r.which} [{unit}]",
-                     position(r.x), fixed(r.value, d), fixed(r.permanent, d),
-                     f"{r.live_factor:g} × {fixed(r.live, d)}", governing_words(r),
+                     fixed(r.x, x_places), sums, governing_words(r),
                      words + (f"; {searched}" if searched else "")))
     return TableData(
         f"{combination}: governing design values and where the live load stands",
-        ("", "where", "value", f"x\n[{L}]", "design", "permanent\n(factored)",
-         "γL × live", "governing case", "live load position"), tuple(rows),
-        (False, False, False, True, True, True, True, False, False),
-        note="design = permanent + γL × live; 'live' is the case's own extreme (impact and "
-             "case factors included). → travels towards +x, ← towards −x; the lead axle is "
-             "the first axle as listed. Every position: design-positions.csv.")
+        ("", "where", "effect", f"x\n[{L}]", "design = permanent + γL × live",
+         "governing case", "live load position"), tuple(rows),
+        (False, False, False, True, False, False, False),
+        note="The design value is the design table's; the permanent part is factored; 'live' "
+             "is the governing case's own extreme (impact and case factors included). → "
+             "travels towards +x, ← towards −x; the lead axle is the first axle as listed. "
+             "Every position and axle: design-positions.csv.")
 
 
 def positions_csv(results: EnvelopeResults) -> str:
