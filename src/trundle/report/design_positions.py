@@ -126,12 +126,19 @@ def _letters() -> list[str]:
     return single + [a + b for a in single for b in single]
 
 
-def positions_figure(results: EnvelopeResults, records: Sequence[DesignRecord],
-                     places: Mapping[str, int]) -> Figure | None:
-    """Every panel of one combination, two to a row (None when no live load governs)."""
+PANELS_PER_FIGURE = 8  # four rows of two: one figure stays on one printed page
+
+
+def positions_figures(results: EnvelopeResults, records: Sequence[DesignRecord],
+                      places: Mapping[str, int]) -> list[Figure]:
+    """The panels of one combination, two to a row, at most :data:`PANELS_PER_FIGURE` to a
+    figure (none when no live load governs)."""
     items = panels(results, records, places)
-    if not items:
-        return None
+    return [_figure(results, items[i:i + PANELS_PER_FIGURE])
+            for i in range(0, len(items), PANELS_PER_FIGURE)]
+
+
+def _figure(results: EnvelopeResults, items: Sequence[Panel]) -> Figure:
     columns = 2 if len(items) > 1 else 1
     rows = -(-len(items) // columns)
     with figure_style():
@@ -150,15 +157,17 @@ def positions_figure(results: EnvelopeResults, records: Sequence[DesignRecord],
     return figure
 
 
-def positions_caption(results: EnvelopeResults, combination: str) -> str:
+def positions_caption(results: EnvelopeResults, combination: str, part: int = 1,
+                      parts: int = 1) -> str:
     L = results.units.label("length")
-    return (f"{combination}: critical load positions [{L}] for the governing design values "
+    of = f" (part {part} of {parts})" if parts > 1 else ""
+    return (f"{combination}: critical load positions{of} [{L}] for the governing design values "
             "of each span (largest and smallest moment, largest shear) and each support "
             "(largest reaction; smallest where it lifts): the live load of the governing "
             "case where it stands (arrows: concentrated loads, showing position not size; "
             "hatched: loaded stretches; hollow dashed arrow: a load beyond an end of the "
             "beam; dashed line: the section or support). Values are the design table's; the "
-            "table below splits each into its permanent and live parts.")
+            "table after the last part splits each into its permanent and live parts.")
 
 
 def positions_table(results: EnvelopeResults, combination: str,
@@ -219,12 +228,15 @@ def positions_csv(results: EnvelopeResults) -> str:
                 "" if load is None else " ".join(number(a) for a in load.axles),
                 "" if load is None else " ".join(f"{number(a)}..{number(b)}"
                                                   for a, b in load.loaded),
+                "" if load is None else " ".join(f"{number(a)}..{number(b)}@{number(w)}"
+                                                  for a, b, w in load.attached),
                 "" if load is None else "; ".join(f"{n}={number(v)}" for n, v in load.searched),
                 "" if r.case == PERMANENT_ONLY else ("yes" if r.reproduced else "NO")])
     return csv_text(["combination", "family", "which", "x_or_support", "x", "value", "unit",
                      "permanent_factored", "live_factor", "live", "governing_case",
                      "alternative", "alternative_factor", "spans", "direction", "lead_x",
-                     "axles", "loaded_stretches", "searched", "reproduced"], rows)
+                     "axles", "loaded_stretches", "attached_uniform", "searched",
+                     "reproduced"], rows)
 
 
 def positions_json(records: Sequence[DesignRecord]) -> list[dict]:
@@ -240,6 +252,7 @@ def positions_json(records: Sequence[DesignRecord]) -> list[dict]:
             "load": None if load is None else {
                 "direction": load.direction, "lead_x": load.lead_x, "axles": list(load.axles),
                 "loaded": [list(s) for s in load.loaded],
+                "attached_uniform": [list(s) for s in load.attached],
                 "searched": {n: v for n, v in load.searched},
                 "parts": [{"case": p.case, "axles": list(p.axles),
                            "loaded": [list(s) for s in p.loaded]} for p in load.parts]}})

@@ -20,7 +20,7 @@ from trundle.report.design_positions import (
     drawn,
     positions_caption,
     positions_csv,
-    positions_figure,
+    positions_figures,
     positions_json,
     positions_table,
 )
@@ -420,14 +420,14 @@ def _figures(results: EnvelopeResults) -> tuple[dict[str, Any], dict[str, str],
                 figures[stem] = drawn_figures[stem]
         records = result.positions.get(name, ())
         places = design_places(result, name)
-        figure = positions_figure(results, records, places)
-        if figure is None:
-            continue
-        stem = figure_stem(name, "positions")
-        figures[stem] = figure
-        captions[stem] = positions_caption(results, name)
+        drawn_parts = positions_figures(results, records, places)
+        stem = ""
+        for k, figure in enumerate(drawn_parts, start=1):
+            stem = figure_stem(name, "positions" + (f"-{k}" if k > 1 else ""))
+            figures[stem] = figure
+            captions[stem] = positions_caption(results, name, k, len(drawn_parts))
         table = positions_table(results, name, records, places)
-        if table is not None:
+        if stem and table is not None:  # the key under the last part
             tables[stem] = table
     for stem, figure in drawn_figures.items():  # anything not yet placed keeps its place
         figures.setdefault(stem, figure)
