@@ -115,6 +115,8 @@ def panels(results: EnvelopeResults, records: Sequence[DesignRecord],
                    f"{value_text(record, places)} {unit} at x = {position(record.x)} {L}")
         assert record.load is not None
         words = load_words(record.load, L)
+        if not record.reproduced:
+            words = "NOT REPRODUCED, check by hand: " + words
         mark = (f"R {record.which}" if record.family == "reaction"
                 else f"{SYMBOL[record.family].split()[0]} {record.which}")
         out.append(Panel(heading, _extreme(record, words), f"({letter}) {mark}"))

@@ -28,7 +28,7 @@ from trundle.analysis.permanent import PermanentEffects, PermanentLoad, permanen
 from trundle.core.beam import Beam
 from trundle.loads.design_cases import DesignCase
 from trundle.loads.patterns import UniformLoad
-from trundle.workflows.design_records import DesignRecord, design_records
+from trundle.workflows.design_records import DesignRecord, LiveLoads, design_records
 
 
 @dataclass(frozen=True)
@@ -114,6 +114,8 @@ def run(spec: DesignSpec) -> DesignResult:
                     for name, w, p in spec.live_patterns]
         if movable:
             deflection = live_load_deflection_checks(beam, movable, spec.deflection_ratio)
-    positions = design_records(spec, sections, critical, cases, designs)
+    live_loads = LiveLoads(beam, spec.design_loads, spec.loads, spec.live_patterns,
+                           spec.lane_length_loads)
+    positions = design_records(live_loads, sections, critical, cases, designs)
     return DesignResult(spec, sections, critical, cases, permanent, designs, deflection,
                         positions)

@@ -20,7 +20,7 @@ from __future__ import annotations
 import math
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
-from typing import TYPE_CHECKING, Any
+from typing import Any
 
 import numpy as np
 from numpy.typing import NDArray
@@ -34,9 +34,6 @@ from trundle.core.beam import Beam
 from trundle.loads.cases import as_case
 from trundle.loads.design_cases import DesignCase, for_beam
 from trundle.loads.patterns import UniformLoad
-
-if TYPE_CHECKING:
-    from trundle.workflows.design_envelope import DesignSpec
 
 # relative agreement of a re-found configuration with the case's own extreme
 REPRODUCED = 1e-6
@@ -160,8 +157,9 @@ def _order(pick: _Pick) -> tuple:
     return (0, min(pick.spans), kind, pick.which != "max", pick.index)
 
 
-class _LiveSources:
-    """The live loads of a design spec by case name, and how each is enveloped again."""
+class LiveLoads:
+    """The live loads of a design spec by case name (design cases, plain loads, patterned
+    uniform loads, lane loads w(L)), and how each is enveloped again."""
 
     def __init__(self, beam: Beam, design_loads: Sequence[DesignCase], loads: Sequence[Any],
                  live_patterns: Sequence[tuple[str, float, str]],
@@ -196,14 +194,12 @@ def _where(pick: _Pick, sections: NDArray[np.float64], beam: Beam) -> float:
     return float(sections[pick.index])
 
 
-def design_records(spec: DesignSpec, sections: NDArray[np.float64],
+def design_records(sources: LiveLoads, sections: NDArray[np.float64],
                    critical: NDArray[np.float64], cases: Mapping[str, CaseEnvelope],
                    designs: Mapping[str, DesignEnvelope]) -> dict[str, tuple[DesignRecord, ...]]:
     """Per combination (by name), its governing design values with where the live load
     stands, span by span and then support by support."""
-    beam = spec.beam
-    sources = _LiveSources(beam, spec.design_loads, spec.loads, spec.live_patterns,
-                           spec.lane_length_loads)
+    beam = sources.beam
     picks: dict[str, list[_Pick]] = {}
     for name, env in designs.items():
         mine = _section_picks(name, env, beam, sections, critical) + _support_picks(name, env)
@@ -279,4 +275,4 @@ def _scale(case: CaseEnvelope, family: str) -> float:
     return float(finite.max()) if finite.size else 0.0
 
 
-__all__ = ["DesignRecord", "design_records"]
+__all__ = ["DesignRecord", "LiveLoads", "design_records"]
