@@ -214,3 +214,24 @@ def test_a_lane_load_by_loaded_length_is_drawn_on_its_loaded_set() -> None:
     assert record.load.loaded[0] == pytest.approx((0.0, L))
     assert record.live == pytest.approx(w * L**2 / 8, rel=1e-9) and record.reproduced
     assert math.isclose(record.value, 1.2 * L**2 / 8 + 1.6 * w * L**2 / 8, rel_tol=1e-9)
+
+
+def test_a_configuration_not_reproduced_is_marked_in_every_output(tmp_path, monkeypatch):
+    """Should the live configuration found again ever differ from the case's tabulated value,
+    the values stand but every output says the drawing is not reproduced (a tolerance below
+    zero forces it here)."""
+    from cli_helpers import read_csv
+    from cli_helpers import run as run_cli
+    from trundle.workflows import design_records
+
+    monkeypatch.setattr(design_records, "REPRODUCED", -1.0)
+    out = tmp_path / "out"
+    model = ROOT / "examples" / "design" / "heron_gill_underbridge_e80_us.toml"
+    result = run_cli("envelope", model, "--out", out, "--no-figure")
+    assert result.exit_code == 0, result.output
+    header, rows = read_csv(out / "design-positions.csv")
+    assert {r[header.index("reproduced")] for r in rows} == {"NO"}
+    page = (out / "report.html").read_text(encoding="utf-8")
+    assert "NOT REPRODUCED: the live-load position found again" in page
+    assert page.count("NOT REPRODUCED, check by") == len(rows)  # every panel title
+    assert "NOT REPRODUCED" in result.output
