@@ -83,6 +83,8 @@ class ExtraSection:
     cautions : added to the cautions of every output (terminal, JSON, report)
     detail_files : detail table title -> the file that has every row of it (the report
         shows a per-section table at the tenth points and supports and says where the rest is)
+    figure_tables : figure name -> a table the HTML report shows right under that figure
+        (its key: what each panel shows, in words and numbers)
     """
 
     title: str
@@ -95,6 +97,7 @@ class ExtraSection:
     captions: dict[str, str] = field(default_factory=dict)
     cautions: tuple[str, ...] = ()
     detail_files: dict[str, str] = field(default_factory=dict)
+    figure_tables: dict[str, TableData] = field(default_factory=dict)
 
 
 SectionProvider = Callable[["EnvelopeResults"], "ExtraSection | None"]
