@@ -280,6 +280,19 @@ def test_the_design_numbers_are_those_of_the_design_csv(example):
             assert _same(row[3], values[name, csv_x, "moment", "min"]), row
 
 
+def test_a_us_report_shows_every_quantity_in_us_units(example):
+    """A model in US units: no force, moment or deflection in SI anywhere in the report
+    (a library load model written in SI has its description converted), apart from the
+    model file reproduced verbatim in the appendix."""
+    path, _, page = example
+    if 'units = "US"' not in path.read_text(encoding="utf-8"):
+        pytest.skip("an SI example")
+    shown = re.sub(r'<pre class="model-text">.*?</pre>', "", page, flags=re.S)
+    text = _text(re.sub(r"<style>.*?</style>", "", shown, flags=re.S))
+    leaks = re.findall(r".{0,50}\b(?:kN|MN|mm|kN·m|kN/m)\b.{0,20}", text)
+    assert not leaks, leaks[:3]
+
+
 def test_the_critical_load_positions_are_drawn(example):
     path, out, page = example
     if (out / "envelope.csv").exists() or (out / "runway-sections.csv").exists():
