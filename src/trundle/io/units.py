@@ -21,7 +21,8 @@ from typing import Any
 from trundle.io.unit_guard import guard_unit_text
 
 # What each physical quantity is, as a pint expression of the system's force F and length L,
-# the pretty label pattern and the plain-ASCII pattern for CSV/JSON headers.
+# the label pattern (tables, figures, CSV headings) and the plain-ASCII pattern (JSON unit
+# fields).
 _QUANTITY_PATTERNS: dict[str, tuple[str, str, str]] = {
     "length": ("{L}", "{L}", "{L}"),
     "position": ("{L}", "{L}", "{L}"),
@@ -87,7 +88,8 @@ class UnitSystem:
         return _QUANTITY_PATTERNS[quantity][0].format(F=self.force, L=self.length)
 
     def label(self, quantity: str) -> str:
-        """The base unit of ``quantity`` for people: "kN·m²"."""
+        """The base unit of ``quantity`` as every table, figure and CSV heading spells it:
+        "kN·m²"."""
         if quantity == "deflection":
             return self.deflection
         if quantity == "rotation":
@@ -95,7 +97,8 @@ class UnitSystem:
         return _QUANTITY_PATTERNS[quantity][1].format(F=self.force, L=self.length)
 
     def ascii_label(self, quantity: str) -> str:
-        """The base unit of ``quantity`` in plain ASCII for CSV and JSON: "kN*m^2"."""
+        """The base unit of ``quantity`` in plain ASCII for the unit fields of JSON files:
+        "kN*m^2" (CSV headings, tables and figures use :meth:`label`)."""
         if quantity in ("deflection", "rotation"):
             return self.label(quantity)
         return _QUANTITY_PATTERNS[quantity][2].format(F=self.force, L=self.length)

@@ -428,17 +428,17 @@ def envelope_csv(results: EnvelopeResults) -> str:
     """One row per section: x, span, support, every max/min with what governs it, and the
     shear acting together with the max and min moment."""
     units = results.units
-    L = units.ascii_label("length")
+    L = units.label("length")  # headings spell units as every other output does
     header = [f"x [{L}]", "span", "support"]
     columns: list[tuple[str, str, bool]] = []
     for family in SECTION_FAMILIES:
         for which in ("max", "min"):
             sided = family.startswith("shear")
             name = f"{FAMILY_NAMES[family]} {which}"
-            header += _extreme_columns(name, quantity_unit(family, units, True), L, sided)
+            header += _extreme_columns(name, quantity_unit(family, units), L, sided)
             columns.append((family, which, sided))
             if family == "moment":
-                force = units.ascii_label("force")
+                force = units.label("force")
                 header += [f"{name}: concurrent shear left [{force}]",
                            f"{name}: concurrent shear right [{force}]"]
     extremes = {(f, w): section_extremes(results, f, w) for f, w, _ in columns}
@@ -459,7 +459,7 @@ def envelope_csv(results: EnvelopeResults) -> str:
 def reactions_csv(results: EnvelopeResults) -> str:
     """One row per support: max and min reaction (and support moment where there is one)."""
     units = results.units
-    L = units.ascii_label("length")
+    L = units.label("length")
     beam = results.beam
     families = ["reaction"] + (["support_moment"]
                                if results.env.index["support_moment"].size else [])
@@ -467,7 +467,7 @@ def reactions_csv(results: EnvelopeResults) -> str:
     for family in families:
         for which in ("max", "min"):
             header += _extreme_columns(f"{FAMILY_NAMES[family]} {which}",
-                                       quantity_unit(family, units, True), L, False)
+                                       quantity_unit(family, units), L, False)
     extremes = {(f, w): support_extremes(results, f, w) for f in families
                 for w in ("max", "min")}
     rows = []
