@@ -201,13 +201,41 @@ def test_a_missing_model_file_is_one_line() -> None:
                           "no-such-model.toml")
 
 
-def test_progress_bar_on_a_terminal_gives_the_same_result(monkeypatch) -> None:
+def test_the_progress_bar_advances_once_per_sweep_point(monkeypatch) -> None:
+    """On a terminal the bar is drawn and advances by one after each point (not per section
+    or per step of the work); off a terminal nothing is drawn; the result is the same."""
+    import io
+
+    from rich.console import Console
+
     import trundle.cli as cli_module
+    import trundle.cli_console as console_module
     from trundle.io.modelfile import load_model
     from trundle.io.sweeps import build_spec
     from trundle.workflows.sweep import run as run_sweep
 
-    spec = build_spec(load_model(FLOOR), {FORKLIFT: "1.2:1.8:0.3 m"}, ["moment max span 2"])
-    monkeypatch.setattr(cli_module.sys.stderr, "isatty", lambda: True, raising=False)
+    spec = build_spec(load_model(FLOOR), {FORKLIFT: "1.2:2.1:0.3 m"}, ["moment max span 2"])
+    assert spec.n_points == 4
+    screen = io.StringIO()
+    monkeypatch.setattr(console_module, "Console", lambda **_: Console(
+        file=screen, force_terminal=True, width=80))
+    advances: list[tuple[int, float | None]] = []
+    update = console_module.Progress.update
+
+    def counting(self, description=None, advance=0):
+        done = self._bar.tasks[0].completed if self._bar is not None else None
+        advances.append((advance, done))
+        update(self, description, advance)
+
+    monkeypatch.setattr(console_module.Progress, "update", counting)
+    # off a terminal (as under pytest): counted, never drawn
+    silent = cli_module._run_with_progress(spec)
+    assert [a for a, _ in advances] == [1] * 4 and screen.getvalue() == ""
+    # on a terminal: drawn, 0, 1, 2, 3 points done before each advance
+    advances.clear()
+    monkeypatch.setattr(console_module, "_show_progress", lambda: True)
     shown = cli_module._run_with_progress(spec)
+    assert advances == [(1, 0), (1, 1), (1, 2), (1, 3)]
+    assert "sweep: points done" in screen.getvalue() and "4/4" in screen.getvalue()
     np.testing.assert_array_equal(shown.values, run_sweep(spec).values)
+    np.testing.assert_array_equal(silent.values, shown.values)

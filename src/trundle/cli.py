@@ -998,17 +998,12 @@ def _rows_shown(n: int) -> list[int]:
 
 
 def _run_with_progress(spec: Any) -> Any:
-    """Run the sweep with a progress bar on a terminal, silently otherwise."""
+    """Run the sweep; on a terminal (and not quiet) a bar on stderr advances by one as each
+    point is done (the shared :class:`cli_console.Progress`; silent otherwise)."""
     from trundle.workflows.sweep import run
 
-    if not sys.stderr.isatty() or term.quiet() or spec.n_points < 2:
-        return run(spec)
-    from rich.progress import BarColumn, MofNCompleteColumn, Progress, TimeRemainingColumn
-
-    with Progress("sweep", BarColumn(), MofNCompleteColumn(), TimeRemainingColumn(),
-                  console=Console(stderr=True), transient=True) as bar:
-        task = bar.add_task("sweep", total=spec.n_points)
-        return run(spec, lambda done, total: bar.update(task, completed=done))
+    with term.Progress(spec.n_points, "sweep: points done") as bar:
+        return run(spec, lambda done, total: bar.update(advance=1))
 
 
 from trundle.cli_fleet import register as _register_fleet  # noqa: E402 (needs cli above)
