@@ -42,14 +42,14 @@ def library_runway(path: Path) -> RunwayResult:
 @pytest.fixture(scope="module")
 def si(tmp_path_factory):
     out = tmp_path_factory.mktemp("si") / "results"
-    result = run("envelope", SI_HALL, "--out", out)
+    result = run("envelope", SI_HALL, "--out", out, "--full")
     return result, out, library_runway(SI_HALL)
 
 
 @pytest.fixture(scope="module")
 def us(tmp_path_factory):
     out = tmp_path_factory.mktemp("us") / "results"
-    result = run("envelope", US_HALL, "--out", out)
+    result = run("envelope", US_HALL, "--out", out, "--full")
     return result, out, library_runway(US_HALL)
 
 
@@ -274,7 +274,8 @@ operation = "hand"
 service_class = "A"
 """)
     out = tmp_path / "out"
-    result = run("envelope", model, "--out", out, "--no-figure", "--no-report")
+    result = run("envelope", model, "--out", out, "--no-figure", "--no-report",
+                 "--full")
     assert result.exit_code == 0, result.stderr
     assert {p.name for p in out.iterdir()} == {
         "envelope.csv", "reactions.csv", "envelope.json", "runway-reactions.csv",

@@ -49,7 +49,7 @@ def library_envelope(path: Path) -> trundle.Envelope:
 @pytest.fixture(scope="module")
 def si_run(tmp_path_factory):
     out = tmp_path_factory.mktemp("si") / "results"
-    result = run("envelope", SI_EXAMPLE, "--out", out)
+    result = run("envelope", SI_EXAMPLE, "--out", out, "--full")
     return result, out
 
 
@@ -380,7 +380,7 @@ def test_together_in_the_cli_equals_the_library_together(tmp_path):
     model.write_text(TOGETHER_MODEL.format(first="18 m", second="24 m", axle="150 kN",
                                            w="9 kN/m", placement="spans"))
     out = tmp_path / "results"
-    result = run("envelope", model, "--out", out, "--no-figure", "--no-report")
+    result = run("envelope", model, "--out", out, "--no-figure", "--no-report", "--full")
     assert result.exit_code == 0, result.stderr
     # the same loads built directly with the library, not through the model file
     beam = trundle.Beam(spans=[18.0, 24.0], EI=2.0e6, supports=["pin", "pin", "pin"])

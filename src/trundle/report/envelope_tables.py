@@ -11,6 +11,7 @@ from collections.abc import Sequence
 from typing import Any
 
 import numpy as np
+from rich import box
 from rich.table import Table
 from rich.text import Text
 
@@ -377,19 +378,23 @@ def input_tables(results: EnvelopeResults) -> list[TableData]:
     return tables
 
 
-def to_rich(table: TableData) -> Table:
-    """A TableData for the terminal; cells are plain text, never markup."""
+def to_rich(table: TableData, compact: bool = False) -> Table:
+    """A TableData for the terminal; cells are plain text, never markup. ``compact``: no
+    frame above and below and no rules between groups, a rule under the headings only (the
+    short default view of ``trundle envelope``)."""
     # names and titles come from model files: no control character reaches the terminal
     out = Table(title=Text(terminal_text(table.title), style="bold"), title_justify="left",
                 caption=Text(terminal_text(table.note)) if table.note else None,
-                caption_justify="left")
+                caption_justify="left",
+                **({"box": box.SIMPLE_HEAD, "show_edge": False, "padding": (0, 1, 0, 0),
+                    "pad_edge": False} if compact else {}))
     numeric = table.numeric or (False,) * len(table.columns)
     for name, right in zip(table.columns, numeric, strict=True):
         # fold, never cut: a truncated name or number in a calculation is worse than a wrap
         out.add_column(Text(clean_text(name, keep_newlines=True)),
                        justify="right" if right else "left",
                        overflow="fold")
-    starts = set(table.groups[1:])
+    starts = set() if compact else set(table.groups[1:])
     for i, row in enumerate(table.rows):
         if i in starts:
             out.add_section()
