@@ -39,6 +39,11 @@ def test_a_check_table_is_summarised_per_kind_and_a_failure_is_never_hidden():
         ("4", "vertical", "?", "inf", "EXCEEDS"),), CHECKS.numeric)
     assert check_view(odd, group=1, where=0).rows[0][2:] == ("2 EXCEED", "inf", "span 4",
                                                              "EXCEEDS")
+    # a value marked * (not certified) keeps the note saying what the mark means
+    marked = TableData(CHECKS.title, CHECKS.columns, (("2 *",) + CHECKS.rows[1][1:],)
+                       + CHECKS.rows[2:], CHECKS.numeric, note="* not certified: may read low")
+    assert check_view(marked, group=1, where=0).note == "* not certified: may read low"
+    assert check_view(CHECKS, group=1, where=0).note == ""
     # a table of a couple of rows is shown whole
     short = TableData(CHECKS.title, CHECKS.columns, CHECKS.rows[:2], CHECKS.numeric)
     assert check_view(short).rows == short.rows

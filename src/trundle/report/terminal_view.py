@@ -142,12 +142,16 @@ def check_view(table: TableData, group: int | None = None, where: int = 0
                      f"{failing} EXCEED" if failing else "none", worst[u].strip(),
                      f"{names[where]} {worst[where].strip()}", verdict))
     first = names[group] if group is not None else "checks"
+    # a value marked * (not certified) keeps the note that says what the mark means
+    marked = any(cell.rstrip().endswith("*") for row in table.rows for cell in row)
     return TableData(table.title + " (summary)",
                      (first, "checks", "exceeding", "largest utilisation", "at", "verdict"),
-                     tuple(rows), (False, True, True, True, False, False))
+                     tuple(rows), (False, True, True, True, False, False),
+                     table.note if marked else "")
 
 
-def default_view(results: EnvelopeResults, loads_part: Sequence[TableData | Pointer],
+def default_view(results: EnvelopeResults,
+                 loads_part: Sequence[TableData | Pointer | str]
                  ) -> list[TableData | Pointer | str]:
     """Every part of the default view in order: the loads' part (built by the caller from
     the envelope tables), then each extra section's own short view (``terminal``), or, for
