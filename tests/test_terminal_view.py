@@ -61,6 +61,11 @@ def test_narrowed_keeps_the_columns_asked_for_and_what_not_certified_means():
     assert short.note == ("'not certified': found by a search; may read low: check it where "
                           "it governs.")
     assert narrowed(table, ("span", "M")).note == ""
+    # a column of words the same in every row is said once, under the table
+    two = TableData("Reactions", ("support", "R [kN]", "load"),
+                    (("0", "12.0", "truck"), ("1", "15.0", "truck")), (True, True, False))
+    once = narrowed(two, ("support", "R", "load"))
+    assert once.columns == ("support", "R [kN]") and once.note == "load: truck, in every row."
 
 
 def _lines(output: str) -> list[str]:

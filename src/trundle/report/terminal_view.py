@@ -27,8 +27,9 @@ from trundle.report.format import NO_VALUE, verdict_cell
 from trundle.report.package import body_rows, shortened, x_column_values
 
 # A per-section table longer than this (after the cut to tenth points and supports) is left
-# to the files: 41 rows are the tenth points of four spans.
-MOST_SECTION_ROWS = 41
+# to the files: 31 rows are the tenth points of three spans (a longer beam's governing values
+# per span are on the screen; its envelope at every section is a file to read, not a screen).
+MOST_SECTION_ROWS = 33
 # A check table of at most this many rows is shown whole; a longer one is summarised.
 MOST_CHECK_ROWS = 2
 # A table of x that is no longer than this is shown whole (a few chosen sections).
@@ -56,10 +57,19 @@ def narrowed(table: TableData, keep: Sequence[str], title: str | None = None,
     """``table`` with only the columns whose name (:func:`heading`) is in ``keep`` (in the
     table's order), without the rules between groups; its note left to the full view unless
     ``with_note`` (or a kept value is marked "not certified")."""
-    # a column with nothing in it (no searched spacing anywhere, one crane) is left out
-    chosen = [k for k, c in enumerate(table.columns)
-              if heading(c) in keep and any(row[k].strip() for row in table.rows)]
+    # a column with nothing in it (no searched spacing anywhere, one crane) is left out; a
+    # column of words that says the same in every row (one crane combination, one load) is
+    # said once, under the table
     numeric = table.numeric or (False,) * len(table.columns)
+    chosen, same = [], []
+    for k, column in enumerate(table.columns):
+        if heading(column) not in keep or not any(row[k].strip() for row in table.rows):
+            continue
+        values = {row[k] for row in table.rows}
+        if k > 1 and not numeric[k] and len(values) == 1 and len(table.rows) > 1:
+            same.append(f"{heading(column)}: {values.pop()}, in every row.")
+            continue
+        chosen.append(k)
     rows = tuple(tuple(row[k] for k in chosen) for row in table.rows)
     # a value marked "not certified" keeps the note that says it may read low
     marked = any("not certified" in cell for row in rows for cell in row)
@@ -69,7 +79,7 @@ def narrowed(table: TableData, keep: Sequence[str], title: str | None = None,
         end = table.note.find("governs.", start) + len("governs.")
         note = table.note[start:end] if 0 <= start < end else table.note
     return TableData(title or table.title, tuple(table.columns[k] for k in chosen), rows,
-                     tuple(numeric[k] for k in chosen), note)
+                     tuple(numeric[k] for k in chosen), " ".join([*same, note]).strip())
 
 
 def values_only(table: TableData) -> TableData:
