@@ -156,16 +156,9 @@ def sweep_figure(result: SweepResult, title: str = "") -> Figure:
                     marker="o" if len(x) <= 40 else None, markersize=2.5)
             p = result.worst(e)
             ax.plot([x[p]], [y[p]], marker="D", color=INK, markersize=4, linestyle="none")
-            right_half = x[p] > 0.5 * (x.min() + x.max())
-            # below the point when it is the top of the curve, above it otherwise; on a
-            # white ground so that a curve passing under it never hides a digit
-            below = y[p] >= np.nanmax(y)
-            ax.annotate(f"{_short(y[p])} at {length(x[p])}", (x[p], y[p]),
-                        textcoords="offset points",
-                        xytext=(-6 if right_half else 6, -10 if below else 8),
-                        ha="right" if right_half else "left", va="center", fontsize=7,
-                        color=INK, bbox={"boxstyle": "square,pad=0.15", "facecolor": "white",
-                                         "edgecolor": "none", "alpha": 0.9})
+            # the worst value above the panel, never over the curve (the diamond marks it)
+            ax.set_title(f"worst: {_short(y[p])} at {length(x[p])} {result.axes[0].unit}",
+                         loc="right", fontsize=7, color=INK)
             # a label runs along the panel's height (1.9 in): wrapped to fit it
             ax.set_ylabel(wrapped(effect_title(result, e), 1.7, 8.5))
         axes[-1].set_xlabel(wrapped(axis_title(result, 0), width - 0.6, 8.5))
