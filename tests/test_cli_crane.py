@@ -42,14 +42,14 @@ def library_runway(path: Path) -> RunwayResult:
 @pytest.fixture(scope="module")
 def si(tmp_path_factory):
     out = tmp_path_factory.mktemp("si") / "results"
-    result = run("envelope", SI_HALL, "--out", out)
+    result = run("envelope", SI_HALL, "--out", out, "--full")
     return result, out, library_runway(SI_HALL)
 
 
 @pytest.fixture(scope="module")
 def us(tmp_path_factory):
     out = tmp_path_factory.mktemp("us") / "results"
-    result = run("envelope", US_HALL, "--out", out)
+    result = run("envelope", US_HALL, "--out", out, "--full")
     return result, out, library_runway(US_HALL)
 
 
@@ -111,13 +111,13 @@ def test_sections_csv_equals_the_library(si):
     lateral_moment, _ = lateral_extremes(runway, "moment")
     lateral_deflection, _ = lateral_extremes(runway, "deflection")
     checks = {
-        "moment max with impact [kN*m]": runway.strength.max("moment"),
-        "moment min with impact [kN*m]": runway.strength.min("moment"),
+        "moment max with impact [kN·m]": runway.strength.max("moment"),
+        "moment min with impact [kN·m]": runway.strength.min("moment"),
         "shear left max with impact [kN]": runway.strength.max("shear", side="left"),
         "shear right min with impact [kN]": runway.strength.min("shear", side="right"),
         # deflection in mm; the core gives m
         "deflection max without impact [mm]": 1000.0 * runway.service.max("deflection"),
-        "lateral moment (either way) [kN*m]": lateral_moment,
+        "lateral moment (either way) [kN·m]": lateral_moment,
         "lateral deflection (either way) [mm]": 1000.0 * lateral_deflection,
     }
     for name, expected in checks.items():
@@ -140,7 +140,7 @@ def test_deflection_and_fatigue_csv_equal_the_library(si):
                                [c.utilisation for c in runway.lateral_checks], rtol=1e-11)
     header, body = read_csv(out / "runway-fatigue.csv")
     assert len(body) == len(runway.fatigue) == 2 * len(runway.sections)
-    np.testing.assert_allclose(column(header, body, "moment range per passage [kN*m]"),
+    np.testing.assert_allclose(column(header, body, "moment range per passage [kN·m]"),
                                [f.moment_range for f in runway.fatigue], rtol=1e-11, atol=1e-9)
     # stresses in MPa; the core gives kN/m²
     np.testing.assert_allclose(column(header, body, "stress range max [MPa]"),
@@ -229,7 +229,7 @@ def test_us_runway_in_us_units_with_the_makers_wheel_loads(us):
     # deflection in inches; the core gives ft
     np.testing.assert_allclose(column(header, body, "deflection max without impact [in]"),
                                12.0 * runway.service.max("deflection"), rtol=1e-11, atol=1e-12)
-    np.testing.assert_allclose(column(header, body, "moment min with impact [kip*ft]"),
+    np.testing.assert_allclose(column(header, body, "moment min with impact [kip·ft]"),
                                runway.strength.min("moment"), rtol=1e-11, atol=1e-9)
     header, body = read_csv(out / "runway-fatigue.csv")
     # stresses in ksi; the core gives kip/ft² (1 ksi = 144 kip/ft²)
@@ -274,7 +274,8 @@ operation = "hand"
 service_class = "A"
 """)
     out = tmp_path / "out"
-    result = run("envelope", model, "--out", out, "--no-figure", "--no-report")
+    result = run("envelope", model, "--out", out, "--no-figure", "--no-report",
+                 "--full")
     assert result.exit_code == 0, result.stderr
     assert {p.name for p in out.iterdir()} == {
         "envelope.csv", "reactions.csv", "envelope.json", "runway-reactions.csv",

@@ -130,9 +130,10 @@ def test_quiet_prints_only_the_verdict_summary_and_a_caution(tmp_path):
     assert len(checks) == 1 and "EXCEED" in checks[0]
     assert any(line.strip().startswith("EXCEEDS") for line in lines)
     assert "qualified engineer" in quiet.stdout
-    assert "┏" not in quiet.stdout  # no table
-    normal = run("envelope", model)
-    assert "┏" in normal.stdout and "EXCEED" in normal.stdout
+    assert "┏" not in quiet.stdout and "───" not in quiet.stdout  # no table
+    normal = run("envelope", model)  # the short tables of the default view
+    assert "───" in normal.stdout and "EXCEED" in normal.stdout
+    assert "┏" in run("envelope", model, "--full").stdout  # every table, framed
     passing = run("envelope", DESIGN_SI, "-q")
     assert any(line.startswith("checks: all ") for line in passing.stdout.splitlines())
 

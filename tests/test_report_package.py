@@ -20,13 +20,12 @@ import re
 import shutil
 import subprocess
 import tempfile
-from html.parser import HTMLParser
 from pathlib import Path
 
 import numpy as np
 import pytest
 
-from cli_helpers import assert_one_line_error, read_csv, run
+from cli_helpers import HtmlChecker, assert_one_line_error, read_csv, run
 from trundle.io.modelfile import read_model
 from trundle.io.project import ProjectInfo, project_of
 from trundle.report.package import css_string, inline_svg, model_text_lines
@@ -109,37 +108,6 @@ def example(request, tmp_path_factory):
     return path, out, (out / "report.html").read_text(encoding="utf-8")
 
 
-class _Checker(HTMLParser):
-    """Every element closed in the order opened (void elements excepted); ids unique."""
-
-    VOID = {"meta", "br", "img", "hr", "link", "input", "col", "wbr", "source"}
-
-    def __init__(self) -> None:
-        super().__init__(convert_charrefs=True)
-        self.stack: list[str] = []
-        self.ids: list[str] = []
-        self.errors: list[str] = []
-        self.svg_depth = 0
-
-    def handle_starttag(self, tag, attrs):
-        for name, value in attrs:
-            if name == "id":
-                self.ids.append(value)
-        if tag not in self.VOID:
-            self.stack.append(tag)
-
-    def handle_startendtag(self, tag, attrs):  # <path/> in SVG: opened and closed at once
-        for name, value in attrs:
-            if name == "id":
-                self.ids.append(value)
-
-    def handle_endtag(self, tag):
-        if not self.stack or self.stack[-1] != tag:
-            self.errors.append(f"</{tag}> closes {self.stack[-1:]} at {self.getpos()}")
-            return
-        self.stack.pop()
-
-
 def _text(page: str) -> str:
     return " ".join(html.unescape(re.sub(r"<[^>]+>", " ", page)).split())
 
@@ -147,7 +115,7 @@ def _text(page: str) -> str:
 def test_the_report_is_well_formed_html(example):
     _, _, page = example
     assert page.startswith("<!DOCTYPE html>")
-    checker = _Checker()
+    checker = HtmlChecker()
     checker.feed(page)
     checker.close()
     assert not checker.errors, checker.errors[:5]
@@ -278,6 +246,19 @@ def test_the_design_numbers_are_those_of_the_design_csv(example):
             assert abs(csv_x - x) <= 1e-6 * max(1.0, abs(x))
             assert _same(row[1], values[name, csv_x, "moment", "max"]), row
             assert _same(row[3], values[name, csv_x, "moment", "min"]), row
+
+
+def test_a_us_report_shows_every_quantity_in_us_units(example):
+    """A model in US units: no force, moment or deflection in SI anywhere in the report
+    (a library load model written in SI has its description converted), apart from the
+    model file reproduced verbatim in the appendix."""
+    path, _, page = example
+    if 'units = "US"' not in path.read_text(encoding="utf-8"):
+        pytest.skip("an SI example")
+    shown = re.sub(r'<pre class="model-text">.*?</pre>', "", page, flags=re.S)
+    text = _text(re.sub(r"<style>.*?</style>", "", shown, flags=re.S))
+    leaks = re.findall(r".{0,50}\b(?:kN|MN|mm|kN·m|kN/m)\b.{0,20}", text)
+    assert not leaks, leaks[:3]
 
 
 def test_the_critical_load_positions_are_drawn(example):

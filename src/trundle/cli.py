@@ -567,9 +567,15 @@ def _lines_files(model: Model, model_file: str, lines: InfluenceSet, figure_form
                    "either way).")
 @click.option("--no-figure", is_flag=True, help="With --out: write no figure files.")
 @click.option("--no-report", is_flag=True, help="With --out: write no report.html.")
+@click.option("--full", is_flag=True,
+              help="Print every table in full: the inputs as read, the defaults in use, where "
+                   "each load stands, concurrent shear, every check. Without it the terminal "
+                   "shows the governing values, the tenth-point table, each check summarised "
+                   "and the verdicts (every section is in the CSV files and report.html).")
 @_allow_path_option
 def envelope_command(model_file: str, out_dir: Path | None, figure_format: str,
-                     no_figure: bool, no_report: bool, allow_paths: tuple[str, ...]) -> None:
+                     no_figure: bool, no_report: bool, full: bool,
+                     allow_paths: tuple[str, ...]) -> None:
     """Envelopes of moment, shear, deflection and reactions under the model's loads.
 
     Runs every [[load]] of the model file (vehicles both ways unless one way, trains,
@@ -604,11 +610,12 @@ def envelope_command(model_file: str, out_dir: Path | None, figure_format: str,
     with term.step("read and check the model file"):
         model = _load(model_file, allow_paths)
     with _output_set(out_dir, "envelope") as outputs:  # locked before the work
-        _envelope_run(model, model_file, outputs, figure_format, no_figure, no_report)
+        _envelope_run(model, model_file, outputs, figure_format, no_figure, no_report, full)
 
 
 def _envelope_run(model: Model, model_file: str, outputs: OutputSet | None,
-                  figure_format: str, no_figure: bool, no_report: bool) -> None:
+                  figure_format: str, no_figure: bool, no_report: bool,
+                  full: bool = False) -> None:
     from trundle.io.design_tables import design_model_of, design_spec_of, has_design_tables
     from trundle.report.envelope_data import collect
     from trundle.report.sections import SECTIONS
@@ -647,7 +654,7 @@ def _envelope_run(model: Model, model_file: str, outputs: OutputSet | None,
                 files = envelope_files(results, figure_format, with_figures=not no_figure,
                                        with_report=not no_report)
     console = _console()
-    for renderable in _envelope_summary(results):
+    for renderable in (_envelope_summary(results) if full else _envelope_short(results)):
         _show(console, renderable)
     if outputs is not None and files is not None:
         written, removed = outputs.commit(files)
@@ -785,7 +792,7 @@ def _deflection_warnings(model: Model, env: Any) -> list[str]:
     return deflection_warnings(model, list(env.sections), largest)
 
 
-def _envelope_summary(results: Any) -> list[Any]:
+def _envelope_summary(results: Any, header_only: bool = False) -> list[Any]:
     from trundle.report.envelope_tables import loads_table, summary_tables, to_rich
 
     units = results.units
@@ -797,6 +804,8 @@ def _envelope_summary(results: Any) -> list[Any]:
                             f"{len(results.sections)} sections; {values}; "
                             "travel → towards +x, ← towards -x")]
     out: list[Any] = [Text(header[0], style="bold"), Text(header[1])]
+    if header_only:
+        return out
     if results.has_loads:
         out.append(to_rich(loads_table(results)))
     out.extend(to_rich(t) for t in summary_tables(results))
@@ -804,6 +813,25 @@ def _envelope_summary(results: Any) -> list[Any]:
         out.append(Text(terminal_text(section.title), style="bold"))
         out.extend(to_rich(t) for t in section.tables)
         out.extend(Text(terminal_text(note)) for note in section.notes)
+    return out
+
+
+def _envelope_short(results: Any) -> list[Any]:
+    """The default terminal view (report/terminal_view.py): the governing values, the
+    tenth-point envelope where it is short, each check summarised, where the rest is."""
+    from trundle.report.envelope_tables import to_rich
+    from trundle.report.terminal_view import FULL_HINT, Pointer, default_view, loads_view
+
+    out = _envelope_summary(results, header_only=True)
+    for item in default_view(results, loads_view(results)):
+        if isinstance(item, Pointer):
+            out.append(Text(terminal_text(item.text), style=item.style))
+        elif isinstance(item, str):
+            section = any(item == s.title for s in results.extra)
+            out.append(Text(terminal_text(item), style="bold" if section else ""))
+        else:
+            out.append(to_rich(item, compact=True))
+    out.append(Text(FULL_HINT, style="dim"))
     return out
 
 
@@ -998,17 +1026,12 @@ def _rows_shown(n: int) -> list[int]:
 
 
 def _run_with_progress(spec: Any) -> Any:
-    """Run the sweep with a progress bar on a terminal, silently otherwise."""
+    """Run the sweep; on a terminal (and not quiet) a bar on stderr advances by one as each
+    point is done (the shared :class:`cli_console.Progress`; silent otherwise)."""
     from trundle.workflows.sweep import run
 
-    if not sys.stderr.isatty() or term.quiet() or spec.n_points < 2:
-        return run(spec)
-    from rich.progress import BarColumn, MofNCompleteColumn, Progress, TimeRemainingColumn
-
-    with Progress("sweep", BarColumn(), MofNCompleteColumn(), TimeRemainingColumn(),
-                  console=Console(stderr=True), transient=True) as bar:
-        task = bar.add_task("sweep", total=spec.n_points)
-        return run(spec, lambda done, total: bar.update(task, completed=done))
+    with term.Progress(spec.n_points, "sweep: points done") as bar:
+        return run(spec, lambda done, total: bar.update(advance=1))
 
 
 from trundle.cli_fleet import register as _register_fleet  # noqa: E402 (needs cli above)

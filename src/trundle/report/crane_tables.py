@@ -516,7 +516,7 @@ def _placement_cells(p: CranePlacement) -> list[str]:
 
 def reactions_csv(report: RunwayReport) -> str:
     units = report.units
-    F, L = units.ascii_label("force"), units.ascii_label("length")
+    F, L = units.label("force"), units.label("length")
     header = ["support", f"x [{L}]"]
     names = ("max with impact", "min with impact", "max without impact", "min without impact")
     for name in names:
@@ -533,7 +533,7 @@ def reactions_csv(report: RunwayReport) -> str:
 
 def sections_csv(report: RunwayReport) -> str:
     units = report.units
-    M, F, L = (units.ascii_label(q) for q in ("moment", "force", "length"))
+    M, F, L = (units.label(q) for q in ("moment", "force", "length"))
     D = units.deflection
     families = [("moment", "max", M, True), ("moment", "min", M, True),
                 ("shear_left", "max", F, True), ("shear_left", "min", F, True),
@@ -564,7 +564,7 @@ def sections_csv(report: RunwayReport) -> str:
 
 def deflection_csv(report: RunwayReport) -> str:
     units = report.units
-    L, D = units.ascii_label("length"), units.deflection
+    L, D = units.label("length"), units.deflection
     to_display = units.factor(units.length, units.deflection)
     header = ["direction", "span", f"span length [{L}]", f"deflection [{D}]", f"x [{L}]",
               "limit span ratio", f"allowable [{D}]", "utilisation", "verdict", "combination"]
@@ -581,7 +581,7 @@ def deflection_csv(report: RunwayReport) -> str:
 
 def fatigue_csv(report: RunwayReport) -> str:
     units = report.units
-    M, L = units.ascii_label("moment"), units.ascii_label("length")
+    M, L = units.label("moment"), units.label("length")
     S = report.stress_unit
     factor = report.stress_factor
     header = ["crane", "span", f"x [{L}]", f"moment range per passage [{M}]",

@@ -83,6 +83,9 @@ class ExtraSection:
     cautions : added to the cautions of every output (terminal, JSON, report)
     detail_files : detail table title -> the file that has every row of it (the report
         shows a per-section table at the tenth points and supports and says where the rest is)
+    terminal : what ``trundle envelope`` prints of this section by default, in order (tables
+        and lines; see :mod:`trundle.report.terminal_view`); None: its tables, per-section
+        ones cut to the tenth points and supports and check tables summarised
     figure_tables : figure name -> a table the HTML report shows right under that figure
         (its key: what each panel shows, in words and numbers)
     """
@@ -97,6 +100,7 @@ class ExtraSection:
     captions: dict[str, str] = field(default_factory=dict)
     cautions: tuple[str, ...] = ()
     detail_files: dict[str, str] = field(default_factory=dict)
+    terminal: tuple[Any, ...] | None = None
     figure_tables: dict[str, TableData] = field(default_factory=dict)
 
 

@@ -11,6 +11,7 @@ from collections.abc import Sequence
 from typing import Any
 
 import numpy as np
+from rich import box
 from rich.table import Table
 from rich.text import Text
 
@@ -377,19 +378,23 @@ def input_tables(results: EnvelopeResults) -> list[TableData]:
     return tables
 
 
-def to_rich(table: TableData) -> Table:
-    """A TableData for the terminal; cells are plain text, never markup."""
+def to_rich(table: TableData, compact: bool = False) -> Table:
+    """A TableData for the terminal; cells are plain text, never markup. ``compact``: no
+    frame above and below and no rules between groups, a rule under the headings only (the
+    short default view of ``trundle envelope``)."""
     # names and titles come from model files: no control character reaches the terminal
     out = Table(title=Text(terminal_text(table.title), style="bold"), title_justify="left",
                 caption=Text(terminal_text(table.note)) if table.note else None,
-                caption_justify="left")
+                caption_justify="left",
+                **({"box": box.SIMPLE_HEAD, "show_edge": False, "padding": (0, 1, 0, 0),
+                    "pad_edge": False} if compact else {}))
     numeric = table.numeric or (False,) * len(table.columns)
     for name, right in zip(table.columns, numeric, strict=True):
         # fold, never cut: a truncated name or number in a calculation is worse than a wrap
         out.add_column(Text(clean_text(name, keep_newlines=True)),
                        justify="right" if right else "left",
                        overflow="fold")
-    starts = set(table.groups[1:])
+    starts = set() if compact else set(table.groups[1:])
     for i, row in enumerate(table.rows):
         if i in starts:
             out.add_section()
@@ -428,17 +433,17 @@ def envelope_csv(results: EnvelopeResults) -> str:
     """One row per section: x, span, support, every max/min with what governs it, and the
     shear acting together with the max and min moment."""
     units = results.units
-    L = units.ascii_label("length")
+    L = units.label("length")  # headings spell units as every other output does
     header = [f"x [{L}]", "span", "support"]
     columns: list[tuple[str, str, bool]] = []
     for family in SECTION_FAMILIES:
         for which in ("max", "min"):
             sided = family.startswith("shear")
             name = f"{FAMILY_NAMES[family]} {which}"
-            header += _extreme_columns(name, quantity_unit(family, units, True), L, sided)
+            header += _extreme_columns(name, quantity_unit(family, units), L, sided)
             columns.append((family, which, sided))
             if family == "moment":
-                force = units.ascii_label("force")
+                force = units.label("force")
                 header += [f"{name}: concurrent shear left [{force}]",
                            f"{name}: concurrent shear right [{force}]"]
     extremes = {(f, w): section_extremes(results, f, w) for f, w, _ in columns}
@@ -459,7 +464,7 @@ def envelope_csv(results: EnvelopeResults) -> str:
 def reactions_csv(results: EnvelopeResults) -> str:
     """One row per support: max and min reaction (and support moment where there is one)."""
     units = results.units
-    L = units.ascii_label("length")
+    L = units.label("length")
     beam = results.beam
     families = ["reaction"] + (["support_moment"]
                                if results.env.index["support_moment"].size else [])
@@ -467,7 +472,7 @@ def reactions_csv(results: EnvelopeResults) -> str:
     for family in families:
         for which in ("max", "min"):
             header += _extreme_columns(f"{FAMILY_NAMES[family]} {which}",
-                                       quantity_unit(family, units, True), L, False)
+                                       quantity_unit(family, units), L, False)
     extremes = {(f, w): support_extremes(results, f, w) for f in families
                 for w in ("max", "min")}
     rows = []

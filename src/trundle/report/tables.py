@@ -161,10 +161,10 @@ def lines_csv(lines: InfluenceSet, beam: Beam, units: UnitSystem, sampled: Sampl
               provenance: Provenance | None = None) -> str:
     """CSV text: the provenance comment, a position column, a limit column, one column per
     line (unit in the header)."""
-    header = [f"x [{units.ascii_label('length')}]", "limit"]
+    header = [f"x [{units.label('length')}]", "limit"]
     for effect in lines.effects:
         header.append(f"{effect_label(effect, beam, units)} "
-                      f"[{ordinate_units(effect, units).ascii}]")
+                      f"[{ordinate_units(effect, units).label}]")
     return csv_text(header, ([_number(x), limit, *(_number(v) for v in row)]
                              for x, limit, row in zip(sampled.x, sampled.limit, sampled.values,
                                                       strict=True)), provenance)
