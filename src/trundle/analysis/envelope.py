@@ -567,10 +567,13 @@ class Envelope:
     def _stretches(self, g: Governing) -> tuple[list[tuple[float, float]], float | None]:
         intervals = g.pattern
         if intervals and intervals[0] == "sign of line":
-            _, j, sign = intervals
-            m = int(self.batch.n_pieces[j])  # the line on its own breaks: linear in sections
-            intervals = piece_sign_intervals(self.batch.line_knots[j, :m + 1],
-                                             self.batch.line_coef[j, :m, :].T, sign)
+            key = intervals  # ("sign of line", j, sign): the records ask several times
+            if key not in self._cache:
+                _, j, sign = intervals
+                m = int(self.batch.n_pieces[j])  # the line on its own breaks: linear in sections
+                self._cache[key] = piece_sign_intervals(self.batch.line_knots[j, :m + 1],
+                                                        self.batch.line_coef[j, :m, :].T, sign)
+            intervals = self._cache[key]
         x_p = None if np.isnan(g.reference) else g.reference
         return list(intervals or ()), x_p
 

@@ -289,7 +289,7 @@ def design_csv(results: EnvelopeResults) -> str:
 
     for name, env in result.designs.items():
         for family in FAMILIES:
-            unit = quantity_unit(family, units, ascii_only=True)
+            unit = quantity_unit(family, units)
             for which in ("max", "min"):
                 values = _display(result, family, env.values[family, which], units)
                 for j, v in enumerate(values):
@@ -300,7 +300,7 @@ def design_csv(results: EnvelopeResults) -> str:
                          env.governing[family, which][j], excluded])
     for case in result.cases.values():
         for family in CASE_FAMILIES:
-            unit = quantity_unit(family, units, ascii_only=True)
+            unit = quantity_unit(family, units)
             for which in ("max", "min"):
                 values = _display(result, family, case.values[family, which], units)
                 gov = case.governing.get((family, which), ())
