@@ -251,7 +251,8 @@ def test_help_has_an_example_and_the_cautions():
     text = " ".join(run("envelope", "--help").output.split())
     assert "trundle envelope examples/" in text
     assert "checking by a qualified engineer" in text
-    assert "transcribed load models must be verified against the edition in force" in text
+    assert "load models are transcribed and must be verified against the edition in force" \
+        in text
     assert "local codes and licensed practice govern" in text
 
 

@@ -32,17 +32,13 @@ from trundle.io.output_set import OutputSet, OutputSetError, check_out_option, w
 from trundle.io.outputs import Provenance
 from trundle.io.plausibility import deflection_warnings, model_warnings
 from trundle.io.units import UnitError, parse_quantity
-from trundle.report import CAUTION, LOAD_MODEL_CAUTION
+from trundle.report import CAUTION, CAUTION_LINE, LOAD_MODEL_CAUTION
 from trundle.report.safe_text import terminal_text
 from trundle.workflows.sweep import DEFAULT_EFFECTS, MAX_POINTS
 
 EFFECT_CHOICES = ("moment", "shear", "reaction", "deflection", "rotation", "support-moment")
 _SECTION_KINDS = ("moment", "shear", "deflection", "rotation")
-_SAFETY_HELP = ("CAUTION: results are for checking by a qualified engineer; local codes and "
-                "licensed practice govern.")
-_DESIGN_SAFETY_HELP = ("CAUTION: results are for checking by a qualified engineer; transcribed "
-                       "load models must be verified against the edition in force; local codes "
-                       "and licensed practice govern.")
+_SAFETY_HELP = CAUTION_LINE  # one wording in every command's help and in the terminal
 
 
 class UserError(click.ClickException):
@@ -157,15 +153,17 @@ def cli(context: click.Context) -> None:
     \b
     Start with a model file (see docs/model-file.md and examples/):
       trundle summary examples/harbour_lane_floor_girder_si.toml
-      trundle lines examples/harbour_lane_floor_girder_si.toml --effect moment --at 3.6
+      trundle lines examples/harbour_lane_floor_girder_si.toml --at 3.6
       trundle envelope examples/harbour_lane_floor_girder_si.toml --out results/
       trundle library
 
-    \b
     Exit codes: 0 done, 2 bad input (one line naming the file, key, expected and found),
     1 internal error (rerun with --verbose for the traceback), 3 permit: a check exceeds.
-    Shell completion (bash): eval "$(_TRUNDLE_COMPLETE=bash_source trundle)"; zsh and fish:
-    see the README.
+
+    \b
+    Shell completion (bash):
+      eval "$(_TRUNDLE_COMPLETE=bash_source trundle)"
+    zsh and fish: see the README.
     """
     if context.invoked_subcommand is None:
         click.echo(context.get_help())
@@ -381,9 +379,10 @@ def lines_command(model_file: str, effects: tuple[str, ...], positions: tuple[st
     \b
     Examples:
       trundle lines examples/harbour_lane_floor_girder_si.toml
-      trundle lines examples/harbour_lane_floor_girder_si.toml -e moment -e shear \\
-          --at 3.6 --at 7.2 -e reaction --support 1 --out results/
-      trundle lines examples/millrace_access_bridge_us.toml -e deflection --at "33 ft"
+      trundle lines examples/harbour_lane_floor_girder_si.toml -e moment \\
+          -e shear --at 3.6 --at 7.2 -e reaction --support 1 --out results/
+      trundle lines examples/millrace_access_bridge_us.toml -e deflection \\
+          --at "33 ft"
     """
     with term.step("read and check the model file"):
         model = _load(model_file, allow_paths)
@@ -421,7 +420,7 @@ def _lines_report(model: Model, model_file: str, lines: InfluenceSet,
         term.say(terminal_text(f"{model_file}: {len(lines)} influence line(s)"
                                + (f"; wrote {len(written)} file(s) in {outputs.shown}"
                                   if outputs is not None else "")))
-        term.say(_short_caution(), style="dim")
+        term.say(CAUTION_LINE, style="dim")
 
 
 class _NoOutputs:
@@ -553,7 +552,7 @@ def _lines_files(model: Model, model_file: str, lines: InfluenceSet, figure_form
 # trundle envelope
 
 
-@cli.command("envelope", epilog=_DESIGN_SAFETY_HELP)
+@cli.command("envelope", epilog=_SAFETY_HELP)
 @term.verbosity_options
 @click.argument("model_file", metavar="MODEL")
 @click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False),
@@ -603,9 +602,11 @@ def envelope_command(model_file: str, out_dir: Path | None, figure_format: str,
     \b
     Example:
       trundle envelope examples/harbour_lane_floor_girder_si.toml --out results/
-      trundle envelope examples/millrace_access_bridge_us.toml -o results --format svg
+      trundle envelope examples/millrace_access_bridge_us.toml -o results \\
+          --format svg
       trundle envelope examples/cranes/hall_kestrel_quay_si.toml --out results/
-      trundle envelope examples/design/alder_creek_overpass_hl93_us.toml --out results/
+      trundle envelope examples/design/alder_creek_overpass_hl93_us.toml \\
+          --out results/
     """
     with term.step("read and check the model file"):
         model = _load(model_file, allow_paths)
@@ -664,7 +665,7 @@ def _envelope_run(model: Model, model_file: str, outputs: OutputSet | None,
     for caution in _envelope_cautions(results):
         console.print(caution, style="dim")
     if term.quiet():
-        term.say(_short_caution(), style="dim")
+        term.say(CAUTION_LINE, style="dim")
 
 
 def _governing_summary(model: Model, moving: Any, runway: Any, design: Any) -> list[str]:
@@ -737,11 +738,6 @@ def _governing_summary(model: Model, moving: Any, runway: Any, design: Any) -> l
             if parts:
                 lines.append(f"{_one_line(name)}: " + "; ".join(parts))
     return [_one_line(line) for line in lines]
-
-
-def _short_caution() -> str:
-    return ("CAUTION: for checking by a qualified engineer; verify load models against the "
-            "edition in force; local codes and licensed practice govern.")
 
 
 def _verdict_summary(results: Any) -> list[str]:
@@ -845,7 +841,7 @@ def _envelope_cautions(results: Any) -> list[str]:
 # trundle library
 
 
-@cli.command("library", epilog=_DESIGN_SAFETY_HELP)
+@cli.command("library", epilog=_SAFETY_HELP)
 @term.verbosity_options
 @click.argument("name", required=False, metavar="[NAME]")
 def library_command(name: str | None) -> None:
@@ -890,7 +886,7 @@ def library_command(name: str | None) -> None:
 _MAX_ROWS_SHOWN = 41
 
 
-@cli.command("sweep", epilog=_DESIGN_SAFETY_HELP)
+@cli.command("sweep", epilog=_SAFETY_HELP)
 @term.verbosity_options
 @click.argument("model_file", metavar="MODEL")
 @click.option("--vary", "vary", multiple=True, metavar="PATH=START:STOP:STEP",
@@ -1014,7 +1010,7 @@ def sweep_command(model_file: str, vary: tuple[str, ...], effects: tuple[str, ..
     for caution in CAUTIONS:
         console.print(caution, style="dim")
     if term.quiet():
-        term.say(_short_caution(), style="dim")
+        term.say(CAUTION_LINE, style="dim")
 
 
 def _rows_shown(n: int) -> list[int]:

@@ -20,10 +20,10 @@ from trundle.io.inventory import InventoryError, read_inventory
 from trundle.io.output_set import write_output_set
 from trundle.io.outputs import Provenance
 from trundle.io.traffic import TrafficFileError, read_traffic
-from trundle.report import CAUTION, LOAD_MODEL_CAUTION
+from trundle.report import CAUTION, CAUTION_LINE, LOAD_MODEL_CAUTION
 from trundle.report.format import decimals, fixed, position, verdict_cell
 
-_CAUTIONS = (f"CAUTION: {CAUTION} {LOAD_MODEL_CAUTION}")
+_CAUTIONS = CAUTION_LINE
 EXIT_EXCEEDS = 3  # permit: the run worked and a check exceeds its limit (1 is an internal error)
 
 
@@ -110,7 +110,8 @@ def fleet_command(trucks: Path, inventory: Path, units: str, bad_rows: str, desi
 
     \b
     Example:
-      trundle fleet examples/fleet/traffic_invented.csv examples/fleet/inventory.csv \\
+      trundle fleet examples/fleet/traffic_invented.csv \\
+        examples/fleet/inventory.csv \\
         --design demo-heavy-vehicle-5-axle+demo-lane-load --out out/fleet
     """
     from trundle.io.design_models import design_model
@@ -211,7 +212,8 @@ def permit_command(vehicle: str, route: Path, design: str, impact: float, limit:
 
     \b
     Example:
-      trundle permit examples/fleet/permit_crane_carrier.toml examples/fleet/inventory.csv \\
+      trundle permit examples/fleet/permit_crane_carrier.toml \\
+        examples/fleet/inventory.csv \\
         --design demo-heavy-vehicle-5-axle+demo-lane-load --impact 10 --limit 1.0
     """
     from trundle.io.design_models import design_model, permit_vehicle

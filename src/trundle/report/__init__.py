@@ -9,4 +9,7 @@ CAUTION = ("Results are for checking by a qualified engineer; local codes and li
 LOAD_MODEL_CAUTION = ("Standard load models are transcribed and must be verified against the "
                       "edition in force.")
 
-__all__ = ["CAUTION", "LOAD_MODEL_CAUTION"]
+# the one caution line of the terminal and of every command's help (the same words everywhere)
+CAUTION_LINE = f"CAUTION: {CAUTION} {LOAD_MODEL_CAUTION}"
+
+__all__ = ["CAUTION", "CAUTION_LINE", "LOAD_MODEL_CAUTION"]
