@@ -19,7 +19,9 @@ and numba's cost grows with the number of compiled functions (each has a fixed c
 0.1–0.3 s) and with the statements in each. So the loop body calls few helpers, each compiled
 once (no literal arguments that would give a second specialisation, no tuple packing, no
 builtins that compile an implementation of their own such as min/max), and it allocates
-nothing: its work arrays come from the caller.
+nothing: its work arrays come from the caller. One exception is kept on purpose: the Taylor
+shift (``_shift_add``) is compiled for a cubic and for a quartic (literal lengths 4 and 5), so
+its loops unroll; with the length read at run time the scan ran 1.2–3 times slower.
 """
 
 from __future__ import annotations
@@ -231,6 +233,20 @@ def _advance_terms(nxt, off, kind, knots, m, piece, upcoming, arrived):
 
 
 @njit(**HELPER_OPTIONS)
+def _shift_add(poly, coef_high_first, n_coef, s0, weight, work):
+    """poly (low first) += weight · p(t + s0), p given highest power first, by repeated
+    synthetic division; ``n_coef`` is a literal (4 or 5) at both calls: see the module's
+    docstring."""
+    for i in range(n_coef):
+        work[i] = coef_high_first[n_coef - 1 - i]  # low first
+    for i in range(n_coef):
+        for k in range(n_coef - 2, i - 1, -1):
+            work[k] += s0 * work[k + 1]
+    for i in range(n_coef):
+        poly[i] += weight * work[i]
+
+
+@njit(**HELPER_OPTIONS)
 def _piece_polynomial(poly, constant, piece, kind, weight, offset, n_terms, xi, knots, coef,
                       running, m, end_value, work):
     """poly (low first) = the response on the piece of ξ that starts at ``xi``: every term's
@@ -243,26 +259,17 @@ def _piece_polynomial(poly, constant, piece, kind, weight, offset, n_terms, xi, 
         e = piece[t]
         if e < 0:
             continue
+        # poly += weight · p(t + s0), p highest power first: a Taylor shift by repeated
+        # synthetic division, written out for a cubic and for a quartic so that both loops
+        # have fixed lengths (compiled unrolled: a length read at run time made the whole
+        # scan two to three times slower)
         if kind[t] == KIND_POINT:
-            if e >= m:
-                continue
-            source = coef[e]
+            if e < m:
+                _shift_add(poly, coef[e], 4, xi - offset[t] - knots[e], weight[t], work)
         elif e < m:
-            source = running[e]
+            _shift_add(poly, running[e], 5, xi - offset[t] - knots[e], weight[t], work)
         else:
             poly[0] += weight[t] * end_value
-            continue
-        # poly += weight · p(t + s0), p highest power first: Taylor shift by repeated
-        # synthetic division
-        n_coef = source.shape[0]
-        s0 = xi - offset[t] - knots[e]
-        for i in range(n_coef):
-            work[i] = source[n_coef - 1 - i]  # low first
-        for i in range(n_coef):
-            for k in range(n_coef - 2, i - 1, -1):
-                work[k] += s0 * work[k + 1]
-        for i in range(n_coef):
-            poly[i] += weight[t] * work[i]
 
 
 @njit(**JIT_OPTIONS)
@@ -537,25 +544,36 @@ def _scan_rows_parallel(knots, n_pieces, coef, running, running_end, head, tail,
     return result
 
 
-# Measured on 2 cores: a thread slice must hold about this many piece visits (rows × pieces
-# × terms²) before splitting pays for starting the pool and waking the threads.
-PARALLEL_FROM_WORK_PER_THREAD = 200_000
+# Threads are used when each thread's slice holds at least this many piece visits (see
+# ``row_work``). Calibrated by measurement (2 cores; scripts/bench_envelope.py section 3 and
+# the fit described in ``row_work``): the serial kernel costs 35–70 ns per visit on jobs from
+# 3 to 80 axles and 31 to 18,000 rows, and a two-thread call costs about 50 µs more than a
+# serial one on a tiny job (thread wake-up; measured at a load average of 6 on 2 cores, less on
+# a quiet machine). 20,000 visits is about 1 ms of work per thread, twenty times that cost, so
+# splitting loses at most a few per cent even when the second thread barely helps.
+PARALLEL_FROM_VISITS_PER_THREAD = 20_000
 
 
 def row_work(n_pieces: np.ndarray, lines: np.ndarray, n_terms: int, prune: bool
              ) -> np.ndarray:
-    """Estimated cost of each row: pieces it visits × terms²."""
+    """Estimated piece visits of each row: every term crosses every piece of the line (plus
+    the stretch where the group enters), so a row visits about (pieces + terms) × terms
+    pieces of its response. Measured against the serial kernel's time on ten jobs (3 to 80
+    axles, 3 to 100 spans, 31 to 3,001 sections): 35–70 ns per visit, where pieces × terms²
+    (the cost of each visit summing every term) spread from 0.8 to 23 ns per unit, because
+    a visit's fixed part (critical points, bookkeeping) outweighs its per-term part below
+    about 30 terms."""
     pieces = n_pieces[lines]
     if prune:
         pieces = np.minimum(pieces, 12)  # a pruned row visits a few spans around its section
-    return (pieces + n_terms) * float(n_terms * n_terms)
+    return (pieces + n_terms) * float(n_terms)
 
 
 def could_use_threads(n_pieces: np.ndarray, n_rows: int, n_terms: int) -> bool:
     """Whether a call could hold enough work for two threads (an upper bound of the work:
     every row visiting every piece of the longest line)."""
-    most = n_rows * (int(n_pieces.max()) + n_terms) * float(n_terms * n_terms)
-    return most >= 2 * PARALLEL_FROM_WORK_PER_THREAD and _threads() > 1
+    most = n_rows * (int(n_pieces.max()) + n_terms) * float(n_terms)
+    return most >= 2 * PARALLEL_FROM_VISITS_PER_THREAD and _cores() > 1
 
 
 def scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, tail, peak,
@@ -581,8 +599,7 @@ def scan_rows(knots, n_pieces, coef, running, running_end, head, tail, peak, wei
         # an upper bound first: most calls are far too small to ask about threads at all
         if could_use_threads(n_pieces, lines.shape[0], n_terms):
             total = float(row_work(n_pieces, lines, n_terms, prune).sum())
-            threads = int(min(_threads(), _idle_cores(),
-                              total // PARALLEL_FROM_WORK_PER_THREAD))
+            threads = int(min(_cores(), total // PARALLEL_FROM_VISITS_PER_THREAD))
     own = (own_knot, own_value, end_live)
     if threads <= 1 or lines.shape[0] < 2:
         return scan_rows_serial(*args, *own)
@@ -598,16 +615,16 @@ def _threads() -> int:
     return int(numba.get_num_threads())
 
 
-def _idle_cores() -> int:
-    """Cores not busy with other work (this process's own thread counted as idle): on a
-    machine already loaded a second thread waits for a core, and the slice it holds makes
-    the whole call wait with it (measured: 2 threads slower than 1 at a load of 8 on 2
-    cores)."""
+def _cores() -> int:
+    """Cores this process may run on (its CPU affinity), at most numba's thread count. Not
+    the load average: it counts this process's own recent threads as other load, so a call
+    right after a parallel one kept to one thread (63 ms instead of 33 ms for an 80-axle
+    train over 10 spans)."""
     try:
-        load = os.getloadavg()[0]
-    except OSError:
-        return _threads()
-    return max(1, int((os.cpu_count() or 1) - load + 1.0))
+        allowed = len(os.sched_getaffinity(0))
+    except (AttributeError, OSError):  # no affinity on this platform
+        allowed = os.cpu_count() or 1
+    return max(1, min(allowed, _threads()))
 
 
 _MAX_MIN_SIGNS = np.array([[1.0], [-1.0]])
