@@ -93,7 +93,9 @@ def block_candidates(knots, m, coef, running, end_value, weight, kind, offset, d
     arrived = np.empty(n_terms, dtype=np.bool_)
     work = np.empty((_WORK_ROWS, _WORK_WIDTH))
     poly = work[_POLY]
+    shift = work[_SHIFT]
     crit = work[_CRIT]
+    roots = work[_ROOTS]
     # written as single statements, not tuples: numba compiles tuple packing slowly
     if not restricted:
         pos[k] = lo  # every term still left of the beam
@@ -118,8 +120,8 @@ def block_candidates(knots, m, coef, running, end_value, weight, kind, offset, d
         width = nxt - xi
         if width > 0.0:
             _piece_polynomial(poly, 0.0, piece, kind, weight, offset, n_terms, xi, knots, coef,
-                              running, m, end_value, work[_SHIFT])
-            n_crit = _critical_points(poly, degree, width, crit, work[_ROOTS])
+                              running, m, end_value, shift)
+            n_crit = _critical_points(poly, degree, width, crit, roots)
             # the piece's start, its critical points, its end
             for c in range(n_crit + 2):
                 if c == 0:

@@ -48,7 +48,7 @@ _WORK_ROWS = 7
 _WORK_WIDTH = 6  # a piece gives at most 2 ends + 3 critical points, + 1 exact point value
 
 
-def scan_workspace(n_terms: int):
+def scan_workspace(n_terms: int) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
     """The loop body's work arrays for a group of ``n_terms`` terms: the piece each term
     reads, its next break, whether it has just reached a knot, and small float rows (the
     piece's polynomial, Taylor shift scratch, critical points, roots, candidates)."""
