@@ -642,14 +642,22 @@ def _plain_block_value(knots, coef, running, end_value, weights, kinds, offsets,
 
 
 def plain_block_candidates(knots, coef, running, end_value, weights, kinds, offsets,
-                           confined: bool, scale: float = 1.0
+                           confined: bool, scale: float = 1.0, standing=None
                            ) -> list[tuple[float, float, float]]:
     """Twin of ``trundle.scan.candidates.block_candidates``: (position, value, side) of every
     piece end (both one-sided limits), every interior critical point and, unless confined, the
     stretches wholly off the beam. Each piece's polynomial is recovered by interpolating the
     response at five interior points (exact for degree ≤ 4), its critical points by
     ``numpy.roots`` of the derivative; a piece whose values differ by less than 1e-10 ·
-    ``scale`` is constant (no critical point)."""
+    ``scale`` is constant (no critical point).
+
+    With ``standing`` (a function of concentrated loads [(x, P)] giving their effect with
+    every load standing exactly where it is, e.g. a static solve), also every position where
+    a concentrated load stands exactly on an end of the beam (side 0; see
+    ``plain_end_positions``): there neither one-sided limit sees that load (from outside it
+    is off the beam; from inside it is not yet on the end, where a shear line of a section at
+    a free tip jumps). Such a position is valued as the loads stand: the concentrated ones by
+    ``standing``, the uniform ones' ends by F(x) = ∫₀ˣ IL (continuous, so no side matters)."""
     length = float(knots[-1])
     offsets = [float(d) for d in offsets]
     lo, hi = min(offsets), max(offsets) + length
@@ -684,10 +692,37 @@ def plain_block_candidates(knots, coef, running, end_value, weights, kinds, offs
             if abs(r.imag) <= 1e-9 * width and 0.0 < r.real < width:
                 out.append((a + float(r.real), float(poly(r.real)), 0.0))
         out.append((b, float(poly(width)), -1.0))
+    if standing is not None:
+        for xi in plain_end_positions(length, offsets, kinds, lo, hi):
+            loads = [(xi - d, w) for w, kind, d in zip(weights, kinds, offsets, strict=True)
+                     if kind == 0]
+            value = standing(loads)
+            for w, kind, d in zip(weights, kinds, offsets, strict=True):
+                if kind != 0:
+                    x = xi - d
+                    value += w * (0.0 if x <= 0.0 else end_value if x >= length
+                                  else _plain_read(knots, running, x))
+            out.append((xi, value, 0.0))
     if not restricted:
         beyond = sum(w * end_value for w, kind in zip(weights, kinds, strict=True) if kind != 0)
         out.append((hi, beyond, 1.0))
     return out
+
+
+def plain_end_positions(length: float, offsets, kinds, lo: float, hi: float) -> list[float]:
+    """Every reference position in [lo, hi] where a concentrated load (kind 0, at ``offset``
+    behind the reference point) stands exactly on an end of the beam (x = 0 or x = length),
+    each once."""
+    found: list[float] = []
+    for d, kind in zip(offsets, kinds, strict=True):
+        if kind != 0:
+            continue
+        for end in (0.0, length):
+            xi = float(d) + end
+            if lo - 1e-12 * length <= xi <= hi + 1e-12 * length and not any(
+                    abs(xi - f) <= 1e-12 * length for f in found):
+                found.append(xi)
+    return sorted(found)
 
 
 def plain_chain_maximum(blocks: list[list[tuple[float, float]]], shifts: list[float],
