@@ -319,13 +319,16 @@ class ReferenceSolver:
         self.K = K
         self.free = ~held
         self.K_ff_inv = np.linalg.inv(K[np.ix_(self.free, self.free)])
-        # Hermite shape functions in the local coordinate s and their antiderivatives
+        # Hermite shape functions in the local coordinate s and their antiderivatives, kept
+        # as coefficient lists (lowest power first): the brute-force references solve
+        # thousands of times, and numpy's Polynomial call costs more than the solve
         self.shapes = []
         for h in self.h:
             t = Polynomial([0.0, 1.0 / h])
             N = [1 - 3 * t**2 + 2 * t**3, h * (t - 2 * t**2 + t**3), 3 * t**2 - 2 * t**3,
                  h * (-(t**2) + t**3)]
-            self.shapes.append((N, [f.integ() for f in N]))
+            self.shapes.append(([[float(c) for c in f.coef] for f in N],
+                                [[float(c) for c in f.integ().coef] for f in N]))
 
     def _element(self, x: float) -> int:
         return int(min(max(np.searchsorted(self.nodes, x, side="right") - 1, 0),
@@ -339,14 +342,15 @@ class ReferenceSolver:
             e = self._element(x)
             N, _ = self.shapes[e]
             s = x - self.nodes[e]
-            F[self.element_dofs[e]] += P * np.array([f(s) for f in N])
+            F[self.element_dofs[e]] += P * np.array([_horner_low(f, s) for f in N])
         for x0, x1, w in uniform:
             for e in range(len(self.h)):
                 a = max(x0, self.nodes[e]) - self.nodes[e]
                 b = min(x1, self.nodes[e + 1]) - self.nodes[e]
                 if b > a:
                     _, I = self.shapes[e]
-                    F[self.element_dofs[e]] += w * np.array([f(b) - f(a) for f in I])
+                    F[self.element_dofs[e]] += w * np.array([_horner_low(f, b)
+                                                             - _horner_low(f, a) for f in I])
         u = np.zeros(self.n_dof)
         u[self.free] = self.K_ff_inv @ F[self.free]
         restraint = self.K @ u - F  # force each restraint puts on its node (down / clockwise)
@@ -362,6 +366,14 @@ class ReferenceSolver:
                 if s.kr is not None:
                     couples[k] = s.kr * u[self.th_right[i]]  # and resists a clockwise turn
         return ReferenceResult(self, list(points), list(uniform), u, reactions, couples)
+
+
+def _horner_low(coef_low_first: list[float], s: float) -> float:
+    """A polynomial (lowest power first) at s."""
+    value = 0.0
+    for c in reversed(coef_low_first):
+        value = value * s + c
+    return value
 
 
 @dataclass
