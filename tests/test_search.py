@@ -64,6 +64,7 @@ END_SUPPORTS = {
 @example(seed=0, confined=False, uniform=False, supports="pins", section="left end")  # shear
 # right of a pinned end: 0 with the axle on the support, 1 just right of it
 @example(seed=37, confined=False, uniform=True, supports="free right", section="inside")
+@example(seed=1733, confined=False, uniform=False, supports="free left", section="right end")
 def test_block_candidates_match_the_plain_twin(seed, confined, uniform, supports, section):
     rng = np.random.default_rng(seed)
     spans = list(np.round(rng.uniform(3.0, 10.0, int(rng.integers(1, 4))), 1))
@@ -73,6 +74,11 @@ def test_block_candidates_match_the_plain_twin(seed, confined, uniform, supports
     face = "left"
     if section != "inside":  # a section on an end: shear on the beam's side of it
         x, face = (0.0, "right") if section == "left end" else (float(beam.length), "left")
+        if section == "right end" and kind == "moment":
+            # the reference solver counts a support standing on the section as left of it:
+            # on the right end that is the moment just beyond the beam (zero), not the
+            # moment at the end that trundle's line gives (the couple of a fixed end)
+            kind = "shear"
     effect = trundle.Effect(kind, at=x, **({"side": face} if kind == "shear" else {}))
     batch = _batch(beam, [effect])
     n = int(rng.integers(1, 4))
@@ -120,7 +126,8 @@ def test_block_candidates_match_the_plain_twin(seed, confined, uniform, supports
     # an axle standing exactly on an end of the beam: the twin values every such position;
     # the kernel, on a line where that can differ from both one-sided limits (end_live),
     # gives the same position and value (side 0), and elsewhere one of its one-sided values
-    # there is that value already (so leaving the position out loses nothing)
+    # there is that value already (so leaving the position out loses nothing); a value of
+    # the kernel's above the twin's fails the comparison of the extremes below
     axles = offsets[:n]  # the concentrated loads come first
     lo, hi = (max(axles), beam.length + min(axles)) if confined else (
         min(offsets), beam.length + max(offsets))
@@ -130,13 +137,12 @@ def test_block_candidates_match_the_plain_twin(seed, confined, uniform, supports
     exact = [(p, v) for p, v, s in plain if s == 0.0 and p in on_end]
     assert len(exact) == len(on_end)
     for p0, v0 in exact:
-        same = [j for j in range(k) if abs(pos[j] - p0) <= step and side[j] == 0.0]
-        if batch.end_live[0]:
-            assert same, ("no exact candidate where an axle stands on an end", p0, v0)
+        if batch.end_live[0]:  # (a critical point may also fall a rounding step from it)
+            assert any(abs(pos[j] - p0) <= step and side[j] == 0.0
+                       and abs(val[j] - v0) <= 1e-9 * scale for j in range(k)), (
+                "no exact candidate where an axle stands on an end", p0, v0)
         assert any(abs(pos[j] - p0) <= step and abs(val[j] - v0) <= 1e-9 * scale
                    for j in range(k)), (p0, v0)
-        for j in same:  # and the kernel's exact value there is the twin's
-            assert val[j] == pytest.approx(v0, abs=1e-9 * scale), (p0, v0)
     # every interior critical point of the twin is a candidate of the kernel's (a critical
     # point, or a piece end where the twin finds a double root by rounding), same value
     for p0, v0, s0 in plain:
