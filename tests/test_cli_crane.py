@@ -2,7 +2,8 @@
 equal analyse_runway's for the same model, the report carries the crane summary and the
 cautions, bad crane files give one line and write nothing.
 
-The crane examples run once per module (analyse_runway takes seconds for two cranes).
+The crane examples run once per session (conftest.bundled_run, shared with the report tests;
+analyse_runway takes seconds for two cranes).
 """
 
 from __future__ import annotations
@@ -40,17 +41,13 @@ def library_runway(path: Path) -> RunwayResult:
 
 
 @pytest.fixture(scope="module")
-def si(tmp_path_factory):
-    out = tmp_path_factory.mktemp("si") / "results"
-    result = run("envelope", SI_HALL, "--out", out, "--full")
-    return result, out, library_runway(SI_HALL)
+def si(bundled_run):
+    return *bundled_run(SI_HALL), library_runway(SI_HALL)  # the session's one CLI run
 
 
 @pytest.fixture(scope="module")
-def us(tmp_path_factory):
-    out = tmp_path_factory.mktemp("us") / "results"
-    result = run("envelope", US_HALL, "--out", out, "--full")
-    return result, out, library_runway(US_HALL)
+def us(bundled_run):
+    return *bundled_run(US_HALL), library_runway(US_HALL)
 
 
 # --- the files ----------------------------------------------------------------------------

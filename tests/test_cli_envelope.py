@@ -5,6 +5,7 @@ the JSON round-trips, the report stands alone and carries the cautions, bad inpu
 from __future__ import annotations
 
 import datetime
+import functools
 import hashlib
 import json
 import re
@@ -39,18 +40,18 @@ def _moving(model):
     return moving_loads.run(moving_loads.MovingLoadsSpec(
         model.beam, [e.case for e in loads_of(model)], sections=model.sections))
 
+@functools.cache
 def library_envelope(path: Path) -> trundle.Envelope:
-    """The envelope computed directly with the library, for comparison with the files."""
+    """The envelope computed directly with the library, for comparison with the files (once
+    per model: the tests only read it)."""
     model = load_model(path)
     return trundle.envelope(model.beam, [e.case for e in loads_of(model)],
                             sections=model.sections)
 
 
 @pytest.fixture(scope="module")
-def si_run(tmp_path_factory):
-    out = tmp_path_factory.mktemp("si") / "results"
-    result = run("envelope", SI_EXAMPLE, "--out", out, "--full")
-    return result, out
+def si_run(bundled_run):
+    return bundled_run(SI_EXAMPLE)  # the session's one run of the example (conftest)
 
 
 # --- the files ----------------------------------------------------------------------------

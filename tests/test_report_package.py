@@ -1,12 +1,13 @@
 """The HTML report as a calculation package, for every bundled example.
 
-Each example is run once (``trundle envelope --out``); its report must be well-formed HTML
-(parsed with ``html.parser``: every element closed in order, no id twice), carry every part a
-checker asks for (project block, print style with page numbers and breaks, cautions, figures
-as inline SVG, governing tables with concurrent shear and loaded stretches, per-section table
-cut to the tenth points and supports, critical load positions, the model file verbatim with
-its SHA-256), and show the numbers of its CSV files. Where Debian's ``chromium`` is installed
-the report is printed to PDF and PNG in headless Chromium and the page count is checked.
+Each example is run once per session (``trundle envelope --out``, conftest.bundled_run);
+its report must be well-formed HTML (parsed with ``html.parser``: every element closed in
+order, no id twice), carry every part a checker asks for (project block, print style with
+page numbers and breaks, cautions, figures as inline SVG, governing tables with concurrent
+shear and loaded stretches, per-section table cut to the tenth points and supports, critical
+load positions, the model file verbatim with its SHA-256), and show the numbers of its CSV
+files. Where Debian's ``chromium`` is installed the report is printed to PDF and PNG in
+headless Chromium and the page count is checked.
 
 The ``[project]`` table reader is tested here too (errors name the key, exit code 2).
 """
@@ -26,13 +27,13 @@ import numpy as np
 import pytest
 
 from cli_helpers import HtmlChecker, assert_one_line_error, read_csv, run
+from conftest import BUNDLED_EXAMPLES
 from trundle.io.modelfile import read_model
 from trundle.io.project import ProjectInfo, project_of
 from trundle.report.package import css_string, inline_svg, model_text_lines
 
 ROOT = Path(__file__).resolve().parents[1]
-EXAMPLES = sorted([*(ROOT / "examples").glob("*.toml"), *(ROOT / "examples" / "cranes").glob(
-    "*.toml"), *(ROOT / "examples" / "design").glob("*.toml")])
+EXAMPLES = BUNDLED_EXAMPLES
 WITH_PROJECT = {"harbour_lane_floor_girder_si", "hall_kestrel_quay_si"}
 # A sensible A4 calculation package for these examples; the crane report printed to 19 pages
 # before the per-section fatigue table moved to its CSV file.
@@ -100,10 +101,11 @@ def test_model_text_shows_every_character_visibly():
 
 
 @pytest.fixture(scope="module", params=EXAMPLES, ids=lambda p: p.stem)
-def example(request, tmp_path_factory):
+def example(request, bundled_run):
+    # the session's one run of the example (conftest.bundled_run; with its figure files,
+    # which leave the report unchanged: it draws its own figures inline)
     path = request.param
-    out = tmp_path_factory.mktemp(path.stem) / "out"
-    result = run("envelope", path, "--out", out, "--no-figure")
+    result, out = bundled_run(path)
     assert result.exit_code == 0, result.output + result.stderr
     return path, out, (out / "report.html").read_text(encoding="utf-8")
 
