@@ -251,12 +251,31 @@ def runway_settings_table(report: RunwayReport) -> TableData:
 # results
 
 
+def runway_decimals(report: RunwayReport, kind: str) -> int:
+    """The decimals the runway table of ``kind`` ("reaction", "moment", "shear",
+    "deflection", "lateral_moment") writes its values with: the crane figures label values
+    with them too, so a label reads exactly as the table cell."""
+    if kind == "reaction":
+        items = support_reactions(report)
+        return _decimals([v for r in items for v in (r.max_with_impact.extreme.value,
+                                                     r.min_with_impact.extreme.value)])
+    spans = runway_spans(report)
+    if kind == "moment":
+        return _decimals([p.extreme.value for s in spans for p in (s.moment_max, s.moment_min)])
+    if kind == "shear":
+        return _decimals([p.extreme.value for s in spans for p in (s.shear_max, s.shear_min)])
+    if kind == "deflection":
+        to_display = report.units.factor(report.units.length, report.units.deflection)
+        checks = list(report.runway.vertical_checks) + list(report.runway.lateral_checks)
+        return _decimals([c.limit * to_display for c in checks])
+    return _decimals([s.lateral_moment.extreme.value for s in spans if s.lateral_moment])
+
+
 def reactions_table(report: RunwayReport) -> TableData:
     units = report.units
     F, L = units.label("force"), units.label("length")
     items = support_reactions(report)
-    d = _decimals([v for r in items for v in (r.max_with_impact.extreme.value,
-                                              r.min_with_impact.extreme.value)])
+    d = runway_decimals(report, "reaction")
     rows = []
     for r in items:
         rows.append((str(r.support), _length(r.x), _fixed(r.max_with_impact.extreme.value, d),
@@ -279,7 +298,7 @@ def moment_table(report: RunwayReport) -> TableData:
     units = report.units
     M, L = units.label("moment"), units.label("length")
     spans = runway_spans(report)
-    d = _decimals([p.extreme.value for s in spans for p in (s.moment_max, s.moment_min)])
+    d = runway_decimals(report, "moment")
     rows, groups = [], []
     for s in spans:
         groups.append(len(rows))
@@ -303,7 +322,7 @@ def shear_table(report: RunwayReport) -> TableData:
     units = report.units
     F, L = units.label("force"), units.label("length")
     spans = runway_spans(report)
-    d = _decimals([p.extreme.value for s in spans for p in (s.shear_max, s.shear_min)])
+    d = runway_decimals(report, "shear")
     rows, groups = [], []
     for s in spans:
         groups.append(len(rows))
@@ -336,7 +355,7 @@ def deflection_table(report: RunwayReport) -> TableData:
     to_display = units.factor(units.length, units.deflection)
     runway = report.runway
     checks = list(runway.vertical_checks) + list(runway.lateral_checks)
-    d = _decimals([c.limit * to_display for c in checks])
+    d = runway_decimals(report, "deflection")
     rows = _check_rows(runway.vertical_checks, "vertical", to_display, d)
     rows += _check_rows(runway.lateral_checks, "lateral (±)", to_display, d)
     groups = (0, len(runway.vertical_checks)) if runway.lateral_checks else ()
@@ -356,7 +375,7 @@ def lateral_table(report: RunwayReport) -> TableData | None:
     units = report.units
     M, L = units.label("moment"), units.label("length")
     spans = [s for s in runway_spans(report) if s.lateral_moment is not None]
-    d = _decimals([s.lateral_moment.extreme.value for s in spans if s.lateral_moment])
+    d = runway_decimals(report, "lateral_moment")
     rows = []
     for s in spans:
         p = s.lateral_moment

@@ -177,6 +177,22 @@ def library_detail(model: LoadModelFile) -> list[TableData | str]:
     return out
 
 
+def table_decimals(results: EnvelopeResults, kind: str) -> int:
+    """The decimals the summary table of ``kind`` ("moment", "shear", "deflection",
+    "reaction", "support_moment") writes its values with: figures label values with them too,
+    so a label reads exactly as the table cell."""
+    summaries = span_summaries(results)
+    if kind == "moment":
+        return _decimals([e.value for s in summaries for e in (s.moment_max, s.moment_min)])
+    if kind == "shear":
+        return _decimals([e.value for s in summaries for e in (s.shear_max, s.shear_min)])
+    if kind == "deflection":
+        return _decimals([s.deflection_max.value for s in summaries])
+    tops = support_extremes(results, kind, "max")
+    bottoms = support_extremes(results, kind, "min")
+    return _decimals([e.value for e in (*tops.values(), *bottoms.values())])
+
+
 def moment_table(results: EnvelopeResults) -> TableData:
     units = results.units
     L = units.label("length")
@@ -184,8 +200,7 @@ def moment_table(results: EnvelopeResults) -> TableData:
     force = units.label("force")
     rows, groups = [], []
     summaries = span_summaries(results)
-    values = [e.value for s in summaries for e in (s.moment_max, s.moment_min)]
-    d = _decimals(values)
+    d = table_decimals(results, "moment")
     # the shear on each face of the section under the configuration of the extreme moment
     concurrent = {w: concurrent_shear(results, w) for w in ("max", "min")}
     d_shear = _decimals([v for w in concurrent.values() for side in w for v in side])
@@ -223,7 +238,7 @@ def shear_table(results: EnvelopeResults) -> TableData:
     L = units.label("length")
     unit = quantity_unit("shear_left", units)
     summaries = span_summaries(results)
-    d = _decimals([e.value for s in summaries for e in (s.shear_max, s.shear_min)])
+    d = table_decimals(results, "shear")
     rows, groups = [], []
     for s in summaries:
         groups.append(len(rows))
@@ -244,7 +259,7 @@ def deflection_table(results: EnvelopeResults) -> TableData:
     unit = quantity_unit("deflection", units)
     to_display = display_factor("deflection", units)
     summaries = span_summaries(results)
-    d = _decimals([s.deflection_max.value for s in summaries])
+    d = table_decimals(results, "deflection")
     rows = []
     for s in summaries:
         e = s.deflection_max
@@ -268,7 +283,7 @@ def _support_table(results: EnvelopeResults, family: str, title: str, symbol: st
     unit = quantity_unit(family, units)
     tops = support_extremes(results, family, "max")
     bottoms = support_extremes(results, family, "min")
-    d = _decimals([e.value for e in (*tops.values(), *bottoms.values())])
+    d = table_decimals(results, family)
     rows, groups = [], []
     for k in sorted(tops):
         groups.append(len(rows))

@@ -1,0 +1,128 @@
+"""Figures show values as the tables do: an "anywhere" value a sampled search found is marked
+"*" (not certified, may read low) wherever it is drawn, and every label writes a number exactly
+as its table cell (same decimals). The values themselves are checked elsewhere
+(test_absolute_exact.py); these tests check how the report figures show them."""
+
+from __future__ import annotations
+
+import re
+
+import pytest
+
+from trundle.io.loads import loads_of
+from trundle.io.modelfile import load_model
+from trundle.io.outputs import Provenance
+from trundle.report.envelope_data import collect
+from trundle.report.envelope_figures import envelope_figure, reactions_figure
+from trundle.report.envelope_tables import moment_table, reactions_table
+from trundle.report.figures import figure_bytes
+from trundle.report.format import NOT_CERTIFIED_WORDS, marked
+from trundle.report.positions_figure import governing_panels, positions_figure
+from trundle.workflows import moving_loads
+
+# One truck on two equal spans; a fixed rear spacing has an exact "anywhere" moment, a searched
+# one (4.3 m to 9.0 m) only the sampled search, marked "not certified" in the tables.
+_MODEL = """units = "SI"
+[beam]
+spans = [14.0, 14.0]
+supports = ["pin", "pin", "pin"]
+EI = 1e5
+[[load]]
+name = "truck"
+axles = ["35 kN", "145 kN", "145 kN"]
+spacings = ["4.3 m", {spacing}]
+"""
+_FIXED, _SEARCHED = '"4.3 m"', '{ min = "4.3 m", max = "9.0 m" }'
+
+
+def _results(tmp_path, spacing: str):
+    path = tmp_path / "truck.toml"
+    path.write_text(_MODEL.replace("{spacing}", spacing))
+    model = load_model(path)
+    moving = moving_loads.run(moving_loads.MovingLoadsSpec(
+        model.beam, [e.case for e in loads_of(model)], sections=model.sections))
+    return collect(model, Provenance.of_model(model, str(path)), moving)
+
+
+@pytest.fixture(scope="module", params=[(_FIXED, True), (_SEARCHED, False)],
+                ids=["exact", "searched"])
+def truck(request, tmp_path_factory):
+    spacing, certified = request.param
+    return _results(tmp_path_factory.mktemp("truck"), spacing), certified
+
+
+def _svg_texts(figure) -> list[str]:
+    """Every text of the figure's SVG (fonts kept as text by the house style)."""
+    svg = figure_bytes(figure, "svg").decode("utf-8")
+    import html
+
+    return [html.unescape(t) for t in re.findall(r"<text[^>]*>(.*?)</text>", svg, re.S)]
+
+
+def _anywhere_cells(results) -> list[tuple[str, bool]]:
+    """(M cell, certified) of the 'max anywhere' rows of the moment table."""
+    table = moment_table(results)
+    return [(row[2], "not certified" not in row[1]) for row in table.rows
+            if row[1].startswith("max anywhere")]
+
+
+def test_the_moment_figure_marks_a_searched_anywhere_value_as_the_table_does(truck):
+    results, certified = truck
+    cells = _anywhere_cells(results)
+    assert cells and all(c is certified for _, c in cells)
+    texts = _svg_texts(envelope_figure(results, "moment"))
+    joined = " ".join(texts)
+    # the worst value anywhere is worse than every section here, so the figure labels it
+    for cell, _ in cells:
+        if certified:
+            assert cell in texts and f"{cell} *" not in joined
+        else:
+            assert f"{cell} *" in texts, (cell, texts)
+    assert (NOT_CERTIFIED_WORDS in joined) is (not certified)
+
+
+def test_the_positions_figure_marks_a_searched_anywhere_value(truck):
+    results, certified = truck
+    headings = [p.heading for p in governing_panels(results) if p.mark == "M max"]
+    cells = dict(_anywhere_cells(results))
+    assert headings
+    for heading in headings:
+        value = re.search(r"M = (\S+)", heading).group(1)
+        if certified:
+            assert "*" not in heading and "not certified" not in heading
+        else:  # the value of the table's cell, then the mark and what it means
+            assert value in cells and f"M = {value} * kN·m" in heading
+            assert NOT_CERTIFIED_WORDS in heading
+    texts = " ".join(_svg_texts(positions_figure(results)))
+    assert ("not certified" in texts) is (not certified)
+
+
+def _labels(figure) -> list[str]:
+    """The value labels drawn on the figure's value panels (annotations and bar labels), not
+    the beam drawing's support numbers and span lengths."""
+    return [t.get_text() for ax in figure.axes if ax.get_legend() is not None
+            for t in ax.texts if t.get_text()]
+
+
+def test_figure_labels_read_exactly_as_the_table_cells(truck):
+    results, _ = truck
+    # moment: every value label is a cell of the moment table, "*" where the row says
+    # "not certified"; the largest sagging value of the table is among them
+    rows = moment_table(results).rows
+    cells = {marked(row[2], "not certified" not in row[1]) for row in rows}
+    labels = _labels(envelope_figure(results, "moment"))
+    assert labels and set(labels) <= cells, (labels, cells)
+    worst = max(rows, key=lambda row: (float(row[2]), "anywhere" in row[1]))  # ties: the
+    # figure labels the worst section found between the sections
+    assert marked(worst[2], "not certified" not in worst[1]) in labels
+    # reactions: the bar labels are the table's cells, every one of them
+    r_cells = [row[3] for row in reactions_table(results).rows]
+    bars = _labels(reactions_figure(results))
+    assert sorted(bars) == sorted(r_cells)
+    # the positions figure's headings carry the table's cells too
+    for panel in governing_panels(results):
+        if panel.mark.startswith("R "):
+            assert re.search(r"R max = (\S+)", panel.heading).group(1) in r_cells
+        else:
+            value = re.search(r"M = (\S+)", panel.heading).group(1)
+            assert value in {row[2] for row in rows}
