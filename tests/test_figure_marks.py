@@ -126,3 +126,84 @@ def test_figure_labels_read_exactly_as_the_table_cells(truck):
         else:
             value = re.search(r"M = (\S+)", panel.heading).group(1)
             assert value in {row[2] for row in rows}
+
+
+# --- positions in words: to a thousandth of the length unit, as README says ------------------
+
+_LANE_MODEL = """units = "US"
+[beam]
+spans = ["66.3713 ft", "52.2171 ft"]
+supports = ["pin", "pin", "pin"]
+E = "29000 ksi"
+I = "9040 in^4"
+[sections]
+at = ["tenth points"]
+[[load]]
+use = "demo-lane-load"
+[[load]]
+use = "demo-heavy-vehicle-5-axle"
+"""
+
+
+def test_positions_in_placements_and_tables_have_at_most_three_decimals(tmp_path):
+    from trundle.report.envelope_data import section_extremes, span_summaries
+    from trundle.report.envelope_tables import (
+        deflection_table,
+        sections_table,
+        shear_table,
+        summary_tables,
+    )
+
+    path = tmp_path / "lane.toml"
+    path.write_text(_LANE_MODEL)
+    model = load_model(path)
+    moving = moving_loads.run(moving_loads.MovingLoadsSpec(
+        model.beam, [e.case for e in loads_of(model)], sections=model.sections))
+    results = collect(model, Provenance.of_model(model, str(path)), moving)
+    # tenth points of 66.3713 ft and 52.2171 ft: positions such as 6.63713 in the
+    # model, 26.548 / 85.0363 would print with 4 decimals without one policy
+    too_fine = re.compile(r"\d\.\d{4,}")
+    placements = [e.placement for f in ("moment", "shear_left", "deflection")
+                  for w in ("max", "min") for e in section_extremes(results, f, w)
+                  if e.placement]
+    assert any("point load at" in p for p in placements)
+    # the test means something: some point load stands at a position finer than 0.001 ft
+    raw = [e.lead_x for f in ("moment", "shear_left") for w in ("max", "min")
+           for e in section_extremes(results, f, w) if e.placement and e.lead_x is not None]
+    assert any(abs(x * 1000 - round(x * 1000)) > 1e-6 for x in raw)
+    for text in placements:
+        assert not too_fine.search(text), text
+    for table in summary_tables(results):
+        for row in table.rows:
+            for cell in row:
+                assert not too_fine.search(cell) or "×" in cell, (table.title, cell)
+    xs = [row[0] for row in sections_table(results).rows]
+    assert len({len(x.partition(".")[2]) for x in xs}) == 1  # one column, one decimals
+    assert all(len(x.partition(".")[2]) <= 3 for x in xs)
+    for table in (shear_table(results), deflection_table(results)):
+        assert all(not too_fine.search(" ".join(row)) for row in table.rows)
+    assert span_summaries(results)
+
+
+def test_permanent_table_writes_moment_columns_with_shared_decimals():
+    """M max and M min are one quantity: the same decimals, so a zero reads alike in both (a
+    point load over a pier gives no sagging moment and no hogging moment at the sections)."""
+    from types import SimpleNamespace
+
+    import numpy as np
+
+    from trundle.io.units import US
+    from trundle.report.design_section import permanent_table
+
+    def load(name, moment, reaction):
+        return SimpleNamespace(name=name, category="DC", values={
+            "moment": np.asarray(moment, float), "reaction": np.asarray(reaction, float)})
+
+    units = US
+    design = SimpleNamespace(permanent=[
+        load("girder", [0.0, 772.5, -1269.0], [144.1, 0.0]),
+        load("diaphragm", [0.0, 0.0, 0.0], [4.5, 0.0])])
+    table = permanent_table(SimpleNamespace(design=design, units=units))
+    rows = {row[0]: row for row in table.rows}
+    assert rows["diaphragm"][2] == rows["diaphragm"][3] == "0"
+    assert rows["girder"][2:4] == ("772", "-1269")  # 4 significant digits of the largest

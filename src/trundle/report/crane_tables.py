@@ -50,7 +50,7 @@ from trundle.report.format import fixed as _fixed
 from trundle.report.format import length as _length
 from trundle.report.format import number as _number
 from trundle.report.format import position as _position
-from trundle.report.format import significant, verdict_cell
+from trundle.report.format import position_decimals, significant, verdict_cell
 from trundle.workflows.crane_runway import COMBINATIONS, lateral_extremes
 
 # ------------------------------------------------------------------------------------------
@@ -278,7 +278,8 @@ def reactions_table(report: RunwayReport) -> TableData:
     d = runway_decimals(report, "reaction")
     rows = []
     for r in items:
-        rows.append((str(r.support), _length(r.x), _fixed(r.max_with_impact.extreme.value, d),
+        rows.append((str(r.support), _position(r.x),
+                     _fixed(r.max_with_impact.extreme.value, d),
                      _fixed(r.max_without_impact.extreme.value, d),
                      _fixed(r.min_with_impact.extreme.value, d),
                      *_governing_cells(r.max_with_impact)))
@@ -329,7 +330,7 @@ def shear_table(report: RunwayReport) -> TableData:
         for label, p in (("max", s.shear_max), ("min", s.shear_min)):
             side = "left of" if p.extreme.family == "shear_left" else "right of"
             rows.append((str(s.span + 1), label, _fixed(p.extreme.value, d),
-                         f"{side} {_length(p.extreme.x)}", *_governing_cells(p)))
+                         f"{side} {_position(p.extreme.x)}", *_governing_cells(p)))
     return _without_empty_gaps(TableData(
         f"Shear per span with impact [{F}] (upward on the left part +)",
         ("span", "extreme", f"V [{F}]", f"section x [{L}]", *_governing_headers(L)),
@@ -448,7 +449,7 @@ def _fatigue_cells(report: RunwayReport, span: int, item: FatigueSection, d: int
         return "—" if value is None else _fixed(value * factor, ds)
 
     life = fatigue_life_cycles(report, item)
-    return (item.crane, str(span + 1), _length(item.x), _fixed(item.moment_range, d),
+    return (item.crane, str(span + 1), _position(item.x), _fixed(item.moment_range, d),
             f"{item.cycles_per_passage:g}", stress(item.stress_range),
             stress(item.equivalent_range),
             "unlimited" if math.isinf(life) else f"{life:,.0f}", stress(item.allowable),
@@ -502,10 +503,11 @@ def sections_table(report: RunwayReport) -> TableData:
         headers += [f"M lateral ±\n[{M}]", f"δ lateral ±\n[{D}]"]
         decimals += [_decimals(list(columns[7])), _decimals(list(columns[8]))]
     rows = []
+    x_places = position_decimals(report.sections)  # every row of the column alike
     for i, x in enumerate(report.sections):
         span, support = span_of_section(report.beam, float(x))
         where = f"{span + 1}, support {support}" if support is not None else str(span + 1)
-        rows.append((_length(x), where, *(_fixed(float(c[i]), d)
+        rows.append((_fixed(float(x), x_places), where, *(_fixed(float(c[i]), d)
                                           for c, d in zip(columns, decimals, strict=True))))
     return TableData("Runway envelope at every section (moment and shear with impact)",
                      (f"x\n[{L}]", "span", *headers), tuple(rows),
