@@ -207,3 +207,21 @@ def test_permanent_table_writes_moment_columns_with_shared_decimals():
     rows = {row[0]: row for row in table.rows}
     assert rows["diaphragm"][2] == rows["diaphragm"][3] == "0"
     assert rows["girder"][2:4] == ("772", "-1269")  # 4 significant digits of the largest
+
+
+def test_the_deflection_figure_title_says_load_factors_are_left_out(truck):
+    """Deflections are at service level (the deflection table's note): the figure's title must
+    not claim the factors of the moment figure."""
+    results, _ = truck
+    note = " ".join(r for r in (deflection_note(results),))
+    assert "without its load factor" in note
+    title = " ".join(envelope_figure(results, "deflection")._suptitle.get_text().split())
+    assert "without load factors" in title and "service level" in title
+    moment = " ".join(envelope_figure(results, "moment")._suptitle.get_text().split())
+    assert "without load factors" not in moment
+
+
+def deflection_note(results) -> str:
+    from trundle.report.envelope_tables import deflection_table
+
+    return deflection_table(results).note

@@ -191,7 +191,8 @@ def envelope_figure(results: EnvelopeResults, kind: str) -> Figure:
         ax = figure.add_subplot(grid[0], sharex=beam_ax)
         plot_envelope(results, kind, ax=ax)
         plot_beam(beam, units, ax=beam_ax, sections=list(results.sections))
-        figure.suptitle(_title(results, _TITLES[kind]), fontsize=9.5, color=INK)
+        included = INCLUDED_IN_DEFLECTION if kind == "deflection" else INCLUDED
+        figure.suptitle(_title(results, _TITLES[kind], included), fontsize=9.5, color=INK)
         figure.supxlabel(_footer(results), fontsize=6, color=MUTED)
     return figure
 
@@ -233,12 +234,18 @@ def _support_tick(results: EnvelopeResults, k: int) -> str:
     return f"support {k}\nx = {round(float(x), 9) + 0.0:.6g} {results.units.label('length')}"
 
 
-def _title(results: EnvelopeResults, what: str) -> str:
+INCLUDED = "(with dynamic allowance and factors)"
+# deflections are at service level: every load's load factor (service multiplier) left out,
+# as the deflection table says
+INCLUDED_IN_DEFLECTION = "(with dynamic allowance and factors, without load factors: service level)"
+
+
+def _title(results: EnvelopeResults, what: str, included: str = INCLUDED) -> str:
     names = ", ".join(entry.name for entry in results.loads)
     if len(names) > 70:
         names = f"{len(results.loads)} loads"
-    return wrapped(figure_text(f"{results.model.title}\n{what}: {names} "
-                               "(with dynamic allowance and factors)", parse_math=False))
+    return wrapped(figure_text(f"{results.model.title}\n{what}: {names} {included}",
+                               parse_math=False))
 
 
 def _footer(results: EnvelopeResults) -> str:
