@@ -225,3 +225,89 @@ def deflection_note(results) -> str:
     from trundle.report.envelope_tables import deflection_table
 
     return deflection_table(results).note
+
+
+# --- crane runway: the marks on the crane figures ---------------------------------------------
+
+_CRANE_MODEL = """title = "two bays (invented)"
+units = "SI"
+[beam]
+spans = ["7.5 m", "7.5 m"]
+supports = ["pin", "pin", "pin"]
+hinges = ["7.5 m"]
+E = "210 GPa"
+I = "107200 cm^4"
+[sections]
+at = ["tenth points"]
+[[crane]]
+name = "crane"
+capacity = "20 t"
+bridge_weight = "16 t"
+trolley_weight = "5.5 t"
+span = "21.0 m"
+hook_approach = "1.2 m"
+wheel_spacings = ["4.0 m"]
+buffer_length = "5.0 m"
+operation = "remote"
+[runway]
+combinations = ["each alone"]
+service_class = "C"
+end_stops = true
+lateral_I = "6300 cm^4"
+section_modulus = "4980 cm^3"
+detail_category = "C'"
+"""
+
+
+@pytest.fixture(scope="module")
+def crane_report(tmp_path_factory):
+    from trundle.io.cranes import runway_spec
+    from trundle.report.crane_data import runway_report
+    from trundle.workflows.crane_runway import analyse_runway
+
+    path = tmp_path_factory.mktemp("crane") / "crane.toml"
+    path.write_text(_CRANE_MODEL)
+    model = load_model(path)
+    runway = analyse_runway(model.beam, runway_spec(model), sections=model.sections)
+    results = collect(model, Provenance.of_model(model, str(path)), None, runway=runway)
+    return runway_report(results)
+
+
+def test_crane_figures_write_values_as_the_tables_and_mark_what_is_not_certified(crane_report):
+    from trundle.report.crane_figures import runway_positions_figure, runway_reactions_figure
+    from trundle.report.crane_tables import moment_table, reactions_table
+
+    rows = moment_table(crane_report).rows
+    anywhere = [row for row in rows if row[1].startswith("max anywhere")]
+    figure = runway_positions_figure(crane_report)
+    titles = " ".join(" ".join(ax.get_title(loc="left").split()) for ax in figure.axes)
+    for row in anywhere:  # the worst sagging moment's panel writes the table's cell
+        certified = "not certified" not in row[1]
+        if float(row[2]) >= max(float(r[2]) for r in rows):
+            assert f"M = {marked(row[2], certified)} kN·m" in titles
+            assert (NOT_CERTIFIED_WORDS in titles) is (not certified)
+    r_cells = {row[2] for row in reactions_table(crane_report).rows}
+    assert re.search(r"R = (\S+) kN", titles).group(1) in r_cells
+    bars = _labels(runway_reactions_figure(crane_report))
+    assert set(bars) <= r_cells | {row[3] for row in reactions_table(crane_report).rows} | {
+        row[4] for row in reactions_table(crane_report).rows}
+
+
+def test_the_reaction_line_of_the_crane_positions_does_not_run_through_the_support_number(
+        crane_report):
+    from trundle.report.crane_figures import runway_positions_figure
+
+    figure = runway_positions_figure(crane_report)
+    figure.canvas.draw()
+    renderer = figure.canvas.get_renderer()
+    ax = figure.axes[0]  # the worst reaction's panel
+    assert "worst reaction" in ax.get_title(loc="left")
+    dashed = [line for line in ax.lines if line.get_linestyle() not in ("-", "None", "")
+              and len(line.get_xdata()) == 2 and line.get_xdata()[0] == line.get_xdata()[1]]
+    assert dashed
+    x_pixels = ax.transData.transform((dashed[0].get_xdata()[0], 0.0))[0]
+    numbers = [t for t in ax.texts if t.get_text().isdigit()]
+    assert numbers
+    for text in numbers:
+        box = text.get_window_extent(renderer)
+        assert not box.x0 - 0.5 <= x_pixels <= box.x1 + 0.5, text.get_text()

@@ -293,6 +293,7 @@ def _draw_cranes(ax: Axes, report: RunwayReport, p: CranePlacement, label: str
                     color=color, zorder=7, annotation_clip=False)
     x = p.extreme.x
     ax.plot([x, x], [-1.0, 0.05], color=LIMIT_COLOR, lw=1.0, ls=(0, (3, 2)), zorder=1)
+    _clear_support_number(ax, report, x)
     ax.annotate(label, (x, -0.82), xytext=(4, 0), textcoords="offset points", ha="left",
                 va="center", fontsize=7, color=LIMIT_COLOR, zorder=7,
                 bbox={"boxstyle": "round,pad=0.12", "fc": "white", "ec": "none",
@@ -300,6 +301,18 @@ def _draw_cranes(ax: Axes, report: RunwayReport, p: CranePlacement, label: str
     span = max(highs) - min(lows)
     ax.set_xlim(min(lows) - 0.03 * span, max(highs) + 0.03 * span)
     return min(lows) - 0.03 * span, max(highs) + 0.03 * span
+
+
+def _clear_support_number(ax: Axes, report: RunwayReport, x: float) -> None:
+    """A section at a support (a reaction): its number moves left of the dashed line, which
+    would run through it, and the line's label stays right of it."""
+    ends = report.beam.support_positions
+    tolerance = 1e-9 * report.beam.length
+    at = [k for k, end in enumerate(ends) if abs(end - x) <= tolerance]
+    for text in ax.texts:
+        if at and text.get_text() == str(at[0]) and abs(text.xy[0] - x) <= tolerance:
+            text.xyann = (-4.0, text.xyann[1])
+            text.set_horizontalalignment("right")
 
 
 def _placement_words(report: RunwayReport, p: CranePlacement) -> str:
