@@ -28,12 +28,13 @@ from trundle.report.envelope_data import (
 )
 from trundle.report.envelope_tables import table_decimals
 from trundle.report.figures import INK, MUTED, figure_style, new_figure, plot_beam
-from trundle.report.format import NOT_CERTIFIED_WORDS, marked
 from trundle.report.format import fixed as _fixed
+from trundle.report.format import marked
 from trundle.report.format import position as _position
 from trundle.report.safe_text import figure_text
 
 POSITIONS_FIGURE = "load-positions"
+NOT_CERTIFIED_SHORT = "* not certified: may read low"  # fits a half-width panel's heading
 _TITLE_WIDTH = 62  # characters per title line of a half-width panel
 
 
@@ -110,7 +111,7 @@ def _moment_words(e: Extreme, places: int, unit: str, which: str = "") -> str:
     search found is marked "*" and says so, as the table does."""
     words = f"M{which} = {marked(_fixed(e.value, places), e.certified)} {unit} at x = " \
         f"{_position(e.x)}"
-    return words if e.certified else f"{words} ({NOT_CERTIFIED_WORDS})"
+    return words if e.certified else f"{words} ({NOT_CERTIFIED_SHORT})"
 
 
 def _configuration_words(e: Extreme, length_unit: str) -> str:
@@ -148,15 +149,18 @@ def draw_panel(ax: Axes, results: EnvelopeResults, panel: Panel) -> None:
     span = max(highs) - min(lows)
     ax.set_xlim(min(lows) - 0.03 * span, max(highs) + 0.03 * span)
     words = _configuration_words(e, units.label("length"))
-    heading = figure_text(f"{panel.heading}\n{_wrap(words)}", parse_math=False)
+    # the heading whole (a value's mark and what it means are never elided), the
+    # configuration on at most two lines
+    heading = figure_text(f"{_wrap(panel.heading, elide=False)}\n{_wrap(words)}",
+                          parse_math=False)
     ax.set_title(heading, fontsize=7, color=INK, loc="left", pad=12)
 
 
-def _wrap(text: str) -> str:
+def _wrap(text: str, elide: bool = True) -> str:
     import textwrap
 
     lines = textwrap.wrap(text, _TITLE_WIDTH) or [""]
-    if len(lines) > 2:  # a long placement: two lines, the rest elided
+    if elide and len(lines) > 2:  # a long placement: two lines, the rest elided
         lines = [lines[0], lines[1][: _TITLE_WIDTH - 1] + "…"]
     return "\n".join(lines)
 
