@@ -311,3 +311,21 @@ def test_the_reaction_line_of_the_crane_positions_does_not_run_through_the_suppo
     for text in numbers:
         box = text.get_window_extent(renderer)
         assert not box.x0 - 0.5 <= x_pixels <= box.x1 + 0.5, text.get_text()
+
+
+def test_influence_line_legends_write_extremes_as_the_extremes_table():
+    """The lines report: the legend's "max 2.449 at 3.667 m" is the extremes table's cells
+    (the line's decimals, the position to a thousandth)."""
+    import trundle
+    from trundle.io.units import SI
+    from trundle.report.figures import _extremes_words
+    from trundle.report.tables import extreme_ordinate_cells, line_extremes
+
+    beam = trundle.Beam(spans=[11.0, 7.3])
+    lines = beam.influence_set([trundle.Effect("moment", at=3.6667)])
+    (ex,) = line_extremes(lines, beam, SI)
+    cells = extreme_ordinate_cells(ex)
+    words = _extremes_words(ex, SI)
+    assert f"max {cells['max']} at {cells['x_max']} m" in words
+    assert f"min {cells['min']} at {cells['x_min']} m" in words
+    assert all(len(cells[k].partition(".")[2]) <= 3 for k in ("x_max", "x_min"))
