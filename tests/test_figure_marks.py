@@ -329,3 +329,19 @@ def test_influence_line_legends_write_extremes_as_the_extremes_table():
     assert f"max {cells['max']} at {cells['x_max']} m" in words
     assert f"min {cells['min']} at {cells['x_min']} m" in words
     assert all(len(cells[k].partition(".")[2]) <= 3 for k in ("x_max", "x_min"))
+
+
+def test_crane_positions_write_wheel_loads_as_the_wheel_load_table(crane_report):
+    from trundle.io.cranes import cranes_of
+    from trundle.report.crane_figures import runway_positions_figure
+    from trundle.report.crane_tables import wheel_loads_table
+
+    table = wheel_loads_table(cranes_of(crane_report.results.model), crane_report.units)
+    with_impact = {row[0]: row[7] for row in table.rows}  # "maximum with impact"
+    figure = runway_positions_figure(crane_report)
+    texts = [t.get_text() for ax in figure.axes for t in ax.texts]
+    loaded = [t for t in texts if "(loaded)" in t]
+    assert loaded
+    for text in loaded:
+        name = text.split(" (loaded)")[0]
+        assert text.endswith(f"× {with_impact[name]} kN"), (text, with_impact)

@@ -21,7 +21,7 @@ from trundle.report.crane_data import (
     runway_spans,
     support_reactions,
 )
-from trundle.report.crane_tables import runway_decimals
+from trundle.report.crane_tables import runway_decimals, wheel_decimals
 from trundle.report.envelope_figures import (
     _annotate,
     _footer,
@@ -287,7 +287,8 @@ def _draw_cranes(ax: Axes, report: RunwayReport, p: CranePlacement, label: str
         ax.plot([a, b], [0.8, 0.8], color=color, lw=1.0, zorder=6, clip_on=False)
         for end in (a, b):
             ax.plot([end, end], [0.74, 0.86], color=color, lw=1.0, zorder=6, clip_on=False)
-        text = f"{name} ({state}): {count} × {ps[0]:.4g} {F}"
+        # with the wheel-load table's decimals
+        text = f"{name} ({state}): {count} × {_fixed(ps[0], wheel_decimals(report.cranes))} {F}"
         ax.annotate(text, (0.5 * (a + b), 0.86), xytext=(0, 3 + 10 * (i % 2)),
                     textcoords="offset points", ha="center", va="bottom", fontsize=7,
                     color=color, zorder=7, annotation_clip=False)

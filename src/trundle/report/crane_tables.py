@@ -134,10 +134,17 @@ def cranes_table(entries: Sequence[CraneEntry], units: UnitSystem) -> TableData:
              "g = 9.80665 m/s².")
 
 
+def wheel_decimals(cranes: Sequence[Crane]) -> int:
+    """The decimals of the wheel-load table (and of the wheel loads the crane figures
+    write): from the largest maximum, minimum or unloaded wheel load."""
+    wheels = [c.wheels() for c in cranes]
+    return _decimals([v for w in wheels for v in (w.maximum, w.minimum, w.unloaded)])
+
+
 def wheel_loads_table(entries: Sequence[CraneEntry], units: UnitSystem) -> TableData:
     F = units.label("force")
     wheels = {e.name: e.crane.wheels() for e in entries}
-    d = _decimals([v for w in wheels.values() for v in (w.maximum, w.minimum, w.unloaded)])
+    d = wheel_decimals([e.crane for e in entries])
     rows = []
     for entry in entries:
         c, w = entry.crane, wheels[entry.name]
