@@ -345,3 +345,12 @@ def test_crane_positions_write_wheel_loads_as_the_wheel_load_table(crane_report)
     for text in loaded:
         name = text.split(" (loaded)")[0]
         assert text.endswith(f"× {with_impact[name]} kN"), (text, with_impact)
+
+
+def test_the_moment_caption_says_what_a_filled_diamond_and_the_mark_mean(truck):
+    from trundle.report.envelope_report import figure_captions
+
+    results, certified = truck
+    captions = figure_captions(results)
+    assert ("not certified" in captions["envelope-moment"]) is (not certified)
+    assert "without the loads' load factors" in captions["envelope-deflection"]
