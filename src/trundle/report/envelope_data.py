@@ -315,7 +315,7 @@ def _describe_case(record: ExtremeRecord, value: float, beam: Beam) -> Extreme:
     if r.placement:  # a placed uniform load
         placement = _placement_words(r.placement, r.which, r.loaded, beam)
         if r.lead_x is not None:
-            placement += f"; point load at {_length(r.lead_x)}"
+            placement += f"; point load at {_position(r.lead_x)}"
         return Extreme(r.family, r.which, value, r.x, r.case, 0, r.lead_x, r.axles, r.loaded,
                        placement, _side_note(r))
     return Extreme(r.family, r.which, value, r.x, r.case, r.direction, r.lead_x, r.axles, (),
@@ -377,7 +377,7 @@ def direction_ascii(direction: int) -> str:
 
 def searched_text(extreme: Extreme, unit: str = "") -> str:
     suffix = f" {unit}" if unit else ""
-    return "; ".join(f"{label} = {_length(v)}{suffix}" for label, v in extreme.searched)
+    return "; ".join(f"{label} = {_position(v)}{suffix}" for label, v in extreme.searched)
 
 
 # ------------------------------------------------------------------------------------------
