@@ -293,3 +293,74 @@ def test_chromium_prints_the_report_on_a_reasonable_number_of_pages(example, tmp
         with tempfile.TemporaryDirectory() as user_dir:
             _chromium("--window-size=1100,1400", f"--screenshot={png}", url, user_dir=user_dir)
         assert png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n" and png.stat().st_size > 20_000
+
+
+_PANEL = re.compile(r"\((\w+)\) (?:spans? [\d, ]+|support (\d+)): (M|V left|V right|R) (max|min) "
+                    r"= (-?[\d.]+) \S+ at x = (-?[\d.]+)")
+_SYMBOL = {"M": "moment", "V left": "shear_left", "V right": "shear_right", "R": "reaction"}
+
+
+def test_the_design_load_positions_are_drawn_with_the_csv_numbers(example):
+    """Each combination a live load governs has its critical-load-positions figure (inline
+    SVG) with one panel per governing value of design-positions.csv; the value over each
+    panel, and the first number of its key table row, are design-envelope.csv's to the
+    decimals shown (the design table's column)."""
+    _, out, page = example
+    if not (out / "design-envelope.csv").exists():
+        pytest.skip("no design tables in this example")
+    header, body = read_csv(out / "design-envelope.csv")
+    at = {h: header.index(h) for h in header}
+    design = {(r[at["combination_or_case"]], r[at["x_or_support"]], r[at["family"]],
+               r[at["which"]]): float(r[at["value"]]) for r in body if r[at["kind"]] == "design"}
+    p_header, p_body = read_csv(out / "design-positions.csv")
+    pat = {h: p_header.index(h) for h in p_header}
+    drawn_rows = [r for r in p_body if r[pat["reproduced"]] == "yes"]
+    assert all(r[pat["reproduced"]] in ("yes", "") for r in p_body)
+    assert drawn_rows, "no live load governs any design value"
+    for name in sorted({r[pat["combination"]] for r in drawn_rows}):
+        rows = [r for r in drawn_rows if r[pat["combination"]] == name]
+        figures = re.findall(r"<figure>\s*(<svg(?:(?!<figure>).)*?</svg>)\s*<figcaption>Figure "
+                             r"\d+\. " + re.escape(html.escape(name, quote=False))
+                             + r": critical load positions", page, re.S)
+        assert figures, f"no positions figure for {name}"
+        titles = [html.unescape(t) for svg in figures
+                  for t in re.findall(r"<text[^>]*>([^<]*)</text>", svg)]
+        panels = [m for t in titles if (m := _PANEL.match(t))]
+        assert len(panels) == len(rows), (name, len(panels), len(rows))
+        _, key = _table(page, f"{name}: governing design values and where the live load")
+        assert len(key) == len(rows)
+        for m, row, key_row in zip(panels, rows, key, strict=True):
+            family, which = _SYMBOL[m.group(3)], m.group(4)
+            assert (family, which) == (row[pat["family"]], row[pat["which"]])
+            where = row[pat["x_or_support"]]
+            if family == "reaction":
+                assert m.group(2) == where
+            else:
+                assert abs(float(m.group(6)) - float(where)) <= 1e-3
+            exact = design[name, where, family, which]
+            assert _same(m.group(5), exact), (m.group(0), exact)
+            assert key_row[0] == f"({m.group(1)})"
+            assert _same(key_row[4].split(" = ")[0], exact), (key_row, exact)
+            assert float(row[pat["value"]]) == exact
+
+
+def test_design_table_columns_keep_one_number_of_decimals(example):
+    """Within a numeric column of a design table every number has the same decimals."""
+    _, out, page = example
+    if not (out / "design-envelope.csv").exists():
+        pytest.skip("no design tables in this example")
+    section = re.search(r"<h2>\d+&ensp;Design envelope</h2>(.*?)</section>", page, re.S)
+    assert section
+    tables = re.findall(r"<table>(.*?)</table>", section.group(1), re.S)
+    assert tables
+    for table in tables:
+        rows = [re.findall(r'<td class="([^"]*)">(.*?)</td>', r, re.S)
+                for r in re.findall(r"<tr[^>]*>(.*?)</tr>", table, re.S)]
+        rows = [r for r in rows if r]
+        for k in range(len(rows[0])):
+            cells = [html.unescape(r[k][1]).rstrip(" *") for r in rows
+                     if k < len(r) and r[k][0].startswith("num")]
+            numbers = [c for c in cells if re.fullmatch(r"-?\d+(\.\d+)?", c)]
+            places = {len(c.split(".")[1]) if "." in c else 0 for c in numbers}
+            assert len(places) <= 1, (re.search(r"<caption>(.*?)</caption>", table).group(1),
+                                      k, numbers[:8])

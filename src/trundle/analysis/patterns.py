@@ -385,6 +385,34 @@ def worst_whole_segments(pp: PPoly, intensity: LaneIntensity) -> LoadedSet:
     return best
 
 
+def family_effect(beam: Beam, family: str, where: float | int) -> Effect:
+    """The effect of a family (:data:`FAMILIES`) at a section x, or at support ``where`` for
+    a reaction: the same effect :func:`loaded_length_lane` enumerates for that line."""
+    if family == "reaction":
+        return Effect("reaction", support=int(where))
+    if family in ("moment", "deflection"):
+        return Effect(family, at=float(where))
+    if family not in ("shear_left", "shear_right"):
+        raise ModelError(f"effect family: expected one of {', '.join(FAMILIES)}, found "
+                         f"{family!r}")
+    return Effect("shear", at=float(where), side=family.split("_")[1])
+
+
+def lane_loaded_set(beam: Beam, intensity: LaneIntensity, family: str, where: float | int,
+                    which: str, whole_segments: bool = False, tolerance: float = 1e-9
+                    ) -> LoadedSet:
+    """The worst loaded set of one line of :func:`loaded_length_lane` (its stretches, length,
+    intensity), with the value signed as the envelope's (negative for "min"): where the lane
+    load stands for that value, found by the same search."""
+    line = influence_set(beam, [family_effect(beam, family, where)]).line(0)
+    pp = PPoly(line.coefficients.copy(), line.knots, extrapolate=False)
+    sign = 1.0 if which == "max" else -1.0
+    signed = PPoly(sign * pp.c, pp.x, extrapolate=False)
+    found = (worst_whole_segments(signed, intensity) if whole_segments
+             else worst_loaded_set(signed, intensity, tolerance))
+    return LoadedSet(found.stretches, found.length, found.intensity, sign * found.value)
+
+
 def loaded_length_lane(beam: Beam, intensity: LaneIntensity, sections: ArrayLike,
                        whole_segments: bool = False, name: str = "lane load w(L)",
                        tolerance: float = 1e-9) -> CaseEnvelope:

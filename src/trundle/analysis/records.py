@@ -52,8 +52,8 @@ class ExtremeRecord:
     point_loads : the concentrated loads standing at ``axles`` (impact included; one moving
         case only, empty otherwise) [force]
     loaded : stretches loaded by a placed uniform load, adjacent ones joined [(x0, x1), …]
-    placement : how a placed uniform load is placed ("anywhere", "spans", "everywhere"); ""
-        for a moving load
+    placement : how a placed uniform load is placed ("anywhere", "spans", "everywhere"; "loaded
+        length" for a lane load w(L) on its worst loaded set); "" for a moving load
     point_side : for a placed load's point load standing at a shear section: −1 just left,
         +1 just right of it, 0 otherwise
     face : where an axle standing at the section stands: "on", "left", "right" (just left or
@@ -62,6 +62,9 @@ class ExtremeRecord:
     parts : for loads acting together, the record of each part that is loaded
     certified : for an extreme anywhere in a span: False when a sampled search found it (see
         ``AbsoluteExtreme.certified``); True otherwise
+    attached : stretches of the beam covered by a moving load's attached uniform load (a
+        train's load ahead or behind), cut to the beam, with its intensity [(x0, x1, w), …]
+        [length, force/length]; for loads acting together, those of every part
     """
 
     family: str
@@ -80,6 +83,7 @@ class ExtremeRecord:
     searched: tuple[tuple[str, float], ...] = ()
     parts: tuple[ExtremeRecord, ...] = field(default=())
     certified: bool = True
+    attached: tuple[tuple[float, float, float], ...] = ()
 
     @property
     def governed(self) -> bool:
@@ -170,7 +174,20 @@ def _case_record(env: Envelope, family: str, which: str, own: Governing, asked: 
     searched = tuple(zip(searched_names(load), own.searched, strict=False))
     return ExtremeRecord(family, which, own.value, x, case.name, int(own.direction),
                          float(own.reference), axles, point_loads, face=face,
-                         searched=searched)
+                         searched=searched, attached=_attached(env, case, own))
+
+
+def _attached(env: Envelope, case: LoadCase, own: Governing
+              ) -> tuple[tuple[float, float, float], ...]:
+    """Where a moving load's attached uniform loads lie on the beam (x = reference − u, as
+    for its axles), cut to the beam; empty when it has none or none reaches the beam."""
+    length = env.beam.length
+    out = []
+    for u0, u1, w in env._group(case, own).uniform:
+        a, b = max(0.0, own.reference - u1), min(length, own.reference - u0)
+        if b - a > 1e-9 * length and w > 0:
+            out.append((float(a), float(b), float(w)))
+    return tuple(sorted(out))
 
 
 def _together_record(env: Envelope, family: str, which: str, g: Governing, x: float,
@@ -194,7 +211,7 @@ def _together_record(env: Envelope, family: str, which: str, g: Governing, x: fl
         tuple(a for p in parts for a in p.axles), (),
         joined_stretches([s for p in parts for s in p.loaded], env.beam.length),
         searched=tuple((f"{p.case}: {name}", v) for p in parts for name, v in p.searched),
-        parts=tuple(parts))
+        parts=tuple(parts), attached=tuple(a for p in parts for a in p.attached))
 
 
 class EnvelopeRecords:

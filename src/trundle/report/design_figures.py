@@ -33,6 +33,11 @@ def _stem(name: str) -> str:
     return "".join(c if c.isalnum() else "-" for c in name.lower()).strip("-")
 
 
+def figure_stem(combination: str, what: str) -> str:
+    """The file stem of a combination's figure: design-<combination>-<what>."""
+    return f"design-{_stem(combination)}-{what}"
+
+
 def _runs(names: tuple[str, ...]) -> list[tuple[int, int, str]]:
     """Stretches of consecutive sections with the same governing name: (first, last, name)."""
     out: list[tuple[int, int, str]] = []
@@ -119,7 +124,7 @@ def design_figures(results: EnvelopeResults) -> tuple[dict[str, Any], dict[str, 
     L = results.units.label("length")
     for name in results.design.designs:
         for kind in _KINDS:
-            stem = f"design-{_stem(name)}-{kind}"
+            stem = figure_stem(name, kind)
             figures[stem] = design_figure(results, name, kind)
             captions[stem] = (f"{name}: {kind} of every live case combined on its own (dashed, "
                               "one curve per case) and the design envelope over them (thick); "

@@ -15,7 +15,15 @@ from typing import Any
 import numpy as np
 
 from trundle.analysis.combinations import PERMANENT_ONLY
-from trundle.report.design_figures import design_figures
+from trundle.report.design_figures import design_figures, figure_stem
+from trundle.report.design_positions import (
+    drawn,
+    positions_caption,
+    positions_csv,
+    positions_figures,
+    positions_json,
+    positions_table,
+)
 from trundle.report.envelope_data import (
     EnvelopeResults,
     ExtraSection,
@@ -25,7 +33,13 @@ from trundle.report.envelope_data import (
 )
 from trundle.report.envelope_tables import deflection_search_note
 from trundle.report.export import csv_text, jsonable
-from trundle.report.format import decimals, fixed, length, number, verdict_cell
+from trundle.report.format import (
+    decimals,
+    fixed,
+    number,
+    position_decimals,
+    verdict_cell,
+)
 
 TITLE = "Design envelope"
 FAMILIES = ("moment", "shear_left", "shear_right", "reaction")
@@ -52,6 +66,29 @@ def _display(result: Any, family: str, values: np.ndarray, units: Any) -> np.nda
 
 def _cells(values: np.ndarray, places: int) -> list[str]:
     return [fixed(float(v), places) if np.isfinite(v) else "—" for v in values]
+
+
+def _finite(*arrays: Any) -> list[float]:
+    return [float(v) for a in arrays for v in np.asarray(a, dtype=float) if np.isfinite(v)]
+
+
+def design_places(result: Any, name: str) -> dict[str, int]:
+    """Decimals of one combination's design values per quantity (moment, shear, reaction),
+    from the largest magnitude of each: every column of that quantity, in the tables and
+    over the positions figure, writes its values with them."""
+    env = result.designs[name]
+    return {"moment": decimals(_finite(env.max("moment"), env.min("moment"))),
+            "shear": decimals(_finite(*(env.values[f, w] for f in ("shear_left", "shear_right")
+                                        for w in ("max", "min")))),
+            "reaction": decimals(_finite(env.max("reaction"), env.min("reaction")))}
+
+
+def _x_cells(x: Any, marked: Any = ()) -> list[str]:
+    """A column of section positions, every row with the same decimals (" *" marks)."""
+    x = [float(v) for v in x]
+    places = position_decimals(x)
+    marks = {round(float(m), 9) for m in marked}
+    return [fixed(v, places) + (" *" if round(v, 9) in marks else "") for v in x]
 
 
 def _excluded_at(result: Any, family: str, which: str, j: int) -> str:
@@ -104,13 +141,13 @@ def design_table(results: EnvelopeResults, name: str) -> TableData:
                       env.max("shear_left"), env.max("shear_right")),
              np.where(np.abs(env.min("shear_left")) > np.abs(env.min("shear_right")),
                       env.min("shear_left"), env.min("shear_right"))]
-    dm = decimals([float(v) for a in moment for v in a if np.isfinite(v)])
-    dv = decimals([float(v) for a in shear for v in a if np.isfinite(v)])
+    places = design_places(result, name)
+    dm, dv = places["moment"], places["shear"]
     critical = set(np.round(result.critical, 9))
+    x_cells = _x_cells(result.sections, result.critical)
     rows = []
-    for j, x in enumerate(result.sections):
-        mark = " *" if round(float(x), 9) in critical else ""
-        rows.append((length(x) + mark,
+    for j in range(result.sections.size):
+        rows.append((x_cells[j],
                      _cells(moment[0][j:j + 1], dm)[0],
                      _governing_words(result, name, "moment", "max", j),
                      _cells(moment[1][j:j + 1], dm)[0],
@@ -132,7 +169,7 @@ def reactions_table(results: EnvelopeResults, name: str) -> TableData:
     env = result.designs[name]
     R = quantity_unit("reaction", units)
     high, low = env.max("reaction"), env.min("reaction")
-    d = decimals([float(v) for v in (*high, *low) if np.isfinite(v)])
+    d = design_places(result, name)["reaction"]
     rows = tuple((str(k), _cells(high[k:k + 1], d)[0],
                   _governing_words(result, name, "reaction", "max", k),
                   _cells(low[k:k + 1], d)[0],
@@ -198,9 +235,10 @@ def deflection_table(results: EnvelopeResults) -> TableData | None:
         return None
     L, D = units.label("length"), units.deflection
     to_display = display_factor("deflection", units)
-    d = decimals([c.limit * to_display for c in result.deflection])
+    d = decimals([v * to_display for c in result.deflection for v in (c.limit, c.value)])
+    xd = position_decimals([c.x for c in result.deflection])
     rows = tuple((str(c.span + 1) + ("" if c.certified else " *"),
-                  fixed(c.value * to_display, d), length(c.x),
+                  fixed(c.value * to_display, d), fixed(c.x, xd),
                   f"span/{c.ratio:g}", fixed(c.limit * to_display, d),
                   fixed(c.utilisation, 3) if np.isfinite(c.utilisation) else "—",
                   verdict_cell(c.verdict), c.governing or "—") for c in result.deflection)
@@ -219,17 +257,19 @@ def critical_table(results: EnvelopeResults) -> TableData | None:
         return None
     L, V = units.label("length"), quantity_unit("shear_left", units)
     index = [int(np.argmin(np.abs(result.sections - x))) for x in result.critical]
+    # one column of |V| for every combination: its decimals from the largest of them all
+    d = decimals([max(abs(env.max(f)[j]), abs(env.min(f)[j]))
+                  for env in result.designs.values() for j in index
+                  for f in ("shear_left", "shear_right")])
+    x_cells = _x_cells(result.critical)
     rows = []
     for name, env in result.designs.items():
-        values = [max(abs(env.max(f)[j]), abs(env.min(f)[j]))
-                  for j in index for f in ("shear_left", "shear_right")]
-        d = decimals(values)
-        for x, j in zip(result.critical, index, strict=True):
+        for x_cell, j in zip(x_cells, index, strict=True):
             left = max(abs(env.max("shear_left")[j]), abs(env.min("shear_left")[j]))
             right = max(abs(env.max("shear_right")[j]), abs(env.min("shear_right")[j]))
             family = "shear_left" if left >= right else "shear_right"
             which = "max" if abs(env.max(family)[j]) >= abs(env.min(family)[j]) else "min"
-            rows.append((name, length(x), fixed(max(left, right), d),
+            rows.append((name, x_cell, fixed(max(left, right), d),
                          env.governing[family, which][j]))
     return TableData("Critical shear sections (design |V|, worse side)",
                      ("combination", f"x\n[{L}]", f"|V|\n[{V}]", "governing"), tuple(rows),
@@ -310,6 +350,8 @@ def design_json(results: EnvelopeResults) -> dict[str, Any]:
                                              for f in CASE_FAMILIES for w in ("max", "min")}}
             for case in result.cases.values()},
         "permanent": [{"name": p.name, "category": p.category} for p in result.permanent],
+        "governing_positions": {name: positions_json(records)
+                                for name, records in result.positions.items()},
         "deflection_checks": [
             {"span": c.span + 1, "deflection": c.value * display_factor("deflection", units),
              "x": c.x, "limit": f"span/{c.ratio:g}",
@@ -333,7 +375,9 @@ def design_section(results: EnvelopeResults) -> ExtraSection | None:
     files: dict[str, bytes | str] = {"design-envelope.csv": design_csv(results)}
     if result.deflection:
         files["design-deflection.csv"] = deflection_csv(results)
-    figures, captions = design_figures(results)
+    if result.positions:
+        files["design-positions.csv"] = positions_csv(results)
+    figures, captions, figure_tables = _figures(results)
     failing = [c for c in result.deflection if c.verdict != "PASS"]
     notes = list(NOTES)
     if failing:
@@ -341,10 +385,50 @@ def design_section(results: EnvelopeResults) -> ExtraSection | None:
                      + ", ".join(str(c.span + 1) for c in failing) + ".")
     if not result.designs:
         notes.append("No [[combination]]: only each case's own envelope is shown.")
+    for name, records in result.positions.items():
+        if records and not drawn(records):
+            notes.append(f"{name}: permanent loads only govern (no live load), so there are "
+                         "no live-load positions to draw.")
+    unreproduced = [r for records in result.positions.values() for r in records
+                    if r.governed and not r.reproduced]
+    if unreproduced:
+        notes.insert(0, "NOT REPRODUCED: the live-load position found again for "
+                     f"{len(unreproduced)} governing value(s) does not give the case's "
+                     "tabulated value; the values stand, their drawings are marked; check "
+                     "by hand.")
     if any(PERMANENT_ONLY in g for env in result.designs.values()
            for g in env.governing.values()):
         notes.append("'permanent loads only': no live case applies or makes it worse there.")
     return ExtraSection(TITLE, tables=tuple(t for t in tables if t is not None),
                         notes=tuple(notes), figures=figures, files=files,
                         data=design_json(results), captions=captions,
-                        cautions=(DESIGN_CAUTION,))
+                        cautions=(DESIGN_CAUTION,), figure_tables=figure_tables)
+
+
+def _figures(results: EnvelopeResults) -> tuple[dict[str, Any], dict[str, str],
+                                                 dict[str, TableData]]:
+    """Per combination: its moment and shear figures, then its critical load positions
+    (with the table that is their key)."""
+    result = results.design
+    drawn_figures, captions = design_figures(results)
+    figures: dict[str, Any] = {}
+    tables: dict[str, TableData] = {}
+    for name in result.designs:
+        for kind in ("moment", "shear"):
+            stem = figure_stem(name, kind)
+            if stem in drawn_figures:
+                figures[stem] = drawn_figures[stem]
+        records = result.positions.get(name, ())
+        places = design_places(result, name)
+        drawn_parts = positions_figures(results, records, places)
+        stem = ""
+        for k, figure in enumerate(drawn_parts, start=1):
+            stem = figure_stem(name, "positions" + (f"-{k}" if k > 1 else ""))
+            figures[stem] = figure
+            captions[stem] = positions_caption(results, name, k, len(drawn_parts))
+        table = positions_table(results, name, records, places)
+        if stem and table is not None:  # the key under the last part
+            tables[stem] = table
+    for stem, figure in drawn_figures.items():  # anything not yet placed keeps its place
+        figures.setdefault(stem, figure)
+    return figures, captions, tables

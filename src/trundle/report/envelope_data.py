@@ -86,6 +86,8 @@ class ExtraSection:
     terminal : what ``trundle envelope`` prints of this section by default, in order (tables
         and lines; see :mod:`trundle.report.terminal_view`); None: its tables, per-section
         ones cut to the tenth points and supports and check tables summarised
+    figure_tables : figure name -> a table the HTML report shows right under that figure
+        (its key: what each panel shows, in words and numbers)
     """
 
     title: str
@@ -99,6 +101,7 @@ class ExtraSection:
     cautions: tuple[str, ...] = ()
     detail_files: dict[str, str] = field(default_factory=dict)
     terminal: tuple[Any, ...] | None = None
+    figure_tables: dict[str, TableData] = field(default_factory=dict)
 
 
 SectionProvider = Callable[["EnvelopeResults"], "ExtraSection | None"]

@@ -91,8 +91,10 @@ def envelope_html(results: EnvelopeResults, svgs: dict[str, bytes] | None = None
     units = results.units
     number = iter(range(1, 1000))
 
-    def figure_item(name: str, caption: str) -> dict[str, Any]:
-        return {"svg": inline_svg(svgs[name], f"f{next(number)}-"), "caption": caption}
+    def figure_item(name: str, caption: str, table: TableData | None = None
+                    ) -> dict[str, Any]:
+        return {"svg": inline_svg(svgs[name], f"f{next(number)}-"), "caption": caption,
+                "table": table}
 
     own = [name for name in captions if name in svgs]
     figures = [figure_item(name, captions[name]) for name in own]
@@ -103,7 +105,8 @@ def envelope_html(results: EnvelopeResults, svgs: dict[str, bytes] | None = None
         extra_sections.append({
             "title": section.title, "tables": list(section.tables), "notes": list(section.notes),
             "detail_tables": [_short_detail(results, t, section) for t in section.detail_tables],
-            "figures": [figure_item(name, section.captions.get(name, name))
+            "figures": [figure_item(name, section.captions.get(name, name),
+                                    section.figure_tables.get(name))
                         for name in section.figures if name in svgs],
         })
     load_notes = [{"name": entry.name, "description": entry.description.rstrip("."),

@@ -5,6 +5,10 @@
 - :func:`decimals` / :func:`fixed` — a column of values for people (terminal, HTML): the
   decimals that give ``significant`` digits to the largest value, then fixed-point, no "-0".
   A moment, shear, reaction or deflection in a report table is written by :func:`fixed`.
+  Within one column every row has the same decimals (per quantity: the M max and M min
+  columns of a table share them), chosen from the column's largest magnitude.
+- :func:`position_decimals` — a column of positions (x of sections): the fewest decimals,
+  at most three, that write every position of the column to a thousandth, all rows alike.
 - :func:`length` — a position or length in labels: at most 6 significant digits.
 - :func:`significant` — a property of the structure as given (EI, a spring stiffness, a
   section modulus): 6 significant digits written out in full ("37256900", never
@@ -38,6 +42,17 @@ def decimals(values: Iterable[float | None], significant: int = 4, maximum: int 
     if biggest == 0.0:
         return default
     return int(min(maximum, max(0, significant - 1 - math.floor(math.log10(biggest)))))
+
+
+def position_decimals(values: Iterable[float | None], maximum: int = 3) -> int:
+    """The fewest decimals (at most ``maximum``) that write every finite value of a column of
+    positions as :func:`position` does (to a thousandth of the unit): 0, 0.4, 6.75 → 2."""
+    finite = [float(v) for v in values if v is not None and math.isfinite(v)]
+    for places in range(maximum):
+        if all(abs(round(v, places) - round(v, maximum)) < 0.1 * 10.0 ** -maximum
+               for v in finite):
+            return places
+    return maximum
 
 
 def fixed(value: float, places: int) -> str:

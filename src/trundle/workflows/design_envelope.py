@@ -3,9 +3,11 @@
 ``run(spec)`` computes, at the spec's sections (plus the critical shear sections the spec asks
 for): every live case's own envelope (design cases with their rules, plain load cases,
 patterned live load, loaded-length lane loads), every permanent load's effects, the design
-envelope of every combination with the governing case named, and the live-load deflection
-checks per span. The influence lines of the beam are prepared once per beam and sections
-(the envelope's prepared-lines cache, keyed on values) and shared by every case.
+envelope of every combination with the governing case named, the live-load deflection
+checks per span, and where the live load stands for the governing design values of each span
+and support (:mod:`trundle.workflows.design_records`). The influence lines of the beam are
+prepared once per beam and sections (the envelope's prepared-lines cache, keyed on values) and
+shared by every case.
 """
 
 from __future__ import annotations
@@ -26,6 +28,7 @@ from trundle.analysis.permanent import PermanentEffects, PermanentLoad, permanen
 from trundle.core.beam import Beam
 from trundle.loads.design_cases import DesignCase
 from trundle.loads.patterns import UniformLoad
+from trundle.workflows.design_records import DesignRecord, LiveLoads, design_records
 
 
 @dataclass(frozen=True)
@@ -73,6 +76,10 @@ class DesignResult:
     permanent : one PermanentEffects per permanent load
     designs : {combination name: DesignEnvelope}
     deflection : per span, the live-load deflection check (empty without a limit)
+    positions : {combination name: its governing design values, each with where the live
+        load stands} (:mod:`trundle.workflows.design_records`): per span the largest and
+        smallest design moment and the largest design shear, per support the largest
+        reaction (and the smallest where it is an uplift)
     """
 
     spec: DesignSpec
@@ -82,6 +89,7 @@ class DesignResult:
     permanent: list[PermanentEffects]
     designs: dict[str, DesignEnvelope]
     deflection: list[DeflectionCheck] = field(default_factory=list)
+    positions: dict[str, tuple[DesignRecord, ...]] = field(default_factory=dict)
 
 
 def run(spec: DesignSpec) -> DesignResult:
@@ -106,4 +114,8 @@ def run(spec: DesignSpec) -> DesignResult:
                     for name, w, p in spec.live_patterns]
         if movable:
             deflection = live_load_deflection_checks(beam, movable, spec.deflection_ratio)
-    return DesignResult(spec, sections, critical, cases, permanent, designs, deflection)
+    live_loads = LiveLoads(beam, spec.design_loads, spec.loads, spec.live_patterns,
+                           spec.lane_length_loads)
+    positions = design_records(live_loads, sections, critical, cases, designs)
+    return DesignResult(spec, sections, critical, cases, permanent, designs, deflection,
+                        positions)
