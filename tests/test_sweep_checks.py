@@ -13,6 +13,7 @@ import numpy as np
 import pytest
 
 from cli_helpers import assert_one_line_error, read_csv, run
+from test_sweep_cli import check_sweep_page
 from trundle.io.modelfile import load_model
 from trundle.io.sweeps import build_spec, model_at, sweep
 from trundle.workflows.sweep import DEFAULT_EFFECTS, SweepAxis, SweepResult, SweepSpec
@@ -101,6 +102,7 @@ def test_the_checks_reach_the_json_and_the_report_page(runway_sweep: tuple[Path,
     checks = page.split("<h2>Checks at every point</h2>")[1].split("<h2>")[0]
     assert "1 of 2 points EXCEED" in checks
     assert checks.count("<td class='fail'>EXCEEDS</td>") == 6  # the six spans at 40000
+    check_sweep_page(page, out / "sweep.csv", n_effects=2)
     every = page.split("<h2>Every point</h2>")[1]
     assert "<td class='fail'>EXCEEDS</td>" in every and "<td>PASS</td>" in every
 

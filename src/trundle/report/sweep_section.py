@@ -38,6 +38,8 @@ from trundle.report.format import decimals, fixed, length, number, verdict_cell
 from trundle.report.package import inline_svg
 from trundle.workflows.sweep import NOT_CERTIFIED, SweepResult, effect_family
 
+FAIL = "#a3161b"  # a check that EXCEEDS, as the report page marks it
+
 CAUTIONS = (CAUTION, LOAD_MODEL_CAUTION,
             "Each point is the model file with the swept numbers replaced; values at points "
             "between those computed are not checked.")
@@ -143,7 +145,7 @@ def worst_check_text(result: SweepResult, p: int) -> str:
     c = result.worst_check(p)
     if c is None:
         return verdict_cell(None)
-    return f"{c.name}: {c.utilisation:.3f}"
+    return f"{c.name}: {c.utilisation:.3f}" + ("" if c.certified else f" {NOT_CERTIFIED_CHECK}")
 
 
 def people_rows(result: SweepResult) -> tuple[list[str], list[list[str]]]:
@@ -163,11 +165,15 @@ def people_rows(result: SweepResult) -> tuple[list[str], list[list[str]]]:
                 row.append(length(result.x[p, e]))
             row.append(result.load[p][e] or "—")
         if result.check_names:
-            row += [verdict_cell(result.point_verdict(p)), worst_check_text(result, p)]
+            c = result.worst_check(p)
+            row += [verdict_cell(result.point_verdict(p)),
+                    verdict_cell(None) if c is None else f"{c.utilisation:.3f}",
+                    verdict_cell(None) if c is None else
+                    c.name + ("" if c.certified else f" {NOT_CERTIFIED_CHECK}")]
         rows.append(row)
     if result.check_names:
         header = header[:len(header) - 1 - 2 * len(result.check_names)] + [
-            "checks", "largest utilisation"]
+            "checks", "largest utilisation", "of the check"]
     return header, rows
 
 
@@ -191,6 +197,7 @@ def worst_points(result: SweepResult) -> list[tuple[str, str, str]]:
 
 
 SAME_EVERYWHERE = "the same at every point"
+NOT_CERTIFIED_CHECK = "(search not certified: may read low)"
 
 
 def column_text(values: Sequence[float], significant: int = 5) -> list[str]:
@@ -210,6 +217,8 @@ def sweep_figure(result: SweepResult, title: str = "") -> Figure:
     """A line figure (one swept number) or contours (two), one panel per effect."""
     n = len(result.effects)
     width = 6.8
+    failing = np.array(result.exceeding(), dtype=int)
+    any_failing = bool(failing.size)
     if len(result.axes) == 1:
         figure = new_figure(width, 1.0 + 1.9 * n)
         axes = figure.subplots(n, 1, sharex=True, squeeze=False)[:, 0]
@@ -220,10 +229,16 @@ def sweep_figure(result: SweepResult, title: str = "") -> Figure:
                     marker="o" if len(x) <= 40 else None, markersize=2.5)
             p = result.worst(e)
             ax.plot([x[p]], [y[p]], marker="D", color=INK, markersize=4, linestyle="none")
+            if any_failing:  # every point where a check EXCEEDS, on every panel
+                ax.plot(x[failing], y[failing], marker="x", color=FAIL, markersize=7,
+                        markeredgewidth=1.6, linestyle="none",
+                        label="a check EXCEEDS at this point")
+                if e == 0:
+                    ax.legend(loc="best", fontsize=7, frameon=False)
             # the worst value above the panel, never over the curve (the diamond marks it)
-            at = SAME_EVERYWHERE if result.constant(e) else \
-                f"at {length(x[p])} {result.axes[0].unit}"
-            ax.set_title(f"worst: {_short(y[p])} {at}", loc="right", fontsize=7, color=INK)
+            at = f", {SAME_EVERYWHERE}" if result.constant(e) else \
+                f" at {length(x[p])} {result.axes[0].unit}"
+            ax.set_title(f"worst: {_short(y[p])}{at}", loc="right", fontsize=7, color=INK)
             # a label runs along the panel's height (1.9 in): wrapped to fit it
             ax.set_ylabel(wrapped(effect_title(result, e), 1.7, 8.5))
         axes[-1].set_xlabel(wrapped(axis_title(result, 0), width - 0.6, 8.5))
@@ -247,11 +262,20 @@ def sweep_figure(result: SweepResult, title: str = "") -> Figure:
             p = result.worst(e)
             ax.plot([result.points[p, 0]], [result.points[p, 1]], marker="D", color="white",
                     markeredgecolor=INK, markersize=5, linestyle="none")
+            if any_failing:
+                ax.plot(result.points[failing, 0], result.points[failing, 1], marker="x",
+                        color=FAIL, markersize=6, markeredgewidth=1.4, linestyle="none",
+                        label="a check EXCEEDS at this point")
+                if e == 0:
+                    ax.legend(loc="best", fontsize=7)
             ax.set_xlabel(wrapped(axis_title(result, 0), 2.6, 8.5))
             ax.set_ylabel(wrapped(axis_title(result, 1), 2.6, 8.5))
     heading = title or result.spec.title
     # wrapped to the figure's width (less the margins), so the title is never clipped
-    figure.suptitle(wrapped(f"What-if sweep: {heading}", width - 0.4, 9), fontsize=9)
+    verdicts = check_summary(result)
+    figure.suptitle(wrapped(f"What-if sweep: {heading}", width - 0.4, 9) + "\n"
+                    + wrapped(verdicts, width - 0.4, 8), fontsize=9,
+                    color=FAIL if any_failing else INK)
     # the caution sits in a strip the layout keeps free (as tall as its lines), so it never
     # covers a label
     caution = wrapped(CAUTION, width - 0.2, 6)
@@ -290,7 +314,9 @@ def sweep_json(result: SweepResult, provenance: Provenance | None = None) -> str
                     "utilisation": [_check_of(result, p, name, "utilisation")
                                     for p in range(len(result.points))],
                     "verdict": [_check_of(result, p, name, "verdict")
-                                for p in range(len(result.points))]}
+                                for p in range(len(result.points))],
+                    "certified": [_check_of(result, p, name, "certified")
+                                  for p in range(len(result.points))]}
                    for name in result.check_names],
         "point_verdicts": [result.point_verdict(p) for p in range(len(result.points))],
         "points_exceeding": result.exceeding(),
@@ -324,7 +350,7 @@ def sweep_html(result: SweepResult, provenance: Provenance | None = None,
     header, rows = people_rows(result)
     head = "".join(f"<th>{e(h)}</th>" for h in header)
     numeric = [not h.endswith(": load") and not h.endswith(": support")
-               and h not in ("checks", "largest utilisation") for h in header]
+               and h not in ("checks", "of the check") for h in header]
     failing = result.exceeding()
     checks = f"<p class='{'fail' if failing else 'checks'}'>{e(check_summary(result))}</p>"
     if failing:
@@ -360,7 +386,7 @@ def sweep_html(result: SweepResult, provenance: Provenance | None = None,
  figure {{ margin: 0.6rem 0 1.6rem; }}
  figure svg.figure {{ display: block; width: 100%; max-width: 54rem; height: auto; }}
  .wrap {{ overflow-x: auto; }}
- .fail {{ color: #a3161b; font-weight: 700; }}
+ .fail {{ color: {FAIL}; font-weight: 700; }}
 </style></head><body>
 <p>WHAT-IF SWEEP</p><h1>{e(result.spec.title)}</h1>
 <p>Model file {e(provenance.model_file or "(built in Python)")}; SHA-256

@@ -353,6 +353,8 @@ class PointCheck:
     verdict : PASS or EXCEEDS, from :func:`trundle.analysis.checks.verdict` (through the
         check's own ``verdict``; nothing is decided here)
     governing : the load or combination that governs it
+    certified : False where a deflection searched between the sections was found by the
+        sampled search, which may read low (as ``DeflectionCheck.certified``)
     """
 
     name: str
@@ -362,6 +364,7 @@ class PointCheck:
     utilisation: float
     verdict: str
     governing: str = ""
+    certified: bool = True
 
 
 def checks_of(subject: SweepSubject) -> tuple[PointCheck, ...]:
@@ -373,7 +376,8 @@ def checks_of(subject: SweepSubject) -> tuple[PointCheck, ...]:
     def deflection(kind: str, checks: Sequence[DeflectionCheck]) -> None:
         for c in checks:
             out.append(PointCheck(f"{kind}, span {c.span + 1}", "deflection", abs(c.value),
-                                  c.limit, c.utilisation, c.verdict, c.governing))
+                                  c.limit, c.utilisation, c.verdict, c.governing,
+                                  c.certified))
 
     if subject.runway is not None:
         found = runway_checks(subject.beam, subject.runway, subject.sections)
@@ -522,7 +526,14 @@ class SweepResult:
                           f"({len(a.values)})" for a in self.axes)
         worst = "; ".join(f"{s.label} {self.values[self.worst(e), e]:.5g}"
                           for e, s in enumerate(self.effects))
-        return f"<SweepResult {len(self.points)} points: {swept}; worst: {worst}>"
+        return (f"<SweepResult {len(self.points)} points: {swept}; worst: {worst}; "
+                f"{self._checks_text()}>")
+
+    def _checks_text(self) -> str:
+        if not self.check_names:
+            return "no checks"
+        return (f"checks: {len(self.exceeding())} of {len(self.points)} points EXCEED"
+                if self.exceeding() else f"checks: all {len(self.points)} points PASS")
 
     def _repr_html_(self) -> str:
         from html import escape
@@ -538,7 +549,8 @@ class SweepResult:
                         "</tr>")
         swept = "; ".join(f"{a.name} from {a.values[0]:g} to {a.values[-1]:g} {a.unit}"
                           for a in self.axes)
-        return (f"<div><b>What-if sweep</b>: {len(self.points)} points; {escape(swept)}"
+        return (f"<div><b>What-if sweep</b>: {len(self.points)} points; {escape(swept)}; "
+                f"<b>{escape(self._checks_text())}</b>"
                 "<table><tr><th>effect</th><th>worst value</th><th>at</th><th>load</th></tr>"
                 + "".join(rows) + "</table></div>")
 
