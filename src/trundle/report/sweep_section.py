@@ -103,9 +103,10 @@ def sweep_rows(result: SweepResult) -> tuple[list[str], list[list[str]]]:
     return header, rows
 
 
-def check_summary(result: SweepResult) -> str:
-    """One line: how many points EXCEED a check of the model, and which checks (the verdicts
-    are those of :mod:`trundle.analysis.checks`, carried by each point's checks)."""
+def check_summary(result: SweepResult, with_points: bool = True) -> str:
+    """One line: how many points EXCEED a check of the model, which checks and (with
+    ``with_points``) at which points; the verdicts are those of
+    :mod:`trundle.analysis.checks`, carried by each point's checks."""
     names = result.check_names
     n = len(result.points)
     if not names:
@@ -129,10 +130,12 @@ def check_summary(result: SweepResult) -> str:
     listed = [f"{what} (span{'s' if len(spans) > 1 else ''} {', '.join(spans)})" if spans
               else what for what, spans in grouped.items()]
     more = f" and {len(listed) - 4} more" if len(listed) > 4 else ""
-    where = ", ".join(_point_text(result, p) for p in failing[:6]) + (
-        ", …" if len(failing) > 6 else "")
-    return (f"checks: {len(failing)} of {n} points EXCEED ({'; '.join(listed[:4])}{more}) "
-            f"at {where}")
+    text = f"checks: {len(failing)} of {n} points EXCEED ({'; '.join(listed[:4])}{more})"
+    if not with_points:
+        return text
+    where = "; ".join(_point_text(result, p) for p in failing[:6]) + (
+        "; …" if len(failing) > 6 else "")
+    return f"{text} at {where}"
 
 
 def _point_text(result: SweepResult, p: int) -> str:
@@ -231,7 +234,7 @@ def sweep_figure(result: SweepResult, title: str = "") -> Figure:
             ax.plot([x[p]], [y[p]], marker="D", color=INK, markersize=4, linestyle="none")
             if any_failing:  # every point where a check EXCEEDS, on every panel
                 ax.plot(x[failing], y[failing], marker="x", color=FAIL, markersize=7,
-                        markeredgewidth=1.6, linestyle="none",
+                        markeredgewidth=1.6, linestyle="none", clip_on=False,
                         label="a check EXCEEDS at this point")
                 if e == 0:
                     ax.legend(loc="best", fontsize=7, frameon=False)
@@ -265,6 +268,7 @@ def sweep_figure(result: SweepResult, title: str = "") -> Figure:
             if any_failing:
                 ax.plot(result.points[failing, 0], result.points[failing, 1], marker="x",
                         color=FAIL, markersize=6, markeredgewidth=1.4, linestyle="none",
+                        clip_on=False,
                         label="a check EXCEEDS at this point")
                 if e == 0:
                     ax.legend(loc="best", fontsize=7)
@@ -272,7 +276,8 @@ def sweep_figure(result: SweepResult, title: str = "") -> Figure:
             ax.set_ylabel(wrapped(axis_title(result, 1), 2.6, 8.5))
     heading = title or result.spec.title
     # wrapped to the figure's width (less the margins), so the title is never clipped
-    verdicts = check_summary(result)
+    # the points themselves are marked × on every panel
+    verdicts = check_summary(result, with_points=False) + (" (×)" if any_failing else "")
     figure.suptitle(wrapped(f"What-if sweep: {heading}", width - 0.4, 9) + "\n"
                     + wrapped(verdicts, width - 0.4, 8), fontsize=9,
                     color=FAIL if any_failing else INK)
