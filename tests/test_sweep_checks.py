@@ -219,3 +219,23 @@ def test_a_misspelt_effect_gets_the_closest_valid_names(effect: str, hint: str) 
     result = run("sweep", FLOOR, "--vary", 'load."pallet forklift".spacings[0]=1.2:1.6:0.4 m',
                  "--effect", effect)
     assert_one_line_error(result, "--effect", "did you mean", hint)
+
+
+def test_the_live_load_deflection_limit_of_design_tables_is_checked_at_each_point() -> None:
+    """A model with design tables: the sweep's subject carries them, and its checks are the
+    design workflow's live-load deflection checks (the same utilisations and verdicts, the
+    verdict that of analysis.checks)."""
+    from trundle.analysis.checks import verdict
+    from trundle.io.design_tables import design_model_of, design_spec_of
+    from trundle.io.sweeps import subject_of
+    from trundle.workflows import design_envelope
+    from trundle.workflows.sweep import checks_of
+
+    model = load_model(ROOT / "examples" / "design" / "quarry_yard_floor_beam_si.toml")
+    found = checks_of(subject_of(model))
+    expected = design_envelope.run(design_spec_of(design_model_of(model))).deflection
+    assert len(found) == len(expected) == model.beam.n_spans
+    for c, d in zip(found, expected, strict=True):
+        assert c.name == f"live-load deflection, span {d.span + 1}"
+        assert c.utilisation == pytest.approx(d.utilisation, rel=1e-12)
+        assert c.verdict == d.verdict == verdict(c.utilisation)
