@@ -83,9 +83,25 @@ def check_sweep_page(page: str, csv_path: Path, n_effects: int) -> None:
     header, rows = read_csv(csv_path)
     table = page.split("<h2>Every point</h2>")[1]
     shown = re.findall(r"<tr>(.*?)</tr>", table, re.S)
-    assert _cells(shown[0], "th") == header  # the same headings, units and all
+    checked = "checks" in header
+    if checked:  # the page: the point's verdict and its largest utilisation, not every check
+        k = header.index("checks")
+        utilisations = [[float(r[j]) for j, h in enumerate(header)
+                         if h.endswith(": utilisation") and r[j]] for r in rows]
+        verdicts = [r[k] for r in rows]
+        header, rows = header[:k], [r[:k] for r in rows]
+    page_header = _cells(shown[0], "th")
+    if checked:
+        assert page_header[len(header):] == ["checks", "largest utilisation", "of the check"]
+        page_header = page_header[:len(header)]
+    assert page_header == header  # the same headings, units and all
     body = [_cells(r) for r in shown[1:]]
     assert len(body) == len(rows)
+    if checked:
+        for p, cells in enumerate(body):
+            assert cells[len(header)] == verdicts[p]
+            assert _same(cells[len(header) + 1], max(utilisations[p]))
+        body = [cells[:len(header)] for cells in body]
     for cells, row in zip(body, rows, strict=True):
         for k, (cell, exact) in enumerate(zip(cells, row, strict=True)):
             if header[k].endswith(": load"):

@@ -928,9 +928,17 @@ def sweep_command(model_file: str, vary: tuple[str, ...], effects: tuple[str, ..
       trundle sweep examples/harbour_lane_floor_girder_si.toml \\
           --vary 'load."pallet forklift".spacings[0]=1.2:3.0:0.1 m' \\
           --effect "moment max span 2" --effect "reaction max support 1" --out results/
+      trundle sweep examples/harbour_lane_floor_girder_si.toml \\
+          --vary 'beam.supports[3].spring=5:40:5 MN/m' --effect "moment min span 3"
       trundle sweep examples/cranes/hall_kestrel_quay_si.toml \\
-          --vary 'crane."20 t process crane".wheel_spacings[0]=3.0:5.0:0.25' \\
-          --vary 'beam.spans[1]=6.5:8.5:0.5 m' --effect "reaction max support 1"
+          --vary 'crane."20 t process crane".wheel_spacings[0]=3.0:5.0:0.5 m' \\
+          --vary 'crane."10 t workshop crane".wheel_spacings[0]=2.8:3.6:0.4 m' \\
+          --effect "reaction max support 1"
+
+    Every check the model defines (a crane runway's deflection and fatigue checks, the
+    live-load deflection limit of design tables) is made at every point, as `trundle
+    envelope` makes it: each point shows PASS or EXCEEDS and its largest utilisation, and a
+    line says how many points EXCEED.
     """
     from rich.table import Table
 
@@ -938,12 +946,14 @@ def sweep_command(model_file: str, vary: tuple[str, ...], effects: tuple[str, ..
     from trundle.io.outputs import Provenance
     from trundle.io.sweeps import build_spec
     from trundle.report.format import length as format_length
+    from trundle.report.format import verdict_cell
     from trundle.report.sweep_section import (
         CAUTIONS,
         column_text,
         effect_title,
         summary_lines,
         sweep_files,
+        worst_check_text,
     )
     from trundle.report.sweep_section import displayed as shown_values
     from trundle.workflows.sweep import SweepError
@@ -979,18 +989,30 @@ def sweep_command(model_file: str, vary: tuple[str, ...], effects: tuple[str, ..
                   title_justify="left")
     for r in result.axes:
         table.add_column(Text(f"{r.name} [{r.unit}]"), justify="right", overflow="fold")
+    several = len(result.effects) > 1
     for e in range(len(result.effects)):
-        table.add_column(Text(effect_title(result, e)), justify="right", overflow="fold")
-        table.add_column(Text("load"), overflow="fold")
+        # numbered, so each "load" column says whose load it is
+        tag = f"({e + 1}) " if several else ""
+        table.add_column(Text(tag + effect_title(result, e)), justify="right", overflow="fold")
+        table.add_column(Text(f"{tag}load"), overflow="fold")
+    checked = bool(result.check_names)
+    if checked:
+        table.add_column(Text("checks"), overflow="fold")
+        table.add_column(Text("largest utilisation"), overflow="fold")
     columns = [column_text(shown_values(result, e)) for e in range(len(result.effects))]
     rows = _rows_shown(len(result.points))
     for p in rows:
         if p < 0:
-            table.add_row(*(["…"] * (len(result.axes) + 2 * len(result.effects))))
+            table.add_row(*(["…"] * (len(result.axes) + 2 * len(result.effects)
+                                     + 2 * checked)))
             continue
-        cells = [format_length(v) for v in result.points[p]]
+        cells: list[Any] = [format_length(v) for v in result.points[p]]
         for e in range(len(result.effects)):
             cells += [columns[e][p], result.load[p][e] or "—"]
+        if checked:
+            word = verdict_cell(result.point_verdict(p))
+            cells += [Text(word, style="bold red") if word == "EXCEEDS" else word,
+                      worst_check_text(result, p)]
         table.add_row(*cells)
     _show(console, table)
     if len(rows) < len(result.points):

@@ -15,6 +15,7 @@ from collections.abc import Iterable, Mapping, Sequence
 from pathlib import Path
 
 from trundle.io.cranes import runway_spec
+from trundle.io.design_tables import design_model_of, design_spec_of, has_design_tables
 from trundle.io.loads import loads_of
 from trundle.io.model_paths import (
     ModelPathError,
@@ -48,10 +49,11 @@ def subject_of(model: Model) -> SweepSubject:
     """What a sweep analyses in a model read from a file."""
     try:
         runway = runway_spec(model)
+        design = design_spec_of(design_model_of(model)) if has_design_tables(model) else None
     except ModelFileError as error:
         raise SweepError(str(error)) from None
     return SweepSubject(model.beam, model.sections,
-                        tuple(entry.case for entry in loads_of(model)), runway)
+                        tuple(entry.case for entry in loads_of(model)), runway, design)
 
 
 def model_at(model: Model, ranges: Sequence[SweepRange], point: Sequence[float]) -> Model:

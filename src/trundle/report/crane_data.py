@@ -39,6 +39,8 @@ from trundle.workflows.crane_runway import (
     RunwayResult,
     RunwaySpec,
 )
+from trundle.workflows.crane_runway import fatigue_score as fatigue_score
+from trundle.workflows.crane_runway import fatigue_worst_per_span as runway_fatigue_worst
 
 VERIFY = "verify against the governing guide/code in force"
 CRANE_CAUTION = ("Crane defaults in use (vertical impact, lateral and longitudinal force "
@@ -319,26 +321,11 @@ def fatigue_by_crane(report: RunwayReport) -> dict[str, list[FatigueSection]]:
     return out
 
 
-def fatigue_score(item: FatigueSection) -> float:
-    """What makes a section the worst for fatigue: utilisation, else range."""
-    if item.utilisation is not None:
-        return item.utilisation
-    if item.equivalent_range is not None:
-        return item.stress_range or 0.0
-    return item.moment_range
-
-
 def fatigue_worst_per_span(report: RunwayReport) -> list[tuple[int, FatigueSection]]:
-    """Per crane, per span: the section with the largest utilisation (or range)."""
-    out = []
-    for crane in report.cranes:
-        items = fatigue_by_crane(report)[crane.name]
-        xs = [item.x for item in items]
-        for span in range(report.beam.n_spans):
-            inside = report.beam.sections_in_span(xs, span)
-            if inside.size:
-                out.append((span, max((items[i] for i in inside), key=fatigue_score)))
-    return out
+    """Per crane, per span: the section with the largest utilisation (or range)
+    (:func:`trundle.workflows.crane_runway.fatigue_worst_per_span`, also used by sweeps)."""
+    return runway_fatigue_worst(report.beam, [c.name for c in report.cranes],
+                                report.runway.fatigue)
 
 
 def fatigue_life_cycles(report: RunwayReport, item: FatigueSection) -> float:

@@ -34,9 +34,11 @@ from trundle.report.figures import (
     new_figure,
     wrapped,
 )
-from trundle.report.format import decimals, fixed, length, number
+from trundle.report.format import decimals, fixed, length, number, verdict_cell
 from trundle.report.package import inline_svg
 from trundle.workflows.sweep import NOT_CERTIFIED, SweepResult, effect_family
+
+FAIL = "#a3161b"  # a check that EXCEEDS, as the report page marks it
 
 CAUTIONS = (CAUTION, LOAD_MODEL_CAUTION,
             "Each point is the model file with the swept numbers replaced; values at points "
@@ -74,6 +76,11 @@ def sweep_rows(result: SweepResult) -> tuple[list[str], list[list[str]]]:
         else:
             header.append(f"{selector.label}: x [{length}]")
         header.append(f"{selector.label}: load")
+    names = result.check_names
+    if names:
+        header.append("checks")
+        for name in names:
+            header += [f"{name}: utilisation", f"{name}: verdict"]
     shown = [displayed(result, e) for e in range(len(result.effects))]
     rows = []
     for p, point in enumerate(result.points):
@@ -85,8 +92,63 @@ def sweep_rows(result: SweepResult) -> tuple[list[str], list[list[str]]]:
             else:
                 row.append(number(result.x[p, e]))
             row.append(result.load[p][e])
+        if names:
+            row.append(verdict_cell(result.point_verdict(p)))
+            by_name = {c.name: c for c in result.checks[p]}
+            for name in names:
+                c = by_name.get(name)
+                row += ["", verdict_cell(None)] if c is None else \
+                    [number(c.utilisation), verdict_cell(c.verdict)]
         rows.append(row)
     return header, rows
+
+
+def check_summary(result: SweepResult, with_points: bool = True) -> str:
+    """One line: how many points EXCEED a check of the model, which checks and (with
+    ``with_points``) at which points; the verdicts are those of
+    :mod:`trundle.analysis.checks`, carried by each point's checks."""
+    names = result.check_names
+    n = len(result.points)
+    if not names:
+        return "checks: none (the model defines no deflection limit or fatigue check)"
+    failing = result.exceeding()
+    if not failing:
+        return f"checks: all {n} points PASS all {len(names)} checks"
+    exceeded: dict[str, None] = {}
+    for p in failing:
+        for c in result.checks[p]:
+            if c.verdict != "PASS":
+                exceeded.setdefault(c.name, None)
+    # "vertical deflection, span 1", "…, span 2" -> "vertical deflection (spans 1, 2)"
+    grouped: dict[str, list[str]] = {}
+    for name in exceeded:
+        what, _, span = name.rpartition(", span ")
+        if what:
+            grouped.setdefault(what, []).append(span)
+        else:
+            grouped.setdefault(name, [])
+    listed = [f"{what} (span{'s' if len(spans) > 1 else ''} {', '.join(spans)})" if spans
+              else what for what, spans in grouped.items()]
+    more = f" and {len(listed) - 4} more" if len(listed) > 4 else ""
+    text = f"checks: {len(failing)} of {n} points EXCEED ({'; '.join(listed[:4])}{more})"
+    if not with_points:
+        return text
+    where = "; ".join(_point_text(result, p) for p in failing[:6]) + (
+        "; …" if len(failing) > 6 else "")
+    return f"{text} at {where}"
+
+
+def _point_text(result: SweepResult, p: int) -> str:
+    return ", ".join(f"{a.name} = {length(result.points[p, k])} {a.unit}"
+                     for k, a in enumerate(result.axes))
+
+
+def worst_check_text(result: SweepResult, p: int) -> str:
+    """The check of largest utilisation at a point: "vertical deflection, span 1: 2.013"."""
+    c = result.worst_check(p)
+    if c is None:
+        return verdict_cell(None)
+    return f"{c.name}: {c.utilisation:.3f}" + ("" if c.certified else f" {NOT_CERTIFIED_CHECK}")
 
 
 def people_rows(result: SweepResult) -> tuple[list[str], list[list[str]]]:
@@ -105,7 +167,16 @@ def people_rows(result: SweepResult) -> tuple[list[str], list[list[str]]]:
             else:
                 row.append(length(result.x[p, e]))
             row.append(result.load[p][e] or "—")
+        if result.check_names:
+            c = result.worst_check(p)
+            row += [verdict_cell(result.point_verdict(p)),
+                    verdict_cell(None) if c is None else f"{c.utilisation:.3f}",
+                    verdict_cell(None) if c is None else
+                    c.name + ("" if c.certified else f" {NOT_CERTIFIED_CHECK}")]
         rows.append(row)
+    if result.check_names:
+        header = header[:len(header) - 1 - 2 * len(result.check_names)] + [
+            "checks", "largest utilisation", "of the check"]
     return header, rows
 
 
@@ -120,13 +191,16 @@ def worst_points(result: SweepResult) -> list[tuple[str, str, str]]:
     out = []
     for e in range(len(result.effects)):
         p = result.worst(e)
-        where = ", ".join(f"{r.name} = {length(result.points[p, a])} {r.unit}"
-                          for a, r in enumerate(result.axes))
+        where = SAME_EVERYWHERE if result.constant(e) else _point_text(result, p)
         value = _short(displayed(result, e)[p])
         if NOT_CERTIFIED in result.load[p][e]:
             value = f"{value} {NOT_CERTIFIED}"
         out.append((effect_title(result, e), value, where))
     return out
+
+
+SAME_EVERYWHERE = "the same at every point"
+NOT_CERTIFIED_CHECK = "(search not certified: may read low)"
 
 
 def column_text(values: Sequence[float], significant: int = 5) -> list[str]:
@@ -146,6 +220,8 @@ def sweep_figure(result: SweepResult, title: str = "") -> Figure:
     """A line figure (one swept number) or contours (two), one panel per effect."""
     n = len(result.effects)
     width = 6.8
+    failing = np.array(result.exceeding(), dtype=int)
+    any_failing = bool(failing.size)
     if len(result.axes) == 1:
         figure = new_figure(width, 1.0 + 1.9 * n)
         axes = figure.subplots(n, 1, sharex=True, squeeze=False)[:, 0]
@@ -156,9 +232,16 @@ def sweep_figure(result: SweepResult, title: str = "") -> Figure:
                     marker="o" if len(x) <= 40 else None, markersize=2.5)
             p = result.worst(e)
             ax.plot([x[p]], [y[p]], marker="D", color=INK, markersize=4, linestyle="none")
+            if any_failing:  # every point where a check EXCEEDS, on every panel
+                ax.plot(x[failing], y[failing], marker="x", color=FAIL, markersize=7,
+                        markeredgewidth=1.6, linestyle="none", clip_on=False,
+                        label="a check EXCEEDS at this point")
+                if e == 0:
+                    ax.legend(loc="best", fontsize=7, frameon=False)
             # the worst value above the panel, never over the curve (the diamond marks it)
-            ax.set_title(f"worst: {_short(y[p])} at {length(x[p])} {result.axes[0].unit}",
-                         loc="right", fontsize=7, color=INK)
+            at = f", {SAME_EVERYWHERE}" if result.constant(e) else \
+                f" at {length(x[p])} {result.axes[0].unit}"
+            ax.set_title(f"worst: {_short(y[p])}{at}", loc="right", fontsize=7, color=INK)
             # a label runs along the panel's height (1.9 in): wrapped to fit it
             ax.set_ylabel(wrapped(effect_title(result, e), 1.7, 8.5))
         axes[-1].set_xlabel(wrapped(axis_title(result, 0), width - 0.6, 8.5))
@@ -182,11 +265,22 @@ def sweep_figure(result: SweepResult, title: str = "") -> Figure:
             p = result.worst(e)
             ax.plot([result.points[p, 0]], [result.points[p, 1]], marker="D", color="white",
                     markeredgecolor=INK, markersize=5, linestyle="none")
+            if any_failing:
+                ax.plot(result.points[failing, 0], result.points[failing, 1], marker="x",
+                        color=FAIL, markersize=6, markeredgewidth=1.4, linestyle="none",
+                        clip_on=False,
+                        label="a check EXCEEDS at this point")
+                if e == 0:
+                    ax.legend(loc="best", fontsize=7)
             ax.set_xlabel(wrapped(axis_title(result, 0), 2.6, 8.5))
             ax.set_ylabel(wrapped(axis_title(result, 1), 2.6, 8.5))
     heading = title or result.spec.title
     # wrapped to the figure's width (less the margins), so the title is never clipped
-    figure.suptitle(wrapped(f"What-if sweep: {heading}", width - 0.4, 9), fontsize=9)
+    # the points themselves are marked × on every panel
+    verdicts = check_summary(result, with_points=False) + (" (×)" if any_failing else "")
+    figure.suptitle(wrapped(f"What-if sweep: {heading}", width - 0.4, 9) + "\n"
+                    + wrapped(verdicts, width - 0.4, 8), fontsize=9,
+                    color=FAIL if any_failing else INK)
     # the caution sits in a strip the layout keeps free (as tall as its lines), so it never
     # covers a label
     caution = wrapped(CAUTION, width - 0.2, 6)
@@ -215,14 +309,35 @@ def sweep_json(result: SweepResult, provenance: Provenance | None = None) -> str
                      "support": result.support[:, e]
                      if s.kind in ("reaction", "support_moment") else None,
                      "load": [result.load[p][e] for p in range(len(result.points))],
-                     "worst_point": result.worst(e)}
+                     "worst_point": result.worst(e),
+                     "same_at_every_point": result.constant(e)}
                     for e, s in enumerate(result.effects)],
         "points": result.points,
+        "checks": [{"name": name,
+                    "quantity": next(c.quantity for point in result.checks for c in point
+                                     if c.name == name),
+                    "utilisation": [_check_of(result, p, name, "utilisation")
+                                    for p in range(len(result.points))],
+                    "verdict": [_check_of(result, p, name, "verdict")
+                                for p in range(len(result.points))],
+                    "certified": [_check_of(result, p, name, "certified")
+                                  for p in range(len(result.points))]}
+                   for name in result.check_names],
+        "point_verdicts": [result.point_verdict(p) for p in range(len(result.points))],
+        "points_exceeding": result.exceeding(),
+        "check_summary": check_summary(result),
         "length_unit": length,
         "notes": list(result.spec.notes),
         "cautions": list(CAUTIONS),
     }
     return json_text(document)
+
+
+def _check_of(result: SweepResult, p: int, name: str, field: str) -> Any:
+    for c in result.checks[p]:
+        if c.name == name:
+            return getattr(c, field)
+    return None
 
 
 def sweep_html(result: SweepResult, provenance: Provenance | None = None,
@@ -239,9 +354,22 @@ def sweep_html(result: SweepResult, provenance: Provenance | None = None,
                     f"<td>{e(where)}</td></tr>" for effect, value, where in worst_points(result))
     header, rows = people_rows(result)
     head = "".join(f"<th>{e(h)}</th>" for h in header)
-    numeric = [not h.endswith(": load") and not h.endswith(": support") for h in header]
+    numeric = [not h.endswith(": load") and not h.endswith(": support")
+               and h not in ("checks", "of the check") for h in header]
+    failing = result.exceeding()
+    checks = f"<p class='{'fail' if failing else 'checks'}'>{e(check_summary(result))}</p>"
+    if failing:
+        checks += ("<table><tr><th>point</th><th>check</th><th>utilisation</th>"
+                   "<th>verdict</th><th>governing</th></tr>" + "".join(
+                       f"<tr><td>{e(_point_text(result, p))}</td><td>{e(c.name)}</td>"
+                       f"<td class='num'>{c.utilisation:.3f}</td>"
+                       f"<td class='fail'>{e(verdict_cell(c.verdict))}</td>"
+                       f"<td>{e(c.governing or '—')}</td></tr>"
+                       for p in failing for c in result.checks[p] if c.verdict != "PASS")
+                   + "</table>")
     body = "".join("<tr>" + "".join(
-        f"<td class='num'>{e(c)}</td>" if right else f"<td>{e(c)}</td>"
+        f"<td class='num'>{e(c)}</td>" if right else
+        f"<td class='fail'>{e(c)}</td>" if c == "EXCEEDS" else f"<td>{e(c)}</td>"
         for c, right in zip(row, numeric, strict=True)) + "</tr>" for row in rows)
     figure = ""
     if svg is not None:
@@ -263,6 +391,7 @@ def sweep_html(result: SweepResult, provenance: Provenance | None = None,
  figure {{ margin: 0.6rem 0 1.6rem; }}
  figure svg.figure {{ display: block; width: 100%; max-width: 54rem; height: auto; }}
  .wrap {{ overflow-x: auto; }}
+ .fail {{ color: {FAIL}; font-weight: 700; }}
 </style></head><body>
 <p>WHAT-IF SWEEP</p><h1>{e(result.spec.title)}</h1>
 <p>Model file {e(provenance.model_file or "(built in Python)")}; SHA-256
@@ -270,6 +399,8 @@ def sweep_html(result: SweepResult, provenance: Provenance | None = None,
 <div class="caution"><ul>{cautions}</ul></div>
 <p>{len(result.points)} points: {e(swept)}. Each point is the model with the swept numbers
 replaced, enveloped exactly.</p>{notes}
+<h2>Checks at every point</h2>
+{checks}
 <h2>Worst point of each effect</h2>
 <table><tr><th>effect</th><th>worst value</th><th>where in the sweep</th></tr>{worst}</table>
 {figure}
@@ -302,5 +433,7 @@ def summary_lines(result: SweepResult) -> Sequence[str]:
         f"{r.name} from {length(r.values[0])} to {length(r.values[-1])} {r.unit} "
         f"({len(r.values)} values)" for r in result.axes)]
     for effect, value, where in worst_points(result):
-        lines.append(f"worst {effect}: {value} at {where}")
+        at = f", {where}" if where == SAME_EVERYWHERE else f" at {where}"
+        lines.append(f"worst {effect}: {value}{at}")
+    lines.append(check_summary(result))
     return lines

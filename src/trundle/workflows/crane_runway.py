@@ -338,10 +338,40 @@ def analyse_runway(beam: Beam, spec: RunwaySpec, sections: NDArray[np.float64] |
     strength_loads = [LoadCase(combination_load(c, length, with_impact=True, confined=confined),
                                name=c.name)
                       for c in combos]
-    service_loads = [LoadCase(combination_load(c, length, confined=confined), name=c.name)
-                     for c in combos]
     strength = envelope(beam, strength_loads, sections=sections,
                         effects=("moment", "shear", "reaction", "support_moment"))
+    checks = runway_checks(beam, spec, sections)
+    wheels = {c.name: c.wheels() for c in spec.cranes}
+    longitudinal = {name: w.longitudinal for name, w in wheels.items()}
+    return RunwayResult(spec, beam, sections, wheels, combos, strength, checks.service,
+                        checks.lateral, checks.vertical_checks, checks.lateral_checks,
+                        longitudinal, checks.fatigue, _moment_anywhere(strength))
+
+
+@dataclass(frozen=True, eq=False)
+class RunwayChecks:
+    """The parts of a runway analysis that hold its checks (see :class:`RunwayResult`)."""
+
+    service: Envelope
+    lateral: Envelope | None
+    vertical_checks: tuple[DeflectionCheck, ...]
+    lateral_checks: tuple[DeflectionCheck, ...]
+    fatigue: tuple[FatigueSection, ...]
+
+
+def runway_checks(beam: Beam, spec: RunwaySpec, sections: NDArray[np.float64]
+                  ) -> RunwayChecks:
+    """The service and lateral envelopes, the deflection checks and fatigue of a runway: what
+    :func:`analyse_runway` checks, without its strength envelope (a what-if sweep asks for the
+    checks at every point and the strength effects it follows itself)."""
+    if not spec.cranes:
+        raise ModelError("cranes: at least one crane is needed")
+    sections = np.asarray(sections, dtype=float)
+    combos = tuple(crane_combinations(spec.cranes, spec.combinations))
+    length = beam.length
+    confined = spec.end_stops
+    service_loads = [LoadCase(combination_load(c, length, confined=confined), name=c.name)
+                     for c in combos]
     service = envelope(beam, service_loads, sections=sections,
                        effects=("deflection", "reaction"))
     lateral = None
@@ -356,12 +386,33 @@ def analyse_runway(beam: Beam, spec: RunwaySpec, sections: NDArray[np.float64] |
                            effects=("moment", "deflection"))
         lateral_checks = deflection_checks(lateral, spec.lateral_limit_ratio, both_ways=True)
     vertical_checks = deflection_checks(service, spec.vertical_limit_ratio, both_ways=False)
-    wheels = {c.name: c.wheels() for c in spec.cranes}
-    longitudinal = {name: w.longitudinal for name, w in wheels.items()}
-    fatigue = _fatigue(beam, sections, spec)
-    return RunwayResult(spec, beam, sections, wheels, combos, strength, service, lateral,
-                        vertical_checks, lateral_checks, longitudinal, fatigue,
-                        _moment_anywhere(strength))
+    return RunwayChecks(service, lateral, vertical_checks, lateral_checks,
+                        _fatigue(beam, sections, spec))
+
+
+def fatigue_score(item: FatigueSection) -> float:
+    """What makes a section the worst for fatigue: utilisation, else range."""
+    if item.utilisation is not None:
+        return item.utilisation
+    if item.equivalent_range is not None:
+        return item.stress_range or 0.0
+    return item.moment_range
+
+
+def fatigue_worst_per_span(beam: Beam, cranes: Sequence[str],
+                           fatigue: Sequence[FatigueSection]
+                           ) -> list[tuple[int, FatigueSection]]:
+    """Per crane (in the order given), per span: the section with the largest utilisation
+    (or range) — the fatigue checks a runway reports."""
+    out = []
+    for crane in cranes:
+        items = [item for item in fatigue if item.crane == crane]
+        xs = [item.x for item in items]
+        for span in range(beam.n_spans):
+            inside = beam.sections_in_span(xs, span)
+            if inside.size:
+                out.append((span, max((items[i] for i in inside), key=fatigue_score)))
+    return out
 
 
 def _moment_anywhere(env: Envelope) -> tuple[AbsoluteExtreme | None, ...]:

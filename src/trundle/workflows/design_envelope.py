@@ -107,15 +107,23 @@ def run(spec: DesignSpec) -> DesignResult:
     cases = case_envelopes(beam, live, sections)
     permanent = permanent_effects(beam, spec.permanent, sections)
     designs = {c.name: design_envelope(c, permanent, cases) for c in spec.combinations}
-    deflection: list[DeflectionCheck] = []
-    if spec.deflection_ratio is not None:
-        movable: list[Any] = [*spec.design_loads, *spec.loads]
-        movable += [UniformLoad(w, "spans" if p == "spans" else "anywhere", name=name)
-                    for name, w, p in spec.live_patterns]
-        if movable:
-            deflection = live_load_deflection_checks(beam, movable, spec.deflection_ratio)
+    deflection = deflection_checks_of(spec)
     live_loads = LiveLoads(beam, spec.design_loads, spec.loads, spec.live_patterns,
                            spec.lane_length_loads)
     positions = design_records(live_loads, sections, critical, cases, designs)
     return DesignResult(spec, sections, critical, cases, permanent, designs, deflection,
                         positions)
+
+
+def deflection_checks_of(spec: DesignSpec) -> list[DeflectionCheck]:
+    """The live-load deflection checks of a design spec (empty without a limit): what
+    :func:`run` checks, without the envelopes (a what-if sweep asks for them at every
+    point)."""
+    if spec.deflection_ratio is None:
+        return []
+    movable: list[Any] = [*spec.design_loads, *spec.loads]
+    movable += [UniformLoad(w, "spans" if p == "spans" else "anywhere", name=name)
+                for name, w, p in spec.live_patterns]
+    if not movable:
+        return []
+    return live_load_deflection_checks(spec.beam, movable, spec.deflection_ratio)

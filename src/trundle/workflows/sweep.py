@@ -31,6 +31,7 @@ deflection (as the runway results are reported).
 
 from __future__ import annotations
 
+import difflib
 import math
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
@@ -39,10 +40,18 @@ from typing import Any
 import numpy as np
 from numpy.typing import NDArray
 
+from trundle.analysis.checks import EXCEEDS, PASS, DeflectionCheck
 from trundle.analysis.envelope import Envelope, absolute_extremes, envelope
 from trundle.core.beam import Beam, Spring
 from trundle.loads.cases import LoadCase
-from trundle.workflows.crane_runway import RunwaySpec, combination_load, crane_combinations
+from trundle.workflows.crane_runway import (
+    RunwaySpec,
+    combination_load,
+    crane_combinations,
+    fatigue_worst_per_span,
+    runway_checks,
+)
+from trundle.workflows.design_envelope import DesignSpec, deflection_checks_of
 
 MAX_AXES = 2
 MAX_POINTS = 20_000
@@ -132,7 +141,8 @@ def parse_effect(text: str) -> EffectSelector:
     kind = next((w for w in head if w in KINDS), None)
     which = next((w for w in head if w in ("max", "min")), None)
     if kind is None or which is None or len(set(head)) != 2:
-        raise SweepError(f'--effect "{shown}": {grammar}')
+        raise SweepError(f'--effect "{shown}": {_did_you_mean(words, original, source)}'
+                         f"{grammar}")
     rest = words[2:]
     selector = EffectSelector(shown, kind, which, source)
     if not rest:
@@ -168,7 +178,35 @@ def parse_effect(text: str) -> EffectSelector:
                              '"at"')
         # the position keeps its case: units are case-sensitive ("MN" is not "mN")
         return EffectSelector(shown, kind, which, source, at=" ".join(original[3:]))
-    raise SweepError(f'--effect "{shown}": {grammar}; found "{place}"')
+    hint = _closest(place, ("span", "support", "at"))
+    raise SweepError(f'--effect "{shown}": {grammar}; found "{place}"'
+                     + (f' (did you mean "{hint}"?)' if hint else ""))
+
+
+def _closest(word: str, choices: Sequence[str]) -> str | None:
+    found = difflib.get_close_matches(word, choices, n=1, cutoff=0.6)
+    return found[0] if found else None
+
+
+def _did_you_mean(words: Sequence[str], original: Sequence[str], source: str) -> str:
+    """'did you mean "moment max", "moment min"?' for a phrase whose first words are close to
+    a kind and a max/min (misspelt or missing); "" when nothing is close."""
+    head = list(words[:2])
+    kind = next((w for w in head if w in KINDS), None)
+    which = next((w for w in head if w in ("max", "min")), None)
+    unknown = [w for w in head if w not in KINDS and w not in ("max", "min")]
+    for w in unknown:
+        if kind is None and (guess := _closest(w, KINDS)):
+            kind = guess
+        elif which is None and (guess := _closest(w, ("max", "min"))):
+            which = guess
+    if kind is None:
+        return ""
+    prefix = f"{source} " if source else ""
+    rest = " ".join(original[2:])  # as written: a position keeps the case of its unit
+    tail = f" {rest}" if rest else ""
+    options = [f'"{prefix}{kind} {w}{tail}"' for w in ((which,) if which else ("max", "min"))]
+    return f"did you mean {' or '.join(options)}? "
 
 
 # ------------------------------------------------------------------------------------------
@@ -202,12 +240,14 @@ class SweepSubject:
     loads : the model's loads as named load cases (its ``[[load]]`` entries), the worst of
         them governing
     runway : the crane runway (cranes and combinations), or None
+    design : the design tables (their live-load deflection check), or None
     """
 
     beam: Beam
     sections: NDArray[np.float64]
     loads: tuple[LoadCase, ...] = ()
     runway: RunwaySpec | None = None
+    design: DesignSpec | None = None
 
 
 @dataclass(frozen=True)
@@ -297,6 +337,67 @@ def _position(beam: Beam, selector: EffectSelector) -> float | None:
 
 
 # ------------------------------------------------------------------------------------------
+# the checks of the model at each point
+
+
+@dataclass(frozen=True)
+class PointCheck:
+    """One check of the model at one point of a sweep, as ``trundle envelope`` makes it.
+
+    Fields
+    ------
+    name : what is checked ("vertical deflection, span 1", "fatigue, 20 t crane, span 2")
+    quantity : "deflection" or "stress" (the unit family of demand and allowable)
+    demand, allowable : in the model's base units (deflection in length units)
+    utilisation : demand / allowable
+    verdict : PASS or EXCEEDS, from :func:`trundle.analysis.checks.verdict` (through the
+        check's own ``verdict``; nothing is decided here)
+    governing : the load or combination that governs it
+    certified : False where a deflection searched between the sections was found by the
+        sampled search, which may read low (as ``DeflectionCheck.certified``)
+    """
+
+    name: str
+    quantity: str
+    demand: float
+    allowable: float
+    utilisation: float
+    verdict: str
+    governing: str = ""
+    certified: bool = True
+
+
+def checks_of(subject: SweepSubject) -> tuple[PointCheck, ...]:
+    """Every check the model defines at this point — those ``trundle envelope`` reports for
+    it: a crane runway's vertical and lateral deflection per span and its fatigue per crane
+    and span (worst section), and the live-load deflection of the design tables."""
+    out: list[PointCheck] = []
+
+    def deflection(kind: str, checks: Sequence[DeflectionCheck]) -> None:
+        for c in checks:
+            out.append(PointCheck(f"{kind}, span {c.span + 1}", "deflection", abs(c.value),
+                                  c.limit, c.utilisation, c.verdict, c.governing,
+                                  c.certified))
+
+    if subject.runway is not None:
+        found = runway_checks(subject.beam, subject.runway, subject.sections)
+        deflection("vertical deflection", found.vertical_checks)
+        deflection("lateral deflection", found.lateral_checks)
+        cranes = [c.name for c in subject.runway.cranes]
+        for span, item in fatigue_worst_per_span(subject.beam, cranes, found.fatigue):
+            if item.utilisation is None or item.verdict is None:
+                continue  # no detail category: no check (envelope shows none either)
+            demand = (item.stress_range if item.check == "threshold"
+                      else item.equivalent_range)
+            out.append(PointCheck(f"fatigue, {item.crane}, span {span + 1}", "stress",
+                                  float(demand or 0.0), float(item.allowable or 0.0),
+                                  float(item.utilisation), item.verdict, item.crane))
+    if subject.design is not None:
+        deflection("live-load deflection", deflection_checks_of(subject.design))
+    return tuple(out)
+
+
+# ------------------------------------------------------------------------------------------
 # the result
 
 
@@ -317,6 +418,7 @@ class SweepResult:
         other than zero)
     reused_lines : how many points found the influence lines of the point before them
         already built (same beam, sections and effects: only loads changed)
+    checks : per point, every check the model defines (:func:`checks_of`)
     """
 
     spec: SweepSpec
@@ -326,6 +428,7 @@ class SweepResult:
     support: NDArray[np.int64]
     load: tuple[tuple[str, ...], ...]
     reused_lines: int = 0
+    checks: tuple[tuple[PointCheck, ...], ...] = ()
 
     @property
     def axes(self) -> tuple[SweepAxis, ...]:
@@ -348,9 +451,55 @@ class SweepResult:
         return self.values[:, effect].reshape(self.shape)
 
     def worst(self, effect: int) -> int:
-        """Index of the point where the effect is worst (largest max, smallest min)."""
+        """Index of the point where the effect is worst (largest max, smallest min); of
+        points equal to it within rounding (:data:`SAME_WITHIN`), the first."""
         sign = 1.0 if self.effects[effect].which == "max" else -1.0
-        return int(np.argmax(sign * self.values[:, effect]))
+        signed = sign * self.values[:, effect]
+        if not np.isfinite(signed).any():
+            return 0
+        best = float(np.nanmax(signed))
+        near = signed >= best - SAME_WITHIN * max(abs(best), _scale(self.values[:, effect]))
+        return int(np.flatnonzero(near)[0])
+
+    def constant(self, effect: int) -> bool:
+        """Whether the effect is the same at every point, within rounding
+        (:data:`SAME_WITHIN` of its largest magnitude)."""
+        values = self.values[:, effect]
+        if not np.isfinite(values).all():
+            return False
+        return bool(np.ptp(values) <= SAME_WITHIN * _scale(values))
+
+    @property
+    def check_names(self) -> tuple[str, ...]:
+        """Every check met at some point, in the order first met."""
+        names: dict[str, None] = {}
+        for point in self.checks:
+            for c in point:
+                names.setdefault(c.name, None)
+        return tuple(names)
+
+    def point_verdict(self, p: int) -> str | None:
+        """EXCEEDS when any check at point ``p`` exceeds, PASS when all pass, None when the
+        model defines no check."""
+        if not self.checks or not self.checks[p]:
+            return None
+        return EXCEEDS if any(c.verdict != PASS for c in self.checks[p]) else PASS
+
+    def exceeding(self) -> list[int]:
+        """The points where some check EXCEEDS."""
+        return [p for p in range(len(self.points)) if self.point_verdict(p) == EXCEEDS]
+
+    def worst_check(self, p: int) -> PointCheck | None:
+        """The check of largest utilisation at point ``p`` (an EXCEEDS first; the first of
+        equals)."""
+        if not self.checks or not self.checks[p]:
+            return None
+        checks = self.checks[p]
+        failing = [c for c in checks if c.verdict != PASS] or list(checks)
+        top = max(_finite(c.utilisation) for c in failing)
+        # of checks equal within rounding (a symmetric structure), always the first
+        return next(c for c in failing
+                    if _finite(c.utilisation) >= top - SAME_WITHIN * abs(top))
 
     def records(self) -> list[dict[str, Any]]:
         """One dict per point: the swept values by name, then per effect its value, where
@@ -366,6 +515,9 @@ class SweepResult:
                 else:
                     row[f"{selector.label}: x"] = float(self.x[p, e])
                 row[f"{selector.label}: load"] = self.load[p][e]
+            for c in self.checks[p] if self.checks else ():
+                row[f"{c.name}: utilisation"] = float(c.utilisation)
+                row[f"{c.name}: verdict"] = c.verdict
             out.append(row)
         return out
 
@@ -374,7 +526,14 @@ class SweepResult:
                           f"({len(a.values)})" for a in self.axes)
         worst = "; ".join(f"{s.label} {self.values[self.worst(e), e]:.5g}"
                           for e, s in enumerate(self.effects))
-        return f"<SweepResult {len(self.points)} points: {swept}; worst: {worst}>"
+        return (f"<SweepResult {len(self.points)} points: {swept}; worst: {worst}; "
+                f"{self._checks_text()}>")
+
+    def _checks_text(self) -> str:
+        if not self.check_names:
+            return "no checks"
+        return (f"checks: {len(self.exceeding())} of {len(self.points)} points EXCEED"
+                if self.exceeding() else f"checks: all {len(self.points)} points PASS")
 
     def _repr_html_(self) -> str:
         from html import escape
@@ -390,7 +549,8 @@ class SweepResult:
                         "</tr>")
         swept = "; ".join(f"{a.name} from {a.values[0]:g} to {a.values[-1]:g} {a.unit}"
                           for a in self.axes)
-        return (f"<div><b>What-if sweep</b>: {len(self.points)} points; {escape(swept)}"
+        return (f"<div><b>What-if sweep</b>: {len(self.points)} points; {escape(swept)}; "
+                f"<b>{escape(self._checks_text())}</b>"
                 "<table><tr><th>effect</th><th>worst value</th><th>at</th><th>load</th></tr>"
                 + "".join(rows) + "</table></div>")
 
@@ -411,9 +571,11 @@ def run(spec: SweepSpec, progress: Progress | None = None) -> SweepResult:
     names: list[tuple[str, ...]] = []
     reused = 0
     previous: set[tuple] = set()
+    checks: list[tuple[PointCheck, ...]] = []
     for p, point in enumerate(points):
         subject = spec.subject_at(tuple(float(v) for v in point))
         found, keys = _evaluate(subject, spec.effects)
+        checks.append(checks_of(subject))
         reused += bool(keys) and keys <= previous
         previous = keys
         for e, (value, x, support, _load) in enumerate(found):
@@ -421,7 +583,8 @@ def run(spec: SweepSpec, progress: Progress | None = None) -> SweepResult:
         names.append(tuple(f[3] for f in found))
         if progress is not None:
             progress(p + 1, total)
-    return SweepResult(spec, points, values, xs, supports, tuple(names), reused)
+    return SweepResult(spec, points, values, xs, supports, tuple(names), reused,
+                       tuple(checks))
 
 
 _Found = tuple[float, float, int, str]
@@ -548,6 +711,21 @@ def _pick(env: Envelope, selector: EffectSelector, cases: Sequence[Any]) -> _Fou
     return value, where, -1, name
 
 
+SAME_WITHIN = 1e-9
+"""Values of an effect closer than this fraction of its largest magnitude are the same
+(floating-point rounding: an effect another parameter does not change, such as a moment of a
+beam whose stiffness is uniform, differs only in its last digits)."""
+
+
+def _scale(values: NDArray[np.float64]) -> float:
+    finite = np.abs(values[np.isfinite(values)])
+    return float(finite.max()) if finite.size else 0.0
+
+
+def _finite(value: float) -> float:
+    return value if math.isfinite(value) else math.inf
+
+
 # appended to the governing load of an "anywhere" effect that is not certified (see
 # ``analysis.envelope.absolute_extremes``)
 NOT_CERTIFIED = "(anywhere: not certified)"
@@ -559,6 +737,6 @@ def effect_family(selector: EffectSelector) -> str:
 
 
 __all__ = ["DEFAULT_EFFECTS", "MAX_AXES", "MAX_EFFECTS", "MAX_POINTS", "NOT_CERTIFIED",
-           "EffectSelector",
+           "SAME_WITHIN", "EffectSelector", "PointCheck", "checks_of",
            "SweepAxis", "SweepError", "SweepResult", "SweepSpec", "SweepSubject",
            "check_selector", "parse_effect", "run", "source_of"]
