@@ -32,17 +32,20 @@ from trundle.io.output_set import OutputSet, OutputSetError, check_out_option, w
 from trundle.io.outputs import Provenance
 from trundle.io.plausibility import deflection_warnings, model_warnings
 from trundle.io.units import UnitError, parse_quantity
-from trundle.report import CAUTION, LOAD_MODEL_CAUTION
+from trundle.report import (
+    CAUTION,
+    DESIGN_SAFETY_HELP,
+    LOAD_MODEL_CAUTION,
+    SAFETY_HELP,
+    SHORT_CAUTION,
+)
 from trundle.report.safe_text import terminal_text
 from trundle.workflows.sweep import DEFAULT_EFFECTS, MAX_POINTS
 
 EFFECT_CHOICES = ("moment", "shear", "reaction", "deflection", "rotation", "support-moment")
 _SECTION_KINDS = ("moment", "shear", "deflection", "rotation")
-_SAFETY_HELP = ("CAUTION: results are for checking by a qualified engineer; local codes and "
-                "licensed practice govern.")
-_DESIGN_SAFETY_HELP = ("CAUTION: results are for checking by a qualified engineer; transcribed "
-                       "load models must be verified against the edition in force; local codes "
-                       "and licensed practice govern.")
+_SAFETY_HELP = SAFETY_HELP  # the caution texts live in trundle.report (one wording)
+_DESIGN_SAFETY_HELP = DESIGN_SAFETY_HELP
 
 
 class UserError(click.ClickException):
@@ -733,8 +736,7 @@ def _governing_summary(model: Model, moving: Any, runway: Any, design: Any) -> l
 
 
 def _short_caution() -> str:
-    return ("CAUTION: for checking by a qualified engineer; verify load models against the "
-            "edition in force; local codes and licensed practice govern.")
+    return SHORT_CAUTION
 
 
 def _verdict_summary(results: Any) -> list[str]:
