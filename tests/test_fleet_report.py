@@ -34,6 +34,7 @@ from trundle.report import (
     SHORT_CAUTION,
 )
 from trundle.report.fleet_section import DIRECTION_WORDS, _decade
+from trundle.report.package import css_string
 
 CHROMIUM = shutil.which("chromium") or (
     "/usr/bin/chromium" if os.path.exists("/usr/bin/chromium") else None)
@@ -60,11 +61,14 @@ def runs(tmp_path_factory: pytest.TempPathFactory) -> Path:
                                                     spacings='"4 m"'))
     (folder / "permit.toml").write_text(AXLE.format(
         what="permit", axles='"100 kN", "150 kN", "150 kN"', spacings='"3.5 m", "1.4 m"'))
+    (folder / "project.toml").write_text('[project]\nname = "Ring road survey (test)"\n'
+                                         'job_number = "T-77"\nchecked_by = "B. Checker"\n'
+                                         'date = 2026-12-03\n')
     (folder / "traffic.csv").write_bytes(traffic_bytes(invented_traffic(150, seed=4, days=14),
                                                        "csv"))
     fleet = run("fleet", folder / "traffic.csv", folder / "inventory.csv", "--design",
                 folder / "design.toml", "--out", folder / "fleet", "--single-process",
-                "--no-progress")
+                "--no-progress", "--project", folder / "project.toml")
     assert fleet.exit_code == 0, fleet.output + fleet.stderr
     permit = run("permit", folder / "permit.toml", folder / "inventory.csv", "--design",
                  folder / "design.toml", "--impact", "10", "--limit", "1.0", "--out",
@@ -164,10 +168,19 @@ def test_the_report_is_one_self_contained_package(runs: Path, report: str) -> No
     assert "Short span $5 culvert" in text  # a dollar sign from a file stays as written
     if report == "fleet":
         assert page.svgs >= 3 and '<svg role="img" class="figure"' in text
-    # the project block, the print style with page N of M, the cautions
+    # the project block (fleet: from --project; permit: blank, to fill in by hand), the
+    # print style with page N of M, the cautions
     project = next(t for t in page.tables if "project" in t["class"])
-    labels = [cell for row in project["rows"] for cell in row]
-    assert "job number" in text and "checked by" in text and labels
+    cells = [cell for row in project["rows"] for cell in row]
+    fields = dict(zip(cells[::2], cells[1::2], strict=True))
+    assert set(fields) >= {"project", "job number", "element", "designed by", "checked by",
+                           "date", "revision", "calculation"}
+    if report == "fleet":
+        assert fields["project"] == "Ring road survey (test)" and fields["job number"] == "T-77"
+        assert fields["date"] == "2026-12-03" and fields["checked by"] == "B. Checker"
+        assert css_string("T-77 · Traffic over the bridge inventory") in text  # page footer
+    else:
+        assert fields["project"] == fields["job number"] == fields["checked by"] == ""
     assert '"page " counter(page) " of " counter(pages)' in text and "size: A4" in text
     assert CAUTION in text and LOAD_MODEL_CAUTION in text
     # people's headings: no field name of a file
@@ -303,6 +316,19 @@ def test_a_cell_that_is_no_number_is_one_clear_statement(tmp_path: Path) -> None
     # one statement per bad cell: no "empty cell" or derived sum for a cell that has text
     assert line.count("empty cell") == 1 and "add up to" not in line
     assert not out.exists()
+
+
+def test_a_bad_project_file_is_one_line_and_exit_2(runs: Path, tmp_path: Path) -> None:
+    args = ("permit", runs / "permit.toml", runs / "inventory.csv", "--design",
+            runs / "design.toml", "--single-process", "--out", tmp_path / "out")
+    (tmp_path / "none.toml").write_text('title = "no project here"\n')
+    assert_one_line_error(run(*args, "--project", tmp_path / "none.toml"), "none.toml",
+                          "project", "expected a [project] table")
+    (tmp_path / "job.toml").write_text("[project]\njob_number = 1234\n")
+    assert_one_line_error(run(*args, "--project", tmp_path / "job.toml"), "job.toml",
+                          "project.job_number", "expected text", "found 1234")
+    assert_one_line_error(run(*args, "--project", tmp_path / "missing.toml"), "missing.toml")
+    assert not (tmp_path / "out").exists()
 
 
 def _chromium(*args: str, user_dir: str) -> None:

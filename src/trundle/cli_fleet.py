@@ -56,6 +56,20 @@ def _provenance(*inputs: tuple[str, Path]) -> tuple[str, list[Any]]:
             + f"; computed {found.date}"), files
 
 
+def _project(path: Path | None) -> Any:
+    """The --project file's [project] table (None without the option); read before any
+    work, so a bad file stops the run with one line and exit code 2."""
+    if path is None:
+        return None
+    from trundle.io.modelfile import ModelFileError
+    from trundle.io.project import read_project_file
+
+    try:
+        return read_project_file(path)
+    except ModelFileError as error:
+        raise _inputs_error(error) from None
+
+
 def _write(out_dir: Path, files: dict[str, Any]) -> list[Path]:
     try:
         return write_output_set(out_dir, files)[0]
@@ -96,13 +110,16 @@ def _write(out_dir: Path, files: dict[str, Any]) -> list[Path]:
               show_default=True, help="Return period [years].")
 @click.option("--fatigue", is_flag=True,
               help="Rainflow damage of each truck's exact moment history (turning points).")
+@click.option("--project", "project_file", metavar="FILE", type=click.Path(path_type=Path),
+              help="TOML file whose [project] table fills the report's project block (a "
+                   "model file will do); without it the block is blank, to fill in by hand.")
 @click.option("--no-figure", is_flag=True, help="Write no figures.")
 @click.option("--no-progress", is_flag=True, help="Show no progress bar.")
 def fleet_command(trucks: Path, inventory: Path, units: str, bad_rows: str, design: str | None,
                   out_dir: Path, scheduler: str | None, workers: int | None,
                   single_process: bool, truck_chunk: int, bridge_chunk: int, block: str,
-                  fit: str, period: float, fatigue: bool, no_figure: bool,
-                  no_progress: bool) -> None:
+                  fit: str, period: float, fatigue: bool, project_file: Path | None,
+                  no_figure: bool, no_progress: bool) -> None:
     """Recorded traffic over a bridge inventory: per bridge and effect, the exact extreme of
     every truck, the distribution, block maxima with a fitted distribution and the return
     level for a period (bootstrap interval), the ratio to a design load model, and fatigue.
@@ -130,6 +147,7 @@ def fleet_command(trucks: Path, inventory: Path, units: str, bad_rows: str, desi
         bridges = tuple(read_inventory(inventory))
     except (TrafficFileError, InventoryError) as error:
         raise _inputs_error(error) from None
+    project = _project(project_file)
     model = design_model(design) if design else None  # every name checked before any scan
     # the partitions live beside the output set (which is replaced whole), so a rerun finds
     # them: <out>.work/partitions
@@ -163,7 +181,7 @@ def fleet_command(trucks: Path, inventory: Path, units: str, bad_rows: str, desi
     term.print_renderable(console, table)
     comment, inputs = _provenance(("traffic file", trucks), ("inventory", inventory))
     written = _write(out_dir, fleet_files(result, figures=not no_figure, provenance=comment,
-                                          inputs=inputs))
+                                          inputs=inputs, project=project))
     console.print(f"partitions: {result.written} written, {result.skipped} already there, in "
                   f"{work_dir / 'partitions'}")
     console.print("wrote " + ", ".join(str(p) for p in written[:6])
@@ -197,14 +215,17 @@ def fleet_command(trucks: Path, inventory: Path, units: str, bad_rows: str, desi
               show_default=True, help="Largest acceptable ratio permit / design.")
 @click.option("-o", "--out", "out_dir", type=click.Path(path_type=Path),
               help="Write permit.csv, permit.parquet and report.html into this folder.")
+@click.option("--project", "project_file", metavar="FILE", type=click.Path(path_type=Path),
+              help="TOML file whose [project] table fills the report's project block (a "
+                   "model file will do); without it the block is blank, to fill in by hand.")
 @click.option("--scheduler", metavar="ADDRESS",
               help="Run on an existing Dask cluster (tcp://host:8786); default: a "
                    "LocalCluster on this machine, one worker per core.")
 @click.option("--workers", type=click.IntRange(1, 512), help="LocalCluster workers.")
 @click.option("--single-process", is_flag=True, help="No Dask: run in this process.")
 def permit_command(vehicle: str, route: Path, design: str, impact: float, limit: float,
-                   out_dir: Path | None, scheduler: str | None, workers: int | None,
-                   single_process: bool) -> int:
+                   out_dir: Path | None, project_file: Path | None, scheduler: str | None,
+                   workers: int | None, single_process: bool) -> int:
     """Permit vehicle(s) over every bridge of a route: per bridge and effect, the ratio of
     the permit's effect (with the dynamic allowance given) to the design model's, flagged
     EXCEEDS above the limit, with the governing front-axle position and direction.
@@ -228,6 +249,7 @@ def permit_command(vehicle: str, route: Path, design: str, impact: float, limit:
         bridges = tuple(read_inventory(route))
     except InventoryError as error:
         raise _inputs_error(error) from None
+    project = _project(project_file)
     if scheduler and single_process:
         raise click.ClickException("--scheduler and --single-process: expected one of them, "
                                    "found both")
@@ -257,7 +279,7 @@ def permit_command(vehicle: str, route: Path, design: str, impact: float, limit:
     if out_dir is not None:
         comment, inputs = _provenance(*[("vehicle", Path(v)) for v in vehicles],
                                       ("route", route))
-        written = _write(out_dir, permit_files(result, comment, inputs))
+        written = _write(out_dir, permit_files(result, comment, inputs, project))
         console.print("wrote " + ", ".join(str(p) for p in written))
     console.print(CAUTION, style="dim")
     console.print(LOAD_MODEL_CAUTION, style="dim")
