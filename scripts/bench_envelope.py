@@ -456,6 +456,7 @@ def first_run(quick: bool) -> None:
     with tempfile.TemporaryDirectory() as cache:
         env = {**os.environ, "NUMBA_CACHE_DIR": cache}
         for label in ("cold numba cache (compiles)", "warm numba cache"):
+            print(f"   load average before the {label.split(' (')[0]} run: {load_average()}")
             out = subprocess.run([sys.executable, "-c", FIRST_CODE], env=env,
                                  capture_output=True, text=True, check=True)
             values = [float(v) for v in out.stdout.split()]

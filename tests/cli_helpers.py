@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import csv
+from html.parser import HTMLParser
 from pathlib import Path
 
 import numpy as np
@@ -53,3 +54,47 @@ def column(header: list[str], body: list[list[str]], name: str) -> np.ndarray:
     """One named column of a CSV as numbers."""
     index = header.index(name)
     return np.array([float(row[index]) for row in body])
+
+
+class HtmlChecker(HTMLParser):
+    """Every element closed in the order opened (void elements excepted); ids unique.
+    Feed a page, close, then look at ``errors``, ``stack`` (empty) and ``ids``."""
+
+    VOID = {"meta", "br", "img", "hr", "link", "input", "col", "wbr", "source"}
+
+    def __init__(self) -> None:
+        super().__init__(convert_charrefs=True)
+        self.stack: list[str] = []
+        self.ids: list[str] = []
+        self.errors: list[str] = []
+
+    def handle_starttag(self, tag, attrs):
+        for name, value in attrs:
+            if name == "id":
+                self.ids.append(value)
+        if tag not in self.VOID:
+            self.stack.append(tag)
+
+    def handle_startendtag(self, tag, attrs):  # <path/> in SVG: opened and closed at once
+        for name, value in attrs:
+            if name == "id":
+                self.ids.append(value)
+
+    def handle_endtag(self, tag):
+        if not self.stack or self.stack[-1] != tag:
+            self.errors.append(f"</{tag}> closes {self.stack[-1:]} at {self.getpos()}")
+            return
+        self.stack.pop()
+
+
+def html_problems(page: str) -> list[str]:
+    """What is wrong with a page's structure ([] for a well-formed page)."""
+    checker = HtmlChecker()
+    checker.feed(page)
+    checker.close()
+    problems = list(checker.errors)
+    if checker.stack:
+        problems.append(f"never closed: {checker.stack}")
+    if len(checker.ids) != len(set(checker.ids)):
+        problems.append("an id is used twice")
+    return problems

@@ -1,4 +1,5 @@
-"""Shared test helpers: the one test crane and the one random-beam generator.
+"""Shared test helpers: the one test crane, the one random-beam generator and the bundled
+examples run once per test session.
 
 ``make_crane`` is the invented 20 t cab-operated crane (capacity 200 kN, bridge 300 kN,
 trolley 50 kN, crane span 20 m, hook approach 1 m, two wheels 3.6 m apart per rail, 4.4 m over
@@ -7,15 +8,62 @@ what it needs (``make_crane(name="paint crane", capacity=100.0)``).
 
 ``random_beam`` draws the random stable beams of the property and brute-force tests (the
 kernels' tests ask for up to 3 spans of at least 3 and nodes 0.5 apart).
+
+``bundled_run`` runs ``trundle envelope EXAMPLE --out FOLDER`` (every output: tables, JSON,
+figures, report) once per bundled example and test session, and gives every test module that
+checks those outputs the same run (result and folder): the CLI, report, design and crane
+tests each used to run the same examples again. The folders are read-only for the tests.
+``design_run`` does the same for the design workflow of a design example (library level).
 """
 
 from __future__ import annotations
 
+import functools
+from collections.abc import Callable
+from pathlib import Path
+
 import numpy as np
+import pytest
 
 import trundle
 from naive import MIN_NODE_GAP, beam_nodes
 from trundle.loads.cranes import Crane
+
+ROOT = Path(__file__).resolve().parents[1]
+# every bundled model file that `trundle envelope` runs as it is
+BUNDLED_EXAMPLES = sorted([*(ROOT / "examples").glob("*.toml"),
+                           *(ROOT / "examples" / "cranes").glob("*.toml"),
+                           *(ROOT / "examples" / "design").glob("*.toml")])
+
+
+@pytest.fixture(scope="session")
+def bundled_run(tmp_path_factory: pytest.TempPathFactory) -> Callable[[Path], tuple]:
+    """``bundled_run(path)`` → (click result, output folder) of ``trundle envelope path --full
+    --out folder`` with every output, run on first request and shared for the session."""
+    from cli_helpers import run
+
+    done: dict[Path, tuple] = {}
+
+    def get(path: Path) -> tuple:
+        path = Path(path).resolve()
+        assert path in BUNDLED_EXAMPLES, f"{path} is not a bundled example"
+        if path not in done:
+            out = tmp_path_factory.mktemp(f"bundled-{path.stem}") / "out"
+            done[path] = (run("envelope", path, "--out", out, "--full"), out)
+        return done[path]
+
+    return get
+
+
+@functools.cache
+def design_run(path: Path) -> tuple:
+    """(design model, ``workflows.design_envelope.run`` result) of a design example, computed
+    once per session (the results are not changed by the tests)."""
+    from trundle.io.design_tables import design_spec_of, read_design_model
+    from trundle.workflows.design_envelope import run
+
+    design = read_design_model(path)
+    return design, run(design_spec_of(design))
 
 CRANE_DATA = dict(capacity=200.0, bridge_weight=300.0, trolley_weight=50.0, span=20.0,
                   hook_approach=1.0, wheel_spacings=(3.6,), buffer_length=4.4)

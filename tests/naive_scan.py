@@ -319,13 +319,16 @@ class ReferenceSolver:
         self.K = K
         self.free = ~held
         self.K_ff_inv = np.linalg.inv(K[np.ix_(self.free, self.free)])
-        # Hermite shape functions in the local coordinate s and their antiderivatives
+        # Hermite shape functions in the local coordinate s and their antiderivatives, kept
+        # as coefficient lists (lowest power first): the brute-force references solve
+        # thousands of times, and numpy's Polynomial call costs more than the solve
         self.shapes = []
         for h in self.h:
             t = Polynomial([0.0, 1.0 / h])
             N = [1 - 3 * t**2 + 2 * t**3, h * (t - 2 * t**2 + t**3), 3 * t**2 - 2 * t**3,
                  h * (-(t**2) + t**3)]
-            self.shapes.append((N, [f.integ() for f in N]))
+            self.shapes.append(([[float(c) for c in f.coef] for f in N],
+                                [[float(c) for c in f.integ().coef] for f in N]))
 
     def _element(self, x: float) -> int:
         return int(min(max(np.searchsorted(self.nodes, x, side="right") - 1, 0),
@@ -339,14 +342,15 @@ class ReferenceSolver:
             e = self._element(x)
             N, _ = self.shapes[e]
             s = x - self.nodes[e]
-            F[self.element_dofs[e]] += P * np.array([f(s) for f in N])
+            F[self.element_dofs[e]] += P * np.array([_horner_low(f, s) for f in N])
         for x0, x1, w in uniform:
             for e in range(len(self.h)):
                 a = max(x0, self.nodes[e]) - self.nodes[e]
                 b = min(x1, self.nodes[e + 1]) - self.nodes[e]
                 if b > a:
                     _, I = self.shapes[e]
-                    F[self.element_dofs[e]] += w * np.array([f(b) - f(a) for f in I])
+                    F[self.element_dofs[e]] += w * np.array([_horner_low(f, b)
+                                                             - _horner_low(f, a) for f in I])
         u = np.zeros(self.n_dof)
         u[self.free] = self.K_ff_inv @ F[self.free]
         restraint = self.K @ u - F  # force each restraint puts on its node (down / clockwise)
@@ -362,6 +366,14 @@ class ReferenceSolver:
                 if s.kr is not None:
                     couples[k] = s.kr * u[self.th_right[i]]  # and resists a clockwise turn
         return ReferenceResult(self, list(points), list(uniform), u, reactions, couples)
+
+
+def _horner_low(coef_low_first: list[float], s: float) -> float:
+    """A polynomial (lowest power first) at s."""
+    value = 0.0
+    for c in reversed(coef_low_first):
+        value = value * s + c
+    return value
 
 
 @dataclass
@@ -642,14 +654,22 @@ def _plain_block_value(knots, coef, running, end_value, weights, kinds, offsets,
 
 
 def plain_block_candidates(knots, coef, running, end_value, weights, kinds, offsets,
-                           confined: bool, scale: float = 1.0
+                           confined: bool, scale: float = 1.0, standing=None
                            ) -> list[tuple[float, float, float]]:
     """Twin of ``trundle.scan.candidates.block_candidates``: (position, value, side) of every
     piece end (both one-sided limits), every interior critical point and, unless confined, the
     stretches wholly off the beam. Each piece's polynomial is recovered by interpolating the
     response at five interior points (exact for degree ≤ 4), its critical points by
     ``numpy.roots`` of the derivative; a piece whose values differ by less than 1e-10 ·
-    ``scale`` is constant (no critical point)."""
+    ``scale`` is constant (no critical point).
+
+    With ``standing`` (a function of concentrated loads [(x, P)] giving their effect with
+    every load standing exactly where it is, e.g. a static solve), also every position where
+    a concentrated load stands exactly on an end of the beam (side 0; see
+    ``plain_end_positions``): there neither one-sided limit sees that load (from outside it
+    is off the beam; from inside it is not yet on the end, where a shear line of a section at
+    a free tip jumps). Such a position is valued as the loads stand: the concentrated ones by
+    ``standing``, the uniform ones' ends by F(x) = ∫₀ˣ IL (continuous, so no side matters)."""
     length = float(knots[-1])
     offsets = [float(d) for d in offsets]
     lo, hi = min(offsets), max(offsets) + length
@@ -684,10 +704,37 @@ def plain_block_candidates(knots, coef, running, end_value, weights, kinds, offs
             if abs(r.imag) <= 1e-9 * width and 0.0 < r.real < width:
                 out.append((a + float(r.real), float(poly(r.real)), 0.0))
         out.append((b, float(poly(width)), -1.0))
+    if standing is not None:
+        for xi in plain_end_positions(length, offsets, kinds, lo, hi):
+            loads = [(xi - d, w) for w, kind, d in zip(weights, kinds, offsets, strict=True)
+                     if kind == 0]
+            value = standing(loads)
+            for w, kind, d in zip(weights, kinds, offsets, strict=True):
+                if kind != 0:
+                    x = xi - d
+                    value += w * (0.0 if x <= 0.0 else end_value if x >= length
+                                  else _plain_read(knots, running, x))
+            out.append((xi, value, 0.0))
     if not restricted:
         beyond = sum(w * end_value for w, kind in zip(weights, kinds, strict=True) if kind != 0)
         out.append((hi, beyond, 1.0))
     return out
+
+
+def plain_end_positions(length: float, offsets, kinds, lo: float, hi: float) -> list[float]:
+    """Every reference position in [lo, hi] where a concentrated load (kind 0, at ``offset``
+    behind the reference point) stands exactly on an end of the beam (x = 0 or x = length),
+    each once."""
+    found: list[float] = []
+    for d, kind in zip(offsets, kinds, strict=True):
+        if kind != 0:
+            continue
+        for end in (0.0, length):
+            xi = float(d) + end
+            if lo - 1e-12 * length <= xi <= hi + 1e-12 * length and not any(
+                    abs(xi - f) <= 1e-12 * length for f in found):
+                found.append(xi)
+    return sorted(found)
 
 
 def plain_chain_maximum(blocks: list[list[tuple[float, float]]], shifts: list[float],

@@ -80,14 +80,28 @@ def _csv_rows(path):
     return list(csv.DictReader(lines))
 
 
+@pytest.fixture(scope="module")
+def failing_full(failing, tmp_path_factory):
+    folder = tmp_path_factory.mktemp("failing-full")
+    model = folder / "failing.toml"
+    model.write_text(FAILING_RUNWAY)
+    result = run("envelope", model, "--full")
+    assert result.exit_code == 0, result.output + result.stderr
+    return result.output
+
+
 @pytest.mark.parametrize("check", CHECKS)
-def test_a_failing_check_shows_in_the_terminal(failing, check):
-    output, _ = failing
-    row_of = {"vertical": r"│\s+\d+ │ vertical ", "lateral": r"│\s+\d+ │ lateral \(±\)",
-              "fatigue": r"│ (finite life|threshold) +│ +[0-9.]+ │"}[check]
-    rows = [line for line in output.splitlines() if re.search(row_of, line)]
-    assert rows, output
-    assert all(EXCEEDS in row for row in rows), rows
+def test_a_failing_check_shows_in_the_terminal(failing, failing_full, check):
+    # the default view (compact tables) and the full tables (framed)
+    short = {"vertical": r"^\s*\d+\s+vertical\s", "lateral": r"^\s*\d+\s+lateral \(±\)",
+             "fatigue": r"(finite life|threshold)\s+[0-9.]+\s"}
+    framed = {"vertical": r"│\s+\d+ │ vertical ", "lateral": r"│\s+\d+ │ lateral \(±\)",
+              "fatigue": r"│ (finite life|threshold) +│ +[0-9.]+ │"}
+    for output, row_of in ((failing[0], short[check]), (failing_full, framed[check])):
+        rows = [line for line in output.splitlines() if re.search(row_of, line)]
+        assert rows, output
+        assert all(EXCEEDS in row for row in rows), rows
+    assert "checks: 3 of 3 EXCEED" in failing[0] and "checks: 3 of 3 EXCEED" in failing_full
 
 
 @pytest.mark.parametrize("check", CHECKS)
@@ -147,7 +161,7 @@ def test_a_passing_check_shows_pass_everywhere(tmp_path):
     vertical = [r for r in _csv_rows(out / "runway-deflection.csv")
                 if r["direction"] == "vertical"]
     assert vertical and all(r["verdict"] == PASS for r in vertical)
-    assert any(re.search(r"│\s+\d+ │ vertical ", line) and PASS in line
+    assert any(re.search(r"^\s*\d+\s+vertical\s", line) and PASS in line
                for line in result.output.splitlines())
     crane = json.loads((out / "envelope.json").read_text())["extra"]["Crane runway"]
     assert all(item["verdict"] == PASS for item in crane["vertical_deflection"])

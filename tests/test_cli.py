@@ -104,8 +104,8 @@ def test_lines_writes_outputs_matching_the_library(tmp_path):
     header, body = rows[0], rows[1:]
     assert header[:2] == ["x [m]", "limit"]
     expected_columns = {
-        "moment at 3.6 m [kN*m/kN]": (trundle.Effect("moment", at=3.6), 1.0),
-        "moment at 7.2 m (support 1) [kN*m/kN]": (trundle.Effect("moment", at=7.2), 1.0),
+        "moment at 3.6 m [kN·m/kN]": (trundle.Effect("moment", at=3.6), 1.0),
+        "moment at 7.2 m (support 1) [kN·m/kN]": (trundle.Effect("moment", at=7.2), 1.0),
         "shear right of 3.6 m [kN/kN]": (trundle.Effect("shear", at=3.6, side="right"), 1.0),
         "shear left of 7.2 m (support 1) [kN/kN]":
             (trundle.Effect("shear", at=7.2, side="left"), 1.0),

@@ -2,7 +2,8 @@
 equal analyse_runway's for the same model, the report carries the crane summary and the
 cautions, bad crane files give one line and write nothing.
 
-The crane examples run once per module (analyse_runway takes seconds for two cranes).
+The crane examples run once per session (conftest.bundled_run, shared with the report tests;
+analyse_runway takes seconds for two cranes).
 """
 
 from __future__ import annotations
@@ -40,17 +41,13 @@ def library_runway(path: Path) -> RunwayResult:
 
 
 @pytest.fixture(scope="module")
-def si(tmp_path_factory):
-    out = tmp_path_factory.mktemp("si") / "results"
-    result = run("envelope", SI_HALL, "--out", out)
-    return result, out, library_runway(SI_HALL)
+def si(bundled_run):
+    return *bundled_run(SI_HALL), library_runway(SI_HALL)  # the session's one CLI run
 
 
 @pytest.fixture(scope="module")
-def us(tmp_path_factory):
-    out = tmp_path_factory.mktemp("us") / "results"
-    result = run("envelope", US_HALL, "--out", out)
-    return result, out, library_runway(US_HALL)
+def us(bundled_run):
+    return *bundled_run(US_HALL), library_runway(US_HALL)
 
 
 # --- the files ----------------------------------------------------------------------------
@@ -111,13 +108,13 @@ def test_sections_csv_equals_the_library(si):
     lateral_moment, _ = lateral_extremes(runway, "moment")
     lateral_deflection, _ = lateral_extremes(runway, "deflection")
     checks = {
-        "moment max with impact [kN*m]": runway.strength.max("moment"),
-        "moment min with impact [kN*m]": runway.strength.min("moment"),
+        "moment max with impact [kN·m]": runway.strength.max("moment"),
+        "moment min with impact [kN·m]": runway.strength.min("moment"),
         "shear left max with impact [kN]": runway.strength.max("shear", side="left"),
         "shear right min with impact [kN]": runway.strength.min("shear", side="right"),
         # deflection in mm; the core gives m
         "deflection max without impact [mm]": 1000.0 * runway.service.max("deflection"),
-        "lateral moment (either way) [kN*m]": lateral_moment,
+        "lateral moment (either way) [kN·m]": lateral_moment,
         "lateral deflection (either way) [mm]": 1000.0 * lateral_deflection,
     }
     for name, expected in checks.items():
@@ -140,7 +137,7 @@ def test_deflection_and_fatigue_csv_equal_the_library(si):
                                [c.utilisation for c in runway.lateral_checks], rtol=1e-11)
     header, body = read_csv(out / "runway-fatigue.csv")
     assert len(body) == len(runway.fatigue) == 2 * len(runway.sections)
-    np.testing.assert_allclose(column(header, body, "moment range per passage [kN*m]"),
+    np.testing.assert_allclose(column(header, body, "moment range per passage [kN·m]"),
                                [f.moment_range for f in runway.fatigue], rtol=1e-11, atol=1e-9)
     # stresses in MPa; the core gives kN/m²
     np.testing.assert_allclose(column(header, body, "stress range max [MPa]"),
@@ -229,7 +226,7 @@ def test_us_runway_in_us_units_with_the_makers_wheel_loads(us):
     # deflection in inches; the core gives ft
     np.testing.assert_allclose(column(header, body, "deflection max without impact [in]"),
                                12.0 * runway.service.max("deflection"), rtol=1e-11, atol=1e-12)
-    np.testing.assert_allclose(column(header, body, "moment min with impact [kip*ft]"),
+    np.testing.assert_allclose(column(header, body, "moment min with impact [kip·ft]"),
                                runway.strength.min("moment"), rtol=1e-11, atol=1e-9)
     header, body = read_csv(out / "runway-fatigue.csv")
     # stresses in ksi; the core gives kip/ft² (1 ksi = 144 kip/ft²)
@@ -274,7 +271,8 @@ operation = "hand"
 service_class = "A"
 """)
     out = tmp_path / "out"
-    result = run("envelope", model, "--out", out, "--no-figure", "--no-report")
+    result = run("envelope", model, "--out", out, "--no-figure", "--no-report",
+                 "--full")
     assert result.exit_code == 0, result.stderr
     assert {p.name for p in out.iterdir()} == {
         "envelope.csv", "reactions.csv", "envelope.json", "runway-reactions.csv",

@@ -130,9 +130,10 @@ def test_quiet_prints_only_the_verdict_summary_and_a_caution(tmp_path):
     assert len(checks) == 1 and "EXCEED" in checks[0]
     assert any(line.strip().startswith("EXCEEDS") for line in lines)
     assert "qualified engineer" in quiet.stdout
-    assert "┏" not in quiet.stdout  # no table
-    normal = run("envelope", model)
-    assert "┏" in normal.stdout and "EXCEED" in normal.stdout
+    assert "┏" not in quiet.stdout and "───" not in quiet.stdout  # no table
+    normal = run("envelope", model)  # the short tables of the default view
+    assert "───" in normal.stdout and "EXCEED" in normal.stdout
+    assert "┏" in run("envelope", model, "--full").stdout  # every table, framed
     passing = run("envelope", DESIGN_SI, "-q")
     assert any(line.startswith("checks: all ") for line in passing.stdout.splitlines())
 
@@ -176,6 +177,23 @@ def test_bad_input_is_still_exit_2_with_quiet_and_verbose(tmp_path):
         result = run("summary", bad, flag)
         assert_one_line_error(result, "bad.toml", "beam.spans[0]", '"40 M"', '"40 m"')
         assert "[length]" not in result.stderr and "[substance]" not in result.stderr
+
+
+@pytest.mark.parametrize(("written", "quantity"), [("34,5 kN", "force"), ("1,65 m", "length"),
+                                                   ("1,000 kN", "force")])
+def test_a_comma_in_a_number_is_refused_not_dropped(written, quantity):
+    # pint drops a comma ("34,5 kN" would be 345 kN): a decimal comma, common in Europe, must
+    # never be read silently as a number ten or a hundred times too large
+    with pytest.raises(UnitError, match="a comma"):
+        parse_quantity(written, quantity, SI)
+
+
+def test_a_decimal_comma_in_a_model_file_is_exit_2(tmp_path):
+    bad = tmp_path / "comma.toml"
+    bad.write_text('units = "SI"\n[beam]\nspans = ["9.0 m", "9,0 m"]\n'
+                   'supports = ["pin", "pin", "pin"]\nEI = 1.0\n')
+    result = run("summary", bad)
+    assert_one_line_error(result, "comma.toml", "beam.spans[1]", '"9,0 m"', '"9.0 m"')
 
 
 def test_the_level_does_not_leak_into_the_next_run():

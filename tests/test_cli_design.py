@@ -14,8 +14,8 @@ import numpy as np
 import pytest
 
 from cli_helpers import assert_one_line_error, read_csv, run
-from trundle.io.design_tables import design_spec_of, read_design_model
-from trundle.workflows.design_envelope import run as run_design
+from conftest import design_run
+from trundle.io.design_tables import read_design_model
 
 ROOT = Path(__file__).resolve().parents[1]
 DESIGN = ROOT / "examples" / "design"
@@ -25,9 +25,8 @@ EXAMPLES = sorted(DESIGN.glob("*.toml"))
 
 
 @pytest.mark.parametrize("path", EXAMPLES, ids=lambda p: p.stem)
-def test_every_design_example_writes_every_output(path: Path, tmp_path: Path) -> None:
-    out = tmp_path / "out"
-    result = run("envelope", path, "--out", out)
+def test_every_design_example_writes_every_output(path: Path, bundled_run) -> None:
+    result, out = bundled_run(path)  # the session's one run of the example (conftest)
     assert result.exit_code == 0, result.output + result.stderr
     text = " ".join(result.output.split())
     assert "Design envelope" in text and "Every live case's own envelope" in text
@@ -56,7 +55,7 @@ def _stem(name: str) -> str:
 def test_design_csv_carries_the_workflow_values_and_names_the_rule(tmp_path: Path) -> None:
     out = tmp_path / "out"
     assert run("envelope", OVERPASS, "--out", out, "--no-figure", "--no-report").exit_code == 0
-    result = run_design(design_spec_of(read_design_model(OVERPASS)))
+    _, result = design_run(OVERPASS)  # the session's one design run of it (conftest)
     env = result.designs["bridge strength I"]
     _, rows = read_csv(out / "design-envelope.csv")
     by_key = {(r[0], r[1], r[2], r[3], r[4]): r for r in rows}

@@ -5,6 +5,7 @@ the JSON round-trips, the report stands alone and carries the cautions, bad inpu
 from __future__ import annotations
 
 import datetime
+import functools
 import hashlib
 import json
 import re
@@ -39,18 +40,18 @@ def _moving(model):
     return moving_loads.run(moving_loads.MovingLoadsSpec(
         model.beam, [e.case for e in loads_of(model)], sections=model.sections))
 
+@functools.cache
 def library_envelope(path: Path) -> trundle.Envelope:
-    """The envelope computed directly with the library, for comparison with the files."""
+    """The envelope computed directly with the library, for comparison with the files (once
+    per model: the tests only read it)."""
     model = load_model(path)
     return trundle.envelope(model.beam, [e.case for e in loads_of(model)],
                             sections=model.sections)
 
 
 @pytest.fixture(scope="module")
-def si_run(tmp_path_factory):
-    out = tmp_path_factory.mktemp("si") / "results"
-    result = run("envelope", SI_EXAMPLE, "--out", out)
-    return result, out
+def si_run(bundled_run):
+    return bundled_run(SI_EXAMPLE)  # the session's one run of the example (conftest)
 
 
 # --- the files ----------------------------------------------------------------------------
@@ -72,7 +73,7 @@ def test_csv_values_equal_the_library_envelope(si_run):
     # CSV numbers carry 12 significant digits
     np.testing.assert_allclose(column(header, body, "x [m]"), env.sections, rtol=1e-12)
     checks = {
-        "moment max [kN*m]": env.max("moment"), "moment min [kN*m]": env.min("moment"),
+        "moment max [kN·m]": env.max("moment"), "moment min [kN·m]": env.min("moment"),
         "shear left max [kN]": env.max("shear", side="left"),
         "shear left min [kN]": env.min("shear", side="left"),
         "shear right max [kN]": env.max("shear", side="right"),
@@ -192,7 +193,7 @@ def test_us_units_and_svg_figures_without_report(tmp_path):
     # deflection in inches; the core gives ft. Source: NIST SP 811 (2008), B.8: 1 ft = 12 in.
     np.testing.assert_allclose(column(header, body, "deflection max [in]"),
                                12.0 * env.max("deflection"), rtol=1e-11)
-    np.testing.assert_allclose(column(header, body, "moment min [kip*ft]"), env.min("moment"),
+    np.testing.assert_allclose(column(header, body, "moment min [kip·ft]"), env.min("moment"),
                                rtol=1e-11)
     assert "→" in result.output or "←" in result.output
 
@@ -251,7 +252,8 @@ def test_help_has_an_example_and_the_cautions():
     text = " ".join(run("envelope", "--help").output.split())
     assert "trundle envelope examples/" in text
     assert "checking by a qualified engineer" in text
-    assert "transcribed load models must be verified against the edition in force" in text
+    assert "load models are transcribed and must be verified against the edition in force" \
+        in text
     assert "local codes and licensed practice govern" in text
 
 
@@ -367,7 +369,7 @@ def test_together_on_one_span_equals_the_closed_form_sum(tmp_path):
     header, body = read_csv(out / "envelope.csv")
     middle = [row for row in body if float(row[0]) == 10.0][0]
     P, L, w = 200.0 * 1.3 * 0.8, 20.0, 10.0
-    assert float(middle[header.index("moment max [kN*m]")]) == pytest.approx(
+    assert float(middle[header.index("moment max [kN·m]")]) == pytest.approx(
         P * L / 4 + w * L**2 / 8, rel=1e-10)
     assert middle[header.index("moment max: load")] == "truck + lane"
     assert float(middle[header.index("moment max: lead axle or point load x [m]")]) == \
@@ -380,7 +382,7 @@ def test_together_in_the_cli_equals_the_library_together(tmp_path):
     model.write_text(TOGETHER_MODEL.format(first="18 m", second="24 m", axle="150 kN",
                                            w="9 kN/m", placement="spans"))
     out = tmp_path / "results"
-    result = run("envelope", model, "--out", out, "--no-figure", "--no-report")
+    result = run("envelope", model, "--out", out, "--no-figure", "--no-report", "--full")
     assert result.exit_code == 0, result.stderr
     # the same loads built directly with the library, not through the model file
     beam = trundle.Beam(spans=[18.0, 24.0], EI=2.0e6, supports=["pin", "pin", "pin"])
@@ -392,7 +394,7 @@ def test_together_in_the_cli_equals_the_library_together(tmp_path):
     header, body = read_csv(out / "envelope.csv")
     np.testing.assert_allclose(column(header, body, "x [m]"), env.sections, rtol=1e-12)
     checks = {
-        "moment max [kN*m]": env.max("moment"), "moment min [kN*m]": env.min("moment"),
+        "moment max [kN·m]": env.max("moment"), "moment min [kN·m]": env.min("moment"),
         "shear left max [kN]": env.max("shear", side="left"),
         "shear right min [kN]": env.min("shear", side="right"),
         "deflection max [mm]": 1000.0 * env.max("deflection"),

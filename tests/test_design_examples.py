@@ -7,10 +7,9 @@ from pathlib import Path
 import numpy as np
 import pytest
 
+from conftest import design_run
 from trundle.analysis.checks import PASS
 from trundle.analysis.combinations import PERMANENT_ONLY
-from trundle.io.design_tables import design_spec_of, read_design_model
-from trundle.workflows.design_envelope import run
 
 ROOT = Path(__file__).resolve().parents[1]
 EXAMPLES = sorted((ROOT / "examples" / "design").glob("*.toml"))
@@ -25,8 +24,7 @@ def test_there_are_three_invented_examples() -> None:
 
 @pytest.fixture(scope="module", params=EXAMPLES, ids=lambda p: p.stem)
 def example(request):
-    design = read_design_model(request.param)
-    return design, run(design_spec_of(design))
+    return design_run(request.param)  # once per session, shared (conftest)
 
 
 def test_every_example_has_cases_combinations_and_checks(example) -> None:
@@ -64,8 +62,7 @@ def test_floor_beam_permanent_combination_at_a_support() -> None:
     """1.4D at the first interior support equals 1.4 × the static moment of every permanent
     load (a hand-checkable sum of static solves)."""
     path = ROOT / "examples" / "design" / "quarry_yard_floor_beam_si.toml"
-    design = read_design_model(path)
-    result = run(design_spec_of(design))
+    design, result = design_run(path)
     beam = design.model.beam
     j = int(np.argmin(np.abs(result.sections - 6.0)))
     total = sum(beam.static(p.statics_loads(beam)).moment(6.0)[0] for p in design.permanent)

@@ -27,12 +27,7 @@ import pytest
 from cli_helpers import assert_one_line_error, read_csv, run
 from trundle.io.traffic import traffic_bytes
 from trundle.io.traffic_generator import invented_traffic
-from trundle.report import (
-    CAUTION,
-    DESIGN_SAFETY_HELP,
-    LOAD_MODEL_CAUTION,
-    SHORT_CAUTION,
-)
+from trundle.report import CAUTION, CAUTION_LINE, LOAD_MODEL_CAUTION
 from trundle.report.fleet_section import DIRECTION_WORDS, _decade
 from trundle.report.package import css_string
 
@@ -286,16 +281,14 @@ def test_the_permit_terminal_table_has_units_and_fits_80_columns(runs: Path) -> 
 
 
 def test_fleet_and_permit_say_the_cautions_as_every_command(runs: Path) -> None:
-    from trundle import cli as main_cli
-
-    assert main_cli._short_caution() == SHORT_CAUTION
+    """The one caution line of every command (trundle.report.CAUTION_LINE) under --quiet and
+    in the help."""
     quiet = run("permit", runs / "permit.toml", runs / "inventory.csv", "--design",
                 runs / "design.toml", "--single-process", "-q")
-    assert SHORT_CAUTION in " ".join(quiet.output.split())
-    assert "Results are" not in quiet.output
-    for command in ("fleet", "permit"):
+    assert CAUTION_LINE in " ".join(quiet.output.split())
+    for command in ("fleet", "permit", "envelope", "sweep"):
         helped = " ".join(run(command, "--help").output.split())
-        assert DESIGN_SAFETY_HELP in helped
+        assert CAUTION_LINE in helped, command
 
 
 def test_a_cell_that_is_no_number_is_one_clear_statement(tmp_path: Path) -> None:

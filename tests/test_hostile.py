@@ -94,7 +94,8 @@ def test_hostile_case(case: Path, outcomes: dict[str, dict[str, Any]]):
     outcome = outcomes[case.stem]
     assert outcome["status"] == "run", outcome
     code, stdout, stderr = outcome["exit"], outcome["stdout"], outcome["stderr"]
-    # a negative code is a kill: by the hang guard (SIGALRM/SIGKILL) or the memory limit
+    # a negative code is a kill: by the hang guards (SIGXCPU for CPU time, SIGALRM/SIGKILL on
+    # the clock) or the memory limit
     assert code >= 0, f"killed by signal {-code} after {outcome['seconds']} s"
     assert "Traceback" not in stderr, stderr[-2000:]
     out = Path(outcome["out"])

@@ -228,6 +228,38 @@ def test_a_load_model_file_read_in_its_own_units():
     assert converted.load.w == float(9 * 1000 / KIP * FOOT)
 
 
+def test_a_description_is_shown_in_the_units_the_model_uses():
+    # demo-lane-load (SI) in a US model: "9 kN/m" and "60 kN" become kip/ft and kip, with the
+    # exact factors above (9 kN/m = 0.61671 kip/ft; 60 kN = 13.4885 kip), 4 significant digits
+    converted = loadfile.read_library_model("demo-lane-load", US).description
+    assert "0.6167 kip/ft" in converted and "13.49 kip" in converted
+    assert "kN" not in converted
+    assert loadfile.read_library_model("demo-lane-load").description.count("kN") == 2
+    # HL-93 (US) in an SI model: a list ("8, 32, 32 kip") and a range ("14 to 30 ft") are
+    # converted number by number; 8 kip = 35.586 kN, 14 ft = 4.2672 m, 30 ft = 9.144 m
+    truck = loadfile.read_library_model("hl93-truck", SI).description
+    assert "35.59, 142.3, 142.3 kN" in truck and "4.267 to 9.144 m" in truck
+    assert "33 %" in truck and "kip" not in truck and " ft" not in truck
+
+
+@pytest.mark.parametrize("name", library.names())
+def test_every_library_description_converts_completely(name):
+    """No unit of the file's own system is left, numbers without a unit are kept (lane
+    numbers, percentages, names such as CL-625) and each converted number is one of the
+    original numbers times its factor."""
+    import re
+
+    own = loadfile.read_library_model(name)
+    other = US if own.units == SI else SI
+    converted = loadfile.read_library_model(name, other).description
+    leftover = r"\bkN\b|\d m\b" if own.units == SI else r"\b(kip|kips|ft|klf)\b"
+    assert not re.search(leftover, converted), converted
+    number = r"(?<![/\w])\d+(?:\.\d+)?"  # not the 2 of "kN/m2"
+    assert len(re.findall(number, converted)) == len(re.findall(number, own.description))
+    for kept in re.findall(r"\d+ %|CL-\d+|lanes? [\d / ]+\d", own.description):
+        assert kept in converted
+
+
 # --- the library --------------------------------------------------------------------------
 
 

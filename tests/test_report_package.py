@@ -1,12 +1,13 @@
 """The HTML report as a calculation package, for every bundled example.
 
-Each example is run once (``trundle envelope --out``); its report must be well-formed HTML
-(parsed with ``html.parser``: every element closed in order, no id twice), carry every part a
-checker asks for (project block, print style with page numbers and breaks, cautions, figures
-as inline SVG, governing tables with concurrent shear and loaded stretches, per-section table
-cut to the tenth points and supports, critical load positions, the model file verbatim with
-its SHA-256), and show the numbers of its CSV files. Where Debian's ``chromium`` is installed
-the report is printed to PDF and PNG in headless Chromium and the page count is checked.
+Each example is run once per session (``trundle envelope --out``, conftest.bundled_run);
+its report must be well-formed HTML (parsed with ``html.parser``: every element closed in
+order, no id twice), carry every part a checker asks for (project block, print style with
+page numbers and breaks, cautions, figures as inline SVG, governing tables with concurrent
+shear and loaded stretches, per-section table cut to the tenth points and supports, critical
+load positions, the model file verbatim with its SHA-256), and show the numbers of its CSV
+files. Where Debian's ``chromium`` is installed the report is printed to PDF and PNG in
+headless Chromium and the page count is checked.
 
 The ``[project]`` table reader is tested here too (errors name the key, exit code 2).
 """
@@ -20,20 +21,19 @@ import re
 import shutil
 import subprocess
 import tempfile
-from html.parser import HTMLParser
 from pathlib import Path
 
 import numpy as np
 import pytest
 
-from cli_helpers import assert_one_line_error, read_csv, run
+from cli_helpers import HtmlChecker, assert_one_line_error, read_csv, run
+from conftest import BUNDLED_EXAMPLES
 from trundle.io.modelfile import read_model
 from trundle.io.project import ProjectInfo, project_of
 from trundle.report.package import css_string, inline_svg, model_text_lines
 
 ROOT = Path(__file__).resolve().parents[1]
-EXAMPLES = sorted([*(ROOT / "examples").glob("*.toml"), *(ROOT / "examples" / "cranes").glob(
-    "*.toml"), *(ROOT / "examples" / "design").glob("*.toml")])
+EXAMPLES = BUNDLED_EXAMPLES
 WITH_PROJECT = {"harbour_lane_floor_girder_si", "hall_kestrel_quay_si"}
 # A sensible A4 calculation package for these examples; the crane report printed to 19 pages
 # before the per-section fatigue table moved to its CSV file.
@@ -101,43 +101,13 @@ def test_model_text_shows_every_character_visibly():
 
 
 @pytest.fixture(scope="module", params=EXAMPLES, ids=lambda p: p.stem)
-def example(request, tmp_path_factory):
+def example(request, bundled_run):
+    # the session's one run of the example (conftest.bundled_run; with its figure files,
+    # which leave the report unchanged: it draws its own figures inline)
     path = request.param
-    out = tmp_path_factory.mktemp(path.stem) / "out"
-    result = run("envelope", path, "--out", out, "--no-figure")
+    result, out = bundled_run(path)
     assert result.exit_code == 0, result.output + result.stderr
     return path, out, (out / "report.html").read_text(encoding="utf-8")
-
-
-class _Checker(HTMLParser):
-    """Every element closed in the order opened (void elements excepted); ids unique."""
-
-    VOID = {"meta", "br", "img", "hr", "link", "input", "col", "wbr", "source"}
-
-    def __init__(self) -> None:
-        super().__init__(convert_charrefs=True)
-        self.stack: list[str] = []
-        self.ids: list[str] = []
-        self.errors: list[str] = []
-        self.svg_depth = 0
-
-    def handle_starttag(self, tag, attrs):
-        for name, value in attrs:
-            if name == "id":
-                self.ids.append(value)
-        if tag not in self.VOID:
-            self.stack.append(tag)
-
-    def handle_startendtag(self, tag, attrs):  # <path/> in SVG: opened and closed at once
-        for name, value in attrs:
-            if name == "id":
-                self.ids.append(value)
-
-    def handle_endtag(self, tag):
-        if not self.stack or self.stack[-1] != tag:
-            self.errors.append(f"</{tag}> closes {self.stack[-1:]} at {self.getpos()}")
-            return
-        self.stack.pop()
 
 
 def _text(page: str) -> str:
@@ -147,7 +117,7 @@ def _text(page: str) -> str:
 def test_the_report_is_well_formed_html(example):
     _, _, page = example
     assert page.startswith("<!DOCTYPE html>")
-    checker = _Checker()
+    checker = HtmlChecker()
     checker.feed(page)
     checker.close()
     assert not checker.errors, checker.errors[:5]
@@ -278,6 +248,19 @@ def test_the_design_numbers_are_those_of_the_design_csv(example):
             assert abs(csv_x - x) <= 1e-6 * max(1.0, abs(x))
             assert _same(row[1], values[name, csv_x, "moment", "max"]), row
             assert _same(row[3], values[name, csv_x, "moment", "min"]), row
+
+
+def test_a_us_report_shows_every_quantity_in_us_units(example):
+    """A model in US units: no force, moment or deflection in SI anywhere in the report
+    (a library load model written in SI has its description converted), apart from the
+    model file reproduced verbatim in the appendix."""
+    path, _, page = example
+    if 'units = "US"' not in path.read_text(encoding="utf-8"):
+        pytest.skip("an SI example")
+    shown = re.sub(r'<pre class="model-text">.*?</pre>', "", page, flags=re.S)
+    text = _text(re.sub(r"<style>.*?</style>", "", shown, flags=re.S))
+    leaks = re.findall(r".{0,50}\b(?:kN|MN|mm|kN·m|kN/m)\b.{0,20}", text)
+    assert not leaks, leaks[:3]
 
 
 def test_the_critical_load_positions_are_drawn(example):

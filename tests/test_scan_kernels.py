@@ -13,6 +13,7 @@ import math
 
 import numpy as np
 import pytest
+from numba import njit
 
 import trundle
 from conftest import SCAN_BEAMS, random_beam
@@ -30,6 +31,26 @@ from naive_scan import (
 from trundle.scan import LineBatch, TermGroup, group_response, kernels, scan_group
 
 # --- helpers -------------------------------------------------------------------------------------
+
+# The kernel's helpers are compiled without a Python entry point (cheaper to compile on a first
+# run; see kernels.HELPER_OPTIONS): the tests call them through these compiled shims.
+
+
+@njit
+def _quadratic_roots(a, b, c, out):
+    return kernels._quadratic_roots(a, b, c, out)
+
+
+@njit
+def _critical_points(poly, degree, width, out, scratch):
+    return kernels._critical_points(poly, degree, width, out, scratch)
+
+
+@njit
+def _piece_polynomial(poly, constant, piece, kind, weight, offset, n_terms, xi, knots, coef,
+                      running, m, end_value, work):
+    kernels._piece_polynomial(poly, constant, piece, kind, weight, offset, n_terms, xi, knots,
+                              coef, running, m, end_value, work)
 
 
 def _close_sets(found: list[float], expected: list[float], rel: float) -> bool:
@@ -95,22 +116,31 @@ def _random_group(rng: np.random.Generator, length: float, uniform: str
 
 @pytest.mark.parametrize("n_coef", [4, 5])
 @pytest.mark.parametrize("seed", range(6))
-def test_shift_add_is_the_taylor_shift(n_coef: int, seed: int) -> None:
+def test_piece_polynomial_is_the_taylor_shift(n_coef: int, seed: int) -> None:
+    # one term on one piece: the piece's polynomial read from ξ is its own polynomial
+    # shifted by s0 = ξ − offset − knot (a cubic of IL for a concentrated load, n_coef 4; a
+    # quartic of ∫IL for an end of a uniform load, n_coef 5), weighted, plus the constant
     rng = np.random.default_rng(seed)
     coef_high_first = rng.normal(size=n_coef) * 10.0 ** rng.uniform(-3, 3, n_coef)
     s0 = float(rng.uniform(-5.0, 5.0))
     weight = float(rng.normal())
-    start = rng.normal(size=5)
-    poly = start.copy()
-    kernels._shift_add(poly, np.ascontiguousarray(coef_high_first), n_coef, s0, weight,
-                       np.empty(5))
-    expected = start.copy()
-    expected[:n_coef] += weight * np.array(taylor_shift(list(coef_high_first), s0))
+    constant = float(rng.normal())
+    knots = np.array([0.0, 1.0])
+    coef = np.zeros((1, 4))
+    running = np.zeros((1, 5))
+    (coef if n_coef == 4 else running)[0] = coef_high_first
+    kind = np.array([kernels.KIND_POINT if n_coef == 4 else kernels.KIND_RUNNING_INTEGRAL])
+    poly = np.full(5, np.nan)
+    _piece_polynomial(poly, constant, np.array([0]), kind, np.array([weight]), np.array([0.0]), 1,
+                      s0, knots, coef, running, 1, 0.0, np.empty(5))
+    expected = np.zeros(5)
+    expected[:n_coef] = weight * np.array(taylor_shift(list(coef_high_first), s0))
+    expected[0] += constant
     scale = np.abs(weight) * np.abs(coef_high_first).max() * max(1.0, abs(s0)) ** n_coef
     np.testing.assert_allclose(poly, expected, rtol=0, atol=1e-13 * scale + 1e-15)
     # and the shifted polynomial is the original one read further along
     for t in rng.uniform(-2.0, 2.0, 4):
-        value = sum(c * t**i for i, c in enumerate(poly - start))
+        value = sum(c * t**i for i, c in enumerate(poly)) - constant
         direct = weight * np.polyval(coef_high_first, t + s0)
         assert value == pytest.approx(direct, rel=1e-10, abs=1e-12 * scale)
 
@@ -132,7 +162,7 @@ QUADRATICS = [
 @pytest.mark.parametrize("abc", QUADRATICS)
 def test_quadratic_roots_special_cases(abc: tuple[float, float, float]) -> None:
     out = np.empty(2)
-    m = kernels._quadratic_roots(*abc, out)
+    m = _quadratic_roots(*abc, out)
     assert _close_sets(list(out[:m]), quadratic_roots(*abc), rel=1e-13)
 
 
@@ -142,7 +172,7 @@ def test_quadratic_roots_random(seed: int) -> None:
     out = np.empty(2)
     for _ in range(200):
         a, b, c = rng.normal(size=3) * 10.0 ** rng.uniform(-4, 4, 3)
-        m = kernels._quadratic_roots(a, b, c, out)
+        m = _quadratic_roots(a, b, c, out)
         assert _close_sets(list(out[:m]), quadratic_roots(a, b, c), rel=1e-12), (a, b, c)
 
 
@@ -155,7 +185,7 @@ def _extremes_on(poly: np.ndarray, width: float, points: list[float]) -> tuple[f
 @pytest.mark.parametrize("seed", range(6))
 def test_critical_points_match_numpy_roots(degree: int, seed: int) -> None:
     rng = np.random.default_rng(seed)
-    out, scratch = np.empty(3), np.empty(10)
+    out, scratch = np.empty(3), np.empty(6)
     for _ in range(150):
         width = float(rng.uniform(0.5, 5.0))
         poly = np.zeros(5)
@@ -164,7 +194,7 @@ def test_critical_points_match_numpy_roots(degree: int, seed: int) -> None:
         derivative = np.poly(roots) * rng.choice([-1.0, 1.0]) * 10.0 ** rng.uniform(-2, 2)
         poly[1:degree + 1] = (derivative[::-1] / np.arange(1, degree + 1))
         poly[0] = rng.normal()
-        n = kernels._critical_points(poly, degree, width, out, scratch)
+        n = _critical_points(poly, degree, width, out, scratch)
         found = sorted(out[:n])
         expected = critical_points(list(poly[:degree + 1]), width)
         # a root within rounding of an interval end may fall on either side of it

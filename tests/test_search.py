@@ -2,7 +2,9 @@
 trundle.scan.candidates).
 
 References: the plain-Python twins of the compiled kernels (tests/naive_scan.py:
-``plain_block_candidates``, ``plain_chain_maximum``); trundle's own exact fixed-spacing
+``plain_block_candidates``, ``plain_chain_maximum``; an axle standing exactly on an end of
+the beam is valued by ``ReferenceSolver``, a static solve sharing no code with trundle, from
+the definition of each effect); trundle's own exact fixed-spacing
 envelope evaluated on a dense grid of the searched values plus a local refinement
 (``dense_grid_search``: a lower bound of the true extreme), and at the values the search
 reports (the extreme must be attained there). The two cases with numbers are invented beams
@@ -20,10 +22,13 @@ from hypothesis import strategies as st
 import trundle
 from conftest import make_crane
 from naive_scan import (
+    ReferenceSolver,
     dense_grid_search,
     fixed_spacing_extreme,
     plain_block_candidates,
     plain_chain_maximum,
+    plain_end_positions,
+    static_effects,
 )
 from trundle.analysis.search import plan_search
 from trundle.core.beam import ModelError
@@ -37,17 +42,45 @@ def _batch(beam, effects):
     return LineBatch.from_pieces(line_pieces(beam, effects))
 
 
-@settings(max_examples=25, deadline=None)
-@given(seed=st.integers(0, 100_000), confined=st.booleans(), uniform=st.booleans())
-@example(seed=1614, confined=False, uniform=False)  # two breaks a rounding step apart
-def test_block_candidates_match_the_plain_twin(seed, confined, uniform):
+END_SUPPORTS = {
+    # every span between pins; or a free end (an overhang, a cantilever when there is one span)
+    "pins": lambda n: ["pin"] * (n + 1),
+    "free right": lambda n: ["fixed", "free"] if n == 1 else ["pin"] * n + ["free"],
+    "free left": lambda n: ["free", "fixed"] if n == 1 else ["free"] + ["pin"] * n,
+}
+
+
+@settings(max_examples=40, deadline=None)
+@given(seed=st.integers(0, 100_000), confined=st.booleans(), uniform=st.booleans(),
+       supports=st.sampled_from(sorted(END_SUPPORTS)),
+       section=st.sampled_from(["inside", "left end", "right end"]))
+@example(seed=1614, confined=False, uniform=False, supports="pins", section="inside")  # two
+# breaks a rounding step apart
+@example(seed=38, confined=False, uniform=False, supports="free right", section="right end")
+# a cantilever, shear at its free tip: 0 with no axle on the beam or one just off the tip,
+# +1 with an axle standing exactly on it (it jumps there): only that exact position reads it
+@example(seed=18, confined=False, uniform=True, supports="free right", section="right end")
+@example(seed=49, confined=True, uniform=False, supports="free left", section="left end")
+@example(seed=0, confined=False, uniform=False, supports="pins", section="left end")  # shear
+# right of a pinned end: 0 with the axle on the support, 1 just right of it
+@example(seed=37, confined=False, uniform=True, supports="free right", section="inside")
+@example(seed=1733, confined=False, uniform=False, supports="free left", section="right end")
+def test_block_candidates_match_the_plain_twin(seed, confined, uniform, supports, section):
     rng = np.random.default_rng(seed)
     spans = list(np.round(rng.uniform(3.0, 10.0, int(rng.integers(1, 4))), 1))
-    beam = trundle.Beam(spans=spans, EI=1.0, supports=["pin"] * (len(spans) + 1))
+    beam = trundle.Beam(spans=spans, EI=1.0, supports=END_SUPPORTS[supports](len(spans)))
     x = float(np.round(rng.uniform(0.1, 0.9) * beam.length, 2))
     kind = str(rng.choice(["moment", "shear", "deflection"]))
-    batch = _batch(beam, [trundle.Effect(kind, at=x, **({"side": "left"} if kind == "shear"
-                                                        else {}))])
+    face = "left"
+    if section != "inside":  # a section on an end: shear on the beam's side of it
+        x, face = (0.0, "right") if section == "left end" else (float(beam.length), "left")
+        if section == "right end" and kind == "moment":
+            # the reference solver counts a support standing on the section as left of it:
+            # on the right end that is the moment just beyond the beam (zero), not the
+            # moment at the end that trundle's line gives (the couple of a fixed end)
+            kind = "shear"
+    effect = trundle.Effect(kind, at=x, **({"side": face} if kind == "shear" else {}))
+    batch = _batch(beam, [effect])
     n = int(rng.integers(1, 4))
     weights = list(rng.uniform(10.0, 100.0, n))
     offsets = list(np.cumsum(np.round(rng.uniform(0.5, 4.0, n), 2)) - 0.5)
@@ -68,7 +101,14 @@ def test_block_candidates_match_the_plain_twin(seed, confined, uniform):
                          bool(batch.end_live[0]), pos, val, side, 0)
     scale = sum(abs(w) for w in weights) * max(1.0, float(np.abs(batch.line_coef).max()))
     scale *= beam.length ** 3
-    plain = plain_block_candidates(*args, weights, kinds, offsets, confined, scale)
+    # the loads standing exactly where they are: a static solve of the beam (the reference
+    # solver shares no code with trundle), from the definition of each effect
+    solver = ReferenceSolver(beam, [x])
+
+    def standing(loads):
+        return float(static_effects(solver, [effect], loads)[0])
+
+    plain = plain_block_candidates(*args, weights, kinds, offsets, confined, scale, standing)
     ends = sorted((p, s, v) for p, v, s in plain if s != 0.0)
     mine = sorted((p, s, v) for p, v, s in zip(pos[:k], val[:k], side[:k], strict=True)
                   if s != 0.0)
@@ -83,10 +123,30 @@ def test_block_candidates_match_the_plain_twin(seed, confined, uniform):
         for p0, _, v0 in this:
             assert any(abs(p1 - p0) <= step and abs(v1 - v0) <= 1e-9 * scale
                        for p1, _, v1 in other), (p0, v0)
+    # an axle standing exactly on an end of the beam: the twin values every such position;
+    # the kernel, on a line where that can differ from both one-sided limits (end_live),
+    # gives the same position and value (side 0), and elsewhere one of its one-sided values
+    # there is that value already (so leaving the position out loses nothing); a value of
+    # the kernel's above the twin's fails the comparison of the extremes below
+    axles = offsets[:n]  # the concentrated loads come first
+    lo, hi = (max(axles), beam.length + min(axles)) if confined else (
+        min(offsets), beam.length + max(offsets))
+    on_end = plain_end_positions(beam.length, offsets, kinds, lo, hi) if lo < hi else []
+    # (the twin puts them at exactly these positions; a critical point may fall a rounding
+    # step from one)
+    exact = [(p, v) for p, v, s in plain if s == 0.0 and p in on_end]
+    assert len(exact) == len(on_end)
+    for p0, v0 in exact:
+        if batch.end_live[0]:  # (a critical point may also fall a rounding step from it)
+            assert any(abs(pos[j] - p0) <= step and side[j] == 0.0
+                       and abs(val[j] - v0) <= 1e-9 * scale for j in range(k)), (
+                "no exact candidate where an axle stands on an end", p0, v0)
+        assert any(abs(pos[j] - p0) <= step and abs(val[j] - v0) <= 1e-9 * scale
+                   for j in range(k)), (p0, v0)
     # every interior critical point of the twin is a candidate of the kernel's (a critical
     # point, or a piece end where the twin finds a double root by rounding), same value
     for p0, v0, s0 in plain:
-        if s0 == 0.0:
+        if s0 == 0.0 and (p0, v0) not in exact:
             near = int(np.argmin(np.abs(pos[:k] - p0)))
             assert abs(pos[near] - p0) <= 1e-6 * beam.length
             assert val[near] == pytest.approx(v0, abs=1e-7 * scale)

@@ -32,20 +32,13 @@ from trundle.io.output_set import OutputSet, OutputSetError, check_out_option, w
 from trundle.io.outputs import Provenance
 from trundle.io.plausibility import deflection_warnings, model_warnings
 from trundle.io.units import UnitError, parse_quantity
-from trundle.report import (
-    CAUTION,
-    DESIGN_SAFETY_HELP,
-    LOAD_MODEL_CAUTION,
-    SAFETY_HELP,
-    SHORT_CAUTION,
-)
+from trundle.report import CAUTION, CAUTION_LINE, LOAD_MODEL_CAUTION
 from trundle.report.safe_text import terminal_text
 from trundle.workflows.sweep import DEFAULT_EFFECTS, MAX_POINTS
 
 EFFECT_CHOICES = ("moment", "shear", "reaction", "deflection", "rotation", "support-moment")
 _SECTION_KINDS = ("moment", "shear", "deflection", "rotation")
-_SAFETY_HELP = SAFETY_HELP  # the caution texts live in trundle.report (one wording)
-_DESIGN_SAFETY_HELP = DESIGN_SAFETY_HELP
+_SAFETY_HELP = CAUTION_LINE  # one wording in every command's help and in the terminal
 
 
 class UserError(click.ClickException):
@@ -160,15 +153,17 @@ def cli(context: click.Context) -> None:
     \b
     Start with a model file (see docs/model-file.md and examples/):
       trundle summary examples/harbour_lane_floor_girder_si.toml
-      trundle lines examples/harbour_lane_floor_girder_si.toml --effect moment --at 3.6
+      trundle lines examples/harbour_lane_floor_girder_si.toml --at 3.6
       trundle envelope examples/harbour_lane_floor_girder_si.toml --out results/
       trundle library
 
-    \b
     Exit codes: 0 done, 2 bad input (one line naming the file, key, expected and found),
     1 internal error (rerun with --verbose for the traceback), 3 permit: a check exceeds.
-    Shell completion (bash): eval "$(_TRUNDLE_COMPLETE=bash_source trundle)"; zsh and fish:
-    see the README.
+
+    \b
+    Shell completion (bash):
+      eval "$(_TRUNDLE_COMPLETE=bash_source trundle)"
+    zsh and fish: see the README.
     """
     if context.invoked_subcommand is None:
         click.echo(context.get_help())
@@ -384,9 +379,10 @@ def lines_command(model_file: str, effects: tuple[str, ...], positions: tuple[st
     \b
     Examples:
       trundle lines examples/harbour_lane_floor_girder_si.toml
-      trundle lines examples/harbour_lane_floor_girder_si.toml -e moment -e shear \\
-          --at 3.6 --at 7.2 -e reaction --support 1 --out results/
-      trundle lines examples/millrace_access_bridge_us.toml -e deflection --at "33 ft"
+      trundle lines examples/harbour_lane_floor_girder_si.toml -e moment \\
+          -e shear --at 3.6 --at 7.2 -e reaction --support 1 --out results/
+      trundle lines examples/millrace_access_bridge_us.toml -e deflection \\
+          --at "33 ft"
     """
     with term.step("read and check the model file"):
         model = _load(model_file, allow_paths)
@@ -424,7 +420,7 @@ def _lines_report(model: Model, model_file: str, lines: InfluenceSet,
         term.say(terminal_text(f"{model_file}: {len(lines)} influence line(s)"
                                + (f"; wrote {len(written)} file(s) in {outputs.shown}"
                                   if outputs is not None else "")))
-        term.say(_short_caution(), style="dim")
+        term.say(CAUTION_LINE, style="dim")
 
 
 class _NoOutputs:
@@ -556,7 +552,7 @@ def _lines_files(model: Model, model_file: str, lines: InfluenceSet, figure_form
 # trundle envelope
 
 
-@cli.command("envelope", epilog=_DESIGN_SAFETY_HELP)
+@cli.command("envelope", epilog=_SAFETY_HELP)
 @term.verbosity_options
 @click.argument("model_file", metavar="MODEL")
 @click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False),
@@ -570,9 +566,15 @@ def _lines_files(model: Model, model_file: str, lines: InfluenceSet, figure_form
                    "either way).")
 @click.option("--no-figure", is_flag=True, help="With --out: write no figure files.")
 @click.option("--no-report", is_flag=True, help="With --out: write no report.html.")
+@click.option("--full", is_flag=True,
+              help="Print every table in full: the inputs as read, the defaults in use, where "
+                   "each load stands, concurrent shear, every check. Without it the terminal "
+                   "shows the governing values, the tenth-point table, each check summarised "
+                   "and the verdicts (every section is in the CSV files and report.html).")
 @_allow_path_option
 def envelope_command(model_file: str, out_dir: Path | None, figure_format: str,
-                     no_figure: bool, no_report: bool, allow_paths: tuple[str, ...]) -> None:
+                     no_figure: bool, no_report: bool, full: bool,
+                     allow_paths: tuple[str, ...]) -> None:
     """Envelopes of moment, shear, deflection and reactions under the model's loads.
 
     Runs every [[load]] of the model file (vehicles both ways unless one way, trains,
@@ -600,18 +602,21 @@ def envelope_command(model_file: str, out_dir: Path | None, figure_format: str,
     \b
     Example:
       trundle envelope examples/harbour_lane_floor_girder_si.toml --out results/
-      trundle envelope examples/millrace_access_bridge_us.toml -o results --format svg
+      trundle envelope examples/millrace_access_bridge_us.toml -o results \\
+          --format svg
       trundle envelope examples/cranes/hall_kestrel_quay_si.toml --out results/
-      trundle envelope examples/design/alder_creek_overpass_hl93_us.toml --out results/
+      trundle envelope examples/design/alder_creek_overpass_hl93_us.toml \\
+          --out results/
     """
     with term.step("read and check the model file"):
         model = _load(model_file, allow_paths)
     with _output_set(out_dir, "envelope") as outputs:  # locked before the work
-        _envelope_run(model, model_file, outputs, figure_format, no_figure, no_report)
+        _envelope_run(model, model_file, outputs, figure_format, no_figure, no_report, full)
 
 
 def _envelope_run(model: Model, model_file: str, outputs: OutputSet | None,
-                  figure_format: str, no_figure: bool, no_report: bool) -> None:
+                  figure_format: str, no_figure: bool, no_report: bool,
+                  full: bool = False) -> None:
     from trundle.io.design_tables import design_model_of, design_spec_of, has_design_tables
     from trundle.report.envelope_data import collect
     from trundle.report.sections import SECTIONS
@@ -650,7 +655,7 @@ def _envelope_run(model: Model, model_file: str, outputs: OutputSet | None,
                 files = envelope_files(results, figure_format, with_figures=not no_figure,
                                        with_report=not no_report)
     console = _console()
-    for renderable in _envelope_summary(results):
+    for renderable in (_envelope_summary(results) if full else _envelope_short(results)):
         _show(console, renderable)
     if outputs is not None and files is not None:
         written, removed = outputs.commit(files)
@@ -660,7 +665,7 @@ def _envelope_run(model: Model, model_file: str, outputs: OutputSet | None,
     for caution in _envelope_cautions(results):
         console.print(caution, style="dim")
     if term.quiet():
-        term.say(_short_caution(), style="dim")
+        term.say(CAUTION_LINE, style="dim")
 
 
 def _governing_summary(model: Model, moving: Any, runway: Any, design: Any) -> list[str]:
@@ -735,10 +740,6 @@ def _governing_summary(model: Model, moving: Any, runway: Any, design: Any) -> l
     return [_one_line(line) for line in lines]
 
 
-def _short_caution() -> str:
-    return SHORT_CAUTION
-
-
 def _verdict_summary(results: Any) -> list[str]:
     """One line per table that holds verdicts: how many checks PASS and which EXCEED (the
     verdicts come from analysis.checks through the tables; nothing is decided here)."""
@@ -787,7 +788,7 @@ def _deflection_warnings(model: Model, env: Any) -> list[str]:
     return deflection_warnings(model, list(env.sections), largest)
 
 
-def _envelope_summary(results: Any) -> list[Any]:
+def _envelope_summary(results: Any, header_only: bool = False) -> list[Any]:
     from trundle.report.envelope_tables import loads_table, summary_tables, to_rich
 
     units = results.units
@@ -799,6 +800,8 @@ def _envelope_summary(results: Any) -> list[Any]:
                             f"{len(results.sections)} sections; {values}; "
                             "travel → towards +x, ← towards -x")]
     out: list[Any] = [Text(header[0], style="bold"), Text(header[1])]
+    if header_only:
+        return out
     if results.has_loads:
         out.append(to_rich(loads_table(results)))
     out.extend(to_rich(t) for t in summary_tables(results))
@@ -806,6 +809,25 @@ def _envelope_summary(results: Any) -> list[Any]:
         out.append(Text(terminal_text(section.title), style="bold"))
         out.extend(to_rich(t) for t in section.tables)
         out.extend(Text(terminal_text(note)) for note in section.notes)
+    return out
+
+
+def _envelope_short(results: Any) -> list[Any]:
+    """The default terminal view (report/terminal_view.py): the governing values, the
+    tenth-point envelope where it is short, each check summarised, where the rest is."""
+    from trundle.report.envelope_tables import to_rich
+    from trundle.report.terminal_view import FULL_HINT, Pointer, default_view, loads_view
+
+    out = _envelope_summary(results, header_only=True)
+    for item in default_view(results, loads_view(results)):
+        if isinstance(item, Pointer):
+            out.append(Text(terminal_text(item.text), style=item.style))
+        elif isinstance(item, str):
+            section = any(item == s.title for s in results.extra)
+            out.append(Text(terminal_text(item), style="bold" if section else ""))
+        else:
+            out.append(to_rich(item, compact=True))
+    out.append(Text(FULL_HINT, style="dim"))
     return out
 
 
@@ -819,7 +841,7 @@ def _envelope_cautions(results: Any) -> list[str]:
 # trundle library
 
 
-@cli.command("library", epilog=_DESIGN_SAFETY_HELP)
+@cli.command("library", epilog=_SAFETY_HELP)
 @term.verbosity_options
 @click.argument("name", required=False, metavar="[NAME]")
 def library_command(name: str | None) -> None:
@@ -864,7 +886,7 @@ def library_command(name: str | None) -> None:
 _MAX_ROWS_SHOWN = 41
 
 
-@cli.command("sweep", epilog=_DESIGN_SAFETY_HELP)
+@cli.command("sweep", epilog=_SAFETY_HELP)
 @term.verbosity_options
 @click.argument("model_file", metavar="MODEL")
 @click.option("--vary", "vary", multiple=True, metavar="PATH=START:STOP:STEP",
@@ -988,7 +1010,7 @@ def sweep_command(model_file: str, vary: tuple[str, ...], effects: tuple[str, ..
     for caution in CAUTIONS:
         console.print(caution, style="dim")
     if term.quiet():
-        term.say(_short_caution(), style="dim")
+        term.say(CAUTION_LINE, style="dim")
 
 
 def _rows_shown(n: int) -> list[int]:
@@ -1000,17 +1022,12 @@ def _rows_shown(n: int) -> list[int]:
 
 
 def _run_with_progress(spec: Any) -> Any:
-    """Run the sweep with a progress bar on a terminal, silently otherwise."""
+    """Run the sweep; on a terminal (and not quiet) a bar on stderr advances by one as each
+    point is done (the shared :class:`cli_console.Progress`; silent otherwise)."""
     from trundle.workflows.sweep import run
 
-    if not sys.stderr.isatty() or term.quiet() or spec.n_points < 2:
-        return run(spec)
-    from rich.progress import BarColumn, MofNCompleteColumn, Progress, TimeRemainingColumn
-
-    with Progress("sweep", BarColumn(), MofNCompleteColumn(), TimeRemainingColumn(),
-                  console=Console(stderr=True), transient=True) as bar:
-        task = bar.add_task("sweep", total=spec.n_points)
-        return run(spec, lambda done, total: bar.update(task, completed=done))
+    with term.Progress(spec.n_points, "sweep: points done") as bar:
+        return run(spec, lambda done, total: bar.update(advance=1))
 
 
 from trundle.cli_fleet import register as _register_fleet  # noqa: E402 (needs cli above)

@@ -210,31 +210,39 @@ def _natural(column: Any) -> int:
     return max(cell_len(line) for cell in cells for line in _lines(cell))
 
 
-_EDGE = 3  # a column's padding (1 + 1) and the rule on its right
+
+
+def _edge(table: Table) -> int:
+    """What a column costs beside its text: its padding left and right and the rule (or
+    space) on its right: 3 for a framed table, 2 for the compact tables of the default view
+    (padding on the right only)."""
+    _, right, _, left = table.padding
+    return left + right + 1
 
 
 def fit_table(table: Table, width: int) -> list[Table]:
     """``table`` as one or more tables that fit ``width`` (see the module docstring)."""
+    edge = _edge(table)
     columns = table.columns
     if len(columns) < 2 or not table.box:
         return [table]
     natural = [_natural(c) for c in columns]
-    if 1 + sum(natural) + _EDGE * len(columns) <= width:
+    if 1 + sum(natural) + edge * len(columns) <= width:
         return [table]
     needed = [min(_needed(c), n) for c, n in zip(columns, natural, strict=True)]
     needed[0] = min(needed[0], max(width // 4, 8))  # the row's name wraps rather than crowd
     keys = _key_columns(table)
     groups: list[list[int]] = [list(range(keys, len(columns)))]
-    if 1 + sum(needed) + _EDGE * len(columns) > width:
-        room = width - 1 - sum(needed[:keys]) - _EDGE * keys
+    if 1 + sum(needed) + edge * len(columns) > width:
+        room = width - 1 - sum(needed[:keys]) - edge * keys
         groups = [[]]
         used = 0
         for j in range(keys, len(columns)):
-            if groups[-1] and used + needed[j] + _EDGE > room:
+            if groups[-1] and used + needed[j] + edge > room:
                 groups.append([])
                 used = 0
             groups[-1].append(j)
-            used += needed[j] + _EDGE
+            used += needed[j] + edge
     parts = []
     for g, group in enumerate(groups):
         chosen = [*range(keys), *group]
@@ -242,9 +250,10 @@ def fit_table(table: Table, width: int) -> list[Table]:
                      caption=table.caption if g == len(groups) - 1 else None,
                      caption_justify=table.caption_justify, box=table.box,
                      show_header=table.show_header, show_lines=table.show_lines,
-                     show_edge=table.show_edge)
+                     show_edge=table.show_edge, padding=table.padding,
+                     pad_edge=table.pad_edge)
         widths = _widths([natural[j] for j in chosen], [needed[j] for j in chosen],
-                         width - 1 - _EDGE * len(chosen))
+                         width - 1 - edge * len(chosen))
         part.columns = [replace(columns[j], _cells=list(columns[j]._cells), _index=i,
                                 width=w, min_width=None, max_width=None,
                                 overflow="fold", no_wrap=False)

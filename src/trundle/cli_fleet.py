@@ -20,7 +20,7 @@ from trundle.io.inventory import InventoryError, read_inventory
 from trundle.io.output_set import write_output_set
 from trundle.io.outputs import Provenance
 from trundle.io.traffic import TrafficFileError, read_traffic
-from trundle.report import CAUTION, DESIGN_SAFETY_HELP, LOAD_MODEL_CAUTION, SHORT_CAUTION
+from trundle.report import CAUTION, CAUTION_LINE, LOAD_MODEL_CAUTION
 from trundle.report.format import decimals, fixed, verdict_cell
 
 EXIT_EXCEEDS = 3  # permit: the run worked and a check exceeds its limit (1 is an internal error)
@@ -78,7 +78,7 @@ def _write(out_dir: Path, files: dict[str, Any]) -> list[Path]:
                                    f"({error.strerror or error})") from None
 
 
-@click.command("fleet", epilog=DESIGN_SAFETY_HELP)
+@click.command("fleet", epilog=CAUTION_LINE)
 @term.verbosity_options
 @click.argument("trucks", metavar="TRUCKS", type=click.Path(path_type=Path))
 @click.argument("inventory", metavar="INVENTORY", type=click.Path(path_type=Path))
@@ -131,7 +131,8 @@ def fleet_command(trucks: Path, inventory: Path, units: str, bad_rows: str, desi
 
     \b
     Example:
-      trundle fleet examples/fleet/traffic_invented.csv examples/fleet/inventory.csv \\
+      trundle fleet examples/fleet/traffic_invented.csv \\
+        examples/fleet/inventory.csv \\
         --design demo-heavy-vehicle-5-axle+demo-lane-load --out out/fleet
     """
     from trundle.io.design_models import design_model
@@ -199,10 +200,10 @@ def fleet_command(trucks: Path, inventory: Path, units: str, bad_rows: str, desi
         term.say(f"{traffic.n_trucks} trucks over {len(bridges)} bridges: "
                  f"{len(result.summaries)} bridge effects summarised; wrote {len(written)} "
                  f"file(s) in {out_dir}")
-        term.say(SHORT_CAUTION, style="dim")
+        term.say(CAUTION_LINE, style="dim")
 
 
-@click.command("permit", epilog=DESIGN_SAFETY_HELP)
+@click.command("permit", epilog=CAUTION_LINE)
 @term.verbosity_options
 @click.argument("vehicle", metavar="VEHICLE")
 @click.argument("route", metavar="ROUTE", type=click.Path(path_type=Path))
@@ -236,7 +237,8 @@ def permit_command(vehicle: str, route: Path, design: str, impact: float, limit:
 
     \b
     Example:
-      trundle permit examples/fleet/permit_crane_carrier.toml examples/fleet/inventory.csv \\
+      trundle permit examples/fleet/permit_crane_carrier.toml \\
+        examples/fleet/inventory.csv \\
         --design demo-heavy-vehicle-5-axle+demo-lane-load --impact 10 --limit 1.0
     """
     from trundle.io.design_models import design_model, permit_vehicle
@@ -284,7 +286,7 @@ def permit_command(vehicle: str, route: Path, design: str, impact: float, limit:
     console.print(CAUTION, style="dim")
     console.print(LOAD_MODEL_CAUTION, style="dim")
     if term.quiet():
-        term.say(SHORT_CAUTION, style="dim")
+        term.say(CAUTION_LINE, style="dim")
     return EXIT_EXCEEDS if result.exceeds else 0
 
 

@@ -515,30 +515,38 @@ class Envelope:
         source = self.governing_max if which == "max" else self.governing_min
         return [source[i] for i in self.lines_of(kind, side)]
 
-    def response_to(self, g: Governing) -> NDArray[np.float64]:
-        """Every line's value under the configuration ``g`` (the concurrent effects)."""
+    def response_to(self, g: Governing, lines: NDArray[np.int64] | None = None
+                    ) -> NDArray[np.float64]:
+        """Every line's value (or the value of ``lines``) under the configuration ``g`` (the
+        concurrent effects)."""
+        n = len(self.effects) if lines is None else len(lines)
         if g.case < 0:
-            return np.zeros(len(self.effects))
+            return np.zeros(n)
         case = self.cases[g.case]
         if isinstance(case, Together):
-            return sum((self._response(case.parts[p.case], p) for p in g.parts if p.case >= 0),
-                       np.zeros(len(self.effects)))
-        return self._response(case, g)
+            return sum((self._response(case.parts[p.case], p, lines)
+                        for p in g.parts if p.case >= 0), np.zeros(n))
+        return self._response(case, g, lines)
 
-    def _response(self, case: LoadCase, g: Governing) -> NDArray[np.float64]:
+    def _response(self, case: LoadCase, g: Governing, lines: NDArray[np.int64] | None
+                  ) -> NDArray[np.float64]:
+        chosen = np.arange(len(self.effects)) if lines is None else np.asarray(lines)
         if isinstance(case.load, UniformLoad):
             intervals, x_p = self._stretches(g)
-            total = np.zeros(len(self.effects))
+            total = np.zeros(len(chosen))
             for a, b in intervals:
-                F = self.batch.running_at(np.array([a, b]))
+                F = self.batch.running_at(np.array([a, b]), lines)
                 total += case.load.w * (F[1] - F[0])
             if x_p is not None and case.load.point_load:
                 side = "left" if g.side < 0 else "right"
-                total += case.load.point_load * self.batch.ordinates(np.array([x_p]), side)[0]
+                total += case.load.point_load * self.batch.ordinates(np.array([x_p]), side,
+                                                                     lines)[0]
         else:
-            total = group_response(self.batch, self._group(case, g), g.reference, g.side)
-        factor = np.full(len(self.effects), case.multiplier)
-        factor[self.index["deflection"]] = case.service_multiplier  # no strength load factor
+            total = group_response(self.batch, self._group(case, g), g.reference, g.side,
+                                   lines)
+        factor = np.full(len(chosen), case.multiplier)
+        # no strength load factor on deflections
+        factor[np.isin(chosen, self.index["deflection"])] = case.service_multiplier
         return factor * total
 
     def loaded_stretches(self, g: Governing) -> tuple[list[tuple[float, float]], float | None]:
@@ -559,8 +567,13 @@ class Envelope:
     def _stretches(self, g: Governing) -> tuple[list[tuple[float, float]], float | None]:
         intervals = g.pattern
         if intervals and intervals[0] == "sign of line":
-            _, j, sign = intervals
-            intervals = piece_sign_intervals(self.batch.knots, self.batch.coef[:, :, j], sign)
+            key = intervals  # ("sign of line", j, sign): the records ask several times
+            if key not in self._cache:
+                _, j, sign = intervals
+                m = int(self.batch.n_pieces[j])  # the line on its own breaks: linear in sections
+                self._cache[key] = piece_sign_intervals(self.batch.line_knots[j, :m + 1],
+                                                        self.batch.line_coef[j, :m, :].T, sign)
+            intervals = self._cache[key]
         x_p = None if np.isnan(g.reference) else g.reference
         return list(intervals or ()), x_p
 
@@ -722,7 +735,23 @@ class Envelope:
                          for g, j in zip(self.governing(kind, which, side), lines, strict=True)])
         return {f: rows[:, idx] for f, idx in self.index.items() if idx.size}
 
-    def concurrent_to(self, g: Governing, line: int) -> NDArray[np.float64]:
+    def concurrent_matching(self, kind: str, which: str, families: Sequence[str]
+                            ) -> dict[str, NDArray[np.float64]]:
+        """For each line of ``kind``: the value of the line in the same place of each of
+        ``families`` (the shear at the same section) under its governing load: the diagonal
+        of :meth:`concurrent`, without its lines × lines work."""
+        lines = self.lines_of(kind)
+        families = [f for f in families if self.index[f].size == lines.size]
+        out = {f: np.zeros(len(lines)) for f in families}
+        for i, (g, j) in enumerate(zip(self.governing(kind, which), lines, strict=True)):
+            wanted = np.array([j, *(self.index[f][i] for f in families)], dtype=np.int64)
+            values = self.concurrent_to(g, int(j), wanted)
+            for k, f in enumerate(families):
+                out[f][i] = values[k + 1]
+        return out
+
+    def concurrent_to(self, g: Governing, line: int, lines: NDArray[np.int64] | None = None
+                      ) -> NDArray[np.float64]:
         """Every line's value under the configuration ``g`` that governs ``line``, with every
         load counted where it stands: an axle standing exactly on a section is right of the
         cut just left of it and left of the cut just right of it, so the shear on the two
@@ -734,12 +763,13 @@ class Envelope:
         same extreme, and that exact configuration is the one whose concurrent effects are
         given; otherwise (a shear extreme, or a load leaving the beam) the limit is kept.
         """
-        limit = self.response_to(g)
+        limit = self.response_to(g, lines)
         if g.case < 0 or self.effects[line].kind == "shear":
             return limit
-        exact = self.response_to(_at_point(g))
-        size = max(abs(limit[line]), np.abs(limit).max() * 1e-6, 1e-300)
-        return exact if abs(exact[line] - limit[line]) <= 1e-9 * size else limit
+        exact = self.response_to(_at_point(g), lines)
+        own = line if lines is None else int(np.flatnonzero(np.asarray(lines) == line)[0])
+        size = max(abs(limit[own]), np.abs(limit).max() * 1e-6, 1e-300)
+        return exact if abs(exact[own] - limit[own]) <= 1e-9 * size else limit
 
     def axle_face(self, g: Governing, x: float, kind: str = "shear",
                   side: int | None = None) -> str:

@@ -255,8 +255,9 @@ class EnvelopeRecords:
         (or min) moment [force]."""
         key = ("concurrent shear", which)
         if key not in self._cache:
-            values = self.env.concurrent("moment", which)
-            left = np.diagonal(values["shear_left"]).copy() + 0.0
-            right = np.diagonal(values["shear_right"]).copy() + 0.0
+            values = self.env.concurrent_matching("moment", which,
+                                                  ("shear_left", "shear_right"))
+            left = values["shear_left"] + 0.0
+            right = values["shear_right"] + 0.0
             self._cache[key] = (left, right)
         return self._cache[key]

@@ -33,7 +33,14 @@ from trundle.core.beam import ModelError
 from trundle.io.limits import LimitError, check_product
 from trundle.io.modelfile import Model, ModelFileError, Reader, _syntax_error
 from trundle.io.source import SourceError, parse_toml, read_source, resolve_use
-from trundle.io.units import SYSTEMS, UnitSystem, parse_quantity, registry, show_value
+from trundle.io.units import (
+    SYSTEMS,
+    UnitSystem,
+    parse_quantity,
+    quantities_in,
+    registry,
+    show_value,
+)
 from trundle.loads import library
 from trundle.loads.cases import LoadCase, Together
 from trundle.loads.design_cases import RULE_EFFECTS, RULE_REGIONS, Alternative, DesignCase, Rule
@@ -77,7 +84,8 @@ class LoadModelFile:
     path : the file read
     kind : "vehicle", "train" or "uniform"
     units : the unit system the file is written in
-    description, source : as written in the file
+    description : as written in the file, its numbers with units in the target units
+    source : as written in the file
     load : Vehicle, Train or UniformLoad [target units]
     impact : dynamic allowance as a fraction (0 if the file gives none)
     factors : ((name, value), …) as written in the file
@@ -685,7 +693,10 @@ def read_load_model_file(path: str | Path, target: UnitSystem | None = None,
     if not isinstance(units_text, str) or units_text.upper() not in SYSTEMS:
         plain.expected("units", '"SI" (kN, m) or "US" (kip, ft)', units_text)
     units = SYSTEMS[units_text.upper()]
-    description = " ".join(plain.text(table["description"], "description").split())
+    # the description's numbers in the units the model is used in (never kN in a US
+    # report); the source is a citation and stays as written
+    description = quantities_in(" ".join(plain.text(table["description"], "description")
+                                         .split()), units, target or units)
     source = " ".join(plain.text(table["source"], "source").split())
     reader = _ConvertingReader(name, units, target or units)
     reader.chain = (*chain, path.resolve())  # type: ignore[attr-defined]
@@ -906,7 +917,10 @@ def _design_case_file(path: Path, sha256: str, raw: dict[str, Any],
     if not isinstance(units_text, str) or units_text.upper() not in SYSTEMS:
         plain.expected("units", '"SI" (kN, m) or "US" (kip, ft)', units_text)
     units = SYSTEMS[units_text.upper()]
-    description = " ".join(plain.text(table["description"], "description").split())
+    # the description's numbers in the units the model is used in (never kN in a US
+    # report); the source is a citation and stays as written
+    description = quantities_in(" ".join(plain.text(table["description"], "description")
+                                         .split()), units, target or units)
     source = " ".join(plain.text(table["source"], "source").split())
     reader = _ConvertingReader(name, units, target or units)
     case = read_design_case(table, path.stem, reader, path.parent, parameters)

@@ -37,6 +37,10 @@ def guard_unit_text(text: str) -> str | None:
     maximum = int(LIMITS["unit text length"].maximum)
     if len(text) > maximum:
         return f"longer than the documented limit of {maximum} characters"
+    if "," in text:
+        # pint drops the comma: "34,5 kN" would be read as 345 kN, "1,65 m" as 165 m
+        return (f'a comma: decimals take a point ("{text.replace(",", ".")}") and numbers '
+                "no thousands separators")
     tokens = [(m.lastgroup, m.group()) for m in _TOKEN.finditer(text)
               if m.lastgroup != "space"]
     depth = 0

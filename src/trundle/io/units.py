@@ -21,7 +21,8 @@ from typing import Any
 from trundle.io.unit_guard import guard_unit_text
 
 # What each physical quantity is, as a pint expression of the system's force F and length L,
-# the pretty label pattern and the plain-ASCII pattern for CSV/JSON headers.
+# the label pattern (tables, figures, CSV headings) and the plain-ASCII pattern (JSON unit
+# fields).
 _QUANTITY_PATTERNS: dict[str, tuple[str, str, str]] = {
     "length": ("{L}", "{L}", "{L}"),
     "position": ("{L}", "{L}", "{L}"),
@@ -87,7 +88,8 @@ class UnitSystem:
         return _QUANTITY_PATTERNS[quantity][0].format(F=self.force, L=self.length)
 
     def label(self, quantity: str) -> str:
-        """The base unit of ``quantity`` for people: "kN·m²"."""
+        """The base unit of ``quantity`` as every table, figure and CSV heading spells it:
+        "kN·m²"."""
         if quantity == "deflection":
             return self.deflection
         if quantity == "rotation":
@@ -95,7 +97,8 @@ class UnitSystem:
         return _QUANTITY_PATTERNS[quantity][1].format(F=self.force, L=self.length)
 
     def ascii_label(self, quantity: str) -> str:
-        """The base unit of ``quantity`` in plain ASCII for CSV and JSON: "kN*m^2"."""
+        """The base unit of ``quantity`` in plain ASCII for the unit fields of JSON files:
+        "kN*m^2" (CSV headings, tables and figures use :meth:`label`)."""
         if quantity in ("deflection", "rotation"):
             return self.label(quantity)
         return _QUANTITY_PATTERNS[quantity][2].format(F=self.force, L=self.length)
@@ -134,6 +137,58 @@ class UnitSystem:
 SI = UnitSystem("SI", force="kN", length="m", deflection="mm")
 US = UnitSystem("US", force="kip", length="ft", deflection="in")
 SYSTEMS = {"SI": SI, "US": US}
+
+# Units a description of a load model may state its numbers in, per system, by quantity (the
+# spellings a file may use, the first being the one written when converting into the system).
+_TEXT_UNITS: dict[str, dict[str, tuple[str, ...]]] = {
+    "SI": {"pressure": ("kN/m²", "kN/m2", "kN/m^2"), "distributed load": ("kN/m",),
+           "force": ("kN",), "length": ("m",)},
+    "US": {"pressure": ("kip/ft²", "kip/ft2", "kip/ft^2", "ksf"),
+           "distributed load": ("kip/ft", "klf"), "force": ("kip", "kips"),
+           "length": ("ft",)},
+}
+_PINT_OF_TEXT = {"kN/m²": "kN/m**2", "kN/m2": "kN/m**2", "kN/m^2": "kN/m**2",
+                 "kip/ft²": "kip/ft**2", "kip/ft2": "kip/ft**2", "kip/ft^2": "kip/ft**2",
+                 "ksf": "kip/ft**2", "klf": "kip/ft", "kips": "kip"}
+_NUMBER = r"\d+(?:\.\d+)?"
+_LIST_JOINT = r"\s*(?:,|/|\bto\b|\band\b)\s*"
+
+
+def _rounded(value: float, digits: int = 4) -> str:
+    """``value`` to ``digits`` significant digits, written without an exponent."""
+    if value == 0.0:
+        return "0"
+    places = max(0, digits - 1 - math.floor(math.log10(abs(value))))
+    text = f"{round(value, places):.{places}f}"
+    return text.rstrip("0").rstrip(".") if "." in text else text
+
+
+def quantities_in(text: str, written_in: UnitSystem, shown_in: UnitSystem) -> str:
+    """``text`` (a load model's description) with every number that carries a unit of
+    ``written_in`` — alone ("420 kN") or in a list ("8, 32, 32 kip", "14 to 30 ft",
+    "300 / 200 / 100 kN") — converted to the same quantity in ``shown_in`` (4 significant
+    digits), so that a report in US units never shows a force in kN and the reverse. Numbers
+    without a unit (lane numbers, percentages, names such as "CL-625") are left alone."""
+    if written_in.name == shown_in.name:
+        return text
+    spellings = sorted(((s, q) for q, names in _TEXT_UNITS[written_in.name].items()
+                        for s in names), key=lambda item: -len(item[0]))
+    quantity_of = dict(spellings)
+    alternatives = "|".join(re.escape(s) for s, _ in spellings)
+    pattern = re.compile(rf"(?<![\w.\-]){_NUMBER}(?:{_LIST_JOINT}{_NUMBER})*\s+"
+                         rf"(?P<unit>{alternatives})(?![\w/²^])")
+
+    def convert(match: re.Match[str]) -> str:
+        unit = match.group("unit")
+        quantity = quantity_of[unit]
+        target = _TEXT_UNITS[shown_in.name][quantity][0]
+        factor = shown_in.factor(_PINT_OF_TEXT.get(unit, unit), _PINT_OF_TEXT.get(target,
+                                                                                    target))
+        numbers = match.group(0)[:match.start("unit") - match.start(0)]
+        converted = re.sub(_NUMBER, lambda m: _rounded(float(m.group(0)) * factor), numbers)
+        return f"{converted}{target}"
+
+    return pattern.sub(convert, text)
 
 
 def _dimensionality(unit_expression: str) -> Any:

@@ -21,7 +21,14 @@ from trundle.report.crane_data import (
     runway_spans,
     support_reactions,
 )
-from trundle.report.envelope_figures import _annotate, _footer, _label_extremes, _series
+from trundle.report.crane_tables import runway_decimals, wheel_decimals
+from trundle.report.envelope_figures import (
+    _annotate,
+    _footer,
+    _label_extremes,
+    _series,
+    mark_anywhere,
+)
 from trundle.report.figures import (
     INK,
     MUTED,
@@ -33,6 +40,8 @@ from trundle.report.figures import (
     plot_beam,
     wrapped,
 )
+from trundle.report.format import NOT_CERTIFIED_WORDS, marked
+from trundle.report.format import fixed as _fixed
 from trundle.report.format import position as _position
 from trundle.report.safe_text import figure_text
 from trundle.workflows.crane_runway import lateral_extremes
@@ -108,12 +117,10 @@ def _moment_panel(ax: Axes, report: RunwayReport) -> None:
             continue
         if np.min(np.abs(report.sections - p.extreme.x)) <= 1e-9 * report.beam.length:
             continue
-        anywhere[(s.span, "max")] = (p.extreme.x, p.extreme.value)
-    if anywhere:
-        xs, ys = zip(*anywhere.values(), strict=True)
-        ax.plot(xs, ys, ls="none", marker="D", ms=4.0, mfc="white", mec=INK, mew=0.9,
-                zorder=5, label="worst section between the sections")
-    _label_extremes(ax, adapter, x, top, bottom, limits, anywhere)  # type: ignore[arg-type]
+        anywhere[(s.span, "max")] = (p.extreme.x, p.extreme.value, p.extreme.certified)
+    mark_anywhere(ax, list(anywhere.values()))
+    _label_extremes(ax, adapter, x, top, bottom, limits, anywhere,  # type: ignore[arg-type]
+                    runway_decimals(report, "moment"))
     _legend(ax)
 
 
@@ -123,7 +130,8 @@ def _shear_panel(ax: Axes, report: RunwayReport) -> None:
     x, top, bottom, limits = _series(adapter, "shear")
     _frame(ax, report, f"shear ({SIGN_CONVENTION['shear']})\n[{units.label('force')}]")
     _bands(ax, x, top, bottom, ("max with impact", "min with impact"))
-    _label_extremes(ax, adapter, x, top, bottom, limits, {})  # type: ignore[arg-type]
+    _label_extremes(ax, adapter, x, top, bottom, limits, {},  # type: ignore[arg-type]
+                    runway_decimals(report, "shear"))
     _legend(ax, 2)
 
 
@@ -139,10 +147,19 @@ def _deflection_panel(ax: Axes, report: RunwayReport) -> None:
     checks = report.runway.vertical_checks
     _limit_lines(ax, report, [c.limit * to_display for c in checks], both=False,
                  label=f"allowable span / {checks[0].ratio:g}" if checks else "allowable")
-    for c in checks:
-        _annotate(ax, c.x, c.value * to_display, f"{c.value * to_display:.3g}",
+    places = runway_decimals(report, "deflection")
+    for c in checks:  # as the deflection table writes it, "*" where not certified
+        _annotate(ax, c.x, c.value * to_display,
+                  marked(_fixed(c.value * to_display, places), c.certified),
                   SERVICE_COLOR, above=True, length=report.beam.length)
+    _uncertified_note(ax, checks)
     _legend(ax)
+
+
+def _uncertified_note(ax: Axes, checks) -> None:
+    """A legend entry saying what "*" on a deflection label means, where one has it."""
+    if any(not c.certified for c in checks):
+        ax.plot([], [], ls="none", label=NOT_CERTIFIED_WORDS)
 
 
 def runway_vertical_figure(report: RunwayReport) -> Figure:
@@ -179,7 +196,8 @@ def runway_lateral_figure(report: RunwayReport) -> Figure | None:
         _frame(moment_ax, report, f"lateral moment (either way)\n[{units.label('moment')}]")
         _bands(moment_ax, x, top, bottom, ("wheel forces one way", "the other way"))
         adapter = SimpleNamespace(beam=report.beam)
-        _label_extremes(moment_ax, adapter, x, top, bottom, [""] * len(x), {})  # type: ignore
+        _label_extremes(moment_ax, adapter, x, top, bottom, [""] * len(x), {},  # type: ignore
+                        runway_decimals(report, "lateral_moment"))
         _legend(moment_ax, 2)
         top, bottom = lateral_extremes(runway, "deflection")
         top, bottom = top * to_display, bottom * to_display
@@ -189,10 +207,13 @@ def runway_lateral_figure(report: RunwayReport) -> Figure | None:
         _limit_lines(deflection_ax, report, [c.limit * to_display for c in checks],
                      both=True, label=f"allowable span / {checks[0].ratio:g}" if checks
                      else "allowable")
+        places = runway_decimals(report, "deflection")
         for c in checks:  # the worst of each span, found between the sections too
             value = c.value * to_display
-            _annotate(deflection_ax, c.x, value, f"±{value:.3g}", MAX_COLOR, above=True,
-                      length=report.beam.length)
+            _annotate(deflection_ax, c.x, value, "±" + marked(_fixed(value, places),
+                                                               c.certified),
+                      MAX_COLOR, above=True, length=report.beam.length)
+        _uncertified_note(deflection_ax, checks)
         _legend(deflection_ax)
         plot_beam(report.beam, units, ax=beam_ax, sections=list(report.sections))
         _finish(report, figure, "crane runway, lateral (top flange): lateral wheel forces "
@@ -211,6 +232,7 @@ def runway_reactions_figure(report: RunwayReport) -> Figure:
               (without, "max without impact", SERVICE_COLOR)]
     if np.any(uplift < -1e-9 * max(with_impact.max(), 1e-300)):
         series.append((uplift, "min with impact (uplift)", MIN_COLOR))
+    places = runway_decimals(report, "reaction")  # labels read as the table's cells
     with figure_style():
         figure = new_figure(7.5, 3.4)
         ax = figure.add_subplot()
@@ -221,8 +243,8 @@ def runway_reactions_figure(report: RunwayReport) -> Figure:
             bars = ax.bar(positions + (j - (len(series) - 1) / 2) * width, values, width,
                           color=color if j == 0 else "white", edgecolor=color,
                           hatch=hatches[j], lw=0.8, label=label, zorder=3)
-            ax.bar_label(bars, labels=[f"{v:.4g}" for v in values], fontsize=6.5, padding=2,
-                         color=INK)
+            ax.bar_label(bars, labels=[_fixed(v, places) for v in values], fontsize=6.5,
+                         padding=2, color=INK)
         ax.axhline(0.0, color=MUTED, lw=0.8, zorder=2)
         L = units.label("length")
         ax.set_xticks(positions, [f"support {r.support}\nx = {r.x:.6g} {L}" for r in items])
@@ -265,12 +287,14 @@ def _draw_cranes(ax: Axes, report: RunwayReport, p: CranePlacement, label: str
         ax.plot([a, b], [0.8, 0.8], color=color, lw=1.0, zorder=6, clip_on=False)
         for end in (a, b):
             ax.plot([end, end], [0.74, 0.86], color=color, lw=1.0, zorder=6, clip_on=False)
-        text = f"{name} ({state}): {count} × {ps[0]:.4g} {F}"
+        # with the wheel-load table's decimals
+        text = f"{name} ({state}): {count} × {_fixed(ps[0], wheel_decimals(report.cranes))} {F}"
         ax.annotate(text, (0.5 * (a + b), 0.86), xytext=(0, 3 + 10 * (i % 2)),
                     textcoords="offset points", ha="center", va="bottom", fontsize=7,
                     color=color, zorder=7, annotation_clip=False)
     x = p.extreme.x
     ax.plot([x, x], [-1.0, 0.05], color=LIMIT_COLOR, lw=1.0, ls=(0, (3, 2)), zorder=1)
+    _clear_support_number(ax, report, x)
     ax.annotate(label, (x, -0.82), xytext=(4, 0), textcoords="offset points", ha="left",
                 va="center", fontsize=7, color=LIMIT_COLOR, zorder=7,
                 bbox={"boxstyle": "round,pad=0.12", "fc": "white", "ec": "none",
@@ -278,6 +302,18 @@ def _draw_cranes(ax: Axes, report: RunwayReport, p: CranePlacement, label: str
     span = max(highs) - min(lows)
     ax.set_xlim(min(lows) - 0.03 * span, max(highs) + 0.03 * span)
     return min(lows) - 0.03 * span, max(highs) + 0.03 * span
+
+
+def _clear_support_number(ax: Axes, report: RunwayReport, x: float) -> None:
+    """A section at a support (a reaction): its number moves left of the dashed line, which
+    would run through it, and the line's label stays right of it."""
+    ends = report.beam.support_positions
+    tolerance = 1e-9 * report.beam.length
+    at = [k for k, end in enumerate(ends) if abs(end - x) <= tolerance]
+    for text in ax.texts:
+        if at and text.get_text() == str(at[0]) and abs(text.xy[0] - x) <= tolerance:
+            text.xyann = (-4.0, text.xyann[1])
+            text.set_horizontalalignment("right")
 
 
 def _placement_words(report: RunwayReport, p: CranePlacement) -> str:
@@ -302,16 +338,20 @@ def runway_positions_figure(report: RunwayReport) -> Figure | None:
         worst = max(reactions, key=lambda r: r.max_with_impact.extreme.value)
         p = worst.max_with_impact
         if p.governed:
+            value = _fixed(p.extreme.value, runway_decimals(report, "reaction"))
             panels.append((f"worst reaction with impact: support {worst.support}, "
-                           f"R = {p.extreme.value:.4g} {F}",
+                           f"R = {value} {F}",
                            f"R max, support {worst.support}", p))
     spans = runway_spans(report)
     candidates = [s.moment_anywhere or s.moment_max for s in spans]
     candidates = [c for c in candidates if c.governed]
     if candidates:
         p = max(candidates, key=lambda c: c.extreme.value)
-        panels.append((f"worst sagging moment with impact: M = {p.extreme.value:.4g} {M} at "
-                       f"x = {_position(p.extreme.x)} {units.label('length')}",
+        value = marked(_fixed(p.extreme.value, runway_decimals(report, "moment")),
+                       p.extreme.certified)
+        panels.append((f"worst sagging moment with impact: M = {value} {M} at "
+                       f"x = {_position(p.extreme.x)} {units.label('length')}"
+                       + ("" if p.extreme.certified else f" ({NOT_CERTIFIED_WORDS})"),
                        "M max", p))
     if not panels:
         return None

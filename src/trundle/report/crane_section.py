@@ -25,6 +25,7 @@ from trundle.report.crane_tables import (
     wheel_loads_table,
 )
 from trundle.report.envelope_data import EnvelopeResults, ExtraSection
+from trundle.report.terminal_view import check_view, narrowed, section_view
 
 TITLE = "Crane runway"
 
@@ -54,11 +55,13 @@ def crane_section(results: EnvelopeResults) -> ExtraSection | None:
     if report is None:
         return None
     entries, units = report.entries, report.units
-    tables = [cranes_table(entries, units), wheel_loads_table(entries, units),
-              horizontal_forces_table(entries, units), defaults_table(report),
-              runway_settings_table(report), reactions_table(report), moment_table(report),
-              shear_table(report), deflection_table(report), lateral_table(report),
-              longitudinal_table(report), fatigue_table(report)]
+    wheels, reactions = wheel_loads_table(entries, units), reactions_table(report)
+    moments, shears = moment_table(report), shear_table(report)
+    deflections, lateral = deflection_table(report), lateral_table(report)
+    longitudinal, fatigue = longitudinal_table(report), fatigue_table(report)
+    tables = [cranes_table(entries, units), wheels, horizontal_forces_table(entries, units),
+              defaults_table(report), runway_settings_table(report), reactions, moments,
+              shears, deflections, lateral, longitudinal, fatigue]
     # the report keeps per-section tables short: the runway envelope at the tenth points and
     # supports (every section: runway-sections.csv); fatigue per span (every section and
     # crane: runway-fatigue.csv, named in the fatigue table's note)
@@ -67,10 +70,29 @@ def crane_section(results: EnvelopeResults) -> ExtraSection | None:
     cautions = (CRANE_CAUTION,)
     several = any(len(c.members) > 1 for c in report.runway.combinations)
     notes = (NOTES[0], COMBINATION_NOTE if several else ONE_CRANE_NOTE, *NOTES[1:])
+    # the terminal's default: wheel loads, the governing values with the combination, each
+    # check summarised, the tenth-point envelope where it is short (every column: --full)
+    governing = ("combination", "combination (max with impact)", "travel")
+    terminal = [narrowed(wheels, ("crane", "wheels", "maximum", "minimum",
+                                  "maximum with impact")),
+                narrowed(reactions, ("support", "x", "max with impact", "max without impact",
+                                     "min with impact", *governing)),
+                narrowed(moments, ("span", "extreme", "M", "at x", *governing)),
+                narrowed(shears, ("span", "extreme", "V", "section x", *governing)),
+                check_view(deflections, group=1, where=0)]
+    if lateral is not None:
+        terminal.append(narrowed(lateral, ("span", "M lateral", "at x", "combination")))
+    terminal.append(narrowed(longitudinal, ("crane", "force on this rail")))
+    if fatigue is not None:
+        terminal.append(check_view(fatigue, group=0, where=1))
+    terminal += [section_view(t, results, "runway-sections.csv") for t in detail
+                 if t is not None]
+    terminal.append(NOTES[0])
     return ExtraSection(TITLE, tables=tuple(t for t in tables if t is not None), notes=notes,
                         figures=figures, files=dict(runway_csv_files(report)),
                         data=runway_json(report, cautions),
                         detail_tables=tuple(t for t in detail if t is not None),
                         captions=captions, cautions=cautions,
-                        detail_files={t.title: "runway-sections.csv" for t in detail})
+                        detail_files={t.title: "runway-sections.csv" for t in detail},
+                        terminal=tuple(terminal))
 

@@ -50,7 +50,7 @@ from trundle.report.format import fixed as _fixed
 from trundle.report.format import length as _length
 from trundle.report.format import number as _number
 from trundle.report.format import position as _position
-from trundle.report.format import significant, verdict_cell
+from trundle.report.format import position_decimals, significant, verdict_cell
 from trundle.workflows.crane_runway import COMBINATIONS, lateral_extremes
 
 # ------------------------------------------------------------------------------------------
@@ -134,10 +134,17 @@ def cranes_table(entries: Sequence[CraneEntry], units: UnitSystem) -> TableData:
              "g = 9.80665 m/s².")
 
 
+def wheel_decimals(cranes: Sequence[Crane]) -> int:
+    """The decimals of the wheel-load table (and of the wheel loads the crane figures
+    write): from the largest maximum, minimum or unloaded wheel load."""
+    wheels = [c.wheels() for c in cranes]
+    return _decimals([v for w in wheels for v in (w.maximum, w.minimum, w.unloaded)])
+
+
 def wheel_loads_table(entries: Sequence[CraneEntry], units: UnitSystem) -> TableData:
     F = units.label("force")
     wheels = {e.name: e.crane.wheels() for e in entries}
-    d = _decimals([v for w in wheels.values() for v in (w.maximum, w.minimum, w.unloaded)])
+    d = wheel_decimals([e.crane for e in entries])
     rows = []
     for entry in entries:
         c, w = entry.crane, wheels[entry.name]
@@ -251,15 +258,35 @@ def runway_settings_table(report: RunwayReport) -> TableData:
 # results
 
 
+def runway_decimals(report: RunwayReport, kind: str) -> int:
+    """The decimals the runway table of ``kind`` ("reaction", "moment", "shear",
+    "deflection", "lateral_moment") writes its values with: the crane figures label values
+    with them too, so a label reads exactly as the table cell."""
+    if kind == "reaction":
+        items = support_reactions(report)
+        return _decimals([v for r in items for v in (r.max_with_impact.extreme.value,
+                                                     r.min_with_impact.extreme.value)])
+    spans = runway_spans(report)
+    if kind == "moment":
+        return _decimals([p.extreme.value for s in spans for p in (s.moment_max, s.moment_min)])
+    if kind == "shear":
+        return _decimals([p.extreme.value for s in spans for p in (s.shear_max, s.shear_min)])
+    if kind == "deflection":
+        to_display = report.units.factor(report.units.length, report.units.deflection)
+        checks = list(report.runway.vertical_checks) + list(report.runway.lateral_checks)
+        return _decimals([c.limit * to_display for c in checks])
+    return _decimals([s.lateral_moment.extreme.value for s in spans if s.lateral_moment])
+
+
 def reactions_table(report: RunwayReport) -> TableData:
     units = report.units
     F, L = units.label("force"), units.label("length")
     items = support_reactions(report)
-    d = _decimals([v for r in items for v in (r.max_with_impact.extreme.value,
-                                              r.min_with_impact.extreme.value)])
+    d = runway_decimals(report, "reaction")
     rows = []
     for r in items:
-        rows.append((str(r.support), _length(r.x), _fixed(r.max_with_impact.extreme.value, d),
+        rows.append((str(r.support), _position(r.x),
+                     _fixed(r.max_with_impact.extreme.value, d),
                      _fixed(r.max_without_impact.extreme.value, d),
                      _fixed(r.min_with_impact.extreme.value, d),
                      *_governing_cells(r.max_with_impact)))
@@ -279,7 +306,7 @@ def moment_table(report: RunwayReport) -> TableData:
     units = report.units
     M, L = units.label("moment"), units.label("length")
     spans = runway_spans(report)
-    d = _decimals([p.extreme.value for s in spans for p in (s.moment_max, s.moment_min)])
+    d = runway_decimals(report, "moment")
     rows, groups = [], []
     for s in spans:
         groups.append(len(rows))
@@ -303,14 +330,14 @@ def shear_table(report: RunwayReport) -> TableData:
     units = report.units
     F, L = units.label("force"), units.label("length")
     spans = runway_spans(report)
-    d = _decimals([p.extreme.value for s in spans for p in (s.shear_max, s.shear_min)])
+    d = runway_decimals(report, "shear")
     rows, groups = [], []
     for s in spans:
         groups.append(len(rows))
         for label, p in (("max", s.shear_max), ("min", s.shear_min)):
             side = "left of" if p.extreme.family == "shear_left" else "right of"
             rows.append((str(s.span + 1), label, _fixed(p.extreme.value, d),
-                         f"{side} {_length(p.extreme.x)}", *_governing_cells(p)))
+                         f"{side} {_position(p.extreme.x)}", *_governing_cells(p)))
     return _without_empty_gaps(TableData(
         f"Shear per span with impact [{F}] (upward on the left part +)",
         ("span", "extreme", f"V [{F}]", f"section x [{L}]", *_governing_headers(L)),
@@ -336,7 +363,7 @@ def deflection_table(report: RunwayReport) -> TableData:
     to_display = units.factor(units.length, units.deflection)
     runway = report.runway
     checks = list(runway.vertical_checks) + list(runway.lateral_checks)
-    d = _decimals([c.limit * to_display for c in checks])
+    d = runway_decimals(report, "deflection")
     rows = _check_rows(runway.vertical_checks, "vertical", to_display, d)
     rows += _check_rows(runway.lateral_checks, "lateral (±)", to_display, d)
     groups = (0, len(runway.vertical_checks)) if runway.lateral_checks else ()
@@ -356,7 +383,7 @@ def lateral_table(report: RunwayReport) -> TableData | None:
     units = report.units
     M, L = units.label("moment"), units.label("length")
     spans = [s for s in runway_spans(report) if s.lateral_moment is not None]
-    d = _decimals([s.lateral_moment.extreme.value for s in spans if s.lateral_moment])
+    d = runway_decimals(report, "lateral_moment")
     rows = []
     for s in spans:
         p = s.lateral_moment
@@ -429,7 +456,7 @@ def _fatigue_cells(report: RunwayReport, span: int, item: FatigueSection, d: int
         return "—" if value is None else _fixed(value * factor, ds)
 
     life = fatigue_life_cycles(report, item)
-    return (item.crane, str(span + 1), _length(item.x), _fixed(item.moment_range, d),
+    return (item.crane, str(span + 1), _position(item.x), _fixed(item.moment_range, d),
             f"{item.cycles_per_passage:g}", stress(item.stress_range),
             stress(item.equivalent_range),
             "unlimited" if math.isinf(life) else f"{life:,.0f}", stress(item.allowable),
@@ -483,10 +510,11 @@ def sections_table(report: RunwayReport) -> TableData:
         headers += [f"M lateral ±\n[{M}]", f"δ lateral ±\n[{D}]"]
         decimals += [_decimals(list(columns[7])), _decimals(list(columns[8]))]
     rows = []
+    x_places = position_decimals(report.sections)  # every row of the column alike
     for i, x in enumerate(report.sections):
         span, support = span_of_section(report.beam, float(x))
         where = f"{span + 1}, support {support}" if support is not None else str(span + 1)
-        rows.append((_length(x), where, *(_fixed(float(c[i]), d)
+        rows.append((_fixed(float(x), x_places), where, *(_fixed(float(c[i]), d)
                                           for c, d in zip(columns, decimals, strict=True))))
     return TableData("Runway envelope at every section (moment and shear with impact)",
                      (f"x\n[{L}]", "span", *headers), tuple(rows),
@@ -516,7 +544,7 @@ def _placement_cells(p: CranePlacement) -> list[str]:
 
 def reactions_csv(report: RunwayReport) -> str:
     units = report.units
-    F, L = units.ascii_label("force"), units.ascii_label("length")
+    F, L = units.label("force"), units.label("length")
     header = ["support", f"x [{L}]"]
     names = ("max with impact", "min with impact", "max without impact", "min without impact")
     for name in names:
@@ -533,7 +561,7 @@ def reactions_csv(report: RunwayReport) -> str:
 
 def sections_csv(report: RunwayReport) -> str:
     units = report.units
-    M, F, L = (units.ascii_label(q) for q in ("moment", "force", "length"))
+    M, F, L = (units.label(q) for q in ("moment", "force", "length"))
     D = units.deflection
     families = [("moment", "max", M, True), ("moment", "min", M, True),
                 ("shear_left", "max", F, True), ("shear_left", "min", F, True),
@@ -564,7 +592,7 @@ def sections_csv(report: RunwayReport) -> str:
 
 def deflection_csv(report: RunwayReport) -> str:
     units = report.units
-    L, D = units.ascii_label("length"), units.deflection
+    L, D = units.label("length"), units.deflection
     to_display = units.factor(units.length, units.deflection)
     header = ["direction", "span", f"span length [{L}]", f"deflection [{D}]", f"x [{L}]",
               "limit span ratio", f"allowable [{D}]", "utilisation", "verdict", "combination"]
@@ -581,7 +609,7 @@ def deflection_csv(report: RunwayReport) -> str:
 
 def fatigue_csv(report: RunwayReport) -> str:
     units = report.units
-    M, L = units.ascii_label("moment"), units.ascii_label("length")
+    M, L = units.label("moment"), units.label("length")
     S = report.stress_unit
     factor = report.stress_factor
     header = ["crane", "span", f"x [{L}]", f"moment range per passage [{M}]",

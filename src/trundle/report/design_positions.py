@@ -218,7 +218,7 @@ def positions_csv(results: EnvelopeResults) -> str:
     for combination, records in results.design.positions.items():
         for r in records:
             load = r.load
-            unit = quantity_unit(r.family, units, ascii_only=True)
+            unit = quantity_unit(r.family, units)
             where = str(r.index) if r.family == "reaction" else number(r.x)
             rows.append([
                 combination, r.family, r.which, where, number(r.x), number(r.value), unit,

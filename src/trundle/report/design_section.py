@@ -200,7 +200,7 @@ def cases_table(results: EnvelopeResults) -> TableData:
                            for e in t.split("; ") if e})
         numbers_of.append(numbers)
         rest_of.append((case.rule or "—", "; ".join(excluded) or "—"))
-    places = [decimals([n[i] for n in numbers_of]) for i in range(6)]
+    places = _quantity_places(numbers_of, ((0, 1), (2, 3), (4,), (5,)))
     rows = [(case_name, *[fixed(v, d) if np.isfinite(v) else "—"
                           for v, d in zip(numbers, places, strict=True)], *rest)
             for case_name, numbers, rest in zip(result.cases, numbers_of, rest_of, strict=True)]
@@ -214,6 +214,18 @@ def cases_table(results: EnvelopeResults) -> TableData:
              "design-envelope.csv and envelope.json.")
 
 
+def _quantity_places(numbers_of: list[list[float]], quantities: tuple[tuple[int, ...], ...]
+                     ) -> list[int]:
+    """Decimals per column, shared by the columns of one quantity (M max and M min): the
+    policy of :mod:`trundle.report.format`, so a zero reads "0" or "0.0" alike in both."""
+    places = [0] * sum(len(q) for q in quantities)
+    for columns in quantities:
+        d = decimals([n[i] for n in numbers_of for i in columns])
+        for i in columns:
+            places[i] = d
+    return places
+
+
 def permanent_table(results: EnvelopeResults) -> TableData | None:
     result, units = results.design, results.units
     if not result.permanent:
@@ -221,7 +233,7 @@ def permanent_table(results: EnvelopeResults) -> TableData | None:
     M, R = quantity_unit("moment", units), quantity_unit("reaction", units)
     numbers_of = [[float(np.nanmax(p.values["moment"])), float(np.nanmin(p.values["moment"])),
                    float(np.nanmax(p.values["reaction"]))] for p in result.permanent]
-    places = [decimals([n[i] for n in numbers_of]) for i in range(3)]
+    places = _quantity_places(numbers_of, ((0, 1), (2,)))
     rows = [(p.name, p.category, *[fixed(v, d) for v, d in zip(n, places, strict=True)])
             for p, n in zip(result.permanent, numbers_of, strict=True)]
     return TableData("Permanent loads (unfactored, always present)",
@@ -289,7 +301,7 @@ def design_csv(results: EnvelopeResults) -> str:
 
     for name, env in result.designs.items():
         for family in FAMILIES:
-            unit = quantity_unit(family, units, ascii_only=True)
+            unit = quantity_unit(family, units)
             for which in ("max", "min"):
                 values = _display(result, family, env.values[family, which], units)
                 for j, v in enumerate(values):
@@ -300,7 +312,7 @@ def design_csv(results: EnvelopeResults) -> str:
                          env.governing[family, which][j], excluded])
     for case in result.cases.values():
         for family in CASE_FAMILIES:
-            unit = quantity_unit(family, units, ascii_only=True)
+            unit = quantity_unit(family, units)
             for which in ("max", "min"):
                 values = _display(result, family, case.values[family, which], units)
                 gov = case.governing.get((family, which), ())

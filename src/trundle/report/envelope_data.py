@@ -83,6 +83,9 @@ class ExtraSection:
     cautions : added to the cautions of every output (terminal, JSON, report)
     detail_files : detail table title -> the file that has every row of it (the report
         shows a per-section table at the tenth points and supports and says where the rest is)
+    terminal : what ``trundle envelope`` prints of this section by default, in order (tables
+        and lines; see :mod:`trundle.report.terminal_view`); None: its tables, per-section
+        ones cut to the tenth points and supports and check tables summarised
     figure_tables : figure name -> a table the HTML report shows right under that figure
         (its key: what each panel shows, in words and numbers)
     """
@@ -97,6 +100,7 @@ class ExtraSection:
     captions: dict[str, str] = field(default_factory=dict)
     cautions: tuple[str, ...] = ()
     detail_files: dict[str, str] = field(default_factory=dict)
+    terminal: tuple[Any, ...] | None = None
     figure_tables: dict[str, TableData] = field(default_factory=dict)
 
 
@@ -311,7 +315,7 @@ def _describe_case(record: ExtremeRecord, value: float, beam: Beam) -> Extreme:
     if r.placement:  # a placed uniform load
         placement = _placement_words(r.placement, r.which, r.loaded, beam)
         if r.lead_x is not None:
-            placement += f"; point load at {_length(r.lead_x)}"
+            placement += f"; point load at {_position(r.lead_x)}"
         return Extreme(r.family, r.which, value, r.x, r.case, 0, r.lead_x, r.axles, r.loaded,
                        placement, _side_note(r))
     return Extreme(r.family, r.which, value, r.x, r.case, r.direction, r.lead_x, r.axles, (),
@@ -373,7 +377,7 @@ def direction_ascii(direction: int) -> str:
 
 def searched_text(extreme: Extreme, unit: str = "") -> str:
     suffix = f" {unit}" if unit else ""
-    return "; ".join(f"{label} = {_length(v)}{suffix}" for label, v in extreme.searched)
+    return "; ".join(f"{label} = {_position(v)}{suffix}" for label, v in extreme.searched)
 
 
 # ------------------------------------------------------------------------------------------

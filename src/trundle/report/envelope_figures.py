@@ -4,7 +4,9 @@ Each envelope figure is one panel above the beam drawing of :func:`plot_beam` (s
 symbols as the influence-line figures). Max and min are drawn as lines through the values at
 the model's sections (marked), each with a light band to zero; the values are those of the
 tables. Per span the largest and smallest values are labelled; for the moment the worst
-section found between the sections ("anywhere") is marked with a diamond.
+section found between the sections ("anywhere") is marked with a diamond, hollow where it is
+certified, filled and labelled "*" where a sampled search found it (it may read low), as the
+tables mark it. Labels write a value exactly as its table cell (same decimals).
 """
 
 from __future__ import annotations
@@ -19,7 +21,7 @@ from trundle.report.envelope_data import (
     quantity_unit,
     span_summaries,
 )
-from trundle.report.envelope_tables import max_min_arrays
+from trundle.report.envelope_tables import max_min_arrays, table_decimals
 from trundle.report.figures import (
     INK,
     MUTED,
@@ -31,6 +33,8 @@ from trundle.report.figures import (
     plot_beam,
     wrapped,
 )
+from trundle.report.format import NOT_CERTIFIED_WORDS, marked
+from trundle.report.format import fixed as _fixed
 from trundle.report.safe_text import figure_text
 
 MAX_COLOR = PALETTE[0]
@@ -89,7 +93,8 @@ def plot_envelope(results: EnvelopeResults, kind: str, ax: Axes | None = None) -
         ax.plot(x, bottom, color=MIN_COLOR, lw=1.5, ls=(0, (4, 1.5)), marker="s", ms=2.2,
                 zorder=3, label="min")
         anywhere = _mark_anywhere(ax, results) if kind == "moment" else {}
-        _label_extremes(ax, results, x, top, bottom, limits, anywhere)
+        _label_extremes(ax, results, x, top, bottom, limits, anywhere,
+                        table_decimals(results, kind))
         ax.set_ylabel(f"{kind} ({SIGN_CONVENTION[kind]})\n[{unit}]")
         ax.set_xlim(-0.03 * beam.length, 1.03 * beam.length)
         ax.margins(y=0.28)
@@ -100,9 +105,12 @@ def plot_envelope(results: EnvelopeResults, kind: str, ax: Axes | None = None) -
 
 def _label_extremes(ax: Axes, results: EnvelopeResults, x: np.ndarray, top: np.ndarray,
                     bottom: np.ndarray, limits: list[str],
-                    anywhere: dict[tuple[int, str], tuple[float, float]]) -> None:
-    """Per span: the largest max and the smallest min, each labelled once; a worst section
-    between the sections (``anywhere[(span, which)] = (x, value)``) replaces the section's."""
+                    anywhere: dict[tuple[int, str], tuple[float, float, bool]],
+                    places: int) -> None:
+    """Per span: the largest max and the smallest min, each labelled once with ``places``
+    decimals (those of its table); a worst section between the sections
+    (``anywhere[(span, which)] = (x, value, certified)``) replaces the section's, marked "*"
+    where it is not certified."""
     ends = results.beam.support_positions
     tolerance = 1e-9 * results.beam.length
     scale = max(np.abs(top).max(), np.abs(bottom).max(), 1e-300)
@@ -119,17 +127,17 @@ def _label_extremes(ax: Axes, results: EnvelopeResults, x: np.ndarray, top: np.n
         for values, color, sign, which in ((top, MAX_COLOR, 1.0, "max"),
                                            (bottom, MIN_COLOR, -1.0, "min")):
             i = inside[np.argmax(sign * values[inside])]
-            where, value = float(x[i]), float(values[i])
+            where, value, certified = float(x[i]), float(values[i]), True
             if (span, which) in anywhere:
-                where, value = anywhere[(span, which)]
+                where, value, certified = anywhere[(span, which)]
             if sign * value <= 1e-6 * scale:
                 continue
             key = (round(where, 9), which)
             if key in done:
                 continue
             done.add(key)
-            _annotate(ax, where, value, f"{value:.4g}", color, above=sign > 0,
-                      length=results.beam.length)
+            _annotate(ax, where, value, marked(_fixed(value, places), certified), color,
+                      above=sign > 0, length=results.beam.length)
 
 
 def _annotate(ax: Axes, x: float, y: float, text: str, color: str, above: bool,
@@ -141,11 +149,12 @@ def _annotate(ax: Axes, x: float, y: float, text: str, color: str, above: bool,
                       "alpha": 0.85}, zorder=6)
 
 
-def _mark_anywhere(ax: Axes, results: EnvelopeResults) -> dict[tuple[int, str],
-                                                                tuple[float, float]]:
+def _mark_anywhere(ax: Axes, results: EnvelopeResults
+                   ) -> dict[tuple[int, str], tuple[float, float, bool]]:
     """Diamonds at the worst sections found between the sections (absolute extremes per
-    span) where they are worse than every section; returns them by (span, which)."""
-    found: dict[tuple[int, str], tuple[float, float]] = {}
+    span) where they are worse than every section; returns them by (span, which) as
+    (x, value, certified)."""
+    found: dict[tuple[int, str], tuple[float, float, bool]] = {}
     for s in span_summaries(results):
         for which, e, at_sections in (("max", s.absolute_max, s.moment_max),
                                       ("min", s.absolute_min, s.moment_min)):
@@ -154,12 +163,22 @@ def _mark_anywhere(ax: Axes, results: EnvelopeResults) -> dict[tuple[int, str],
                 continue
             if np.min(np.abs(results.sections - e.x)) <= 1e-9 * results.beam.length:
                 continue
-            found[(s.span, which)] = (e.x, e.value)
-    if found:
-        xs, ys = zip(*found.values(), strict=True)
-        ax.plot(xs, ys, ls="none", marker="D", ms=4.0, mfc="white", mec=INK, mew=0.9,
-                zorder=5, label="worst section between the sections")
+            found[(s.span, which)] = (e.x, e.value, e.certified)
+    mark_anywhere(ax, list(found.values()))
     return found
+
+
+def mark_anywhere(ax: Axes, points: list[tuple[float, float, bool]]) -> None:
+    """The diamonds of worst sections between the sections, (x, value, certified) each:
+    hollow where certified, filled where not, the legend saying what the "*" means."""
+    for certified, label, face in ((True, "worst section between the sections", "white"),
+                                   (False, "worst between the sections, " + NOT_CERTIFIED_WORDS,
+                                    INK)):
+        chosen = [(x, y) for x, y, c in points if c is certified]
+        if chosen:
+            xs, ys = zip(*chosen, strict=True)
+            ax.plot(xs, ys, ls="none", marker="D", ms=4.0, mfc=face, mec=INK, mew=0.9,
+                    zorder=5, label=label)
 
 
 def envelope_figure(results: EnvelopeResults, kind: str) -> Figure:
@@ -172,7 +191,8 @@ def envelope_figure(results: EnvelopeResults, kind: str) -> Figure:
         ax = figure.add_subplot(grid[0], sharex=beam_ax)
         plot_envelope(results, kind, ax=ax)
         plot_beam(beam, units, ax=beam_ax, sections=list(results.sections))
-        figure.suptitle(_title(results, _TITLES[kind]), fontsize=9.5, color=INK)
+        included = INCLUDED_IN_DEFLECTION if kind == "deflection" else INCLUDED
+        figure.suptitle(_title(results, _TITLES[kind], included), fontsize=9.5, color=INK)
         figure.supxlabel(_footer(results), fontsize=6, color=MUTED)
     return figure
 
@@ -183,6 +203,7 @@ def reactions_figure(results: EnvelopeResults) -> Figure:
     unit = quantity_unit("reaction", units)
     top, bottom = max_min_arrays(results, "reaction")
     supports = [k for k in range(len(beam.supports)) if np.isfinite(top[k])]
+    places = table_decimals(results, "reaction")  # labels read as the table's cells
     with figure_style():
         figure = new_figure(7.5, 3.2)
         ax = figure.add_subplot()
@@ -193,8 +214,8 @@ def reactions_figure(results: EnvelopeResults) -> Figure:
         bars_bottom = ax.bar(positions + width / 2, bottom[supports], width, color="white",
                              edgecolor=MIN_COLOR, hatch="////", lw=0.8, label="min", zorder=3)
         for bars in (bars_top, bars_bottom):
-            ax.bar_label(bars, labels=[f"{b.get_height():.4g}" for b in bars], fontsize=7,
-                         padding=2, color=INK)
+            ax.bar_label(bars, labels=[_fixed(b.get_height(), places) for b in bars],
+                         fontsize=7, padding=2, color=INK)
         ax.axhline(0.0, color=MUTED, lw=0.8, zorder=2)
         ax.set_xticks(positions, [_support_tick(results, k) for k in supports])
         ax.set_ylabel(f"reaction ({SIGN_CONVENTION['reaction']})\n[{unit}]")
@@ -213,12 +234,18 @@ def _support_tick(results: EnvelopeResults, k: int) -> str:
     return f"support {k}\nx = {round(float(x), 9) + 0.0:.6g} {results.units.label('length')}"
 
 
-def _title(results: EnvelopeResults, what: str) -> str:
+INCLUDED = "(with dynamic allowance and factors)"
+# deflections are at service level: every load's load factor (service multiplier) left out,
+# as the deflection table says
+INCLUDED_IN_DEFLECTION = "(with dynamic allowance and factors, without load factors: service level)"
+
+
+def _title(results: EnvelopeResults, what: str, included: str = INCLUDED) -> str:
     names = ", ".join(entry.name for entry in results.loads)
     if len(names) > 70:
         names = f"{len(results.loads)} loads"
-    return wrapped(figure_text(f"{results.model.title}\n{what}: {names} "
-                               "(with dynamic allowance and factors)", parse_math=False))
+    return wrapped(figure_text(f"{results.model.title}\n{what}: {names} {included}",
+                               parse_math=False))
 
 
 def _footer(results: EnvelopeResults) -> str:

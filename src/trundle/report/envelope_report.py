@@ -20,6 +20,7 @@ from trundle.report.envelope_data import (
     ExtraSection,
     TableData,
     quantity_unit,
+    span_summaries,
 )
 from trundle.report.envelope_figures import envelope_figures
 from trundle.report.envelope_tables import (
@@ -71,12 +72,18 @@ def figure_captions(results: EnvelopeResults) -> dict[str, str]:
     units = results.units
     M, V, D = (quantity_unit(f, units) for f in ("moment", "shear_left", "deflection"))
     R = quantity_unit("reaction", units)
+    uncertified = results.has_loads and any(
+        e is not None and not e.certified
+        for s in span_summaries(results) for e in (s.absolute_max, s.absolute_min))
     return {
         "envelope-moment": f"Bending moment envelope [{M}], sagging positive: max and min at "
-                           "the sections; diamonds mark a worse section found between them.",
+                           "the sections; diamonds mark a worse section found between them"
+                           + (" (filled, value marked *, where not certified: found by a "
+                              "sampled search, it may read low)" if uncertified else "") + ".",
         "envelope-shear": f"Shear envelope [{V}]: just left and just right of each section; "
                           "the envelope jumps at the supports.",
-        "envelope-deflection": f"Deflection envelope [{D}], downward positive.",
+        "envelope-deflection": f"Deflection envelope [{D}], downward positive; service "
+                               "level (without the loads' load factors).",
         "reactions": f"Support reactions [{R}], upward positive: max and min of every support.",
     }
 

@@ -11,6 +11,7 @@ from collections.abc import Sequence
 from typing import Any
 
 import numpy as np
+from rich import box
 from rich.table import Table
 from rich.text import Text
 
@@ -54,6 +55,7 @@ from trundle.report.format import fixed as _fixed
 from trundle.report.format import length as _length
 from trundle.report.format import number as _number
 from trundle.report.format import position as _position
+from trundle.report.format import position_decimals as _position_decimals
 from trundle.report.format import significant
 from trundle.report.safe_text import clean_text, terminal_text
 
@@ -66,7 +68,7 @@ def _where(extreme: Extreme, length_unit: str) -> str:
         return "empty beam"
     if extreme.placement:
         if extreme.loaded:
-            stretches = "; ".join(f"{_length(a)}–{_length(b)}" for a, b in extreme.loaded)
+            stretches = "; ".join(f"{_position(a)}–{_position(b)}" for a, b in extreme.loaded)
             return f"{extreme.placement}; loaded {stretches}"
         return extreme.placement
     return f"lead axle at {_position(extreme.lead_x)}"
@@ -176,6 +178,22 @@ def library_detail(model: LoadModelFile) -> list[TableData | str]:
     return out
 
 
+def table_decimals(results: EnvelopeResults, kind: str) -> int:
+    """The decimals the summary table of ``kind`` ("moment", "shear", "deflection",
+    "reaction", "support_moment") writes its values with: figures label values with them too,
+    so a label reads exactly as the table cell."""
+    summaries = span_summaries(results)
+    if kind == "moment":
+        return _decimals([e.value for s in summaries for e in (s.moment_max, s.moment_min)])
+    if kind == "shear":
+        return _decimals([e.value for s in summaries for e in (s.shear_max, s.shear_min)])
+    if kind == "deflection":
+        return _decimals([s.deflection_max.value for s in summaries])
+    tops = support_extremes(results, kind, "max")
+    bottoms = support_extremes(results, kind, "min")
+    return _decimals([e.value for e in (*tops.values(), *bottoms.values())])
+
+
 def moment_table(results: EnvelopeResults) -> TableData:
     units = results.units
     L = units.label("length")
@@ -183,8 +201,7 @@ def moment_table(results: EnvelopeResults) -> TableData:
     force = units.label("force")
     rows, groups = [], []
     summaries = span_summaries(results)
-    values = [e.value for s in summaries for e in (s.moment_max, s.moment_min)]
-    d = _decimals(values)
+    d = table_decimals(results, "moment")
     # the shear on each face of the section under the configuration of the extreme moment
     concurrent = {w: concurrent_shear(results, w) for w in ("max", "min")}
     d_shear = _decimals([v for w in concurrent.values() for side in w for v in side])
@@ -222,13 +239,13 @@ def shear_table(results: EnvelopeResults) -> TableData:
     L = units.label("length")
     unit = quantity_unit("shear_left", units)
     summaries = span_summaries(results)
-    d = _decimals([e.value for s in summaries for e in (s.shear_max, s.shear_min)])
+    d = table_decimals(results, "shear")
     rows, groups = [], []
     for s in summaries:
         groups.append(len(rows))
         for label, e in (("max", s.shear_max), ("min", s.shear_min)):
             side = "left of" if e.family == "shear_left" else "right of"
-            rows.append((str(s.span + 1), label, _fixed(e.value, d), f"{side} {_length(e.x)}",
+            rows.append((str(s.span + 1), label, _fixed(e.value, d), f"{side} {_position(e.x)}",
                          *_governing_cells(e, L)))
     return TableData(f"Shear per span [{unit}] (upward on the left part +)",
                      ("span", "extreme", f"V [{unit}]", f"section x [{L}]",
@@ -243,13 +260,13 @@ def deflection_table(results: EnvelopeResults) -> TableData:
     unit = quantity_unit("deflection", units)
     to_display = display_factor("deflection", units)
     summaries = span_summaries(results)
-    d = _decimals([s.deflection_max.value for s in summaries])
+    d = table_decimals(results, "deflection")
     rows = []
     for s in summaries:
         e = s.deflection_max
         span_length = (s.end - s.start) * to_display
         ratio = f"L/{span_length / e.value:.0f}" if e.value > 0 else "—"
-        rows.append((str(s.span + 1), _fixed(e.value, d), ratio, _length(e.x),
+        rows.append((str(s.span + 1), _fixed(e.value, d), ratio, _position(e.x),
                      *_governing_cells(e, L)))
     return TableData(f"Largest downward deflection per span [{unit}]",
                      ("span", f"max δ [{unit}]", "span / δ", f"at x [{L}]",
@@ -267,12 +284,12 @@ def _support_table(results: EnvelopeResults, family: str, title: str, symbol: st
     unit = quantity_unit(family, units)
     tops = support_extremes(results, family, "max")
     bottoms = support_extremes(results, family, "min")
-    d = _decimals([e.value for e in (*tops.values(), *bottoms.values())])
+    d = table_decimals(results, family)
     rows, groups = [], []
     for k in sorted(tops):
         groups.append(len(rows))
         for label, e in (("max", tops[k]), ("min", bottoms[k])):
-            rows.append((str(k), _length(e.x), label, _fixed(e.value, d),
+            rows.append((str(k), _position(e.x), label, _fixed(e.value, d),
                          *_governing_cells(e, L)))
     return TableData(title.format(unit=unit),
                      ("support", f"x [{L}]", "extreme", f"{symbol} [{unit}]",
@@ -321,10 +338,11 @@ def sections_table(results: EnvelopeResults) -> TableData:
     decimals["shear_left"] = decimals["shear_right"] = max(decimals["shear_left"],
                                                            decimals["shear_right"])
     rows = []
+    x_places = _position_decimals(results.sections)  # every row of the column alike
     for i, x in enumerate(results.sections):
         span, support = span_of_section(results.beam, float(x))
         where = f"{span + 1}, support {support}" if support is not None else str(span + 1)
-        rows.append((_length(x), where,
+        rows.append((_fixed(float(x), x_places), where,
                      *(_fixed(arrays[c][i], decimals[c[0]]) for c in columns)))
     headers = (f"x\n[{L}]", "span", f"M max\n[{M}]", f"M min\n[{M}]", f"V max left\n[{V}]",
                f"V min left\n[{V}]", f"V max right\n[{V}]", f"V min right\n[{V}]",
@@ -377,19 +395,23 @@ def input_tables(results: EnvelopeResults) -> list[TableData]:
     return tables
 
 
-def to_rich(table: TableData) -> Table:
-    """A TableData for the terminal; cells are plain text, never markup."""
+def to_rich(table: TableData, compact: bool = False) -> Table:
+    """A TableData for the terminal; cells are plain text, never markup. ``compact``: no
+    frame above and below and no rules between groups, a rule under the headings only (the
+    short default view of ``trundle envelope``)."""
     # names and titles come from model files: no control character reaches the terminal
     out = Table(title=Text(terminal_text(table.title), style="bold"), title_justify="left",
                 caption=Text(terminal_text(table.note)) if table.note else None,
-                caption_justify="left")
+                caption_justify="left",
+                **({"box": box.SIMPLE_HEAD, "show_edge": False, "padding": (0, 1, 0, 0),
+                    "pad_edge": False} if compact else {}))
     numeric = table.numeric or (False,) * len(table.columns)
     for name, right in zip(table.columns, numeric, strict=True):
         # fold, never cut: a truncated name or number in a calculation is worse than a wrap
         out.add_column(Text(clean_text(name, keep_newlines=True)),
                        justify="right" if right else "left",
                        overflow="fold")
-    starts = set(table.groups[1:])
+    starts = set() if compact else set(table.groups[1:])
     for i, row in enumerate(table.rows):
         if i in starts:
             out.add_section()
@@ -428,17 +450,17 @@ def envelope_csv(results: EnvelopeResults) -> str:
     """One row per section: x, span, support, every max/min with what governs it, and the
     shear acting together with the max and min moment."""
     units = results.units
-    L = units.ascii_label("length")
+    L = units.label("length")  # headings spell units as every other output does
     header = [f"x [{L}]", "span", "support"]
     columns: list[tuple[str, str, bool]] = []
     for family in SECTION_FAMILIES:
         for which in ("max", "min"):
             sided = family.startswith("shear")
             name = f"{FAMILY_NAMES[family]} {which}"
-            header += _extreme_columns(name, quantity_unit(family, units, True), L, sided)
+            header += _extreme_columns(name, quantity_unit(family, units), L, sided)
             columns.append((family, which, sided))
             if family == "moment":
-                force = units.ascii_label("force")
+                force = units.label("force")
                 header += [f"{name}: concurrent shear left [{force}]",
                            f"{name}: concurrent shear right [{force}]"]
     extremes = {(f, w): section_extremes(results, f, w) for f, w, _ in columns}
@@ -459,7 +481,7 @@ def envelope_csv(results: EnvelopeResults) -> str:
 def reactions_csv(results: EnvelopeResults) -> str:
     """One row per support: max and min reaction (and support moment where there is one)."""
     units = results.units
-    L = units.ascii_label("length")
+    L = units.label("length")
     beam = results.beam
     families = ["reaction"] + (["support_moment"]
                                if results.env.index["support_moment"].size else [])
@@ -467,7 +489,7 @@ def reactions_csv(results: EnvelopeResults) -> str:
     for family in families:
         for which in ("max", "min"):
             header += _extreme_columns(f"{FAMILY_NAMES[family]} {which}",
-                                       quantity_unit(family, units, True), L, False)
+                                       quantity_unit(family, units), L, False)
     extremes = {(f, w): support_extremes(results, f, w) for f in families
                 for w in ("max", "min")}
     rows = []

@@ -31,6 +31,7 @@ from trundle.report import CAUTION
 from trundle.report.safe_text import figure_text
 from trundle.report.tables import (
     effect_label,
+    extreme_ordinate_cells,
     format_length,
     line_extremes,
     ordinate_units,
@@ -326,8 +327,9 @@ def _shown_extremes(extremes: dict[str, Any]) -> list[tuple[str, float, float]]:
 
 def _extremes_words(extremes: dict[str, Any], units: UnitSystem) -> str:
     unit = units.label("length")
-    words = [f"{name} {value:#.4g} at {x:.4g} {unit}"
-             for name, value, x in _shown_extremes(extremes)]
+    cells = extreme_ordinate_cells(extremes)  # as the extremes table writes them
+    words = [f"{name} {cells[name]} at {cells['x_' + name]} {unit}"
+             for name, _, _ in _shown_extremes(extremes)]
     return (": " + ", ".join(words) + " (● max, ○ min)") if words else ""
 
 

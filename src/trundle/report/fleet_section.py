@@ -68,7 +68,7 @@ def _csv(table: pa.Table, comment: str) -> str:
 
 
 def _unit(quantity: str, units: Any) -> str:
-    return units.ascii_label(quantity) if quantity in ("moment", "force") else ""
+    return units.label(quantity) if quantity in ("moment", "force") else ""
 
 
 def fleet_summary_table(result: Any) -> pa.Table:

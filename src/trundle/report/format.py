@@ -15,6 +15,9 @@
   "3.72569e+07"), so that it reads like the results beside it; an exponent only beyond
   1e15 or below 1e-6.
 - :func:`position` — where a load stands: to a thousandth of the length unit.
+- :func:`marked` — a value found by a sampled search (not certified: it may read low) as
+  every table and figure shows it: the value, then " *"; :data:`NOT_CERTIFIED_WORDS` says
+  what the mark means in a legend or a caption.
 - :func:`verdict_cell` — the verdict of a check (decided in :mod:`trundle.analysis.checks`,
   never here) as every output shows it: "PASS", "EXCEEDS", or "—" where nothing is checked.
 """
@@ -25,6 +28,8 @@ import math
 from collections.abc import Iterable
 
 NO_VALUE = "—"
+NOT_CERTIFIED_MARK = "*"
+NOT_CERTIFIED_WORDS = "* not certified: found by a sampled search, may read low"
 
 
 def number(value: float | None) -> str:
@@ -97,3 +102,9 @@ def position(x: float | None) -> str:
 def verdict_cell(verdict: str | None) -> str:
     """A check's verdict as shown in every output ("—" where nothing is checked)."""
     return NO_VALUE if verdict is None else verdict
+
+
+def marked(text: str, certified: bool) -> str:
+    """A value's text with the mark of a value that is not certified ("495.5 *"), so a
+    figure flags it exactly where a table does."""
+    return text if certified else f"{text} {NOT_CERTIFIED_MARK}"

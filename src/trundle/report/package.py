@@ -17,8 +17,8 @@ from markupsafe import Markup
 
 from trundle.io.project import ProjectInfo, project_of
 from trundle.report.envelope_data import EnvelopeResults, Extreme, TableData
-from trundle.report.format import length as _length
 from trundle.report.format import number as _number
+from trundle.report.format import position as _position
 
 # The rows of a per-section table the report body keeps: tenth points and supports.
 BODY_SECTIONS = "tenth points and supports"
@@ -118,7 +118,7 @@ def stretches_text(extreme: Extreme | None) -> str:
     """The loaded stretches of a placed load, "a–b; c–d" [length]; "" for a moving load."""
     if extreme is None or not extreme.loaded:
         return ""
-    return "; ".join(f"{_length(a)}–{_length(b)}" for a, b in extreme.loaded)
+    return "; ".join(f"{_position(a)}–{_position(b)}" for a, b in extreme.loaded)
 
 
 def stretches_csv(extreme: Extreme | None) -> str:

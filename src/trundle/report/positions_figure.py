@@ -17,6 +17,7 @@ from matplotlib.axes import Axes
 from matplotlib.figure import Figure
 
 from trundle.report.crane_data import runway_report, runway_spans, support_reactions
+from trundle.report.crane_tables import runway_decimals
 from trundle.report.envelope_data import (
     EnvelopeResults,
     Extreme,
@@ -25,11 +26,15 @@ from trundle.report.envelope_data import (
     span_summaries,
     support_extremes,
 )
+from trundle.report.envelope_tables import table_decimals
 from trundle.report.figures import INK, MUTED, figure_style, new_figure, plot_beam
+from trundle.report.format import fixed as _fixed
+from trundle.report.format import marked
 from trundle.report.format import position as _position
 from trundle.report.safe_text import figure_text
 
 POSITIONS_FIGURE = "load-positions"
+NOT_CERTIFIED_SHORT = "* not certified: may read low"  # fits a half-width panel's heading
 _TITLE_WIDTH = 62  # characters per title line of a half-width panel
 
 
@@ -51,6 +56,8 @@ def governing_panels(results: EnvelopeResults) -> list[Panel]:
         return panels
     units = results.units
     M, R = quantity_unit("moment", units), quantity_unit("reaction", units)
+    # values as their tables write them; "*" on a value a sampled search found
+    d_moment, d_reaction = table_decimals(results, "moment"), table_decimals(results, "reaction")
     panels = []
     for s in span_summaries(results):
         for which, at, anywhere in (("max", s.moment_max, s.absolute_max),
@@ -62,11 +69,12 @@ def governing_panels(results: EnvelopeResults) -> list[Panel]:
             if not e.governed or sign * e.value <= 0.0:
                 continue
             word = "sagging" if which == "max" else "hogging"
-            panels.append(Panel(f"span {s.span + 1}, {word}: M = {e.value:.4g} {M} at x = "
-                                f"{_position(e.x)}", e, f"M {which}"))
+            panels.append(Panel(f"span {s.span + 1}, {word}: "
+                                f"{_moment_words(e, d_moment, M)}", e, f"M {which}"))
     for k, e in sorted(support_extremes(results, "reaction", "max").items()):
         if e.governed and e.value > 0.0:
-            panels.append(Panel(f"support {k}: R max = {e.value:.4g} {R}", e, f"R {k}"))
+            panels.append(Panel(f"support {k}: R max = {_fixed(e.value, d_reaction)} {R}", e,
+                                f"R {k}"))
     return panels
 
 
@@ -80,6 +88,7 @@ def _crane_panels(results: EnvelopeResults) -> list[Panel]:
         return []
     units = results.units
     M, R = quantity_unit("moment", units), quantity_unit("reaction", units)
+    d_moment, d_reaction = runway_decimals(report, "moment"), runway_decimals(report, "reaction")
     panels = []
     for s in runway_spans(report):
         p = s.moment_anywhere if (s.moment_anywhere is not None and s.moment_anywhere.governed
@@ -87,14 +96,22 @@ def _crane_panels(results: EnvelopeResults) -> list[Panel]:
                                   > s.moment_max.extreme.value) else s.moment_max
         e = p.extreme
         if p.governed and e.value > 0.0:
-            panels.append(Panel(f"cranes, span {s.span + 1}: M max = {e.value:.4g} {M} at "
-                                f"x = {_position(e.x)}", e, "M max"))
+            panels.append(Panel(f"cranes, span {s.span + 1}: "
+                                f"{_moment_words(e, d_moment, M, ' max')}", e, "M max"))
     for r in support_reactions(report):
         e = r.max_with_impact.extreme
         if r.max_with_impact.governed and e.value > 0.0:
-            panels.append(Panel(f"cranes, support {r.support}: R max = {e.value:.4g} {R}", e,
-                                f"R {r.support}"))
+            panels.append(Panel(f"cranes, support {r.support}: R max = "
+                                f"{_fixed(e.value, d_reaction)} {R}", e, f"R {r.support}"))
     return panels
+
+
+def _moment_words(e: Extreme, places: int, unit: str, which: str = "") -> str:
+    """"M = 495.5 kN·m at x = 10.481" as the moment table writes it; a value a sampled
+    search found is marked "*" and says so, as the table does."""
+    words = f"M{which} = {marked(_fixed(e.value, places), e.certified)} {unit} at x = " \
+        f"{_position(e.x)}"
+    return words if e.certified else f"{words} ({NOT_CERTIFIED_SHORT})"
 
 
 def _configuration_words(e: Extreme, length_unit: str) -> str:
@@ -132,15 +149,18 @@ def draw_panel(ax: Axes, results: EnvelopeResults, panel: Panel) -> None:
     span = max(highs) - min(lows)
     ax.set_xlim(min(lows) - 0.03 * span, max(highs) + 0.03 * span)
     words = _configuration_words(e, units.label("length"))
-    heading = figure_text(f"{panel.heading}\n{_wrap(words)}", parse_math=False)
+    # the heading whole (a value's mark and what it means are never elided), the
+    # configuration on at most two lines
+    heading = figure_text(f"{_wrap(panel.heading, elide=False)}\n{_wrap(words)}",
+                          parse_math=False)
     ax.set_title(heading, fontsize=7, color=INK, loc="left", pad=12)
 
 
-def _wrap(text: str) -> str:
+def _wrap(text: str, elide: bool = True) -> str:
     import textwrap
 
     lines = textwrap.wrap(text, _TITLE_WIDTH) or [""]
-    if len(lines) > 2:  # a long placement: two lines, the rest elided
+    if elide and len(lines) > 2:  # a long placement: two lines, the rest elided
         lines = [lines[0], lines[1][: _TITLE_WIDTH - 1] + "…"]
     return "\n".join(lines)
 

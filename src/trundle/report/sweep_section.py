@@ -3,7 +3,8 @@
 :func:`sweep_files` turns a :class:`trundle.workflows.sweep.SweepResult` and its
 :class:`~trundle.io.outputs.Provenance` into finished file contents (``sweep.csv`` with the
 provenance as its first comment line, ``sweep.json``, ``sweep.<format>`` and the report page
-``sweep.html`` with the cautions), for :func:`trundle.io.outputs.write_output_set`. One swept
+``sweep.html`` with the cautions and the figure drawn inline as SVG, like every other report),
+for :func:`trundle.io.outputs.write_output_set`. One swept
 number gives a line figure (one panel per effect), two give contour plots. Every figure and
 table labels the swept numbers by their model path and unit and the effects by what they are
 and their unit; the figure carries the caution. Numbers are written by
@@ -12,7 +13,6 @@ and their unit; the figure carries the caution. Numbers are written by
 
 from __future__ import annotations
 
-import base64
 import html
 import math
 from collections.abc import Sequence
@@ -25,8 +25,17 @@ from trundle.io.outputs import Provenance
 from trundle.report import CAUTION, LOAD_MODEL_CAUTION
 from trundle.report.envelope_data import display_factor, quantity_unit
 from trundle.report.export import csv_text, json_text
-from trundle.report.figures import INK, MUTED, PALETTE, SEQUENTIAL, figure_bytes, new_figure
+from trundle.report.figures import (
+    INK,
+    MUTED,
+    PALETTE,
+    SEQUENTIAL,
+    figure_bytes,
+    new_figure,
+    wrapped,
+)
 from trundle.report.format import decimals, fixed, length, number
+from trundle.report.package import inline_svg
 from trundle.workflows.sweep import NOT_CERTIFIED, SweepResult, effect_family
 
 CAUTIONS = (CAUTION, LOAD_MODEL_CAUTION,
@@ -56,10 +65,10 @@ def effect_title(result: SweepResult, effect: int, ascii_only: bool = False) -> 
 def sweep_rows(result: SweepResult) -> tuple[list[str], list[list[str]]]:
     """(header, rows): per point the swept values, then per effect its value, where it
     occurs (x of the section, or the support) and the governing load."""
-    length = result.units.ascii_label("length")
+    length = result.units.label("length")
     header = [axis_title(result, a) for a in range(len(result.axes))]
     for e, selector in enumerate(result.effects):
-        header.append(effect_title(result, e, ascii_only=True))
+        header.append(effect_title(result, e))
         if selector.kind in ("reaction", "support_moment"):
             header.append(f"{selector.label}: support")
         else:
@@ -76,6 +85,26 @@ def sweep_rows(result: SweepResult) -> tuple[list[str], list[list[str]]]:
             else:
                 row.append(number(result.x[p, e]))
             row.append(result.load[p][e])
+        rows.append(row)
+    return header, rows
+
+
+def people_rows(result: SweepResult) -> tuple[list[str], list[list[str]]]:
+    """The rows of :func:`sweep_rows` written for people: swept values and positions as
+    lengths, each effect's column with the decimals that give its largest value five
+    significant digits (the terminal's table uses the same)."""
+    header, _ = sweep_rows(result)
+    columns = [column_text(displayed(result, e)) for e in range(len(result.effects))]
+    rows = []
+    for p, point in enumerate(result.points):
+        row = [length(v) for v in point]
+        for e, selector in enumerate(result.effects):
+            row.append(columns[e][p])
+            if selector.kind in ("reaction", "support_moment"):
+                row.append(str(int(result.support[p, e])))
+            else:
+                row.append(length(result.x[p, e]))
+            row.append(result.load[p][e] or "—")
         rows.append(row)
     return header, rows
 
@@ -116,8 +145,9 @@ def _short(value: float) -> str:
 def sweep_figure(result: SweepResult, title: str = "") -> Figure:
     """A line figure (one swept number) or contours (two), one panel per effect."""
     n = len(result.effects)
+    width = 6.8
     if len(result.axes) == 1:
-        figure = new_figure(6.8, 1.0 + 1.9 * n)
+        figure = new_figure(width, 1.0 + 1.9 * n)
         axes = figure.subplots(n, 1, sharex=True, squeeze=False)[:, 0]
         x = result.points[:, 0]
         for e, ax in enumerate(axes):
@@ -126,16 +156,17 @@ def sweep_figure(result: SweepResult, title: str = "") -> Figure:
                     marker="o" if len(x) <= 40 else None, markersize=2.5)
             p = result.worst(e)
             ax.plot([x[p]], [y[p]], marker="D", color=INK, markersize=4, linestyle="none")
-            right_half = x[p] > 0.5 * (x.min() + x.max())
-            ax.annotate(f"{_short(y[p])} at {length(x[p])}", (x[p], y[p]),
-                        textcoords="offset points", xytext=(-6 if right_half else 6, -10),
-                        ha="right" if right_half else "left", fontsize=7, color=INK)
-            ax.set_ylabel(_wrapped(effect_title(result, e), 26))
-        axes[-1].set_xlabel(_wrapped(axis_title(result, 0), 80))
+            # the worst value above the panel, never over the curve (the diamond marks it)
+            ax.set_title(f"worst: {_short(y[p])} at {length(x[p])} {result.axes[0].unit}",
+                         loc="right", fontsize=7, color=INK)
+            # a label runs along the panel's height (1.9 in): wrapped to fit it
+            ax.set_ylabel(wrapped(effect_title(result, e), 1.7, 8.5))
+        axes[-1].set_xlabel(wrapped(axis_title(result, 0), width - 0.6, 8.5))
     else:
         columns = 1 if n == 1 else 2
         rows = math.ceil(n / columns)
-        figure = new_figure(3.6 * columns + 0.4, 0.9 + 3.0 * rows)
+        width = 3.6 * columns + 0.4
+        figure = new_figure(width, 0.9 + 3.0 * rows)
         grid = figure.subplots(rows, columns, squeeze=False)
         x1, x2 = (np.asarray(r.values) for r in result.axes)
         for e in range(rows * columns):
@@ -147,31 +178,22 @@ def sweep_figure(result: SweepResult, title: str = "") -> Figure:
             filled = ax.contourf(x1, x2, z.T, levels=12, cmap=SEQUENTIAL)
             ax.contour(x1, x2, z.T, levels=filled.levels, colors=MUTED, linewidths=0.3)
             bar = figure.colorbar(filled, ax=ax)
-            bar.set_label(_wrapped(effect_title(result, e)))
+            bar.set_label(wrapped(effect_title(result, e), 2.6, 8.5))
             p = result.worst(e)
             ax.plot([result.points[p, 0]], [result.points[p, 1]], marker="D", color="white",
                     markeredgecolor=INK, markersize=5, linestyle="none")
-            ax.set_xlabel(_wrapped(axis_title(result, 0), 36))
-            ax.set_ylabel(_wrapped(axis_title(result, 1), 36))
+            ax.set_xlabel(wrapped(axis_title(result, 0), 2.6, 8.5))
+            ax.set_ylabel(wrapped(axis_title(result, 1), 2.6, 8.5))
     heading = title or result.spec.title
-    figure.suptitle(_wrapped(f"What-if sweep: {heading}", 90), fontsize=9)
-    # the caution sits in a strip the layout keeps free, so it never covers a label
-    figure.get_layout_engine().set(rect=(0.0, 0.03, 1.0, 0.97))
-    figure.text(0.01, 0.004, CAUTION, fontsize=6, color=MUTED, ha="left", va="bottom")
+    # wrapped to the figure's width (less the margins), so the title is never clipped
+    figure.suptitle(wrapped(f"What-if sweep: {heading}", width - 0.4, 9), fontsize=9)
+    # the caution sits in a strip the layout keeps free (as tall as its lines), so it never
+    # covers a label
+    caution = wrapped(CAUTION, width - 0.2, 6)
+    strip = (caution.count("\n") + 1) * 7.5 / 72.0 / figure.get_figheight()
+    figure.get_layout_engine().set(rect=(0.0, strip + 0.005, 1.0, 1.0 - strip - 0.005))
+    figure.text(0.01, 0.004, caution, fontsize=6, color=MUTED, ha="left", va="bottom")
     return figure
-
-
-def _wrapped(text: str, width: int = 44) -> str:
-    """Break a long label at spaces so it is never clipped."""
-    words, lines, line = text.split(), [], ""
-    for word in words:
-        if line and len(line) + 1 + len(word) > width:
-            lines.append(line)
-            line = word
-        else:
-            line = f"{line} {word}".strip()
-    lines.append(line)
-    return "\n".join(lines)
 
 
 def sweep_json(result: SweepResult, provenance: Provenance | None = None) -> str:
@@ -204,22 +226,26 @@ def sweep_json(result: SweepResult, provenance: Provenance | None = None) -> str
 
 
 def sweep_html(result: SweepResult, provenance: Provenance | None = None,
-               png: bytes | None = None) -> str:
+               svg: bytes | None = None) -> str:
     """The sweep's report page: what was swept, the worst points, the figure, every point,
-    the notes and the cautions (self-contained: the figure is a PNG data URI)."""
+    the notes and the cautions (self-contained: the figure is drawn inline as SVG, like the
+    figures of every other report). Every point's values are written for people (the same
+    decimals down a column, :mod:`trundle.report.format`); sweep.csv has them in full."""
     provenance = provenance or Provenance()
     e = html.escape
     cautions = "".join(f"<li>{e(c)}</li>" for c in CAUTIONS)
     notes = "".join(f"<p class='note'>Note: {e(n)}</p>" for n in result.spec.notes)
     worst = "".join(f"<tr><td>{e(effect)}</td><td class='num'>{e(value)}</td>"
                     f"<td>{e(where)}</td></tr>" for effect, value, where in worst_points(result))
-    header, rows = sweep_rows(result)
+    header, rows = people_rows(result)
     head = "".join(f"<th>{e(h)}</th>" for h in header)
-    body = "".join("<tr>" + "".join(f"<td>{e(c)}</td>" for c in row) + "</tr>" for row in rows)
+    numeric = [not h.endswith(": load") and not h.endswith(": support") for h in header]
+    body = "".join("<tr>" + "".join(
+        f"<td class='num'>{e(c)}</td>" if right else f"<td>{e(c)}</td>"
+        for c, right in zip(row, numeric, strict=True)) + "</tr>" for row in rows)
     figure = ""
-    if png is not None:
-        uri = "data:image/png;base64," + base64.b64encode(png).decode("ascii")
-        figure = f"<figure><img src='{uri}' alt='sweep figure'></figure>"
+    if svg is not None:
+        figure = f"<figure>{inline_svg(svg, 's1-')}</figure>"
     swept = "; ".join(f"{a.name} from {length(a.values[0])} to {length(a.values[-1])} "
                       f"{a.unit} ({len(a.values)} values)" for a in result.axes)
     return f"""<!DOCTYPE html>
@@ -233,7 +259,9 @@ def sweep_html(result: SweepResult, provenance: Provenance | None = None,
             padding: 0.6rem 1rem; font-weight: 600; }}
  table {{ border-collapse: collapse; font-size: 0.85rem; margin: 0.5rem 0 1rem; }}
  th, td {{ padding: 0.2rem 0.6rem; border-bottom: 1px solid #d9dde1; text-align: left; }}
- td.num {{ text-align: right; }} img {{ max-width: 100%; }}
+ td.num {{ text-align: right; font-variant-numeric: tabular-nums; }}
+ figure {{ margin: 0.6rem 0 1.6rem; }}
+ figure svg.figure {{ display: block; width: 100%; max-width: 54rem; height: auto; }}
  .wrap {{ overflow-x: auto; }}
 </style></head><body>
 <p>WHAT-IF SWEEP</p><h1>{e(result.spec.title)}</h1>
@@ -258,12 +286,13 @@ def sweep_files(result: SweepResult, provenance: Provenance | None = None,
     files: dict[str, bytes | str] = {"sweep.csv": sweep_csv(result, provenance),
                                      "sweep.json": sweep_json(result, provenance)}
     figure = sweep_figure(result) if (with_figure or with_report) else None
-    png = figure_bytes(figure, "png") if figure is not None else None
+    svg = figure_bytes(figure, "svg") if figure is not None and (
+        with_report or figure_format == "svg") else None
     if with_figure and figure is not None:
-        files[f"sweep.{figure_format}"] = png if figure_format == "png" else \
-            figure_bytes(figure, figure_format)
+        files[f"sweep.{figure_format}"] = svg if figure_format == "svg" and svg is not None \
+            else figure_bytes(figure, figure_format)
     if with_report:
-        files["sweep.html"] = sweep_html(result, provenance, png)
+        files["sweep.html"] = sweep_html(result, provenance, svg)
     return files
 
 

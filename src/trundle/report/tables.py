@@ -26,6 +26,7 @@ from trundle.report.export import csv_text, json_text
 from trundle.report.format import fixed as _cell
 from trundle.report.format import length as format_length
 from trundle.report.format import number as _number
+from trundle.report.format import position as format_position
 from trundle.report.format import significant
 from trundle.report.safe_text import clean_text
 
@@ -161,10 +162,10 @@ def lines_csv(lines: InfluenceSet, beam: Beam, units: UnitSystem, sampled: Sampl
               provenance: Provenance | None = None) -> str:
     """CSV text: the provenance comment, a position column, a limit column, one column per
     line (unit in the header)."""
-    header = [f"x [{units.ascii_label('length')}]", "limit"]
+    header = [f"x [{units.label('length')}]", "limit"]
     for effect in lines.effects:
         header.append(f"{effect_label(effect, beam, units)} "
-                      f"[{ordinate_units(effect, units).ascii}]")
+                      f"[{ordinate_units(effect, units).label}]")
     return csv_text(header, ([_number(x), limit, *(_number(v) for v in row)]
                              for x, limit, row in zip(sampled.x, sampled.limit, sampled.values,
                                                       strict=True)), provenance)
@@ -256,6 +257,15 @@ def _decimals(values: NDArray[np.float64], significant: int = 5) -> int:
     return int(min(8, max(0, significant - 1 - math.floor(math.log10(biggest)))))
 
 
+def extreme_ordinate_cells(ex: dict[str, Any]) -> dict[str, str]:
+    """The largest and smallest ordinate of a line and where they are, as the extremes table
+    writes them (values with the line's decimals, positions to a thousandth); the figures'
+    legends write them with this too."""
+    d = _decimals(np.array([ex["max"], ex["min"]]))
+    return {"max": _cell(ex["max"], d), "min": _cell(ex["min"], d),
+            "x_max": format_position(ex["x_max"]), "x_min": format_position(ex["x_min"])}
+
+
 def extremes_table(lines: InfluenceSet, beam: Beam, units: UnitSystem) -> Table:
     """One row per line: largest and smallest ordinate, where they occur, signed areas."""
     length = units.label("length")
@@ -271,10 +281,10 @@ def extremes_table(lines: InfluenceSet, beam: Beam, units: UnitSystem) -> Table:
     table.add_column(Text("area unit"))
     for effect, ex in zip(lines.effects, line_extremes(lines, beam, units), strict=True):
         ou = ordinate_units(effect, units)
-        d = _decimals(np.array([ex["max"], ex["min"]]))
+        cells = extreme_ordinate_cells(ex)
         da = _decimals(np.array([ex["area_positive"], ex["area_negative"]]))
-        _add_row(table, effect_label(effect, beam, units), ou.label, _cell(ex["max"], d),
-                      format_length(ex["x_max"]), _cell(ex["min"], d), format_length(ex["x_min"]),
+        _add_row(table, effect_label(effect, beam, units), ou.label, cells["max"],
+                      cells["x_max"], cells["min"], cells["x_min"],
                       _cell(ex["area_positive"], da), _cell(ex["area_negative"], da),
                       ou.area_label)
     return table
@@ -321,7 +331,7 @@ def ordinates_tables(lines: InfluenceSet, beam: Beam, units: UnitSystem,
         table.add_section()
         for name, key, where in (("max", "max", "x_max"), ("min", "min", "x_min")):
             cells = [f"{_cell(extremes[j][key], decimals[j])} @ "
-                     f"{format_length(extremes[j][where])}" for j in chosen]
+                     f"{format_position(extremes[j][where])}" for j in chosen]
             _add_row(table, "", name, *cells)
         tables.append(table)
     return tables

@@ -33,7 +33,7 @@ from numpy.typing import NDArray
 
 from trundle.scan._config import JIT_OPTIONS, PARALLEL_OPTIONS
 from trundle.scan.engine import PRUNE_FROM_PIECES, LineBatch
-from trundle.scan.kernels import _scan_chunk
+from trundle.scan.kernels import _WORK_ROWS, _WORK_WIDTH, _scan_chunk
 
 N_COLUMNS = 8
 
@@ -52,6 +52,11 @@ def _fleet_truck(truck, out, line_knots, n_pieces, line_coef, line_running, runn
     kind = np.zeros(n_axles, dtype=np.int64)  # every axle is a concentrated load
     forward = np.empty((1, n_axles))
     backward = np.empty((1, n_axles))
+    # the loop body's work arrays (as ``kernels.scan_workspace``)
+    piece = np.empty(n_axles, dtype=np.int64)
+    upcoming = np.empty(n_axles)
+    arrived = np.empty(n_axles, dtype=np.bool_)
+    work = np.empty((_WORK_ROWS, _WORK_WIDTH))
     for a in range(n_axles):
         weight[a] = axle_weight[a0 + a]
         forward[0, a] = axle_offset[a0 + a]
@@ -77,7 +82,8 @@ def _fleet_truck(truck, out, line_knots, n_pieces, line_coef, line_running, runn
         # every line of the bridge is one row of the single-vehicle loop body
         _scan_chunk(first_row, n_lines, line_knots, n_pieces, line_coef, line_running,
                     running_end, head, tail, peak, weight, kind, offsets, all_lines, 0.0,
-                    degree, confined, prune, own_knot, own_value, end_live, found)
+                    degree, confined, prune, own_knot, own_value, end_live, found, piece,
+                    upcoming, arrived, work)
         for line in range(n_lines):
             # the envelope's rule: strictly better, and a real position (not the empty beam)
             if not np.isnan(found[line, 1]) and found[line, 0] > out[truck, line, 0]:

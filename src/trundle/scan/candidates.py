@@ -21,11 +21,16 @@ from numba import njit
 
 from trundle.scan._config import JIT_OPTIONS
 from trundle.scan.kernels import (
+    _CRIT,
+    _POLY,
+    _ROOTS,
+    _SHIFT,
+    _WORK_ROWS,
+    _WORK_WIDTH,
     KIND_POINT,
     _advance_terms,
     _critical_points,
     _horner,
-    _next_event,
     _piece_polynomial,
     _place_terms,
     _point_value,
@@ -85,65 +90,86 @@ def block_candidates(knots, m, coef, running, end_value, weight, kind, offset, d
         return k
     piece = np.empty(n_terms, dtype=np.int64)
     upcoming = np.empty(n_terms)
-    arrived = np.zeros(n_terms, dtype=np.bool_)
-    scratch = np.empty(23)
-    poly = scratch[0:5]
-    crit = scratch[5:8]
-    work = scratch[8:13]
-    roots = scratch[13:23]
+    arrived = np.empty(n_terms, dtype=np.bool_)
+    work = np.empty((_WORK_ROWS, _WORK_WIDTH))
+    poly = work[_POLY]
+    shift = work[_SHIFT]
+    crit = work[_CRIT]
+    roots = work[_ROOTS]
+    # written as single statements, not tuples: numba compiles tuple packing slowly
     if not restricted:
-        pos[k], val[k], side[k] = lo, 0.0, -1.0  # every term still left of the beam
+        pos[k] = lo  # every term still left of the beam
+        val[k] = 0.0
+        side[k] = -1.0
         k += 1
     xi = lo
     at_end = _place_terms(xi, offset, kind, knots, m, piece, upcoming, arrived)
-    if live and at_end:
-        pos[k] = xi
-        val[k] = _point_value(xi, offset, piece, arrived, knots, m, coef, running, end_value,
-                              weight, kind, own, own_value, 0.0)
-        side[k] = 0.0
-        k += 1
-    while xi < hi:
-        nxt = _next_event(upcoming, n_terms, hi)
-        width = nxt - xi
-        if width > 0.0:
-            _piece_polynomial(poly, 0.0, piece, kind, weight, offset, n_terms, xi, knots, coef,
-                              running, m, end_value, work)
-            pos[k], val[k], side[k] = xi, poly[0], 1.0
-            k += 1
-            n_crit = _critical_points(poly, degree, width, crit, roots)
-            for c in range(n_crit):
-                pos[k], val[k], side[k] = xi + crit[c], _horner(poly, degree, crit[c]), 0.0
-                k += 1
-            pos[k], val[k], side[k] = nxt, _horner(poly, degree, width), -1.0
-            k += 1
-        at_end = _advance_terms(nxt, offset, kind, knots, m, piece, upcoming, arrived)
-        xi = nxt
+    while True:
         if live and at_end:
             pos[k] = xi
             val[k] = _point_value(xi, offset, piece, arrived, knots, m, coef, running,
                                   end_value, weight, kind, own, own_value, 0.0)
             side[k] = 0.0
             k += 1
+        if not xi < hi:
+            break
+        nxt = hi  # the nearest break ahead (a term reaching its next piece)
+        for t in range(n_terms):
+            if upcoming[t] < nxt:
+                nxt = upcoming[t]
+        width = nxt - xi
+        if width > 0.0:
+            _piece_polynomial(poly, 0.0, piece, kind, weight, offset, n_terms, xi, knots, coef,
+                              running, m, end_value, shift)
+            n_crit = _critical_points(poly, degree, width, crit, roots)
+            # the piece's start, its critical points, its end
+            for c in range(n_crit + 2):
+                if c == 0:
+                    pos[k] = xi
+                    val[k] = poly[0]
+                    side[k] = 1.0
+                elif c <= n_crit:
+                    pos[k] = xi + crit[c - 1]
+                    val[k] = _horner(poly, degree, crit[c - 1])
+                    side[k] = 0.0
+                else:
+                    pos[k] = nxt
+                    val[k] = _horner(poly, degree, width)
+                    side[k] = -1.0
+                k += 1
+        at_end = _advance_terms(nxt, offset, kind, knots, m, piece, upcoming, arrived)
+        xi = nxt
     if not restricted:
         beyond = 0.0  # every term right of the beam: uniform loads read all of ∫₀ᴸ IL
         for t in range(n_terms):
             if kind[t] != KIND_POINT:
                 beyond += weight[t] * end_value
-        pos[k], val[k], side[k] = hi, beyond, 1.0
+        pos[k] = hi
+        val[k] = beyond
+        side[k] = 1.0
         k += 1
     return k
 
 
 @njit(**JIT_OPTIONS)
 def _sort_block(pos, val, side, start, stop):
-    """Candidates start … stop − 1 in increasing position (the sweep emits them nearly so)."""
-    order = np.argsort(pos[start:stop], kind="mergesort")
-    p = pos[start:stop][order]
-    v = val[start:stop][order]
-    s = side[start:stop][order]
-    pos[start:stop] = p
-    val[start:stop] = v
-    side[start:stop] = s
+    """Candidates start … stop − 1 in increasing position, equal positions in the order they
+    were written (a stable sort). The sweep writes them in order but for the few critical
+    points of one piece, so an insertion sort does linear work here (and compiles in a
+    fraction of the time numpy's argsort and fancy indexing take on a first run)."""
+    for i in range(start + 1, stop):
+        p = pos[i]
+        v = val[i]
+        s = side[i]
+        j = i - 1
+        while j >= start and pos[j] > p:
+            pos[j + 1] = pos[j]
+            val[j + 1] = val[j]
+            side[j + 1] = side[j]
+            j -= 1
+        pos[j + 1] = p
+        val[j + 1] = v
+        side[j + 1] = s
 
 
 @njit(**JIT_OPTIONS)

@@ -230,25 +230,34 @@ class LineBatch:
             out[degree - k] = total
         return out
 
-    def running_at(self, x: NDArray[np.float64]) -> NDArray[np.float64]:
-        """F(x) for every line, (len(x), n); F = 0 left of the beam and F(L) right of it."""
+    def _rows(self, lines: NDArray[np.int64] | None, *arrays: NDArray) -> tuple[NDArray, ...]:
+        """``arrays`` (one row per line) for every line, or only for ``lines``: a few lines'
+        values cost a few lines' work, so a value per section stays linear in sections."""
+        return arrays if lines is None else tuple(a[lines] for a in arrays)
+
+    def running_at(self, x: NDArray[np.float64], lines: NDArray[np.int64] | None = None
+                   ) -> NDArray[np.float64]:
+        """F(x) for every line (or for ``lines``), (len(x), n); F = 0 left of the beam and
+        F(L) right of it."""
         x = np.asarray(x, dtype=float)
-        out = evaluate_lines(self.line_knots, self.n_pieces, self.line_running,
-                             np.clip(x, 0.0, self.length), False)
+        knots, n_pieces, running, end = self._rows(lines, self.line_knots, self.n_pieces,
+                                                   self.line_running, self.running_end)
+        out = evaluate_lines(knots, n_pieces, running, np.clip(x, 0.0, self.length), False)
         out[x <= 0.0] = 0.0
-        out[x >= self.length] = self.running_end
+        out[x >= self.length] = end
         return out
 
-    def ordinates(self, x: NDArray[np.float64], side: str) -> NDArray[np.float64]:
-        """IL(x) for every line, (len(x), n), as the one-sided limit from ``side`` ("left",
-        "right"), or for a load standing exactly at x (``side="point"``).
+    def ordinates(self, x: NDArray[np.float64], side: str,
+                  lines: NDArray[np.int64] | None = None) -> NDArray[np.float64]:
+        """IL(x) for every line (or for ``lines``), (len(x), n), as the one-sided limit from
+        ``side`` ("left", "right"), or for a load standing exactly at x (``side="point"``).
 
         A load approaching an end of the beam from outside reads nothing: the left-hand limit
         is zero at x ≤ 0 and the right-hand limit zero at x ≥ L. A load standing on an end
         is on the beam; one standing on a shear line's own section reads ``own_value``.
         """
         if side == "point":
-            return self._point_ordinates(np.asarray(x, dtype=float))
+            return self._point_ordinates(np.asarray(x, dtype=float), lines)
         x = np.asarray(x, dtype=float)
         # a load placed at ξ − u may miss a knot by rounding (0.45 − 0.15 ≠ 0.3); a one-sided
         # limit must then be read at the knot itself, or it reads the other side of a jump
@@ -257,27 +266,33 @@ class LineBatch:
                            nearest - 1, nearest)
         close = np.abs(self.knots[nearest] - x) <= 1e-12 * max(1.0, self.length)
         x = np.where(close, self.knots[nearest], x)
-        out = evaluate_lines(self.line_knots, self.n_pieces, self.line_coef,
-                             np.ascontiguousarray(x), side == "left")
+        knots, n_pieces, coef = self._rows(lines, self.line_knots, self.n_pieces,
+                                           self.line_coef)
+        out = evaluate_lines(knots, n_pieces, coef, np.ascontiguousarray(x), side == "left")
         if side == "left":
             out[(x <= 0.0) | (x > self.length)] = 0.0
         else:
             out[(x < 0.0) | (x >= self.length)] = 0.0
         return out
 
-    def _point_ordinates(self, x: NDArray[np.float64]) -> NDArray[np.float64]:
+    def _point_ordinates(self, x: NDArray[np.float64], lines: NDArray[np.int64] | None = None
+                         ) -> NDArray[np.float64]:
         # inside the beam the line is continuous except at a shear line's own section; at
         # the right end the load is on the beam: the limit from inside
         x = np.atleast_1d(x)
-        out = self.ordinates(x, "right")
-        at_right_end = np.abs(x - self.length) <= 1e-12 * max(1.0, self.length)
+        out = self.ordinates(x, "right", lines)
+        tolerance = 1e-12 * max(1.0, self.length)
+        at_right_end = np.abs(x - self.length) <= tolerance
         if at_right_end.any():
             out[at_right_end] = self.ordinates(np.full(int(at_right_end.sum()), self.length),
-                                               "left")
-        for j in np.flatnonzero(self.own_knot >= 0):
-            c = self.line_knots[j, self.own_knot[j]]
-            on = np.abs(x - c) <= 1e-12 * max(1.0, self.length)
-            out[on, j] = self.own_value[j]
+                                               "left", lines)
+        knots, own_knot, own_value = self._rows(lines, self.line_knots, self.own_knot,
+                                                self.own_value)
+        owning = np.flatnonzero(own_knot >= 0)
+        if owning.size:
+            own_x = knots[owning, own_knot[owning]]
+            load, line = np.nonzero(np.abs(x[:, None] - own_x[None, :]) <= tolerance)
+            out[load, owning[line]] = own_value[owning[line]]
         return out
 
 
@@ -397,20 +412,21 @@ class ScanPlan:
                          end_live=self.own[2])
 
 
-def group_response(batch: LineBatch, group: TermGroup, xi: float, side: float = 0.0
-                   ) -> NDArray[np.float64]:
-    """The group's effect on every line with its reference point at ξ: the limit from
-    below (side < 0), from above (side > 0), or exactly at ξ (side 0: every load counted
-    where it stands, on an end of the beam or on a section)."""
+def group_response(batch: LineBatch, group: TermGroup, xi: float, side: float = 0.0,
+                   lines: NDArray[np.int64] | None = None) -> NDArray[np.float64]:
+    """The group's effect on every line (or on ``lines``) with its reference point at ξ: the
+    limit from below (side < 0), from above (side > 0), or exactly at ξ (side 0: every load
+    counted where it stands, on an end of the beam or on a section)."""
     weights, offsets, kinds, constant = group.terms()
     x = xi - offsets
     limit = "left" if side < 0 else "right" if side > 0 else "point"
-    total = constant * batch.running_end.copy()
+    end = batch.running_end if lines is None else batch.running_end[lines]
+    total = constant * end.copy()
     point = kinds == KIND_POINT
     if point.any():
-        total += weights[point] @ batch.ordinates(x[point], limit)
+        total += weights[point] @ batch.ordinates(x[point], limit, lines)
     if (~point).any():
-        total += weights[~point] @ batch.running_at(x[~point])
+        total += weights[~point] @ batch.running_at(x[~point], lines)
     return total
 
 

@@ -13,6 +13,15 @@ Kernels take plain arrays only. Each line is stored on its own breaks (the struc
 and its own section), so a row's work is the number of structural pieces, however many other
 sections there are. Rows are independent: the parallel kernel gives each thread a contiguous
 slice of rows, and both kernels run the same loop body.
+
+Compiling costs more than running on a first call (a fresh process with an empty numba cache),
+and numba's cost grows with the number of compiled functions (each has a fixed cost of about
+0.1–0.3 s) and with the statements in each. So the loop body calls few helpers, each compiled
+once (no literal arguments that would give a second specialisation, no tuple packing, no
+builtins that compile an implementation of their own such as min/max), and it allocates
+nothing: its work arrays come from the caller. One exception is kept on purpose: the Taylor
+shift (``_shift_add``) is compiled for a cubic and for a quartic (literal lengths 4 and 5), so
+its loops unroll; with the length read at run time the scan ran 1.2–3 times slower.
 """
 
 from __future__ import annotations
@@ -27,8 +36,27 @@ from trundle.scan._config import JIT_OPTIONS, PARALLEL_OPTIONS
 KIND_POINT = 0
 KIND_RUNNING_INTEGRAL = 1
 
+# The loop body's helpers keep numba's Python wrappers: without them (no_cpython_wrapper) each
+# compiled about 0.05–0.1 s faster on a first run, but calling one from Python then crashed the
+# interpreter (a segmentation fault, not an error), a trap not worth half a second once. The
+# tests still reach them through small compiled shims.
+HELPER_OPTIONS = dict(JIT_OPTIONS)
 
-@njit(**JIT_OPTIONS)
+# rows of the loop body's float work array (see ``scan_workspace``)
+_POLY, _SHIFT, _CRIT, _ROOTS, _CAND_VALUE, _CAND_AT, _CAND_SIDE = range(7)
+_WORK_ROWS = 7
+_WORK_WIDTH = 6  # a piece gives at most 2 ends + 3 critical points, + 1 exact point value
+
+
+def scan_workspace(n_terms: int) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """The loop body's work arrays for a group of ``n_terms`` terms: the piece each term
+    reads, its next break, whether it has just reached a knot, and small float rows (the
+    piece's polynomial, Taylor shift scratch, critical points, roots, candidates)."""
+    return (np.empty(n_terms, dtype=np.int64), np.empty(n_terms),
+            np.empty(n_terms, dtype=np.bool_), np.empty((_WORK_ROWS, _WORK_WIDTH)))
+
+
+@njit(**HELPER_OPTIONS)
 def _horner(poly, degree, t):
     value = poly[degree]
     for i in range(degree - 1, -1, -1):
@@ -36,20 +64,7 @@ def _horner(poly, degree, t):
     return value
 
 
-@njit(**JIT_OPTIONS)
-def _shift_add(poly, coef_high_first, n_coef, s0, weight, work):
-    """poly (low first) += weight · p(t + s0), p given highest power first."""
-    # Taylor shift by repeated synthetic division; ``work`` is scratch of length 5
-    for i in range(n_coef):
-        work[i] = coef_high_first[n_coef - 1 - i]  # low first
-    for i in range(n_coef):
-        for k in range(n_coef - 2, i - 1, -1):
-            work[k] += s0 * work[k + 1]
-    for i in range(n_coef):
-        poly[i] += weight * work[i]
-
-
-@njit(**JIT_OPTIONS)
+@njit(**HELPER_OPTIONS)
 def _quadratic_roots(a, b, c, out):
     """Real roots of a t² + b t + c = 0 into out; returns how many (stable formulas)."""
     if a == 0.0:
@@ -70,129 +85,71 @@ def _quadratic_roots(a, b, c, out):
     return 2
 
 
-@njit(**JIT_OPTIONS)
-def _bisect_root(d, lo, hi):
-    """A root of the cubic d (low first) in [lo, hi] where d changes sign."""
-    degree = d.shape[0] - 1  # 3; not a literal, so _horner compiles once for every caller
-    f_lo = _horner(d, degree, lo)
-    for _ in range(200):
-        mid = 0.5 * (lo + hi)
-        if mid <= lo or mid >= hi:
-            break
-        f_mid = _horner(d, degree, mid)
-        if (f_mid < 0.0) == (f_lo < 0.0):
-            lo, f_lo = mid, f_mid
-        else:
-            hi = mid
-    return 0.5 * (lo + hi)
-
-
-@njit(**JIT_OPTIONS)
+@njit(**HELPER_OPTIONS)
 def _critical_points(poly, degree, width, out, scratch):
     """Points in (0, width) where the derivative of poly vanishes; returns how many.
-    ``scratch`` holds 10 floats, so the hot loop allocates nothing."""
+    ``scratch`` holds 6 floats (roots, then the cuts), so the hot loop allocates nothing."""
     n = 0
-    tmp = scratch[0:2]
-    if degree <= 3:
-        m = _quadratic_roots(3.0 * poly[3], 2.0 * poly[2], poly[1], tmp)
+    if degree <= 3 or poly[4] == 0.0:
+        # the derivative is a quadratic (4·poly[4] is zero exactly when poly[4] is)
+        m = _quadratic_roots(3.0 * poly[3], 2.0 * poly[2], poly[1], scratch)
         for i in range(m):
-            if 0.0 < tmp[i] < width:
-                out[n] = tmp[i]
+            if 0.0 < scratch[i] < width:
+                out[n] = scratch[i]
                 n += 1
         return n
-    d = scratch[2:6]
-    d[0], d[1], d[2], d[3] = poly[1], 2.0 * poly[2], 3.0 * poly[3], 4.0 * poly[4]
-    if d[3] == 0.0:
-        m = _quadratic_roots(d[2], d[1], d[0], tmp)
-        for i in range(m):
-            if 0.0 < tmp[i] < width:
-                out[n] = tmp[i]
-                n += 1
-        return n
-    # split (0, width) where the derivative turns, then bracket each sign change
-    cubic = d.shape[0] - 1  # 3, typed as a plain integer: _horner compiles once
-    cuts = scratch[6:10]
-    cuts[0] = 0.0
+    # a cubic derivative d0 + d1 t + d2 t² + d3 t³: split (0, width) where it turns (the
+    # cuts, scratch[2:]), then bracket each sign change by bisection
+    d0 = poly[1]
+    d1 = 2.0 * poly[2]
+    d2 = 3.0 * poly[3]
+    d3 = 4.0 * poly[4]
+    m = _quadratic_roots(3.0 * d3, 2.0 * d2, d1, scratch)
+    if m == 2 and scratch[0] > scratch[1]:
+        first = scratch[1]
+        scratch[1] = scratch[0]
+        scratch[0] = first
+    scratch[2] = 0.0
     n_cuts = 1
-    m = _quadratic_roots(3.0 * d[3], 2.0 * d[2], d[1], tmp)
-    if m == 2 and tmp[0] > tmp[1]:
-        tmp[0], tmp[1] = tmp[1], tmp[0]
     for i in range(m):
-        if 0.0 < tmp[i] < width:
-            cuts[n_cuts] = tmp[i]
+        if 0.0 < scratch[i] < width:
+            scratch[2 + n_cuts] = scratch[i]
             n_cuts += 1
-    cuts[n_cuts] = width
+    scratch[2 + n_cuts] = width
     n_cuts += 1
     for i in range(n_cuts - 1):
-        lo, hi = cuts[i], cuts[i + 1]
-        f_lo, f_hi = _horner(d, cubic, lo), _horner(d, cubic, hi)
+        lo = scratch[2 + i]
+        hi = scratch[3 + i]
+        f_lo = ((d3 * lo + d2) * lo + d1) * lo + d0
+        f_hi = ((d3 * hi + d2) * hi + d1) * hi + d0
         if f_lo == 0.0 and 0.0 < lo:
             out[n] = lo
             n += 1
         elif (f_lo < 0.0) != (f_hi < 0.0) and f_hi != 0.0:
-            out[n] = _bisect_root(d, lo, hi)
+            for _ in range(200):
+                mid = 0.5 * (lo + hi)
+                if mid <= lo or mid >= hi:
+                    break
+                f_mid = ((d3 * mid + d2) * mid + d1) * mid + d0
+                if (f_mid < 0.0) == (f_lo < 0.0):
+                    lo = mid
+                    f_lo = f_mid
+                else:
+                    hi = mid
+            out[n] = 0.5 * (lo + hi)
             n += 1
     return n
 
 
-@njit(**JIT_OPTIONS)
-def _locate(knots, x):
-    """Piece of x taken from the right: −1 left of the beam, m at or beyond its right end."""
-    m = knots.shape[0] - 1
-    if x < knots[0]:
-        return -1
-    if x >= knots[m]:
-        return m
-    lo, hi = 0, m
-    while hi - lo > 1:
-        mid = (lo + hi) // 2
-        if knots[mid] <= x:
-            lo = mid
-        else:
-            hi = mid
-    return lo
-
-
-@njit(**JIT_OPTIONS)
-def _next_real(piece, m, next_node, own):
-    """The knot after ``piece`` where the line really changes: the next structural node, or
-    the line's own section (``own``), whichever comes first; m at the end."""
-    if piece < 0:
-        return 0
-    nxt = next_node[piece] if piece < m else m
-    if piece < own < nxt:
-        nxt = own
-    return nxt
-
-
-@njit(**JIT_OPTIONS)
-def _real_start(piece, prev_node, own):
-    """The knot where the real piece containing knot-piece ``piece`` starts."""
-    start = prev_node[piece]
-    if start < own <= piece:
-        start = own
-    return start
-
-
-@njit(**JIT_OPTIONS)
-def _next_break(knots, piece, offset, next_node, own):
-    m = knots.shape[0] - 1
-    if piece < 0:
-        return offset + knots[0]
-    if piece < m:
-        return offset + knots[_next_real(piece, m, next_node, own)]
-    return np.inf
-
-
-@njit(**JIT_OPTIONS)
-def _horner_high(coef_high_first, n_coef, s):
+@njit(**HELPER_OPTIONS)
+def _horner_high(coef_high_first, s):
     value = coef_high_first[0]
-    for i in range(1, n_coef):
+    for i in range(1, coef_high_first.shape[0]):
         value = value * s + coef_high_first[i]
     return value
 
 
-@njit(**JIT_OPTIONS)
+@njit(**HELPER_OPTIONS)
 def _point_value(xi, off, piece, arrived, line_knots, m, line_coef, line_running, end_value,
                  weight, kind, own, own_value, constant):
     """The group's effect with its reference point exactly at ξ, every load counted where it
@@ -207,12 +164,12 @@ def _point_value(xi, off, piece, arrived, line_knots, m, line_coef, line_running
                 if p == own:
                     total += weight[t] * own_value
                 elif p >= m:
-                    total += weight[t] * _horner_high(line_coef[m - 1], 4,
+                    total += weight[t] * _horner_high(line_coef[m - 1],
                                                       line_knots[m] - line_knots[m - 1])
                 else:
                     total += weight[t] * line_coef[p, 3]
             elif 0 <= p < m:
-                total += weight[t] * _horner_high(line_coef[p], 4, xi - off[t] - line_knots[p])
+                total += weight[t] * _horner_high(line_coef[p], xi - off[t] - line_knots[p])
         else:
             if p < 0:
                 continue
@@ -221,29 +178,45 @@ def _point_value(xi, off, piece, arrived, line_knots, m, line_coef, line_running
             elif arrived[t]:
                 total += weight[t] * line_running[p, 4]
             else:
-                total += weight[t] * _horner_high(line_running[p], 5,
-                                                  xi - off[t] - line_knots[p])
+                total += weight[t] * _horner_high(line_running[p], xi - off[t] - line_knots[p])
     return total
 
 
-@njit(**JIT_OPTIONS)
+@njit(**HELPER_OPTIONS)
 def _place_terms(xi, off, kind, knots, m, piece, upcoming, arrived):
-    """Put every term at reference position ξ: its piece, its next break and whether it stands
-    exactly on a knot; True when a concentrated load stands exactly on an end of the beam."""
+    """Put every term at reference position ξ: its piece (taken from the right: −1 left of
+    the beam, m at or beyond its right end), its next break and whether it stands exactly on
+    a knot; True when a concentrated load stands exactly on an end of the beam."""
     at_end = False
     for t in range(off.shape[0]):
         x = xi - off[t]
-        p = _locate(knots[:m + 1], x)
+        if x < knots[0]:
+            p = -1
+        elif x >= knots[m]:
+            p = m
+        else:
+            p = 0
+            hi = m
+            while hi - p > 1:
+                mid = (p + hi) // 2
+                if knots[mid] <= x:
+                    p = mid
+                else:
+                    hi = mid
         piece[t] = p
-        upcoming[t] = (off[t] + knots[0] if p < 0 else
-                       off[t] + knots[p + 1] if p < m else np.inf)
-        arrived[t] = p >= 0 and x == knots[min(p, m)]
+        if p < 0:
+            upcoming[t] = off[t] + knots[0]
+        elif p < m:
+            upcoming[t] = off[t] + knots[p + 1]
+        else:
+            upcoming[t] = np.inf
+        arrived[t] = p >= 0 and x == knots[p]
         if arrived[t] and kind[t] == KIND_POINT and (p == 0 or p == m):
             at_end = True
     return at_end
 
 
-@njit(**JIT_OPTIONS)
+@njit(**HELPER_OPTIONS)
 def _advance_terms(nxt, off, kind, knots, m, piece, upcoming, arrived):
     """Move every term whose break is at ``nxt`` into its next piece (``arrived``); True when
     a concentrated load has just reached an end of the beam."""
@@ -259,22 +232,26 @@ def _advance_terms(nxt, off, kind, knots, m, piece, upcoming, arrived):
     return at_end
 
 
-@njit(**JIT_OPTIONS)
-def _next_event(upcoming, n_terms, until):
-    """The nearest break ahead (a term reaching its next piece), or ``until``."""
-    nxt = until
-    for t in range(n_terms):
-        if upcoming[t] < nxt:
-            nxt = upcoming[t]
-    return nxt
+@njit(**HELPER_OPTIONS)
+def _shift_add(poly, coef_high_first, n_coef, s0, weight, work):
+    """poly (low first) += weight · p(t + s0), p given highest power first, by repeated
+    synthetic division; ``n_coef`` is a literal (4 or 5) at both calls: see the module's
+    docstring."""
+    for i in range(n_coef):
+        work[i] = coef_high_first[n_coef - 1 - i]  # low first
+    for i in range(n_coef):
+        for k in range(n_coef - 2, i - 1, -1):
+            work[k] += s0 * work[k + 1]
+    for i in range(n_coef):
+        poly[i] += weight * work[i]
 
 
-@njit(**JIT_OPTIONS)
+@njit(**HELPER_OPTIONS)
 def _piece_polynomial(poly, constant, piece, kind, weight, offset, n_terms, xi, knots, coef,
                       running, m, end_value, work):
     """poly (low first) = the response on the piece of ξ that starts at ``xi``: every term's
     polynomial (IL for a concentrated load, F for an end of a uniform load, F(L) past the
-    beam's right end) shifted to ξ and weighted, plus ``constant``."""
+    beam's right end) shifted to ξ and weighted, plus ``constant``. ``work``: 5 floats."""
     for i in range(5):
         poly[i] = 0.0
     poly[0] = constant
@@ -282,6 +259,10 @@ def _piece_polynomial(poly, constant, piece, kind, weight, offset, n_terms, xi, 
         e = piece[t]
         if e < 0:
             continue
+        # poly += weight · p(t + s0), p highest power first: a Taylor shift by repeated
+        # synthetic division, written out for a cubic and for a quartic so that both loops
+        # have fixed lengths (compiled unrolled: a length read at run time made the whole
+        # scan two to three times slower)
         if kind[t] == KIND_POINT:
             if e < m:
                 _shift_add(poly, coef[e], 4, xi - offset[t] - knots[e], weight[t], work)
@@ -294,9 +275,10 @@ def _piece_polynomial(poly, constant, piece, kind, weight, offset, n_terms, xi, 
 @njit(**JIT_OPTIONS)
 def _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, tail, peak,
                 weight, kind, offsets, lines, constant_weight, degree, confined, prune,
-                own_knot, own_value, end_live, result):
+                own_knot, own_value, end_live, result, piece, upcoming, arrived, work):
     """Rows start … stop − 1 into their own slice of ``result``: the one loop body that both
-    the serial and the parallel kernel run.
+    the serial and the parallel kernel run. ``piece``, ``upcoming``, ``arrived``, ``work``:
+    the caller's work arrays (``scan_workspace``), one set per thread.
 
     A row sweeps the reference position ξ over every piece of its line's response (the line's
     own knots only). The group enters at the left (first term at x = 0) and leaves at the
@@ -321,14 +303,16 @@ def _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, 
     """
     n_terms = weight.shape[0]
     shared = offsets.shape[0] == 1
-    piece = np.empty(n_terms, dtype=np.int64)
-    upcoming = np.empty(n_terms)
-    arrived = np.zeros(n_terms, dtype=np.bool_)
-    scratch = np.empty(23)  # one allocation for the small work arrays
-    poly = scratch[0:5]
-    crit = scratch[5:8]
-    work = scratch[8:13]
-    roots = scratch[13:23]
+    poly = work[_POLY]
+    shift = work[_SHIFT]
+    crit = work[_CRIT]
+    roots = work[_ROOTS]
+    # the positions each step offers as extremes, in the order they are offered (ties keep
+    # the first): a piece's start (side +1), its end (−1), its critical points, then an
+    # exact point value where a load has just reached an end of the beam
+    cand_value = work[_CAND_VALUE]
+    cand_at = work[_CAND_AT]
+    cand_side = work[_CAND_SIDE]
     tail_weight = 0.0
     for t in range(n_terms):
         tail_weight += abs(weight[t])
@@ -358,21 +342,35 @@ def _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, 
         if confined:
             for t in range(n_terms):
                 if kind[t] == KIND_POINT:
-                    lo = max(lo, off[t])
-                    hi = min(hi, line_knots[m] + off[t])
-        best_max, pos_max, side_max = 0.0, np.nan, 0.0
-        best_min, pos_min, side_min = 0.0, np.nan, 0.0
+                    if off[t] > lo:
+                        lo = off[t]
+                    if line_knots[m] + off[t] < hi:
+                        hi = line_knots[m] + off[t]
+        best_max = 0.0
+        pos_max = np.nan
+        side_max = 0.0
+        best_min = 0.0
+        pos_min = np.nan
+        side_min = 0.0
         constant = constant_weight * end_value
-        split = min(max(line_knots[peak[line]] + lead, lo), hi) if prune else lo
+        split = lo
+        if prune:  # the leading load on the line's largest piece, kept within [lo, hi]
+            split = line_knots[peak[line]] + lead
+            if split < lo:
+                split = lo
+            if split > hi:
+                split = hi
         for phase in range(2):
-            if phase == 0:
-                xi, until, bounded = split, hi, prune
-            else:
+            xi = split
+            until = hi
+            bounded = prune
+            if phase == 1:
                 if split <= lo:
                     break
                 # with every load left of knot p the response is at most Σ|w| · head[p]:
                 # skip the longest such stretch
-                a, b = 0, m
+                a = 0
+                b = m
                 while a < b:
                     mid = (a + b + 1) // 2
                     limit = tail_weight * head[line, mid]
@@ -380,60 +378,76 @@ def _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, 
                         a = mid
                     else:
                         b = mid - 1
-                xi = min(max(lo, line_knots[a] + lead), split) if a > 0 else lo
-                until, bounded = split, False
+                xi = lo
+                if a > 0:
+                    if line_knots[a] + lead > lo:
+                        xi = line_knots[a] + lead
+                    if split < xi:
+                        xi = split
+                until = split
+                bounded = False
                 if xi >= split:
                     break
             at_end = _place_terms(xi, off, kind, line_knots, m, piece, upcoming, arrived)
+            n_cand = 0
             if live and at_end:
-                v = _point_value(xi, off, piece, arrived, line_knots, m, line_coef,
-                                 line_running, end_value, weight, kind, own, own_at, constant)
-                if v > best_max:
-                    best_max, pos_max, side_max = v, xi, 0.0
-                if v < best_min:
-                    best_min, pos_min, side_min = v, xi, 0.0
-            while xi < until:
+                cand_value[0] = _point_value(xi, off, piece, arrived, line_knots, m, line_coef,
+                                             line_running, end_value, weight, kind, own,
+                                             own_at, constant)
+                cand_at[0] = xi
+                cand_side[0] = 0.0
+                n_cand = 1
+            while True:
+                for k in range(n_cand):
+                    v = cand_value[k]
+                    if v > best_max:
+                        best_max = v
+                        pos_max = cand_at[k]
+                        side_max = cand_side[k]
+                    if v < best_min:
+                        best_min = v
+                        pos_min = cand_at[k]
+                        side_min = cand_side[k]
+                if not xi < until:
+                    break
                 if bounded:
                     p = piece[trailing]
                     if p >= 0:
-                        limit = tail_weight * tail[line, min(p, m)]
+                        limit = tail_weight * tail[line, p if p < m else m]
                         if limit <= best_max and -limit >= best_min:
                             break
-                nxt = _next_event(upcoming, n_terms, until)
+                nxt = until  # the nearest break ahead (a term reaching its next piece)
+                for t in range(n_terms):
+                    if upcoming[t] < nxt:
+                        nxt = upcoming[t]
                 width = nxt - xi
+                n_cand = 0
                 if width > 0.0:
                     _piece_polynomial(poly, constant, piece, kind, weight, off, n_terms, xi,
-                                      line_knots, line_coef, line_running, m, end_value, work)
-                    v0 = poly[0]
-                    v1 = _horner(poly, degree, width)
-                    if v0 > best_max:
-                        best_max, pos_max, side_max = v0, xi, 1.0
-                    if v0 < best_min:
-                        best_min, pos_min, side_min = v0, xi, 1.0
-                    if v1 > best_max:
-                        best_max, pos_max, side_max = v1, nxt, -1.0
-                    if v1 < best_min:
-                        best_min, pos_min, side_min = v1, nxt, -1.0
-                    n_crit = _critical_points(poly, degree, width, crit, roots)
-                    for k in range(n_crit):
-                        v = _horner(poly, degree, crit[k])
-                        if v > best_max:
-                            best_max, pos_max, side_max = v, xi + crit[k], 0.0
-                        if v < best_min:
-                            best_min, pos_min, side_min = v, xi + crit[k], 0.0
-                if nxt == np.inf:
-                    break
-                at_end = _advance_terms(nxt, off, kind, line_knots, m, piece, upcoming,
-                                        arrived)
+                                      line_knots, line_coef, line_running, m, end_value, shift)
+                    cand_value[0] = poly[0]
+                    cand_at[0] = xi
+                    cand_side[0] = 1.0
+                    cand_value[1] = _horner(poly, degree, width)
+                    cand_at[1] = nxt
+                    cand_side[1] = -1.0
+                    n_cand = 2 + _critical_points(poly, degree, width, crit, roots)
+                    for k in range(2, n_cand):
+                        cand_value[k] = _horner(poly, degree, crit[k - 2])
+                        cand_at[k] = xi + crit[k - 2]
+                        cand_side[k] = 0.0
+                if nxt < np.inf:
+                    at_end = _advance_terms(nxt, off, kind, line_knots, m, piece, upcoming,
+                                            arrived)
+                    if live and at_end:
+                        cand_value[n_cand] = _point_value(nxt, off, piece, arrived, line_knots,
+                                                          m, line_coef, line_running,
+                                                          end_value, weight, kind, own, own_at,
+                                                          constant)
+                        cand_at[n_cand] = nxt
+                        cand_side[n_cand] = 0.0
+                        n_cand += 1
                 xi = nxt
-                if live and at_end:
-                    v = _point_value(xi, off, piece, arrived, line_knots, m, line_coef,
-                                     line_running, end_value, weight, kind, own, own_at,
-                                     constant)
-                    if v > best_max:
-                        best_max, pos_max, side_max = v, xi, 0.0
-                    if v < best_min:
-                        best_min, pos_min, side_min = v, xi, 0.0
         result[row, 0] = best_max
         result[row, 1] = pos_max
         result[row, 2] = side_max
@@ -484,7 +498,8 @@ def scan_rows_serial(knots, n_pieces, coef, running, running_end, head, tail, pe
     result = np.empty((lines.shape[0], 6))
     _scan_chunk(0, lines.shape[0], knots, n_pieces, coef, running, running_end, head, tail,
                 peak, weight, kind, offsets, lines, float(constant_weight), int(degree),
-                bool(confined), bool(prune), own_knot, own_value, end_live, result)
+                bool(confined), bool(prune), own_knot, own_value, end_live, result,
+                *scan_workspace(weight.shape[0]))
     return result
 
 
@@ -518,32 +533,47 @@ def _scan_rows_parallel(knots, n_pieces, coef, running, running_end, head, tail,
                         kind, offsets, lines, constant_weight, degree, confined, prune,
                         own_knot, own_value, end_live, bounds):
     result = np.empty((lines.shape[0], 6))
+    n_terms = weight.shape[0]
     for c in prange(bounds.shape[0] - 1):
+        # each thread its own work arrays (as ``scan_workspace``)
         _scan_chunk(bounds[c], bounds[c + 1], knots, n_pieces, coef, running, running_end,
                     head, tail, peak, weight, kind, offsets, lines, constant_weight, degree,
-                    confined, prune, own_knot, own_value, end_live, result)
+                    confined, prune, own_knot, own_value, end_live, result,
+                    np.empty(n_terms, dtype=np.int64), np.empty(n_terms),
+                    np.empty(n_terms, dtype=np.bool_), np.empty((_WORK_ROWS, _WORK_WIDTH)))
     return result
 
 
-# Measured on 2 cores: a thread slice must hold about this many piece visits (rows × pieces
-# × terms²) before splitting pays for starting the pool and waking the threads.
-PARALLEL_FROM_WORK_PER_THREAD = 200_000
+# Threads are used when each thread's slice holds at least this many piece visits (see
+# ``row_work``). Calibrated by measurement (2 cores; scripts/bench_envelope.py section 3 and
+# the fit described in ``row_work``): the serial kernel costs 35–70 ns per visit on jobs from
+# 3 to 80 axles and 31 to 18,000 rows, and a two-thread call costs about 50 µs more than a
+# serial one on a tiny job (thread wake-up; measured at a load average of 6 on 2 cores, less on
+# a quiet machine). 20,000 visits is about 1 ms of work per thread, twenty times that cost, so
+# splitting loses at most a few per cent even when the second thread barely helps.
+PARALLEL_FROM_VISITS_PER_THREAD = 20_000
 
 
 def row_work(n_pieces: np.ndarray, lines: np.ndarray, n_terms: int, prune: bool
              ) -> np.ndarray:
-    """Estimated cost of each row: pieces it visits × terms²."""
+    """Estimated piece visits of each row: every term crosses every piece of the line (plus
+    the stretch where the group enters), so a row visits about (pieces + terms) × terms
+    pieces of its response. Measured against the serial kernel's time on ten jobs (3 to 80
+    axles, 3 to 100 spans, 31 to 3,001 sections): 35–70 ns per visit, where pieces × terms²
+    (the cost of each visit summing every term) spread from 0.8 to 23 ns per unit, because
+    a visit's fixed part (critical points, bookkeeping) outweighs its per-term part below
+    about 30 terms."""
     pieces = n_pieces[lines]
     if prune:
         pieces = np.minimum(pieces, 12)  # a pruned row visits a few spans around its section
-    return (pieces + n_terms) * float(n_terms * n_terms)
+    return (pieces + n_terms) * float(n_terms)
 
 
 def could_use_threads(n_pieces: np.ndarray, n_rows: int, n_terms: int) -> bool:
     """Whether a call could hold enough work for two threads (an upper bound of the work:
     every row visiting every piece of the longest line)."""
-    most = n_rows * (int(n_pieces.max()) + n_terms) * float(n_terms * n_terms)
-    return most >= 2 * PARALLEL_FROM_WORK_PER_THREAD and _threads() > 1
+    most = n_rows * (int(n_pieces.max()) + n_terms) * float(n_terms)
+    return most >= 2 * PARALLEL_FROM_VISITS_PER_THREAD and _cores() > 1
 
 
 def scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, tail, peak,
@@ -553,7 +583,7 @@ def scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, t
     out (``engine.ScanPlan``); see ``scan_rows_serial``."""
     _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, tail, peak,
                 weight, kind, offsets, lines, constant_weight, degree, confined, prune,
-                own_knot, own_value, end_live, result)
+                own_knot, own_value, end_live, result, *scan_workspace(weight.shape[0]))
 
 
 def scan_rows(knots, n_pieces, coef, running, running_end, head, tail, peak, weight, kind,
@@ -569,8 +599,7 @@ def scan_rows(knots, n_pieces, coef, running, running_end, head, tail, peak, wei
         # an upper bound first: most calls are far too small to ask about threads at all
         if could_use_threads(n_pieces, lines.shape[0], n_terms):
             total = float(row_work(n_pieces, lines, n_terms, prune).sum())
-            threads = int(min(_threads(), _idle_cores(),
-                              total // PARALLEL_FROM_WORK_PER_THREAD))
+            threads = int(min(_cores(), total // PARALLEL_FROM_VISITS_PER_THREAD))
     own = (own_knot, own_value, end_live)
     if threads <= 1 or lines.shape[0] < 2:
         return scan_rows_serial(*args, *own)
@@ -586,40 +615,41 @@ def _threads() -> int:
     return int(numba.get_num_threads())
 
 
-def _idle_cores() -> int:
-    """Cores not busy with other work (this process's own thread counted as idle): on a
-    machine already loaded a second thread waits for a core, and the slice it holds makes
-    the whole call wait with it (measured: 2 threads slower than 1 at a load of 8 on 2
-    cores)."""
+def _cores() -> int:
+    """Cores this process may run on (its CPU affinity), at most numba's thread count. Not
+    the load average: it counts this process's own recent threads as other load, so a call
+    right after a parallel one kept to one thread (63 ms instead of 33 ms for an 80-axle
+    train over 10 spans)."""
     try:
-        load = os.getloadavg()[0]
-    except OSError:
-        return _threads()
-    return max(1, int((os.cpu_count() or 1) - load + 1.0))
+        allowed = len(os.sched_getaffinity(0))
+    except (AttributeError, OSError):  # no affinity on this platform
+        allowed = os.cpu_count() or 1
+    return max(1, min(allowed, _threads()))
 
 
-@njit(**JIT_OPTIONS)
+_MAX_MIN_SIGNS = np.array([[1.0], [-1.0]])
+
+
 def merge_directions(scan, directions, value, xi, side, direction):
     """Keep, per line, the worse of the directions' extremes, as offering each direction's
     scan in turn to an empty beam would (value 0, ξ NaN): ``scan`` (n_dir · n, 6) holds the
     rows of direction k at k·n … k·n + n − 1 (as ``scan_rows`` returns them); ``value``,
     ``xi``, ``side``, ``direction`` (2, n) get max (row 0) and min (row 1). A row whose ξ is
-    NaN (nothing loads the line that way) is never taken; ties keep the earlier direction."""
+    NaN (nothing loads the line that way) is never taken; ties keep the earlier direction.
+
+    Plain numpy, not compiled: a compiled loop would save microseconds per call and cost
+    about 0.3 s of compiling on a first run."""
     n = value.shape[1]
-    for j in range(n):
-        for w in range(2):
-            best = value[w, j]
-            for k in range(directions.shape[0]):
-                v = scan[k * n + j, 3 * w]
-                x = scan[k * n + j, 3 * w + 1]
-                if x != x:
-                    continue
-                if (w == 0 and v > best) or (w == 1 and v < best):
-                    best = v
-                    value[w, j] = v
-                    xi[w, j] = x
-                    side[w, j] = int(scan[k * n + j, 3 * w + 2])
-                    direction[w, j] = directions[k]
+    for k in range(directions.shape[0]):
+        rows = scan[k * n:(k + 1) * n]
+        candidate = rows[:, 0::3].T  # (2, n): max, min
+        # strictly worse than the value kept (larger max, smaller min), at a real position
+        better = candidate * _MAX_MIN_SIGNS > value * _MAX_MIN_SIGNS
+        better &= ~np.isnan(rows[:, 1::3].T)
+        np.copyto(value, candidate, where=better)
+        np.copyto(xi, rows[:, 1::3].T, where=better)
+        np.copyto(side, rows[:, 2::3].T, where=better, casting="unsafe")
+        np.copyto(direction, directions[k], where=better, casting="unsafe")
 
 
 @njit(**JIT_OPTIONS)
