@@ -21,9 +21,8 @@ from trundle.io.output_set import write_output_set
 from trundle.io.outputs import Provenance
 from trundle.io.traffic import TrafficFileError, read_traffic
 from trundle.report import CAUTION, CAUTION_LINE, LOAD_MODEL_CAUTION
-from trundle.report.format import decimals, fixed, position, verdict_cell
+from trundle.report.format import decimals, fixed, verdict_cell
 
-_CAUTIONS = CAUTION_LINE
 EXIT_EXCEEDS = 3  # permit: the run worked and a check exceeds its limit (1 is an internal error)
 
 
@@ -40,16 +39,35 @@ def _check_out(out_dir: Path) -> None:
         raise click.ClickException(f"--out {out_dir}: expected a folder, found a file")
 
 
-def _provenance(*inputs: tuple[str, Path]) -> str:
+def _provenance(*inputs: tuple[str, Path]) -> tuple[str, list[Any]]:
     """The comment line every CSV of the run starts with: each input file and its SHA-256
-    (a folder of model files or a library name has none: "-")."""
+    (a folder of model files or a library name has none: "-"); and the same inputs for the
+    report's traceability block."""
+    from trundle.report.fleet_section import InputFile
+
     parts = []
+    files = []
     found = Provenance()
     for label, path in inputs:
         found = Provenance.of_file(path)
         parts.append(f"{label} {path}; SHA-256 {found.sha256 or '-'}")
+        files.append(InputFile(label, str(path), found.sha256))
     return (f"# trundle {found.version}; " + "; ".join(parts)
-            + f"; computed {found.date}")
+            + f"; computed {found.date}"), files
+
+
+def _project(path: Path | None) -> Any:
+    """The --project file's [project] table (None without the option); read before any
+    work, so a bad file stops the run with one line and exit code 2."""
+    if path is None:
+        return None
+    from trundle.io.modelfile import ModelFileError
+    from trundle.io.project import read_project_file
+
+    try:
+        return read_project_file(path)
+    except ModelFileError as error:
+        raise _inputs_error(error) from None
 
 
 def _write(out_dir: Path, files: dict[str, Any]) -> list[Path]:
@@ -60,7 +78,7 @@ def _write(out_dir: Path, files: dict[str, Any]) -> list[Path]:
                                    f"({error.strerror or error})") from None
 
 
-@click.command("fleet", epilog=_CAUTIONS)
+@click.command("fleet", epilog=CAUTION_LINE)
 @term.verbosity_options
 @click.argument("trucks", metavar="TRUCKS", type=click.Path(path_type=Path))
 @click.argument("inventory", metavar="INVENTORY", type=click.Path(path_type=Path))
@@ -92,13 +110,16 @@ def _write(out_dir: Path, files: dict[str, Any]) -> list[Path]:
               show_default=True, help="Return period [years].")
 @click.option("--fatigue", is_flag=True,
               help="Rainflow damage of each truck's exact moment history (turning points).")
+@click.option("--project", "project_file", metavar="FILE", type=click.Path(path_type=Path),
+              help="TOML file whose [project] table fills the report's project block (a "
+                   "model file will do); without it the block is blank, to fill in by hand.")
 @click.option("--no-figure", is_flag=True, help="Write no figures.")
 @click.option("--no-progress", is_flag=True, help="Show no progress bar.")
 def fleet_command(trucks: Path, inventory: Path, units: str, bad_rows: str, design: str | None,
                   out_dir: Path, scheduler: str | None, workers: int | None,
                   single_process: bool, truck_chunk: int, bridge_chunk: int, block: str,
-                  fit: str, period: float, fatigue: bool, no_figure: bool,
-                  no_progress: bool) -> None:
+                  fit: str, period: float, fatigue: bool, project_file: Path | None,
+                  no_figure: bool, no_progress: bool) -> None:
     """Recorded traffic over a bridge inventory: per bridge and effect, the exact extreme of
     every truck, the distribution, block maxima with a fitted distribution and the return
     level for a period (bootstrap interval), the ratio to a design load model, and fatigue.
@@ -127,6 +148,7 @@ def fleet_command(trucks: Path, inventory: Path, units: str, bad_rows: str, desi
         bridges = tuple(read_inventory(inventory))
     except (TrafficFileError, InventoryError) as error:
         raise _inputs_error(error) from None
+    project = _project(project_file)
     model = design_model(design) if design else None  # every name checked before any scan
     # the partitions live beside the output set (which is replaced whole), so a rerun finds
     # them: <out>.work/partitions
@@ -158,9 +180,9 @@ def fleet_command(trucks: Path, inventory: Path, units: str, bad_rows: str, desi
                       f"{fixed(sign * rl.low, places)} … {fixed(sign * rl.high, places)}"
                       if rl else s.fit_note)
     term.print_renderable(console, table)
-    written = _write(out_dir, fleet_files(result, figures=not no_figure,
-                                          provenance=_provenance(("traffic file", trucks),
-                                                                 ("inventory", inventory))))
+    comment, inputs = _provenance(("traffic file", trucks), ("inventory", inventory))
+    written = _write(out_dir, fleet_files(result, figures=not no_figure, provenance=comment,
+                                          inputs=inputs, project=project))
     console.print(f"partitions: {result.written} written, {result.skipped} already there, in "
                   f"{work_dir / 'partitions'}")
     console.print("wrote " + ", ".join(str(p) for p in written[:6])
@@ -178,10 +200,10 @@ def fleet_command(trucks: Path, inventory: Path, units: str, bad_rows: str, desi
         term.say(f"{traffic.n_trucks} trucks over {len(bridges)} bridges: "
                  f"{len(result.summaries)} bridge effects summarised; wrote {len(written)} "
                  f"file(s) in {out_dir}")
-        term.say(_CAUTIONS, style="dim")
+        term.say(CAUTION_LINE, style="dim")
 
 
-@click.command("permit", epilog=_CAUTIONS)
+@click.command("permit", epilog=CAUTION_LINE)
 @term.verbosity_options
 @click.argument("vehicle", metavar="VEHICLE")
 @click.argument("route", metavar="ROUTE", type=click.Path(path_type=Path))
@@ -194,14 +216,17 @@ def fleet_command(trucks: Path, inventory: Path, units: str, bad_rows: str, desi
               show_default=True, help="Largest acceptable ratio permit / design.")
 @click.option("-o", "--out", "out_dir", type=click.Path(path_type=Path),
               help="Write permit.csv, permit.parquet and report.html into this folder.")
+@click.option("--project", "project_file", metavar="FILE", type=click.Path(path_type=Path),
+              help="TOML file whose [project] table fills the report's project block (a "
+                   "model file will do); without it the block is blank, to fill in by hand.")
 @click.option("--scheduler", metavar="ADDRESS",
               help="Run on an existing Dask cluster (tcp://host:8786); default: a "
                    "LocalCluster on this machine, one worker per core.")
 @click.option("--workers", type=click.IntRange(1, 512), help="LocalCluster workers.")
 @click.option("--single-process", is_flag=True, help="No Dask: run in this process.")
 def permit_command(vehicle: str, route: Path, design: str, impact: float, limit: float,
-                   out_dir: Path | None, scheduler: str | None, workers: int | None,
-                   single_process: bool) -> int:
+                   out_dir: Path | None, project_file: Path | None, scheduler: str | None,
+                   workers: int | None, single_process: bool) -> int:
     """Permit vehicle(s) over every bridge of a route: per bridge and effect, the ratio of
     the permit's effect (with the dynamic allowance given) to the design model's, flagged
     EXCEEDS above the limit, with the governing front-axle position and direction.
@@ -218,7 +243,7 @@ def permit_command(vehicle: str, route: Path, design: str, impact: float, limit:
     """
     from trundle.io.design_models import design_model, permit_vehicle
     from trundle.report.fleet_section import permit_files
-    from trundle.workflows.permit import EXCEEDS, PermitError, PermitSpec, run
+    from trundle.workflows.permit import PermitError, PermitSpec, run
 
     if out_dir is not None:
         _check_out(out_dir)
@@ -226,6 +251,7 @@ def permit_command(vehicle: str, route: Path, design: str, impact: float, limit:
         bridges = tuple(read_inventory(route))
     except InventoryError as error:
         raise _inputs_error(error) from None
+    project = _project(project_file)
     if scheduler and single_process:
         raise click.ClickException("--scheduler and --single-process: expected one of them, "
                                    "found both")
@@ -241,36 +267,61 @@ def permit_command(vehicle: str, route: Path, design: str, impact: float, limit:
     except PermitError as error:
         raise _inputs_error(error) from None
     console = _console()
-    table = Table(title=f"Permit check: {', '.join(vehicles)} (+{impact:g} % dynamic "
-                        f"allowance) against {design}, limit {limit:g}")
-    several = len(vehicles) > 1  # one vehicle is named in the title
-    for column in ("bridge", "effect", *(("vehicle",) if several else ()), "permit", "design",
-                   "ratio", "verdict", "front axle at", "direction"):
-        table.add_column(column, overflow="fold",
-                         justify="right" if column in ("permit", "design", "ratio",
-                                                       "front axle at") else "left")
-    for r in result.rows:
-        value = r.permit_max if r.side == "max" else r.permit_min
-        d = r.design_max if r.side == "max" else r.design_min
-        places = decimals([value, d])
-        cell = verdict_cell(r.verdict)
-        table.add_row(Text(r.bridge), Text(r.effect), *((Text(r.vehicle),) if several else ()),
-                      fixed(value, places), fixed(d, places),
-                      fixed(r.ratio, 3) if r.ratio == r.ratio else verdict_cell(None),
-                      Text(cell, style="bold red") if r.verdict == EXCEEDS else cell,
-                      position(r.x_front_axle), {1: "→ +x", -1: "← −x"}.get(r.direction, "-"))
-    term.print_renderable(console, table)
+    console.print(Text(f"Permit check: {', '.join(vehicles)} (+{impact:g} % dynamic allowance)"
+                       f" against {design}, limit {limit:g}", style="bold"))
+    for title, table in _permit_tables(result, several=len(vehicles) > 1):
+        # narrow gaps (two characters) keep a bridge's table whole at 80 columns; rich wraps
+        # its words should a console be narrower still
+        console.print(Text(title, style="bold"))
+        console.print(table)
+    console.print("permit, design: the extremes on the side checked (max or min); travel of the "
+                  "front axle: → towards +x (left to right), ← towards −x")
     term.say(f"{result.exceeds} of {len(result.rows)} checks EXCEED the limit"
              if result.exceeds else f"all {len(result.rows)} checks PASS (within the limit)")
     if out_dir is not None:
-        inputs = [("vehicle", Path(v)) for v in vehicles] + [("route", route)]
-        written = _write(out_dir, permit_files(result, _provenance(*inputs)))
+        comment, inputs = _provenance(*[("vehicle", Path(v)) for v in vehicles],
+                                      ("route", route))
+        written = _write(out_dir, permit_files(result, comment, inputs, project))
         console.print("wrote " + ", ".join(str(p) for p in written))
     console.print(CAUTION, style="dim")
     console.print(LOAD_MODEL_CAUTION, style="dim")
     if term.quiet():
-        term.say(_CAUTIONS, style="dim")
+        term.say(CAUTION_LINE, style="dim")
     return EXIT_EXCEEDS if result.exceeds else 0
+
+
+def _permit_tables(result: Any, several: bool) -> list[tuple[str, Table]]:
+    """One table per bridge, each value with its unit in a column of its own, the positions
+    with the length unit in the heading (narrow enough for 80 columns)."""
+    from rich import box
+
+    from trundle.report.fleet_section import by_bridge, permit_report_tables
+    from trundle.workflows.permit import EXCEEDS
+
+    travel = {1: "→", -1: "←"}
+    tables = []
+    for shown, rows in zip(permit_report_tables(result), by_bridge(result.rows).values(),
+                           strict=True):
+        table = Table(box=box.SIMPLE_HEAD, pad_edge=False, padding=(0, 1, 0, 0),
+                      show_edge=False)
+        at = {c: k for k, c in enumerate(shown.columns)}
+        position_heading = next(c for c in shown.columns if c.startswith("front axle at"))
+        names = ["effect", "unit", *(("vehicle",) if several else ()), "side", "permit",
+                 "design", "ratio", "verdict"]
+        for name in names:
+            table.add_column(name, overflow="fold",
+                             justify="right" if name in ("permit", "design", "ratio")
+                             else "left")
+        # where the front axle stands and which way it travels, in one column
+        table.add_column(position_heading.replace("front axle at", "axle at"), justify="right",
+                         overflow="fold")
+        for cells, row in zip(shown.rows, rows, strict=True):
+            table.add_row(*(Text(cells[at[c]], style="bold red" if c == "verdict"
+                                 and row.verdict == EXCEEDS else "") for c in names),
+                          f"{cells[at[position_heading]]} "
+                          f"{travel.get(int(row.direction), verdict_cell(None))}")
+        tables.append((shown.title, table))
+    return tables
 
 
 def register(cli_group: click.Group) -> None:

@@ -8,10 +8,13 @@ its project block. Every key is optional text; ``date`` may also be a TOML date 
 from __future__ import annotations
 
 import datetime
+import tomllib
 from dataclasses import dataclass, fields
+from pathlib import Path
 from typing import Any
 
-from trundle.io.modelfile import Model, Reader
+from trundle.io.modelfile import Model, ModelFileError, Reader, _syntax_error
+from trundle.io.source import SourceError, parse_toml, read_source
 
 PROJECT_TABLE = "project"
 
@@ -80,3 +83,28 @@ _EXPECTED = {"name": 'text such as "Harbour Lane depot"',
 def project_of(model: Model) -> ProjectInfo | None:
     """The model's ``[project]`` table as read, or None when it has none."""
     return model.tables.get(PROJECT_TABLE)
+
+
+def read_project_file(path: str | Path) -> ProjectInfo:
+    """The ``[project]`` table of a TOML file (a model file or a file with only that table),
+    for the reports of commands whose inputs are no model file (``fleet``, ``permit``:
+    ``--project FILE``). Other tables of the file are not read.
+
+    Raises
+    ------
+    ModelFileError
+        One line naming the file and the key: not a readable TOML file, no ``[project]``
+        table, or a key of it that is unknown or of the wrong type.
+    """
+    name = str(path)
+    try:  # regular files only, size-limited, UTF-8, nesting bounded before tomllib recurses
+        raw = parse_toml(read_source(path, "project file").text, name)
+    except SourceError as error:
+        raise ModelFileError(name, error.key, error.detail) from None
+    except tomllib.TOMLDecodeError as error:
+        raise _syntax_error(name, error) from None
+    if PROJECT_TABLE not in raw:
+        raise ModelFileError(name, PROJECT_TABLE, "expected a [project] table (name, "
+                                                  "job_number, element, designed_by, "
+                                                  "checked_by, date, revision), found none")
+    return read_project(raw[PROJECT_TABLE], Reader(name))
