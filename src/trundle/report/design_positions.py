@@ -25,9 +25,8 @@ from trundle.report.envelope_data import (
     quantity_unit,
 )
 from trundle.report.export import csv_text
-from trundle.report.figures import figure_style, new_figure
 from trundle.report.format import fixed, number, position, position_decimals
-from trundle.report.positions_figure import Panel, draw_panel
+from trundle.report.positions_figure import Panel, positions_figure
 from trundle.workflows.design_records import DesignRecord
 
 QUANTITY = {"moment": "moment", "shear_left": "shear", "shear_right": "shear",
@@ -136,27 +135,8 @@ def positions_figures(results: EnvelopeResults, records: Sequence[DesignRecord],
     """The panels of one combination, two to a row, at most :data:`PANELS_PER_FIGURE` to a
     figure (none when no live load governs)."""
     items = panels(results, records, places)
-    return [_figure(results, items[i:i + PANELS_PER_FIGURE])
+    return [positions_figure(results, list(items[i:i + PANELS_PER_FIGURE]))
             for i in range(0, len(items), PANELS_PER_FIGURE)]
-
-
-def _figure(results: EnvelopeResults, items: Sequence[Panel]) -> Figure:
-    columns = 2 if len(items) > 1 else 1
-    rows = -(-len(items) // columns)
-    with figure_style():
-        figure = new_figure(7.5, 0.35 + 1.7 * rows)
-        grid = figure.add_gridspec(rows, columns)
-        axes = []
-        for i, panel in enumerate(items):
-            ax = figure.add_subplot(grid[i // columns, i % columns])
-            draw_panel(ax, results, panel)
-            axes.append(ax)
-        low = min(ax.get_xlim()[0] for ax in axes)
-        high = max(ax.get_xlim()[1] for ax in axes)
-        for ax in axes:  # one x range: positions compare at a glance
-            ax.set_xlim(low, high)
-            ax.tick_params(axis="x", labelsize=6.5)
-    return figure
 
 
 def positions_caption(results: EnvelopeResults, combination: str, part: int = 1,
