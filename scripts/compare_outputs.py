@@ -232,7 +232,7 @@ def main() -> int:
             problems += _compare_csv(old_file, new_dir, args.rel, used)
         failures += bool(problems)
         print(f"{name}: {'equal' if not problems else f'{len(problems)} differences'}")
-        for line in problems[:40]:
+        for line in problems[:int(os.environ.get("COMPARE_SHOW", "40"))]:
             print("   ", line)
     print("renames used:" if used else "renames used: none")
     for line in sorted(used):
