@@ -1026,7 +1026,7 @@ def sweep_command(model_file: str, vary: tuple[str, ...], effects: tuple[str, ..
         except OSError as error:
             raise UserError(f"--out {out_dir}: cannot write ({error.strerror or error})") \
                 from None
-        console.print("wrote " + ", ".join(str(p) for p in written))
+        console.print(f"wrote {', '.join(p.name for p in written)} in {out_dir}")
         if removed:
             console.print("removed the earlier run's " + ", ".join(p.name for p in removed))
     for caution in CAUTIONS:
