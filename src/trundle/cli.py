@@ -680,11 +680,16 @@ def _governing_summary(model: Model, moving: Any, runway: Any, design: Any) -> l
     units = model.units
     M, F, L = units.label("moment"), units.label("force"), units.label("length")
 
-    def value(v: float, unit: str) -> str:
-        return f"{fixed(v, decimals([v]))} {unit}"
+    def value(v: float, unit: str, places: int) -> str:
+        return f"{fixed(v, places)} {unit}"
+
+    def places_of(*arrays: Any) -> int:
+        # the decimals of the quantity's column in the tables: from every finite value of it
+        finite = np.concatenate([np.ravel(np.asarray(a, dtype=float)) for a in arrays])
+        return decimals(finite[np.isfinite(finite)])
 
     def words(label: str, values: Any, sections: Any, names: Any, unit: str, pick: Any,
-              where: str) -> str | None:
+              where: str, places: int) -> str | None:
         values = np.asarray(values, dtype=float)
         if not np.isfinite(values).any():
             return None
@@ -693,7 +698,8 @@ def _governing_summary(model: Model, moving: Any, runway: Any, design: Any) -> l
         name = names(i)
         if not name and values[i] == 0.0:  # nothing loads it that way: not worth a line
             return None
-        return f"{label} {value(values[i], unit)} at {at}" + (f" ({name})" if name else "")
+        return (f"{label} {value(values[i], unit, places)} at {at}"
+                + (f" ({name})" if name else ""))
 
     lines = []
     envelopes = []
@@ -710,18 +716,22 @@ def _governing_summary(model: Model, moving: Any, runway: Any, design: Any) -> l
             try:
                 values = env.max(kind) if which == "max" else env.min(kind)
                 governing = env.governing(kind, which)
+                places = places_of(env.max(kind), env.min(kind))
             except (KeyError, ValueError):
                 continue
             unit = M if kind == "moment" else F
             text = words(label, values, env.sections, lambda i, g=governing: g[i].load, unit,
-                         pick, where)
+                         pick, where, places)
             if text:
                 parts.append(text)
         if parts:
             lines.append(f"{title}: " + "; ".join(parts))
     if design is not None:
+        from trundle.report.design_section import design_places
+
         for name, d in design.designs.items():
             parts = []
+            places = design_places(design, name)
             for label, family, which, pick, where in (
                     ("max moment", "moment", "max", np.nanargmax, "x"),
                     ("min moment", "moment", "min", np.nanargmin, "x"),
@@ -732,7 +742,7 @@ def _governing_summary(model: Model, moving: Any, runway: Any, design: Any) -> l
                 cases = d.governing.get(key, ())
                 text = words(label, d.values[key], d.sections,
                              lambda i, c=cases: c[i] if i < len(c) else "",
-                             M if family == "moment" else F, pick, where)
+                             M if family == "moment" else F, pick, where, places[family])
                 if text:
                     parts.append(text)
             if parts:
