@@ -65,6 +65,19 @@ def design_run(path: Path) -> tuple:
     design = read_design_model(path)
     return design, run(design_spec_of(design))
 
+# One three-axle truck on two 14 m spans; {spacing} is its rear spacing, fixed ("4.3 m": an
+# exact "anywhere" moment) or searched (a table: only the sampled search, "not certified").
+TRUCK_ON_TWO_SPANS = """units = "SI"
+[beam]
+spans = [14.0, 14.0]
+supports = ["pin", "pin", "pin"]
+EI = 1e5
+[[load]]
+name = "truck"
+axles = ["35 kN", "145 kN", "145 kN"]
+spacings = ["4.3 m", {spacing}]
+"""
+
 CRANE_DATA = dict(capacity=200.0, bridge_weight=300.0, trolley_weight=50.0, span=20.0,
                   hook_approach=1.0, wheel_spacings=(3.6,), buffer_length=4.4)
 

@@ -23,7 +23,7 @@ import pytest
 import sympy as sp
 
 import trundle
-from conftest import SCAN_BEAMS, random_beam
+from conftest import SCAN_BEAMS, TRUCK_ON_TWO_SPANS, random_beam
 from naive_scan import ReferenceSolver, random_axles
 from trundle.analysis.absolute_moment import quartic_maxima
 from trundle.analysis.envelope import _sampled_extreme, absolute_extremes, exact_absolute
@@ -144,6 +144,26 @@ def test_two_near_equal_peaks_the_old_search_read_low() -> None:
 # --- random beams against a dense reference --------------------------------------------------
 
 
+def _axles_on_beam(length: float, case: LoadCase, g, multiplier: float
+                   ) -> list[tuple[float, float]]:
+    """(x, load × multiplier) of every axle of the governing configuration ``g`` that stands
+    on the beam, an axle on an end counted as the limit side ``g.side`` says."""
+    group = case.load.group(g.searched, case.impact)
+    if g.direction < 0:
+        group = group.mirrored()
+    axles = []
+    for u, P in zip(group.point_u, group.point_P, strict=True):
+        p = g.reference - u
+        if abs(p) <= 1e-12 * length:
+            p = 0.0
+        if abs(p - length) <= 1e-12 * length:
+            p = length
+        if p < 0 or p > length or (p == 0.0 and g.side < 0) or (p == length and g.side > 0):
+            continue
+        axles.append((p, P * multiplier))
+    return axles
+
+
 def _resolved(beam: trundle.Beam, case: LoadCase, extreme) -> float:
     """The moment at the extreme's section under its governing configuration, from the
     independent static solver (one-sided limits for an axle exactly on an end of the beam)."""
@@ -151,21 +171,9 @@ def _resolved(beam: trundle.Beam, case: LoadCase, extreme) -> float:
     a = float(beam.support_positions[extreme.span])
     if g.case < 0:
         return 0.0
-    group = case.load.group(g.searched, case.impact)
-    if g.direction < 0:
-        group = group.mirrored()
     L = beam.length
     x = extreme.x
-    axles = []
-    for u, P in zip(group.point_u, group.point_P, strict=True):
-        p = g.reference - u
-        if abs(p) <= 1e-12 * L:
-            p = 0.0
-        if abs(p - L) <= 1e-12 * L:
-            p = L
-        if p < 0 or p > L or (p == 0.0 and g.side < 0) or (p == L and g.side > 0):
-            continue
-        axles.append((p, P * case.multiplier))
+    axles = _axles_on_beam(L, case, g, case.multiplier)
     res = ReferenceSolver(beam, [x] if a < x < L else []).solve(axles)
     # equilibrium of everything left of x inside the span: the supports at or left of the
     # span's left end, and the loads left of x
@@ -272,16 +280,7 @@ def test_quartic_maxima_against_numpy_roots() -> None:
 
 # --- every output says which "anywhere" values are certified ------------------------------------
 
-_MODEL = """units = "SI"
-[beam]
-spans = [14.0, 14.0]
-supports = ["pin", "pin", "pin"]
-EI = 1e5
-[[load]]
-name = "truck"
-axles = ["35 kN", "145 kN", "145 kN"]
-spacings = ["4.3 m", {spacing}]
-"""
+_MODEL = TRUCK_ON_TWO_SPANS
 
 
 @pytest.mark.parametrize(("spacing", "certified"), [('"4.3 m"', True),
@@ -343,20 +342,8 @@ def _resolved_deflection(beam: trundle.Beam, case: LoadCase, extreme) -> float:
     g = extreme.governing
     if g.case < 0:
         return 0.0
-    group = case.load.group(g.searched, case.impact)
-    if g.direction < 0:
-        group = group.mirrored()
     L = beam.length
-    axles = []
-    for u, P in zip(group.point_u, group.point_P, strict=True):
-        p = g.reference - u
-        if abs(p) <= 1e-12 * L:
-            p = 0.0
-        if abs(p - L) <= 1e-12 * L:
-            p = L
-        if p < 0 or p > L or (p == 0.0 and g.side < 0) or (p == L and g.side > 0):
-            continue
-        axles.append((p, P * case.service_multiplier))
+    axles = _axles_on_beam(L, case, g, case.service_multiplier)
     # trundle's fixed-load statics (exact diagrams, no influence line): a section a hair
     # from a node would cost the mesh-based reference solver its digits
     result = solve_static(beam, [PointLoad(p, P) for p, P in axles])

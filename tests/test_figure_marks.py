@@ -9,6 +9,7 @@ import re
 
 import pytest
 
+from conftest import TRUCK_ON_TWO_SPANS
 from trundle.io.loads import loads_of
 from trundle.io.modelfile import load_model
 from trundle.io.outputs import Provenance
@@ -22,16 +23,7 @@ from trundle.workflows import moving_loads
 
 # One truck on two equal spans; a fixed rear spacing has an exact "anywhere" moment, a searched
 # one (4.3 m to 9.0 m) only the sampled search, marked "not certified" in the tables.
-_MODEL = """units = "SI"
-[beam]
-spans = [14.0, 14.0]
-supports = ["pin", "pin", "pin"]
-EI = 1e5
-[[load]]
-name = "truck"
-axles = ["35 kN", "145 kN", "145 kN"]
-spacings = ["4.3 m", {spacing}]
-"""
+_MODEL = TRUCK_ON_TWO_SPANS
 _FIXED, _SEARCHED = '"4.3 m"', '{ min = "4.3 m", max = "9.0 m" }'
 
 
