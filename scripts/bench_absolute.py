@@ -50,29 +50,20 @@ def train(cars: int) -> trundle.Vehicle:
     return trundle.Vehicle([200.0] * (4 * cars), spacings, name=f"{4 * cars}-axle train")
 
 
-def old_method(beam: trundle.Beam, case: LoadCase) -> list[float]:
-    coarse = _coarse_sections(beam, case, "moment")
+def old_method(beam: trundle.Beam, case: LoadCase, kind: str = "moment") -> list[float]:
+    """The former sampled search of ``kind`` (max and min of every span)."""
+    coarse = _coarse_sections(beam, case, kind)
     out = []
     for span in range(beam.n_spans):
         a, b = beam.support_positions[span], beam.support_positions[span + 1]
         for which in ("max", "min"):
-            out.append(_sampled_extreme(beam, case, "moment", which, a, b, coarse)[0])
+            out.append(_sampled_extreme(beam, case, kind, which, a, b, coarse)[0])
     return out
 
 
 def new_method(beam: trundle.Beam, case: LoadCase) -> list[float]:
     return [e.value for span in range(beam.n_spans)
             for e in absolute_extremes(beam, case, span, "moment")]
-
-
-def old_deflection(beam: trundle.Beam, case: LoadCase) -> list[float]:
-    coarse = _coarse_sections(beam, case, "deflection")
-    out = []
-    for span in range(beam.n_spans):
-        a, b = beam.support_positions[span], beam.support_positions[span + 1]
-        for which in ("max", "min"):
-            out.append(_sampled_extreme(beam, case, "deflection", which, a, b, coarse)[0])
-    return out
 
 
 def new_deflection(beam: trundle.Beam, case: LoadCase) -> list:
@@ -129,7 +120,8 @@ def main(quick: bool) -> None:
           f"{'old below new (worst, relative)':>32s}")
     for label, beam, vehicle in jobs[:1] + jobs[3:]:
         case = LoadCase(vehicle)
-        t_old, old = timed(lambda beam=beam, case=case: old_deflection(beam, case), repeat)
+        t_old, old = timed(lambda beam=beam, case=case: old_method(beam, case, "deflection"),
+                           repeat)
         t_new, new = timed(lambda beam=beam, case=case: new_deflection(beam, case), repeat)
         values = np.array([e.value for e in new])
         sign = np.tile([1.0, -1.0], len(values) // 2)
