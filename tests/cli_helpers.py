@@ -3,6 +3,9 @@
 from __future__ import annotations
 
 import csv
+import os
+import shutil
+import subprocess
 from html.parser import HTMLParser
 from pathlib import Path
 
@@ -98,3 +101,16 @@ def html_problems(page: str) -> list[str]:
     if len(checker.ids) != len(set(checker.ids)):
         problems.append("an id is used twice")
     return problems
+
+
+# Debian's headless browser, for the report tests that print a page (skipped where absent)
+CHROMIUM = shutil.which("chromium") or (
+    "/usr/bin/chromium" if os.path.exists("/usr/bin/chromium") else None)
+
+
+def chromium(*args: str, user_dir: str) -> None:
+    """Run headless Chromium once (a screenshot or a PDF) with its own profile folder."""
+    subprocess.run([CHROMIUM, "--headless", "--no-sandbox", "--disable-gpu",
+                    "--disable-background-networking", "--disable-component-update",
+                    "--disable-sync", "--no-first-run", f"--user-data-dir={user_dir}", *args],
+                   check=True, capture_output=True, timeout=180)

@@ -14,25 +14,20 @@ the page shows the files' numbers.
 
 from __future__ import annotations
 
-import os
 import re
-import shutil
-import subprocess
 import tempfile
 from html.parser import HTMLParser
 from pathlib import Path
 
 import pytest
 
-from cli_helpers import assert_one_line_error, read_csv, run
+from cli_helpers import CHROMIUM, assert_one_line_error, read_csv, run
+from cli_helpers import chromium as _chromium
 from trundle.io.traffic import traffic_bytes
 from trundle.io.traffic_generator import invented_traffic
 from trundle.report import CAUTION, CAUTION_LINE, LOAD_MODEL_CAUTION
 from trundle.report.fleet_section import DIRECTION_WORDS, _decade
 from trundle.report.package import css_string
-
-CHROMIUM = shutil.which("chromium") or (
-    "/usr/bin/chromium" if os.path.exists("/usr/bin/chromium") else None)
 
 AXLE = """units = "SI"
 description = "{what} (test)"
@@ -322,13 +317,6 @@ def test_a_bad_project_file_is_one_line_and_exit_2(runs: Path, tmp_path: Path) -
                           "project.job_number", "expected text", "found 1234")
     assert_one_line_error(run(*args, "--project", tmp_path / "missing.toml"), "missing.toml")
     assert not (tmp_path / "out").exists()
-
-
-def _chromium(*args: str, user_dir: str) -> None:
-    subprocess.run([CHROMIUM, "--headless", "--no-sandbox", "--disable-gpu",
-                    "--disable-background-networking", "--disable-component-update",
-                    "--disable-sync", "--no-first-run", f"--user-data-dir={user_dir}", *args],
-                   check=True, capture_output=True, timeout=180)
 
 
 @pytest.mark.skipif(CHROMIUM is None, reason="Debian's chromium is not installed")

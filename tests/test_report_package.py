@@ -16,17 +16,15 @@ from __future__ import annotations
 
 import hashlib
 import html
-import os
 import re
-import shutil
-import subprocess
 import tempfile
 from pathlib import Path
 
 import numpy as np
 import pytest
 
-from cli_helpers import HtmlChecker, assert_one_line_error, read_csv, run
+from cli_helpers import CHROMIUM, HtmlChecker, assert_one_line_error, read_csv, run
+from cli_helpers import chromium as _chromium
 from conftest import BUNDLED_EXAMPLES
 from trundle.io.modelfile import read_model
 from trundle.io.project import ProjectInfo, project_of
@@ -38,9 +36,6 @@ WITH_PROJECT = {"harbour_lane_floor_girder_si", "hall_kestrel_quay_si"}
 # A sensible A4 calculation package for these examples; the crane report printed to 19 pages
 # before the per-section fatigue table moved to its CSV file.
 MAX_PAGES = 15
-CHROMIUM = shutil.which("chromium") or (
-    "/usr/bin/chromium" if os.path.exists("/usr/bin/chromium") else None)
-
 BEAM = 'units = "SI"\n[beam]\nspans = ["6 m"]\nsupports = ["pin", "pin"]\nEI = 1e5\n'
 
 
@@ -273,13 +268,6 @@ def test_the_critical_load_positions_are_drawn(example):
 
 # ------------------------------------------------------------------------------------------
 # a real browser
-
-
-def _chromium(*args: str, user_dir: str) -> None:
-    subprocess.run([CHROMIUM, "--headless", "--no-sandbox", "--disable-gpu",
-                    "--disable-background-networking", "--disable-component-update",
-                    "--disable-sync", "--no-first-run", f"--user-data-dir={user_dir}", *args],
-                   check=True, capture_output=True, timeout=180)
 
 
 @pytest.mark.skipif(CHROMIUM is None, reason="Debian's chromium is not installed")
