@@ -394,3 +394,34 @@ def test_searched_spacing_counts_an_axle_standing_on_a_free_tip():
                                       sections=[65.0], effects=("shear",)).max("shear_left")[0])
                for s in np.linspace(4.3, 9.0, 11))
     assert found >= grid - 1e-9 * abs(grid)
+
+
+def test_a_group_just_right_of_a_section_with_its_last_axle_on_a_free_tip():
+    """A cantilever 8.32 m long beyond its only rigid support, one spacing searched 2.0–6.21 m:
+    the worst shear on the cantilever has the group just right of a section with its last
+    axle on the free tip. The search reaches that value as a limit (the spacing a hair
+    shorter than the one that puts the last axle exactly on the tip); it used to stop with an
+    internal error because the fixed-spacing check looked only at the exact spacing found.
+
+    Closed form (statics of a cantilever, common practice, no source): the shear at a section
+    of the cantilever is the sum of the loads standing between it and the tip (each counted
+    whole), so its largest value is the heaviest run of consecutive axles whose shortest
+    length fits in the distance to the tip; nothing left of the section counts."""
+    beam = trundle.Beam([7.18, 5.02, 3.3], EI=4.88,
+                        supports=(trundle.Spring(k=1.75, kr=19.8), "pin", "free", "free"))
+    loads, fixed, (low, high) = [57.0, 101.8, 95.5], 2.8, (2.0, 6.21)
+    vehicle = trundle.Vehicle(loads, [fixed, (low, high)])
+    e = trundle.envelope(beam, [vehicle], effects=("shear",))
+    runs = [(57.0, 0.0), (101.8, 0.0), (95.5, 0.0), (57.0 + 101.8, fixed),
+            (101.8 + 95.5, low), (sum(loads), fixed + low)]
+    tip = 15.5
+    checked = 0
+    for x, top, bottom in zip(e.sections, e.max("shear"), e.min("shear"), strict=True):
+        if not 7.18 < x < tip:
+            continue
+        expected = max(total for total, length in runs if length <= tip - x + 1e-12)
+        assert top == pytest.approx(expected, rel=1e-12), x
+        assert bottom == pytest.approx(0.0, abs=1e-9), x
+        checked += 1
+    assert checked >= 10
+    assert max(e.max("shear")) == pytest.approx(254.3, rel=1e-12)  # all three on the cantilever

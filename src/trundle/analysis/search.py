@@ -241,12 +241,15 @@ def searched_extremes(batch: LineBatch, weights: NDArray[np.float64], kinds: NDA
         dp = np.where(sign * values[:, w] > 0.0, values[:, w], 0.0)
         bound = CHECK_TOLERANCE * np.maximum(scale, np.abs(dp))
         todo = np.arange(n)
-        # the exact fixed-spacing scan at the values found must reach the same extreme. A
-        # confined load whose loads then span the beam exactly (wheels at both end stops)
-        # is, for the scan, not standing; the search's value is the limit of it standing
-        # with the links a hair shorter (or longer, mirrored), which the scan then confirms
+        # the exact fixed-spacing scan at the values found must reach the same extreme.
+        # Where the search joins blocks standing at one-sided limits, its value is a limit
+        # that the links found reach only a hair shorter (or longer): a confined load whose
+        # wheels then span the beam exactly (at both end stops) is, for the scan, not
+        # standing; a load that stands just right of a section (a limit from above) while
+        # the last one stands exactly on a free tip has, at those links, that last load a
+        # hair beyond the tip. The scan at the nudged links then confirms the value.
         nudge = 1e-11 * batch.length
-        for step in ((0.0, nudge, -nudge) if confined else (0.0,)):
+        for step in (0.0, nudge, -nudge):
             trial = np.clip(links[todo, w] + step, plan.link_lo, plan.link_hi)
             found = plan.parameter_values(trial, low, high)
             check = scan_arrangements(batch, weights, kinds, base[None, :] + found @ slope,
