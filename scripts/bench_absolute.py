@@ -39,6 +39,7 @@ from trundle.analysis.envelope import (
     absolute_extremes,
 )
 from trundle.loads.cases import LoadCase
+from trundle.scan import use_compiled_kernels
 
 
 def train(cars: int) -> trundle.Vehicle:
@@ -92,6 +93,7 @@ def timed(fn, repeat: int) -> tuple[float, object]:
 
 
 def main(quick: bool) -> None:
+    use_compiled_kernels()  # time the compiled kernels, never their first-run copies
     load = os.getloadavg() if hasattr(os, "getloadavg") else ("?",)
     print(f"load average at start: {', '.join(f'{v:.2f}' for v in load)}")
     truck = trundle.Vehicle([35.0, 145.0, 145.0], [4.3, 4.3], name="three-axle truck")

@@ -37,7 +37,7 @@ import numpy as np
 
 import trundle
 from trundle.core.fem import assemble, build_mesh
-from trundle.scan import kernels
+from trundle.scan import kernels, use_compiled_kernels
 
 # the module that holds envelope(), wherever it lives
 envelope_module = importlib.import_module(trundle.envelope.__module__)
@@ -123,26 +123,27 @@ def kernel_time(env, load, threads: int | None = 1) -> float:
 
 
 def slice_balance(env, load) -> tuple[float, float]:
-    """(serial kernel time, the slowest of the two slices the parallel kernel would give its
-    threads, each run serially): t / (2 · slowest) bounds the two-thread efficiency by the
-    split of the work alone; measured serially, so a loaded machine spoils it less."""
+    """(serial time of the chunks, the time two threads need for them when each thread takes
+    the next chunk as soon as it is free, as ``kernels.scan_rows_parallel`` does): every chunk
+    the kernel would cut is timed alone, serially, so a loaded machine spoils this less;
+    t / (2 · that time) bounds the two-thread efficiency by the split of the work alone."""
     _, calls = kernel_calls(env, load)
-    total, slowest = 0.0, 0.0
+    total, makespan = 0.0, 0.0
     for args, own in calls:
         lines, n_terms, prune = args[11], args[8].shape[0], args[15]
-        work = np.cumsum(kernels.row_work(args[1], lines, n_terms, prune))
-        cut = int(np.searchsorted(work, work[-1] / 2))
-        halves = []
-        for lo, hi in ((0, cut), (cut, lines.shape[0])):
+        bounds = kernels.chunk_bounds(kernels.row_work(args[1], lines, n_terms, prune), 2)
+        free_at = [0.0, 0.0]
+        for lo, hi in zip(bounds[:-1], bounds[1:], strict=True):
             part = list(args)
             part[10] = args[10] if args[10].shape[0] == 1 else args[10][lo:hi]
             part[11] = lines[lo:hi]
-            halves.append(timed(lambda part=part, own=own: kernels.scan_rows(
+            t = timed(lambda part=part, own=own: kernels.scan_rows(
                 *part, threads=1, own_knot=own[0], own_value=own[1], end_live=own[2]),
-                repeat=7))
-        total += sum(halves)
-        slowest += max(halves)
-    return total, slowest
+                repeat=7)
+            total += t
+            free_at[free_at.index(min(free_at))] += t
+        makespan += max(free_at)
+    return total, makespan
 
 
 def response_pieces(env, load) -> int:
@@ -385,8 +386,8 @@ def large_jobs(quick: bool) -> None:
 
     print("   kernel on 1 and 2 threads: efficiency = t1 / (2 · t2) on the wall clock (spoilt "
           "by any other load on the machine: see the load average); balance = t1 / (2 · the "
-          "slower of the two thread slices, each run alone): the efficiency the split of the "
-          "work allows")
+          "time two threads need for the chunks, each chunk timed alone, every thread taking "
+          "the next chunk when free): the efficiency the split of the work allows")
     big_beam = trundle.Beam([24.0, 30.0, 24.0])
     jobs = [("3 spans, 3,001 sections, moment + shear + deflection, truck", big_beam,
              sections_of(big_beam, 3 if quick else 1000), truck(),
@@ -423,6 +424,9 @@ mark()
 searched = trundle.Vehicle([35.0, 145.0, 145.0], [4.3, (4.3, 9.0)])
 trundle.envelope(beam, [searched], effects=("moment",))
 mark()
+sections = np.linspace(0.0, 78.0, 3001)
+trundle.envelope(beam, [truck], effects=("moment", "shear", "deflection"), sections=sections)
+mark()
 from trundle.core.influence import Effect, influence_set
 from trundle.scan.batched import scan_fleet
 from trundle.scan.engine import LineBatch
@@ -432,14 +436,6 @@ start = np.array([0, 3, 5]); weight = np.array([35.0, 145.0, 145.0, 100.0, 100.0
 offset = np.array([0.0, 4.3, 8.6, 0.0, 1.8])
 scan_fleet(lines, start, weight, offset, parallel=False)
 mark()
-env = trundle.envelope(trundle.Beam([25.0] * 100), [truck], effects=("moment", "shear"))
-from trundle.scan import kernels
-b = env.batch
-w, o, k, _ = truck.group().terms()
-kernels.scan_rows(b.line_knots, b.n_pieces, b.line_coef, b.line_running, b.running_end,
-                  b.head, b.tail, b.peak, w, k, o[None, :], np.arange(b.n_lines), 0.0, 3,
-                  threads=2)
-mark()
 print(*(b[k] - a[k] for k in (0, 1) for a, b in zip(marks[:-1], marks[1:])))
 """
 
@@ -447,26 +443,30 @@ print(*(b[k] - a[k] for k in (0, 1) for a, b in zip(marks[:-1], marks[1:])))
 def first_run(quick: bool) -> None:
     print("\n4. first run in a fresh process [s] (wall clock, and CPU time of the process: "
           "on a loaded machine the CPU time is what the work costs): import trundle; then the "
-          "first use of each kind of job, in this order: a plain envelope (3 spans, moment, "
-          "truck); an envelope with a searched spacing (the exact search's kernels); the "
-          "fleet kernel (2 trucks, serial as in a Dask worker); the parallel scan kernel")
+          "first use of each kind of job, in this order: the standard envelope (3 spans, "
+          "moment, truck); the same with a searched spacing; a large envelope (3,001 "
+          "sections, moment + shear + deflection: beyond the first-run budget, so with a "
+          "cold cache it compiles the loop body, and it runs on threads); the fleet kernel "
+          "(2 trucks, serial as in a Dask worker). With a cold cache the first two run the "
+          "kernels' interpreted copies (the first-run tier)")
     if quick:
         print("   (skipped in --quick: compiling takes seconds)")
         return
     with tempfile.TemporaryDirectory() as cache:
         env = {**os.environ, "NUMBA_CACHE_DIR": cache}
-        for label in ("cold numba cache (compiles)", "warm numba cache"):
-            print(f"   load average before the {label.split(' (')[0]} run: {load_average()}")
+        for label in ("cold numba cache", "warm numba cache"):
+            print(f"   load average before the {label} run: {load_average()}")
             out = subprocess.run([sys.executable, "-c", FIRST_CODE], env=env,
                                  capture_output=True, text=True, check=True)
             values = [float(v) for v in out.stdout.split()]
             for clock, part in (("wall", values[:5]), ("CPU", values[5:])):
                 a, b, c, d, e = part
-                print(f"   {label:28s} {clock:4s} import {a:6.2f}  envelope {b:6.2f}  "
-                      f"searched {c:6.2f}  fleet {d:6.2f}  parallel {e:6.2f}")
+                print(f"   {label:17s} {clock:4s} import {a:5.2f}  envelope {b:5.2f}  "
+                      f"searched {c:5.2f}  large {d:5.2f}  fleet {e:5.2f}")
 
 
 def main(quick: bool = False) -> None:
+    use_compiled_kernels()  # time the compiled kernels, never their first-run copies
     print(f"load average at start (1, 5, 15 min): {load_average()}; "
           f"{os.cpu_count()} cpus; numba threads {kernels._threads()}")
     standard_job(quick)

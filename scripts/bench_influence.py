@@ -34,6 +34,7 @@ import trundle
 from trundle.core import influence as influence_module
 from trundle.core.influence import Effect, line_pieces
 from trundle.core.statics import PointLoad, PointMoment
+from trundle.scan import use_compiled_kernels
 
 
 def job(quick: bool = False) -> tuple[trundle.Beam, list[Effect], np.ndarray]:
@@ -51,6 +52,7 @@ def read_all(result, sections: np.ndarray) -> np.ndarray:
 
 
 def main(quick: bool = False) -> None:
+    use_compiled_kernels()  # time the compiled kernels, never their first-run copies
     beam, effects, sections = job(quick)
     beam.influence_set(effects[:4])  # warm imports
     runs = []

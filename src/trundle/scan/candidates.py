@@ -19,6 +19,7 @@ from __future__ import annotations
 import numpy as np
 from numba import njit
 
+from trundle.core._jit import FirstRunTier
 from trundle.scan._config import JIT_OPTIONS
 from trundle.scan.kernels import (
     _CRIT,
@@ -31,9 +32,12 @@ from trundle.scan.kernels import (
     _advance_terms,
     _critical_points,
     _horner,
+    _horner_high,
     _piece_polynomial,
     _place_terms,
     _point_value,
+    _quadratic_roots,
+    _shift_add,
 )
 
 FREE = 2  # link code: strictly inside its range (0: at its lower bound, 1: at its upper)
@@ -228,7 +232,7 @@ def chain_maximum(pos, signed, block_start, blocks, n_blocks, shift, link_of, li
 
 
 @njit(**JIT_OPTIONS)
-def search_lines(knots, n_pieces, coef, running, running_end, own_knot, own_value, end_live,
+def _search_lines(knots, n_pieces, coef, running, running_end, own_knot, own_value, end_live,
                  lines, block_term_start,
                  term_weight, term_kind, term_offset, block_degree, block_shift, block_last,
                  confined, assign_blocks, assign_count, assign_codes, link_lo, link_hi,
@@ -298,3 +302,45 @@ def search_lines(knots, n_pieces, coef, running, running_end, own_knot, own_valu
                         links[row, w, j] = pos[picked[b]] - block_shift[p] - pos[picked[b + 1]]
             values[row, w] = sign * top
     return values, links
+
+
+# The first run (see ``core._jit.FirstRunTier``): compiling these kernels and the loop body's
+# helpers they call costs about 5 s in a fresh process with an empty numba cache; a small
+# search runs interpreted in a fraction of a second. The work of a call is counted as rows ×
+# candidate capacity × (1 + assignments): the candidates of each row, and one pass of the
+# chain over them per assignment. Interpreted: 0.65–1.6 µs per unit (the standard truck with
+# one searched spacing over 31 sections, and two searched spacings over 201 sections); compiled
+# about 300 times less. 1,000,000 units ≈ 0.7–1.6 s, under half the compile.
+INTERPRETED_BUDGET_UNITS = 1_000_000
+
+_tier = FirstRunTier(_search_lines, [_horner, _quadratic_roots, _critical_points,
+                                     _horner_high, _point_value, _place_terms, _advance_terms,
+                                     _shift_add, _piece_polynomial, block_candidates,
+                                     _sort_block, chain_maximum, _search_lines],
+                     INTERPRETED_BUDGET_UNITS)
+
+
+def search_lines(knots, n_pieces, coef, running, running_end, own_knot, own_value, end_live,
+                 lines, block_term_start, term_weight, term_kind, term_offset, block_degree,
+                 block_shift, block_last, confined, assign_blocks, assign_count, assign_codes,
+                 link_lo, link_hi, margin, capacity):
+    """The global max and min over positions and searched links of each row's line: see
+    ``_search_lines`` (compiled, or its interpreted copy on a first run)."""
+    args = (knots, n_pieces, coef, running, running_end, own_knot, own_value, end_live, lines,
+            block_term_start, term_weight, term_kind, term_offset, block_degree, block_shift,
+            block_last, confined, assign_blocks, assign_count, assign_codes, link_lo, link_hi,
+            margin, capacity)
+    if _tier.compiled:
+        return _search_lines(*args)
+    work = float(lines.shape[0]) * capacity * (1 + assign_blocks.shape[0])
+    return _tier.function(args, work)(*args)
+
+
+def use_compiled_search() -> None:
+    """Run the compiled search from now on (benchmarks and tests of it)."""
+    _tier.use_compiled()
+
+
+def interpreted_search():
+    """The interpreted copy of ``_search_lines`` (for tests that check it bit for bit)."""
+    return _tier.interpreted()

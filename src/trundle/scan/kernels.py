@@ -11,13 +11,14 @@ rounding, not to a step.
 
 Kernels take plain arrays only. Each line is stored on its own breaks (the structural nodes
 and its own section), so a row's work is the number of structural pieces, however many other
-sections there are. Rows are independent: the parallel kernel gives each thread a contiguous
-slice of rows, and both kernels run the same loop body.
+sections there are. Rows are independent: on threads, each thread takes the next chunk of
+rows when it is free and runs the same compiled loop body on it (``scan_rows_parallel``).
 
-Compiling costs more than running on a first call (a fresh process with an empty numba cache),
-and numba's cost grows with the number of compiled functions (each has a fixed cost of about
-0.1–0.3 s) and with the statements in each. So the loop body calls few helpers, each compiled
-once (no literal arguments that would give a second specialisation, no tuple packing, no
+Compiling costs more than running on a first call (a fresh process with an empty numba cache):
+until the compiled loop body is at hand, small calls run its interpreted copy (the first-run
+tier below). numba's cost grows with the number of compiled functions (each has a fixed cost
+of about 0.1–0.3 s) and with the statements in each. So the loop body calls few helpers, each
+compiled once (no literal arguments that would give a second specialisation, no tuple packing, no
 builtins that compile an implementation of their own such as min/max), and it allocates
 nothing: its work arrays come from the caller. One exception is kept on purpose: the Taylor
 shift (``_shift_add``) is compiled for a cubic and for a quartic (literal lengths 4 and 5), so
@@ -27,11 +28,14 @@ its loops unroll; with the length read at run time the scan ran 1.2–3 times sl
 from __future__ import annotations
 
 import os
+import threading
+from concurrent.futures import ThreadPoolExecutor
 
 import numpy as np
-from numba import njit, prange
+from numba import njit
 
-from trundle.scan._config import JIT_OPTIONS, PARALLEL_OPTIONS
+from trundle.core._jit import FirstRunTier
+from trundle.scan._config import JIT_OPTIONS
 
 KIND_POINT = 0
 KIND_RUNNING_INTEGRAL = 1
@@ -491,15 +495,12 @@ def scan_rows_serial(knots, n_pieces, coef, running, running_end, head, tail, pe
     -------
     (n_rows, 6): max, ξ at max, side at max, min, ξ at min, side at min
     """
-    # the compiled loop body is called straight from Python: a compiled wrapper around it
-    # would cost a second compilation of the whole body on the first run, and nothing else
     own_knot, own_value, end_live = _own_defaults(knots.shape[0], own_knot, own_value,
                                                   end_live)
     result = np.empty((lines.shape[0], 6))
-    _scan_chunk(0, lines.shape[0], knots, n_pieces, coef, running, running_end, head, tail,
-                peak, weight, kind, offsets, lines, float(constant_weight), int(degree),
-                bool(confined), bool(prune), own_knot, own_value, end_live, result,
-                *scan_workspace(weight.shape[0]))
+    scan_chunk(0, lines.shape[0], knots, n_pieces, coef, running, running_end, head, tail,
+               peak, weight, kind, offsets, lines, float(constant_weight), int(degree),
+               bool(confined), bool(prune), own_knot, own_value, end_live, result)
     return result
 
 
@@ -515,43 +516,126 @@ def _own_defaults(n_lines, own_knot, own_value, end_live):
             np.ascontiguousarray(end_live, dtype=np.bool_))
 
 
+# ---------------------------------------------------------------------------------------------
+# The first run. Compiling the loop body and its helpers costs about 5 s of CPU in a fresh
+# process with an empty numba cache, while a small job (the standard job: 31 sections, a truck
+# both ways) runs the same loop body through the interpreter in about 0.03 s. So until the
+# compiled loop body is at hand, calls run its interpreted copy within a budget of work per
+# process (``FirstRunTier``); the first call beyond it compiles.
+
+# Interpreted cost: 14–20 µs per piece visit of ``row_work`` (the standard job, all four
+# effects, 10 spans at 301 sections, 12 axles at 201 sections), against 30–70 ns compiled.
+# 100,000 visits ≈ 1.5–2 s, under half the cold compile.
+INTERPRETED_BUDGET_VISITS = 100_000
+
+_tier = FirstRunTier(_scan_chunk, [_horner, _quadratic_roots, _critical_points, _horner_high,
+                                   _point_value, _place_terms, _advance_terms, _shift_add,
+                                   _piece_polynomial, _scan_chunk],
+                     INTERPRETED_BUDGET_VISITS)
+
+
+def use_compiled_loop_body() -> None:
+    """Run the compiled loop body from now on, compiling it on the next call if it is not at
+    hand (for benchmarks that time the compiled kernel, and for tests of it)."""
+    _tier.use_compiled()
+
+
+def interpreted_loop_body():
+    """The interpreted copy of the loop body (``_scan_chunk``'s arguments): for tests that
+    check it against the compiled one."""
+    return _tier.interpreted()
+
+
+def scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, tail, peak,
+               weight, kind, offsets, lines, constant_weight, degree, confined, prune,
+               own_knot, own_value, end_live, result):
+    """The loop body on rows start … stop − 1, arguments already checked and laid out
+    (``engine.ScanPlan``), into ``result``; see ``scan_rows_serial``."""
+    args = (start, stop, knots, n_pieces, coef, running, running_end, head, tail, peak,
+            weight, kind, offsets, lines, constant_weight, degree, confined, prune, own_knot,
+            own_value, end_live, result, *scan_workspace(weight.shape[0]))
+    if _tier.compiled:  # the usual case, decided by one attribute
+        _scan_chunk(*args)
+        return
+    visits = float(row_work(n_pieces, lines[start:stop], weight.shape[0], prune).sum())
+    _tier.function(args, visits)(*args)
+
+
+# ---------------------------------------------------------------------------------------------
+# Threads. The compiled loop body releases the GIL (``nogil``), so plain Python threads run it
+# in parallel on disjoint rows of one result array. Rows are cut into more chunks than threads
+# and every thread takes the next chunk when it is done with one: the work estimate
+# (``row_work``) is only an estimate (pruning stops some rows early), so fixed halves left one
+# thread idle for up to a third of the call (balance 0.85 on an 80-axle train), and numba's
+# own parallel loop over the same halves was slower still (59.5 ms against 48 ms for Python
+# threads, serial 65 ms) and cost about 4 s of compiling on its first use.
+
+# Threads are used when each thread's share holds at least this many piece visits (see
+# ``row_work``). Calibrated by measurement (2 cores; scripts/bench_envelope.py section 3 and
+# the fit described in ``row_work``): the serial kernel costs 35–70 ns per visit on jobs from
+# 3 to 80 axles and 31 to 18,000 rows, and handing chunks to a second thread costs some tens of
+# µs. 20,000 visits is about 1 ms of work per thread, twenty times that cost.
+PARALLEL_FROM_VISITS_PER_THREAD = 20_000
+# a chunk holds at least this many visits (about 0.25 ms), and each thread gets about
+# CHUNKS_PER_THREAD of them to even out the estimate's errors
+CHUNK_FROM_VISITS = 5_000
+CHUNKS_PER_THREAD = 8
+
+_pool: dict[int, ThreadPoolExecutor] = {}  # per process id (a forked child makes its own)
+
+
+def _thread_pool(workers: int) -> ThreadPoolExecutor:
+    pool = _pool.get(os.getpid())
+    if pool is None or pool._max_workers < workers:
+        pool = ThreadPoolExecutor(max_workers=workers, thread_name_prefix="trundle-scan")
+        _pool.clear()
+        _pool[os.getpid()] = pool
+    return pool
+
+
 def scan_rows_parallel(knots, n_pieces, coef, running, running_end, head, tail, peak, weight,
                        kind, offsets, lines, constant_weight, degree, confined, prune,
-                       bounds, own_knot=None, own_value=None, end_live=None):
-    """``scan_rows_serial`` split into contiguous slices of rows, ``bounds`` (n_chunks + 1,),
-    one slice per thread, each writing only its own rows."""
+                       bounds, own_knot=None, own_value=None, end_live=None, threads=2):
+    """``scan_rows_serial`` on ``threads`` threads: the rows cut into chunks at ``bounds``
+    (n_chunks + 1,), each chunk run whole by whichever thread is free, writing only its own
+    rows. Always the compiled loop body (a thread of interpreted code would hold the GIL)."""
     own_knot, own_value, end_live = _own_defaults(knots.shape[0], own_knot, own_value,
                                                   end_live)
-    return _scan_rows_parallel(knots, n_pieces, coef, running, running_end, head, tail, peak,
-                               weight, kind, offsets, lines, float(constant_weight),
-                               int(degree), bool(confined), bool(prune), own_knot, own_value,
-                               end_live, bounds)
-
-
-@njit(**PARALLEL_OPTIONS)
-def _scan_rows_parallel(knots, n_pieces, coef, running, running_end, head, tail, peak, weight,
-                        kind, offsets, lines, constant_weight, degree, confined, prune,
-                        own_knot, own_value, end_live, bounds):
+    use_compiled_loop_body()
     result = np.empty((lines.shape[0], 6))
+    common = (knots, n_pieces, coef, running, running_end, head, tail, peak, weight, kind,
+              offsets, lines, float(constant_weight), int(degree), bool(confined),
+              bool(prune), own_knot, own_value, end_live, result)
+    chunks = iter(range(bounds.shape[0] - 1))
+    taking = threading.Lock()
     n_terms = weight.shape[0]
-    for c in prange(bounds.shape[0] - 1):
-        # each thread its own work arrays (as ``scan_workspace``)
-        _scan_chunk(bounds[c], bounds[c + 1], knots, n_pieces, coef, running, running_end,
-                    head, tail, peak, weight, kind, offsets, lines, constant_weight, degree,
-                    confined, prune, own_knot, own_value, end_live, result,
-                    np.empty(n_terms, dtype=np.int64), np.empty(n_terms),
-                    np.empty(n_terms, dtype=np.bool_), np.empty((_WORK_ROWS, _WORK_WIDTH)))
+
+    def worker() -> None:
+        workspace = scan_workspace(n_terms)
+        while True:
+            with taking:
+                c = next(chunks, None)
+            if c is None:
+                return
+            _scan_chunk(int(bounds[c]), int(bounds[c + 1]), *common, *workspace)
+
+    helpers = max(1, min(int(threads), bounds.shape[0] - 1)) - 1
+    pool = _thread_pool(helpers) if helpers else None
+    futures = [pool.submit(worker) for _ in range(helpers)] if pool else []
+    worker()
+    for future in futures:
+        future.result()
     return result
 
 
-# Threads are used when each thread's slice holds at least this many piece visits (see
-# ``row_work``). Calibrated by measurement (2 cores; scripts/bench_envelope.py section 3 and
-# the fit described in ``row_work``): the serial kernel costs 35–70 ns per visit on jobs from
-# 3 to 80 axles and 31 to 18,000 rows, and a two-thread call costs about 50 µs more than a
-# serial one on a tiny job (thread wake-up; measured at a load average of 6 on 2 cores, less on
-# a quiet machine). 20,000 visits is about 1 ms of work per thread, twenty times that cost, so
-# splitting loses at most a few per cent even when the second thread barely helps.
-PARALLEL_FROM_VISITS_PER_THREAD = 20_000
+def chunk_bounds(work: np.ndarray, threads: int) -> np.ndarray:
+    """Cuts of rows into chunks of about equal estimated work (``work``: per row): about
+    CHUNKS_PER_THREAD per thread, none below CHUNK_FROM_VISITS."""
+    cumulative = np.cumsum(work)
+    total = float(cumulative[-1]) if cumulative.shape[0] else 0.0
+    n_chunks = int(max(threads, min(threads * CHUNKS_PER_THREAD, total // CHUNK_FROM_VISITS)))
+    cuts = np.searchsorted(cumulative, total * np.arange(1, n_chunks) / n_chunks)
+    return np.unique(np.concatenate([[0], cuts, [work.shape[0]]])).astype(np.int64)
 
 
 def row_work(n_pieces: np.ndarray, lines: np.ndarray, n_terms: int, prune: bool
@@ -576,16 +660,6 @@ def could_use_threads(n_pieces: np.ndarray, n_rows: int, n_terms: int) -> bool:
     return most >= 2 * PARALLEL_FROM_VISITS_PER_THREAD and _cores() > 1
 
 
-def scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, tail, peak,
-               weight, kind, offsets, lines, constant_weight, degree, confined, prune,
-               own_knot, own_value, end_live, result):
-    """The compiled loop body on rows start … stop − 1, arguments already checked and laid
-    out (``engine.ScanPlan``); see ``scan_rows_serial``."""
-    _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, tail, peak,
-                weight, kind, offsets, lines, constant_weight, degree, confined, prune,
-                own_knot, own_value, end_live, result, *scan_workspace(weight.shape[0]))
-
-
 def scan_rows(knots, n_pieces, coef, running, running_end, head, tail, peak, weight, kind,
               offsets, lines, constant_weight, degree, confined=False, prune=False,
               threads: int | None = None, own_knot=None, own_value=None, end_live=None):
@@ -593,20 +667,20 @@ def scan_rows(knots, n_pieces, coef, running, running_end, head, tail, peak, wei
     threads only when each thread gets enough work to pay for it."""
     args = (knots, n_pieces, coef, running, running_end, head, tail, peak, weight, kind,
             offsets, lines, float(constant_weight), int(degree), bool(confined), bool(prune))
+    work = None
     if threads is None:
         threads = 1
         n_terms = weight.shape[0]
         # an upper bound first: most calls are far too small to ask about threads at all
         if could_use_threads(n_pieces, lines.shape[0], n_terms):
-            total = float(row_work(n_pieces, lines, n_terms, prune).sum())
-            threads = int(min(_cores(), total // PARALLEL_FROM_VISITS_PER_THREAD))
+            work = row_work(n_pieces, lines, n_terms, prune)
+            threads = int(min(_cores(), float(work.sum()) // PARALLEL_FROM_VISITS_PER_THREAD))
     own = (own_knot, own_value, end_live)
     if threads <= 1 or lines.shape[0] < 2:
         return scan_rows_serial(*args, *own)
-    work = np.cumsum(row_work(n_pieces, lines, weight.shape[0], prune))
-    cuts = np.searchsorted(work, work[-1] * np.arange(1, threads) / threads)
-    bounds = np.concatenate([[0], cuts, [lines.shape[0]]]).astype(np.int64)
-    return scan_rows_parallel(*args, bounds, *own)
+    if work is None:
+        work = row_work(n_pieces, lines, weight.shape[0], prune)
+    return scan_rows_parallel(*args, chunk_bounds(work, threads), *own, threads=threads)
 
 
 def _threads() -> int:
@@ -616,10 +690,10 @@ def _threads() -> int:
 
 
 def _cores() -> int:
-    """Cores this process may run on (its CPU affinity), at most numba's thread count. Not
-    the load average: it counts this process's own recent threads as other load, so a call
-    right after a parallel one kept to one thread (63 ms instead of 33 ms for an 80-axle
-    train over 10 spans)."""
+    """Cores this process may run on (its CPU affinity), at most numba's thread count (which
+    a user sets with NUMBA_NUM_THREADS). Not the load average: it counts this process's own
+    recent threads as other load, so a call right after a parallel one kept to one thread
+    (63 ms instead of 33 ms for an 80-axle train over 10 spans)."""
     try:
         allowed = len(os.sched_getaffinity(0))
     except (AttributeError, OSError):  # no affinity on this platform
@@ -653,7 +727,7 @@ def merge_directions(scan, directions, value, xi, side, direction):
 
 
 @njit(**JIT_OPTIONS)
-def evaluate_lines(knots, n_pieces, coef, x, from_left):
+def _evaluate_lines(knots, n_pieces, coef, x, from_left):
     """(len(x), n_lines): every line's piecewise polynomial at every x (each line on its own
     knots, ``coef`` highest power first); at a knot the piece on the left if ``from_left``,
     else the piece on the right; the end pieces extend beyond the ends."""
@@ -678,3 +752,27 @@ def evaluate_lines(knots, n_pieces, coef, x, from_left):
                 value = value * s + coef[j, lo, p]
             out[i, j] = value
     return out
+
+
+
+# The first run, as for the loop body: compiling ``_evaluate_lines`` costs 0.6–0.8 s in a
+# fresh process, while interpreted it costs about 6 µs per line and x (206 calls of the
+# floor-girder example: 2,188 of them, 14 ms). 50,000 ≈ 0.3 s, under half the compile.
+INTERPRETED_BUDGET_EVALUATIONS = 50_000
+
+_evaluate_tier = FirstRunTier(_evaluate_lines, [_evaluate_lines],
+                              INTERPRETED_BUDGET_EVALUATIONS)
+
+
+def evaluate_lines(knots, n_pieces, coef, x, from_left):
+    """(len(x), n_lines): every line's piecewise polynomial at every x; see
+    ``_evaluate_lines`` (compiled, or its interpreted copy on a first run)."""
+    if _evaluate_tier.compiled:
+        return _evaluate_lines(knots, n_pieces, coef, x, from_left)
+    args = (knots, n_pieces, coef, x, from_left)
+    return _evaluate_tier.function(args, float(x.shape[0]) * knots.shape[0])(*args)
+
+
+def use_compiled_line_evaluation() -> None:
+    """Evaluate lines compiled from now on (see ``use_compiled_loop_body``)."""
+    _evaluate_tier.use_compiled()
