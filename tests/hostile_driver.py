@@ -168,11 +168,16 @@ uniform = 10
 def warm_up(folder: Path) -> None:
     """Run one small envelope here, once, so every child inherits the compiled kernels (from
     numba's cache), the fonts and the templates instead of loading them again. The model is
-    small enough that no parallel kernel starts threads before the forks."""
+    small enough that no threads start before the forks. The kernels are compiled here
+    even on a cold cache (not run by their first-run copies), so no child compiles them
+    again within its time limit."""
     import contextlib
     import io
 
     from trundle.cli import cli
+    from trundle.scan import use_compiled_kernels
+
+    use_compiled_kernels()
 
     folder.mkdir(parents=True, exist_ok=True)
     model_file = folder / "model.toml"

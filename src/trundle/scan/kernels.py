@@ -280,8 +280,8 @@ def _piece_polynomial(poly, constant, piece, kind, weight, offset, n_terms, xi, 
 def _scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, tail, peak,
                 weight, kind, offsets, lines, constant_weight, degree, confined, prune,
                 own_knot, own_value, end_live, result, piece, upcoming, arrived, work):
-    """Rows start … stop − 1 into their own slice of ``result``: the one loop body that both
-    the serial and the parallel kernel run. ``piece``, ``upcoming``, ``arrived``, ``work``:
+    """Rows start … stop − 1 into their own slice of ``result``: the one loop body, run on one
+    thread or by chunks on several. ``piece``, ``upcoming``, ``arrived``, ``work``:
     the caller's work arrays (``scan_workspace``), one set per thread.
 
     A row sweeps the reference position ξ over every piece of its line's response (the line's
