@@ -59,12 +59,13 @@ def interpreted_copies(*dispatchers) -> dict:
     Returns name → copy."""
     import types
 
+    # with NUMBA_DISABLE_JIT set, njit gives back the plain functions themselves
+    sources = [getattr(d, "py_func", d) for d in dispatchers]
     namespace: dict = {}
-    for dispatcher in dispatchers:
-        namespace.update(dispatcher.py_func.__globals__)
+    for source in sources:
+        namespace.update(source.__globals__)
     copies = {}
-    for dispatcher in dispatchers:
-        source = dispatcher.py_func
+    for source in sources:
         copies[source.__name__] = types.FunctionType(source.__code__, namespace,
                                                      source.__name__, source.__defaults__,
                                                      source.__closure__)
