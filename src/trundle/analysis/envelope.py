@@ -308,15 +308,15 @@ def merge_scans(scan: NDArray[np.float64], n_directions: int
     # the empty beam's 0, and what is kept only grows)
     signed = candidate * _SIGNS
     signed[np.isnan(rows[:, :, 1::3].transpose(0, 2, 1))] = -np.inf
-    kept = np.zeros((2, n))  # signed value kept so far: the empty beam's 0 first
-    value = np.zeros((2, n))
-    choice = np.full((2, n), -1, dtype=np.int64)
+    # kept so far (signed), its value and its direction: the empty beam's 0 first
+    kept, value, choice = 0.0, 0.0, -1
     for k in range(n_directions):
         better = signed[k] > kept
-        np.copyto(kept, signed[k], where=better)
-        np.copyto(value, candidate[k], where=better)
-        choice[better] = k
-    return value, choice
+        if k + 1 < n_directions:
+            kept = np.where(better, signed[k], kept)
+        value = np.where(better, candidate[k], value)
+        choice = np.where(better, k, choice)
+    return value, choice.astype(np.int64, copy=False)
 
 
 @dataclass(frozen=True)
