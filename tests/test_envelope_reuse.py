@@ -133,7 +133,11 @@ def test_merged_directions_keep_what_offering_each_direction_keeps(seed: int) ->
                     assert (g.value, g.reference, g.side, g.direction, g.searched) == (
                         expected[0][w, j], expected[1][w, j], expected[2][w, j],
                         expected[3][w, j], ())
+        before = [merged.governing(w, j) for w in (0, 1) for j in range(n)]
         for got, want in zip((merged.value, merged.xi, merged.side, merged.direction),
                              expected, strict=True):
             np.testing.assert_array_equal(got, want)
         assert merged.searched.shape == (2, n, 0)
+        # once the arrays are read (or changed by an offer), they give the same records
+        merged._own_arrays()
+        assert [merged.governing(w, j) for w in (0, 1) for j in range(n)] == before

@@ -194,7 +194,9 @@ class _CaseResult:
         return self
 
     def _lay_out(self) -> None:
-        """The positions of a merged scan as arrays (for a caller that reads them)."""
+        """The positions of a merged scan as arrays (for a caller that reads them). The
+        rows stay: ``governing`` keeps reading them, and a reader in another thread that
+        finds a field not yet laid out lays it out again (the same arrays)."""
         scan, directions, choice = self._rows
         n = self.value.shape[1]
         xi = np.full((2, n), np.nan)
@@ -206,31 +208,37 @@ class _CaseResult:
             np.copyto(xi, rows[:, 1::3].T, where=taken)
             np.copyto(side, rows[:, 2::3].T, where=taken, casting="unsafe")
             np.copyto(direction, directions[k], where=taken, casting="unsafe")
-        self._xi, self._side, self._direction = xi, side, direction
         self._searched = np.zeros((2, n, 0))
-        self._rows = None
+        self._side, self._direction, self._xi = side, direction, xi
+
+    def _own_arrays(self) -> None:
+        """Before the arrays are changed (``offer``): laid out, and the rows forgotten, so
+        that ``governing`` reads the arrays."""
+        if self._rows is not None:
+            self._lay_out()
+            self._rows = None
 
     @property
     def xi(self) -> NDArray[np.float64]:
-        if self._rows is not None:
+        if self._xi is None:
             self._lay_out()
         return self._xi
 
     @property
     def side(self) -> NDArray[np.int64]:
-        if self._rows is not None:
+        if self._side is None:
             self._lay_out()
         return self._side
 
     @property
     def direction(self) -> NDArray[np.int64]:
-        if self._rows is not None:
+        if self._direction is None:
             self._lay_out()
         return self._direction
 
     @property
     def searched(self) -> NDArray[np.float64]:
-        if self._rows is not None:
+        if self._searched is None:
             self._lay_out()
         return self._searched
 
@@ -238,6 +246,7 @@ class _CaseResult:
               searched) -> None:
         """Keep, row by row, whichever is worse (larger for max, smaller for min); ``rows``
         None: one row per line, in order."""
+        self._own_arrays()
         if rows is None:  # every line, in order (the common call): masks, no index arrays
             current = self.value[w]
             better = (value > current) if w == 0 else (value < current)
@@ -262,6 +271,7 @@ class _CaseResult:
     def offer_scan(self, r: NDArray[np.float64], direction: int) -> None:
         """``offer`` of a kernel's (n_lines, 6) result for every line, max and min at once
         (nothing searched): the same choices, in fewer array operations."""
+        self._own_arrays()
         value = r[:, 0::3].T  # (2, n): max, min
         xi = r[:, 1::3].T
         better = (value * _SIGNS > self.value * _SIGNS) & ~np.isnan(xi)
