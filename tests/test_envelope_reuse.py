@@ -133,6 +133,8 @@ def test_merged_directions_keep_what_offering_each_direction_keeps(seed: int) ->
                     assert (g.value, g.reference, g.side, g.direction, g.searched) == (
                         expected[0][w, j], expected[1][w, j], expected[2][w, j],
                         expected[3][w, j], ())
+        # the empty beam's zero is 0.0, as offering gives it (never −0.0)
+        assert not np.signbit(merged.value[merged.value == 0.0]).any()
         before = [merged.governing(w, j) for w in (0, 1) for j in range(n)]
         for got, want in zip((merged.value, merged.xi, merged.side, merged.direction),
                              expected, strict=True):

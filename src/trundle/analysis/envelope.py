@@ -186,9 +186,9 @@ class _CaseResult:
         k at rows k·n … k·n + n − 1), each line keeping the worse of the directions."""
         self = cls.__new__(cls)
         self.case = case_index
-        self.value, choice = merge_scans(scan, directions.shape[0])
+        self.value = merge_scans(scan, directions.shape[0])
         self._xi = self._side = self._direction = self._searched = None
-        self._rows = (scan, directions, choice)
+        self._rows = (scan, directions)
         self.pattern = None
         self.parts = []
         return self
@@ -197,17 +197,20 @@ class _CaseResult:
         """The positions of a merged scan as arrays (for a caller that reads them). The
         rows stay: ``governing`` keeps reading them, and a reader in another thread that
         finds a field not yet laid out lays it out again (the same arrays)."""
-        scan, directions, choice = self._rows
+        scan, directions = self._rows
         n = self.value.shape[1]
         xi = np.full((2, n), np.nan)
         side = np.zeros((2, n), dtype=np.int64)
         direction = np.zeros((2, n), dtype=np.int64)
+        # each direction offered in turn, as ``_taken`` does line by line
+        kept = np.zeros((2, n))
         for k in range(directions.shape[0]):
             rows = scan[k * n:(k + 1) * n]
-            taken = choice == k
-            np.copyto(xi, rows[:, 1::3].T, where=taken)
-            np.copyto(side, rows[:, 2::3].T, where=taken, casting="unsafe")
-            np.copyto(direction, directions[k], where=taken, casting="unsafe")
+            better = (rows[:, 0::3].T * _SIGNS > kept * _SIGNS) & ~np.isnan(rows[:, 1::3].T)
+            np.copyto(kept, rows[:, 0::3].T, where=better)
+            np.copyto(xi, rows[:, 1::3].T, where=better)
+            np.copyto(side, rows[:, 2::3].T, where=better, casting="unsafe")
+            np.copyto(direction, directions[k], where=better, casting="unsafe")
         self._searched = np.zeros((2, n, 0))
         self._side, self._direction, self._xi = side, direction, xi
 
@@ -285,8 +288,8 @@ class _CaseResult:
             return Governing(float(self.value[w, j]), self.case,
                              parts=tuple(p.governing(w, j) for p in self.parts))
         if self._rows is not None:  # a merged scan: straight from the kernel's row
-            scan, directions, choice = self._rows
-            k = int(choice[w, j])
+            scan, directions = self._rows
+            k = _taken(scan, directions.shape[0], w, j)
             if k < 0:
                 return EMPTY
             row = scan[k * self.value.shape[1] + j]
@@ -302,31 +305,38 @@ class _CaseResult:
                          tuple(float(v) for v in self.searched[w, j]))
 
 
-def merge_scans(scan: NDArray[np.float64], n_directions: int
-                ) -> tuple[NDArray[np.float64], NDArray[np.int64]]:
-    """(value, choice), each (2, n) for max (row 0) and min (row 1): per line the worse of
-    the directions' extremes, as offering each direction's rows in turn to the empty beam
-    (value 0, ξ NaN) would keep them, and the direction k whose row it is (−1: the empty
-    beam). ``scan`` (n_directions · n, 6) holds direction k at rows k·n … k·n + n − 1 (as a
+def merge_scans(scan: NDArray[np.float64], n_directions: int) -> NDArray[np.float64]:
+    """(2, n) max (row 0) and min (row 1) per line over the directions' extremes, as
+    offering each direction's rows in turn to the empty beam (value 0, ξ NaN) would keep
+    them: ``scan`` (n_directions · n, 6) holds direction k at rows k·n … k·n + n − 1 (as a
     kernel call returns them). A row whose ξ is NaN (nothing loads the line that way) is
-    never taken; ties keep the earlier direction. Only the values and the choice are
-    worked out here: where the load stood is read from ``scan`` when asked for."""
+    never taken. Offering in turn keeps the largest (for max; the smallest for min) of 0 and
+    the values at a real position, so that is what is worked out here, in a few array
+    operations; which direction gave it is found when asked for (``_taken``)."""
     n = scan.shape[0] // n_directions
     rows = scan.reshape(n_directions, n, 6)
-    candidate = rows[:, :, 0::3].transpose(0, 2, 1)  # (k, 2, n): max, min
-    # larger is worse for max, smaller for min; a NaN ξ is never taken (−inf never beats
-    # the empty beam's 0, and what is kept only grows)
-    signed = candidate * _SIGNS
-    signed[np.isnan(rows[:, :, 1::3].transpose(0, 2, 1))] = -np.inf
-    # kept so far (signed), its value and its direction: the empty beam's 0 first
-    kept, value, choice = 0.0, 0.0, -1
+    # larger is worse for max, smaller for min: max and min both as a largest
+    signed = rows[:, :, 0::3] * _SIGNS_LAST
+    signed[np.isnan(rows[:, :, 1::3])] = -np.inf  # never taken: never beats the empty 0
+    kept = np.fmax(np.fmax.reduce(signed, axis=0), 0.0)  # fmax: a NaN value is never taken
+    # back to the sign of each extreme; + 0.0 turns the empty beam's −0.0 into 0.0
+    return (kept * _SIGNS_LAST + 0.0).T
+
+
+_SIGNS_LAST = np.array([1.0, -1.0])  # max, min along the last axis
+
+
+def _taken(scan: NDArray[np.float64], n_directions: int, w: int, j: int) -> int:
+    """The direction k whose row gave line j's max (w = 0) or min (w = 1) in
+    ``merge_scans`` (−1: the empty beam): each direction offered in turn, a NaN ξ never
+    taken, ties to the earlier direction."""
+    n = scan.shape[0] // n_directions
+    kept, taken = 0.0, -1
     for k in range(n_directions):
-        better = signed[k] > kept
-        if k + 1 < n_directions:
-            kept = np.where(better, signed[k], kept)
-        value = np.where(better, candidate[k], value)
-        choice = np.where(better, k, choice)
-    return value, choice.astype(np.int64, copy=False)
+        value, xi = scan[k * n + j, 3 * w], scan[k * n + j, 3 * w + 1]
+        if xi == xi and ((value > kept) if w == 0 else (value < kept)):
+            kept, taken = value, k
+    return taken
 
 
 @dataclass(frozen=True)
