@@ -37,7 +37,6 @@ from trundle.scan.engine import (
     scan_arrangements,
     scan_group,
 )
-from trundle.scan.kernels import merge_directions
 
 FAMILIES = ("moment", "shear_left", "shear_right", "deflection", "reaction", "support_moment")
 REQUESTABLE = ("moment", "shear", "deflection", "reaction", "support_moment")
@@ -160,22 +159,97 @@ class _CaseResult:
 
     ``value[w]``, ``xi[w]``, ``side[w]``, ``direction[w]``, ``searched[w]`` for w = 0 (max)
     and 1 (min); placed uniform load keeps ``pattern[w]`` instead of positions.
+
+    A case whose directions were scanned in one kernel call (``merged``) keeps only its values
+    as arrays and reads where the load stood from the kernel's rows when a Governing is
+    asked for (most callers read only the values); ``xi``, ``side``, ``direction`` and
+    ``searched`` are laid out as arrays only if read.
     """
 
     def __init__(self, case_index: int, n: int, n_params: int = 0):
         self.case = case_index
         self.value = np.zeros((2, n))
-        self.xi = np.full((2, n), np.nan)
-        self.side = np.zeros((2, n), dtype=np.int64)
-        self.direction = np.zeros((2, n), dtype=np.int64)
-        self.searched = np.zeros((2, n, n_params))
+        self._xi: NDArray[np.float64] | None = np.full((2, n), np.nan)
+        self._side: NDArray[np.int64] | None = np.zeros((2, n), dtype=np.int64)
+        self._direction: NDArray[np.int64] | None = np.zeros((2, n), dtype=np.int64)
+        self._searched: NDArray[np.float64] | None = np.zeros((2, n, n_params))
+        # (kernel rows, directions, which direction's row each extreme came from) of a
+        # merged scan whose positions are not laid out yet
+        self._rows: tuple | None = None
         self.pattern: list[list[Any]] | None = None
         self.parts: list[_CaseResult] = []  # loads acting together: one result per part
+
+    @classmethod
+    def merged(cls, case_index: int, scan: NDArray[np.float64],
+               directions: NDArray[np.int64]) -> _CaseResult:
+        """The result of one kernel call holding every direction's rows (``scan``, direction
+        k at rows k·n … k·n + n − 1), each line keeping the worse of the directions."""
+        self = cls.__new__(cls)
+        self.case = case_index
+        self.value = merge_scans(scan, directions.shape[0])
+        self._xi = self._side = self._direction = self._searched = None
+        self._rows = (scan, directions)
+        self.pattern = None
+        self.parts = []
+        return self
+
+    def _lay_out(self) -> None:
+        """The positions of a merged scan as arrays (for a caller that reads them). The
+        rows stay: ``governing`` keeps reading them, and a reader in another thread that
+        finds a field not yet laid out lays it out again (the same arrays)."""
+        scan, directions = self._rows
+        n = self.value.shape[1]
+        xi = np.full((2, n), np.nan)
+        side = np.zeros((2, n), dtype=np.int64)
+        direction = np.zeros((2, n), dtype=np.int64)
+        # each direction offered in turn, as ``_taken`` does line by line
+        kept = np.zeros((2, n))
+        for k in range(directions.shape[0]):
+            rows = scan[k * n:(k + 1) * n]
+            better = (rows[:, 0::3].T * _SIGNS > kept * _SIGNS) & ~np.isnan(rows[:, 1::3].T)
+            np.copyto(kept, rows[:, 0::3].T, where=better)
+            np.copyto(xi, rows[:, 1::3].T, where=better)
+            np.copyto(side, rows[:, 2::3].T, where=better, casting="unsafe")
+            np.copyto(direction, directions[k], where=better, casting="unsafe")
+        self._searched = np.zeros((2, n, 0))
+        self._side, self._direction, self._xi = side, direction, xi
+
+    def _own_arrays(self) -> None:
+        """Before the arrays are changed (``offer``): laid out, and the rows forgotten, so
+        that ``governing`` reads the arrays."""
+        if self._rows is not None:
+            self._lay_out()
+            self._rows = None
+
+    @property
+    def xi(self) -> NDArray[np.float64]:
+        if self._xi is None:
+            self._lay_out()
+        return self._xi
+
+    @property
+    def side(self) -> NDArray[np.int64]:
+        if self._side is None:
+            self._lay_out()
+        return self._side
+
+    @property
+    def direction(self) -> NDArray[np.int64]:
+        if self._direction is None:
+            self._lay_out()
+        return self._direction
+
+    @property
+    def searched(self) -> NDArray[np.float64]:
+        if self._searched is None:
+            self._lay_out()
+        return self._searched
 
     def offer(self, w: int, rows: NDArray[np.int64] | None, value, xi, side, direction,
               searched) -> None:
         """Keep, row by row, whichever is worse (larger for max, smaller for min); ``rows``
         None: one row per line, in order."""
+        self._own_arrays()
         if rows is None:  # every line, in order (the common call): masks, no index arrays
             current = self.value[w]
             better = (value > current) if w == 0 else (value < current)
@@ -200,6 +274,7 @@ class _CaseResult:
     def offer_scan(self, r: NDArray[np.float64], direction: int) -> None:
         """``offer`` of a kernel's (n_lines, 6) result for every line, max and min at once
         (nothing searched): the same choices, in fewer array operations."""
+        self._own_arrays()
         value = r[:, 0::3].T  # (2, n): max, min
         xi = r[:, 1::3].T
         better = (value * _SIGNS > self.value * _SIGNS) & ~np.isnan(xi)
@@ -212,6 +287,14 @@ class _CaseResult:
         if self.parts:
             return Governing(float(self.value[w, j]), self.case,
                              parts=tuple(p.governing(w, j) for p in self.parts))
+        if self._rows is not None:  # a merged scan: straight from the kernel's row
+            scan, directions = self._rows
+            k = _taken(scan, directions.shape[0], w, j)
+            if k < 0:
+                return EMPTY
+            row = scan[k * self.value.shape[1] + j]
+            return Governing(float(self.value[w, j]), self.case, int(directions[k]),
+                             float(row[3 * w + 1]), int(row[3 * w + 2]), ())
         if self.pattern is not None:
             return Governing(float(self.value[w, j]), self.case, 0, float(self.xi[w, j]),
                              int(self.side[w, j]), pattern=self.pattern[w][j])
@@ -220,6 +303,40 @@ class _CaseResult:
         return Governing(float(self.value[w, j]), self.case, int(self.direction[w, j]),
                          float(self.xi[w, j]), int(self.side[w, j]),
                          tuple(float(v) for v in self.searched[w, j]))
+
+
+def merge_scans(scan: NDArray[np.float64], n_directions: int) -> NDArray[np.float64]:
+    """(2, n) max (row 0) and min (row 1) per line over the directions' extremes, as
+    offering each direction's rows in turn to the empty beam (value 0, ξ NaN) would keep
+    them: ``scan`` (n_directions · n, 6) holds direction k at rows k·n … k·n + n − 1 (as a
+    kernel call returns them). A row whose ξ is NaN (nothing loads the line that way) is
+    never taken. Offering in turn keeps the largest (for max; the smallest for min) of 0 and
+    the values at a real position, so that is what is worked out here, in a few array
+    operations; which direction gave it is found when asked for (``_taken``)."""
+    n = scan.shape[0] // n_directions
+    rows = scan.reshape(n_directions, n, 6)
+    # larger is worse for max, smaller for min: max and min both as a largest
+    signed = rows[:, :, 0::3] * _SIGNS_LAST
+    signed[np.isnan(rows[:, :, 1::3])] = -np.inf  # never taken: never beats the empty 0
+    kept = np.fmax(np.fmax.reduce(signed, axis=0), 0.0)  # fmax: a NaN value is never taken
+    # back to the sign of each extreme; + 0.0 turns the empty beam's −0.0 into 0.0
+    return (kept * _SIGNS_LAST + 0.0).T
+
+
+_SIGNS_LAST = np.array([1.0, -1.0])  # max, min along the last axis
+
+
+def _taken(scan: NDArray[np.float64], n_directions: int, w: int, j: int) -> int:
+    """The direction k whose row gave line j's max (w = 0) or min (w = 1) in
+    ``merge_scans`` (−1: the empty beam): each direction offered in turn, a NaN ξ never
+    taken, ties to the earlier direction."""
+    n = scan.shape[0] // n_directions
+    kept, taken = 0.0, -1
+    for k in range(n_directions):
+        value, xi = scan[k * n + j, 3 * w], scan[k * n + j, 3 * w + 1]
+        if xi == xi and ((value > kept) if w == 0 else (value < kept)):
+            kept, taken = value, k
+    return taken
 
 
 @dataclass(frozen=True)
@@ -238,23 +355,33 @@ class _Arrangement:
         return self.base[None, :] + np.atleast_2d(values) @ self.slope
 
 
-# arrangements by value (the repr of a load case spells out every number of its load, its
-# impact and its factors), for the load kinds whose repr is known to do so: a load checked
-# again on another beam, or at other sections, reuses them
-_ARRANGEMENTS: dict[str, dict[int, _Arrangement]] = {}
+# arrangements by value (a load case compares and hashes by every number of its load, its
+# impact and its factors), for the load kinds known to do so: a load checked again on
+# another beam, or at other sections, reuses them
+_ARRANGEMENTS: dict[LoadCase, dict[int, _Arrangement]] = {}
 _ARRANGEMENTS_KEEP = 64
 
 
-def _case_key(case: LoadCase) -> str | None:
-    """The value of a moving load case, for caches (None: a load kind not known to spell
-    out every value in its repr, which is then not cached)."""
+def _case_key(case: LoadCase) -> LoadCase | None:
+    """The value of a moving load case, for caches: the case itself, which compares and
+    hashes by value (frozen dataclasses all the way down: every load, spacing, gap, impact,
+    factor and name); cheaper than its repr, which spells out the same values. None: a load
+    kind not known to compare by every value, or an unhashable field, not cached."""
     load = case.load
     inner = load.load if isinstance(load, _Frozen) else load
-    return repr(case) if type(inner) in (Vehicle, Train) else None
+    if type(inner) not in (Vehicle, Train):
+        return None
+    try:
+        hash(case)
+    except TypeError:  # a field of a type that does not hash (a list as a name)
+        return None
+    return case
 
 
-def _arrangements(case: LoadCase) -> dict[int, _Arrangement]:
-    key = _case_key(case)
+def _arrangements(case: LoadCase, key: Any = ...) -> dict[int, _Arrangement]:
+    """The terms of ``case`` per direction (``key``: its ``_case_key``, if known)."""
+    if key is ...:
+        key = _case_key(case)
     found = _ARRANGEMENTS.get(key) if key is not None else None
     if found is None:
         found = _build_arrangements(case)
@@ -306,20 +433,24 @@ def _check_fits(case: LoadCase, arrangement: _Arrangement, length: float) -> Non
 
 # kernel arguments of the loads scanned over a batch of lines, by the value of the load
 # case, kept for as long as the lines are (see _PREPARED)
-_PLANS: weakref.WeakKeyDictionary[LineBatch, dict[str, Any]] = weakref.WeakKeyDictionary()
+_PLANS: weakref.WeakKeyDictionary[LineBatch, dict[LoadCase, Any]] = weakref.WeakKeyDictionary()
 _PLANS_KEEP = 16
 
 
 def _both_directions(batch: LineBatch, case: LoadCase,
-                     arrangements: dict[int, _Arrangement]
+                     arrangements: dict[int, _Arrangement], key: Any = ...
                      ) -> list[tuple[NDArray[np.int64], NDArray[np.float64]]]:
     """[(directions, (n_directions · n_lines, 6) scan of every line)] for a load without
     searched values:
     both directions in one kernel call when they differ only in their offsets (a group and
     its mirror image: the same weights and kinds). The kernel's arguments are laid out once
-    and kept with the lines, by the value of the load case."""
-    key = _case_key(case)
-    kept = _PLANS.setdefault(batch, {}) if key is not None else {}
+    and kept with the lines, by the value of the load case (``key``: its ``_case_key``, if
+    known)."""
+    if key is ...:
+        key = _case_key(case)
+    kept = _PLANS.get(batch) if key is not None else {}
+    if kept is None:
+        kept = _PLANS.setdefault(batch, {})
     plans = kept.get(key)
     if plans is None:
         plans = _scan_plans(batch, arrangements)
@@ -352,23 +483,23 @@ def _scan_plans(batch: LineBatch, arrangements: dict[int, _Arrangement]
 
 
 def _moving_grid(batch: LineBatch, case: LoadCase, case_index: int,
-                 arrangements: dict[int, _Arrangement]) -> _CaseResult:
+                 arrangements: dict[int, _Arrangement], key: Any = ...) -> _CaseResult:
     """Every line, every grid value of the searched dimensions, both directions: one kernel
     call per direction, a row per (grid value, line)."""
-    params = case.load.parameters()
     n = batch.n_lines
-    result = _CaseResult(case_index, n, len(params))
-    lines = np.arange(n)
-    if not params:  # nothing searched: one row per line and direction
-        scans = _both_directions(batch, case, arrangements)
-        if len(scans) == 1:  # both directions in one scan: merged in one compiled loop
+    if not next(iter(arrangements.values())).slope.shape[0]:  # nothing searched
+        # one row per line and direction
+        scans = _both_directions(batch, case, arrangements, key)
+        if len(scans) == 1:  # both directions in one kernel call
             directions, r = scans[0]
-            merge_directions(r, directions, result.value, result.xi, result.side,
-                             result.direction)
-            return result
+            return _CaseResult.merged(case_index, r, directions)
+        result = _CaseResult(case_index, n)
         for directions, r in scans:
             result.offer_scan(r, directions[0])
         return result
+    params = case.load.parameters()
+    result = _CaseResult(case_index, n, len(params))
+    lines = np.arange(n)
     grid = np.array(_grid(params), dtype=float).reshape(len(_grid(params)), len(params))
     for direction, arr in arrangements.items():
         offsets = np.repeat(arr.offsets(grid), n, axis=0)
@@ -906,7 +1037,7 @@ def exact_absolute(case: Any, kind: str, which: str) -> bool:
 
 def _span_end_lines(beam: Beam, span: int) -> tuple:
     """(knots, moment line, shear line) just right of the span's left end, on shared knots."""
-    key = (repr(beam), span)
+    key = (beam._value_key, span)
     found = _SPAN_LINES.get(key)
     if found is None:
         a = float(beam.support_positions[span])
@@ -1243,11 +1374,12 @@ def _envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None,
     def single(case: LoadCase, c: int) -> tuple[_CaseResult, dict | None]:
         if isinstance(case.load, UniformLoad):
             return _uniform_case(batch, case, c, ordinate_extremes, beam), None
-        arrangements = _arrangements(case)
+        key = _case_key(case)
+        arrangements = _arrangements(case, key)
         _check_fits(case, arrangements[1], beam.length)
-        if refine and case.load.parameters():
+        if refine and arrangements[1].slope.shape[0]:  # searched spacings or gaps
             return _searched_case(batch, case, c, arrangements), arrangements
-        return _moving_grid(batch, case, c, arrangements), arrangements
+        return _moving_grid(batch, case, c, arrangements, key), arrangements
 
     for c, case in enumerate(cases):
         if isinstance(case, Together):
@@ -1269,18 +1401,20 @@ def _envelope(beam: Beam, loads: Iterable[Any], sections: ArrayLike | None,
         winners = np.stack([stacked[:, 0].argmax(axis=0), stacked[:, 1].argmin(axis=0)])
         best = np.stack([stacked[winners[w], w, lines] for w in (0, 1)])
         magnitude = np.abs(stacked).max(axis=0)
-    scale = np.zeros(n)
-    for lines_of_family in index.values():
-        if lines_of_family.size:
+    families = [lines for lines in index.values() if lines.size]
+    if len(families) == 1 and families[0].size == n:  # one family covers every line
+        scale = magnitude.max()
+    else:
+        scale = np.zeros(n)
+        for lines_of_family in families:
             scale[lines_of_family] = magnitude[:, lines_of_family].max()
-    governing = []
-    for w in (0, 1):
-        value = best[w]
-        # rounding noise around an empty-beam zero is not a governing load
-        empty = np.abs(value) <= 1e-12 * scale
-        governing.append(_Governors(w, results, winners[w], empty,
-                                    np.where(empty, 0.0, value)[inverse], keep, inverse,
-                                    cases))
+    # rounding noise around an empty-beam zero is not a governing load
+    empty = (magnitude if len(results) == 1 else np.abs(best)) <= 1e-12 * scale
+    values = np.where(empty, 0.0, best)
+    if inverse.size != n:  # else every line is distinct and inverse the identity
+        values = values[:, inverse]
+    governing = [_Governors(w, results, winners[w], empty[w], values[w], keep, inverse, cases)
+                 for w in (0, 1)]
     return Envelope(beam, sections, cases, line_effects, index_all, governing[0],
                     governing[1], full_batch)
 
@@ -1349,8 +1483,8 @@ _PREPARED_KEEP = 8
 def _prepared_lines(beam: Beam, sections: NDArray[np.float64], families: tuple[str, ...],
                     moment_sides: tuple[str | None, ...] | None = None) -> tuple:
     """(effects, index, every line, keep, inverse, distinct index, distinct lines)."""
-    # a Beam compares by identity; its repr spells out every value that defines it
-    key = (repr(beam), np.ascontiguousarray(sections, dtype=float).tobytes(), families,
+    # a Beam compares by identity; its repr (spelled once per beam) gives every value
+    key = (beam._value_key, np.ascontiguousarray(sections, dtype=float).tobytes(), families,
            moment_sides)
     found = _PREPARED.get(key)
     if found is None:

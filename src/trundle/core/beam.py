@@ -357,6 +357,13 @@ class Beam:
     # ``repr(beam)`` stays the dataclass repr: it spells out every value that defines the
     # beam (short for any real beam) and the envelope's cache of lines is keyed on it
 
+    @cached_property
+    def _value_key(self) -> str:
+        """Every value that defines the beam, spelled out (its repr), for caches keyed by
+        value; spelled once per beam (a frozen beam cannot change, and its lines were built
+        from the values it was made with), not once per call."""
+        return repr(self)
+
     def _repr_html_(self) -> str:
         """A small table for Jupyter: spans, supports, hinges, stiffness."""
         ends = self.support_positions

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from typing import Any
 
@@ -46,7 +47,7 @@ class LoadCase:
             impact = float(self.impact)
         except (TypeError, ValueError):
             impact = float("nan")
-        if not np.isfinite(impact) or impact < 0:
+        if not math.isfinite(impact) or impact < 0:
             raise ModelError(f"load case {self.name or self.load.name!r}: impact: expected a "
                              f"fraction >= 0, found {self.impact!r}")
         factors = []
@@ -55,7 +56,7 @@ class LoadCase:
                 value = float(v)
             except (TypeError, ValueError):
                 value = float("nan")
-            if not np.isfinite(value) or value < 0:
+            if not math.isfinite(value) or value < 0:
                 raise ModelError(f"load case {self.name or self.load.name!r}: factor {k!r}: "
                                  f"expected a number >= 0, found {v!r}")
             factors.append((str(k), value))
@@ -63,7 +64,7 @@ class LoadCase:
             load_factor = float(self.load_factor)
         except (TypeError, ValueError):
             load_factor = float("nan")
-        if not np.isfinite(load_factor) or load_factor <= 0:
+        if not math.isfinite(load_factor) or load_factor <= 0:
             raise ModelError(f"load case {self.name or self.load.name!r}: load_factor: expected "
                              f"a number > 0, found {self.load_factor!r}")
         object.__setattr__(self, "impact", impact)
