@@ -823,8 +823,9 @@ def dense_grid_search(beam, load, section: float, kind: str = "moment", which: s
 
 def plain_merge_directions(scans: list[np.ndarray], directions: list[int]
                            ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-    """Twin of kernels.merge_directions: each direction's (n, 6) scan offered in turn to the
-    empty beam (value 0, ξ NaN); a NaN ξ is never taken, a tie keeps the earlier one."""
+    """Twin of the envelope's merge of both directions (``analysis.envelope.merge_scans``):
+    each direction's (n, 6) scan offered in turn to the empty beam (value 0, ξ NaN); a NaN ξ
+    is never taken, a tie keeps the earlier one."""
     n = scans[0].shape[0]
     value = np.zeros((2, n))
     xi = np.full((2, n), np.nan)

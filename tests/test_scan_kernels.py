@@ -22,7 +22,6 @@ from naive_scan import (
     PlainLine,
     critical_points,
     effects_at,
-    plain_merge_directions,
     plain_scan,
     quadratic_roots,
     random_sections,
@@ -379,28 +378,3 @@ def test_evaluate_lines_matches_plain_lines(seed: int) -> None:
                                    atol=1e-12 * max(1.0, np.abs(expected).max()))
 
 
-@pytest.mark.parametrize("seed", range(6))
-def test_merge_directions_matches_offering_each_direction(seed: int) -> None:
-    # the envelope merges both directions' scans in one compiled loop: it must keep what
-    # offering each direction in turn keeps (empty beam first, NaN positions never, ties to
-    # the first direction); values drawn from a few levels so ties and zeros occur
-    rng = np.random.default_rng(seed)
-    n, directions = 40, np.array([1, -1], dtype=np.int64)
-    scans = []
-    for _ in directions:
-        scan = np.empty((n, 6))
-        for col in (0, 3):
-            scan[:, col] = rng.choice([-2.0, -1.0, 0.0, 1.0, 2.0], n)
-            scan[:, col + 1] = np.where(rng.random(n) < 0.2, np.nan, rng.random(n) * 30.0)
-            scan[:, col + 2] = rng.choice([-1.0, 0.0, 1.0], n)
-        scans.append(scan)
-    for count in (1, 2):
-        value = np.zeros((2, n))
-        xi = np.full((2, n), np.nan)
-        side = np.zeros((2, n), dtype=np.int64)
-        direction = np.zeros((2, n), dtype=np.int64)
-        kernels.merge_directions(np.concatenate(scans[:count]), directions[:count], value, xi,
-                                 side, direction)
-        expected = plain_merge_directions(scans[:count], list(directions[:count]))
-        for got, want in zip((value, xi, side, direction), expected, strict=True):
-            np.testing.assert_array_equal(got, want)

@@ -701,31 +701,6 @@ def _cores() -> int:
     return max(1, min(allowed, _threads()))
 
 
-_MAX_MIN_SIGNS = np.array([[1.0], [-1.0]])
-
-
-def merge_directions(scan, directions, value, xi, side, direction):
-    """Keep, per line, the worse of the directions' extremes, as offering each direction's
-    scan in turn to an empty beam would (value 0, ξ NaN): ``scan`` (n_dir · n, 6) holds the
-    rows of direction k at k·n … k·n + n − 1 (as ``scan_rows`` returns them); ``value``,
-    ``xi``, ``side``, ``direction`` (2, n) get max (row 0) and min (row 1). A row whose ξ is
-    NaN (nothing loads the line that way) is never taken; ties keep the earlier direction.
-
-    Plain numpy, not compiled: a compiled loop would save microseconds per call and cost
-    about 0.3 s of compiling on a first run."""
-    n = value.shape[1]
-    for k in range(directions.shape[0]):
-        rows = scan[k * n:(k + 1) * n]
-        candidate = rows[:, 0::3].T  # (2, n): max, min
-        # strictly worse than the value kept (larger max, smaller min), at a real position
-        better = candidate * _MAX_MIN_SIGNS > value * _MAX_MIN_SIGNS
-        better &= ~np.isnan(rows[:, 1::3].T)
-        np.copyto(value, candidate, where=better)
-        np.copyto(xi, rows[:, 1::3].T, where=better)
-        np.copyto(side, rows[:, 2::3].T, where=better, casting="unsafe")
-        np.copyto(direction, directions[k], where=better, casting="unsafe")
-
-
 @njit(**JIT_OPTIONS)
 def _evaluate_lines(knots, n_pieces, coef, x, from_left):
     """(len(x), n_lines): every line's piecewise polynomial at every x (each line on its own
