@@ -489,26 +489,3 @@ def _own_points(knots: NDArray[np.float64], n_pieces: NDArray[np.int64],
         live[j] |= at_start | at_end
     end_live[:] = live
     return own_knot, own_value, end_live
-    for j, effect in enumerate(effects):
-        m = int(n_pieces[j])
-        h = knots[j, m] - knots[j, m - 1]
-        c = coef[j, m - 1]
-        start, end = coef[j, 0, 3], ((c[0] * h + c[1]) * h + c[2]) * h + c[3]
-        scale = max(float(np.abs(coef[j, :m]).max()), 1.0) * _NOISE
-        live = abs(start) > scale or abs(end) > scale
-        if getattr(effect, "kind", None) == "shear" and effect.at is not None:
-            k = int(np.argmin(np.abs(knots[j, :m + 1] - effect.at)))
-            own_knot[j] = k
-            if effect.side == "left":
-                own_value[j] = coef[j, k, 3] if k < m else end + 1.0
-            else:
-                cp = coef[j, k - 1] if k > 0 else None
-                hk = knots[j, k] - knots[j, k - 1] if k > 0 else 0.0
-                own_value[j] = (((cp[0] * hk + cp[1]) * hk + cp[2]) * hk + cp[3]
-                                if cp is not None else start - 1.0)
-            if k == 0:
-                live |= abs(own_value[j] - start) > scale
-            elif k == m:
-                live |= abs(own_value[j] - end) > scale
-        end_live[j] = live
-    return own_knot, own_value, end_live
