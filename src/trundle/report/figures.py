@@ -20,8 +20,8 @@ from typing import Any
 import matplotlib
 import numpy as np
 from matplotlib.axes import Axes
-from matplotlib.collections import LineCollection
 from matplotlib.backends.backend_agg import FigureCanvasAgg
+from matplotlib.collections import LineCollection
 from matplotlib.figure import Figure
 from matplotlib.transforms import Affine2D, ScaledTranslation, Transform
 
