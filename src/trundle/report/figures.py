@@ -23,7 +23,13 @@ from matplotlib.axes import Axes
 from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.collections import LineCollection
 from matplotlib.figure import Figure
-from matplotlib.transforms import Affine2D, ScaledTranslation, Transform
+from matplotlib.lines import Line2D
+from matplotlib.transforms import (
+    Affine2D,
+    ScaledTranslation,
+    Transform,
+    blended_transform_factory,
+)
 
 from trundle.core.beam import Beam, Spring
 from trundle.core.influence import InfluenceSet
@@ -228,14 +234,21 @@ def plot_beam(beam: Beam, units: UnitSystem, ax: Axes | None = None,
 
 def _section_ticks(ax: Axes, sections: Sequence[float],
                    section_colors: Sequence[str] | None) -> None:
-    """A tick 3.5 to 8.5 points above the beam at each section: one collection (one artist
-    drawn and measured once, not one line per section: thousands of sections)."""
-    if len(sections) == 0:
-        return
+    """A tick 3.5 to 8.5 points above the beam at each section, drawn as one artist (one
+    path when all have one colour, else one collection), not one line per section: a figure
+    of thousands of sections is drawn and measured once."""
     colors = list(section_colors or [PALETTE[0]] * len(sections))[:len(sections)]
     x = np.asarray(sections, dtype=float)[:len(colors)]
+    if x.size == 0:
+        return
+    if len(set(colors)) == 1:
+        # x in data units, y in points above the beam's axis
+        upward = blended_transform_factory(ax.transData, _in_points(ax, 0.0))
+        ax.add_line(Line2D(np.repeat(x, 3), np.tile([3.5, 8.5, np.nan], x.size),
+                           color=colors[0], lw=1.1, transform=upward, clip_on=False))
+        return
     ticks = LineCollection([[(0.0, 3.5), (0.0, 8.5)]], colors=colors, linewidths=1.1,
-                           offsets=np.column_stack([x, np.zeros(len(x))]),
+                           offsets=np.column_stack([x, np.zeros(x.size)]),
                            offset_transform=ax.transData,
                            transform=Affine2D().scale(1.0 / 72.0) + ax.figure.dpi_scale_trans,
                            clip_on=False, capstyle="projecting", zorder=2)
