@@ -228,16 +228,32 @@ def _sign_pieces(knots: NDArray[np.float64], c: NDArray[np.float64]
     return cuts, parts, mids
 
 
+# cuts and signs of lines already searched, by the line's values (knots and coefficients):
+# the scan's signed areas and the records' loaded stretches search the same lines
+_CUTS: dict[tuple, tuple[NDArray[np.float64], NDArray[np.float64]]] = {}
+_CUTS_KEEP = 200_000
+
+
 def _sign_cuts(knots: NDArray[np.float64], c: NDArray[np.float64]
                ) -> tuple[PPoly, NDArray[np.float64], NDArray[np.float64]]:
     """The line as a PPoly, its cuts (knots and real roots) and its value in the middle of
     each stretch between cuts."""
-    pp = PPoly.construct_fast(np.ascontiguousarray(c), knots, extrapolate=False)
-    roots = pp.roots(discontinuity=False, extrapolate=False)
-    # sorted without repeats (np.unique, at a fraction of its cost on a few values)
-    cuts = np.array(sorted(set(knots.tolist() + roots[np.isfinite(roots)].tolist())))
-    mids = pp(0.5 * (cuts[:-1] + cuts[1:]))
-    return pp, cuts, mids
+    c = np.ascontiguousarray(c, dtype=float)
+    knots = np.ascontiguousarray(knots, dtype=float)
+    pp = PPoly.construct_fast(c, knots, extrapolate=False)
+    key = (c.shape, knots.tobytes(), c.tobytes())
+    found = _CUTS.get(key)
+    if found is None:
+        roots = pp.roots(discontinuity=False, extrapolate=False)
+        # sorted without repeats (np.unique, at a fraction of its cost on a few values)
+        cuts = np.array(sorted(set(knots.tolist() + roots[np.isfinite(roots)].tolist())))
+        mids = pp(0.5 * (cuts[:-1] + cuts[1:]))
+        if len(_CUTS) >= _CUTS_KEEP:
+            _CUTS.clear()
+        cuts.setflags(write=False)
+        mids.setflags(write=False)
+        found = _CUTS[key] = (cuts, mids)
+    return pp, found[0], found[1]
 
 
 def signed_areas(knots: NDArray[np.float64], coefficients: NDArray[np.float64]
