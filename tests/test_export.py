@@ -66,6 +66,39 @@ def test_jsonable_of_dataclasses_numpy_and_non_finite() -> None:
         jsonable(object())
 
 
+def test_json_text_is_the_standard_library_text_character_for_character() -> None:
+    # json_text writes in one pass what json.dumps(jsonable(doc), indent=1,
+    # ensure_ascii=False) writes (the files' text must not change with the writer)
+    import enum
+    from pathlib import PurePath
+
+    from trundle.report.safe_text import json_escaped
+
+    class Name(str):
+        pass
+
+    class Count(enum.IntEnum):
+        THREE = 3
+
+    def reference(document: object) -> str:
+        return json_escaped(json.dumps(jsonable(document), indent=1, ensure_ascii=False,
+                                       allow_nan=False)) + "\n"
+
+    documents = [
+        {}, [], "text", 2.5, 7, None, True, (1, 2), {"a": [], "b": {}, "c": [[], {}]},
+        {"zero": -0.0, "np zero": np.float64(-0.0), "nan": math.nan, "inf": np.inf,
+         "big": 1e300, "third": 1 / 3, "f32": np.float32(0.1)},
+        {"name": Name("h\u00e9\u202e\x7f\n\""), "count": Count.THREE, "yes": True,
+         "no": np.bool_(False), "none": None, "i64": np.int64(-7), 1: "int key",
+         2.5: [1, (2, 3.0, [None])]},
+        {"check": _Check(np.int64(2), np.float64(-0.0), (1.0, math.nan)),
+         "array": np.arange(4.0).reshape(2, 2), "path": PurePath("/a/b"),
+         "deep": [{"x": [{"y": [], "z": {"w": [1.0]}}]}]},
+    ]
+    for document in documents:
+        assert json_text(document) == reference(document), document
+
+
 def test_input_values_keep_what_was_written() -> None:
     assert input_values({"w": math.inf, "n": [1, 2.5]}) == {"w": "inf", "n": [1, 2.5]}
 

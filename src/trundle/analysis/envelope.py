@@ -24,7 +24,7 @@ from trundle.analysis.search import SearchError, searched_extremes
 from trundle.core._repr import html_table, short
 from trundle.core.beam import Beam, ModelError, Spring
 from trundle.core.fem import assembly_for
-from trundle.core.influence import Effect, LinePieces, line_pieces, piece_sign_intervals
+from trundle.core.influence import Effect, LinePieces, line_pieces, sign_intervals
 from trundle.loads.cases import LoadCase, Together, as_case
 from trundle.loads.patterns import UniformLoad
 from trundle.loads.vehicles import Train, Vehicle
@@ -698,13 +698,13 @@ class Envelope:
     def _stretches(self, g: Governing) -> tuple[list[tuple[float, float]], float | None]:
         intervals = g.pattern
         if intervals and intervals[0] == "sign of line":
-            key = intervals  # ("sign of line", j, sign): the records ask several times
+            _, j, sign = intervals
+            key = ("signs of line", j)  # the records ask several times, for max and min
             if key not in self._cache:
-                _, j, sign = intervals
                 m = int(self.batch.n_pieces[j])  # the line on its own breaks: linear in sections
-                self._cache[key] = piece_sign_intervals(self.batch.line_knots[j, :m + 1],
-                                                        self.batch.line_coef[j, :m, :].T, sign)
-            intervals = self._cache[key]
+                self._cache[key] = sign_intervals(self.batch.line_knots[j, :m + 1],
+                                                  self.batch.line_coef[j, :m, :].T)
+            intervals = self._cache[key][0 if sign > 0 else 1]
         x_p = None if np.isnan(g.reference) else g.reference
         return list(intervals or ()), x_p
 
@@ -903,17 +903,19 @@ class Envelope:
         return exact if abs(exact[own] - limit[own]) <= 1e-9 * size else limit
 
     def axle_face(self, g: Governing, x: float, kind: str = "shear",
-                  side: int | None = None) -> str:
+                  side: int | None = None,
+                  positions: NDArray[np.float64] | None = None) -> str:
         """Where an axle of the configuration governing an extreme of ``kind`` at section x
         stands: "on" (exactly on the section), "left" / "right" (just left / right of it:
         the limit from that side, for shear, whose line jumps there), "" when no
         concentrated load of ``g`` stands at x. For other kinds the extreme is the same with
         the axle on the section (see ``concurrent_to``). ``side`` overrides ``g.side`` (a
-        part of loads acting together)."""
+        part of loads acting together); ``positions``: ``axle_positions(g)`` when known."""
         side = g.side if side is None else side
-        positions = self.axle_positions(g)
-        if positions.size == 0 or not np.any(np.abs(positions - x)
-                                             <= 1e-9 * max(1.0, self.beam.length)):
+        if positions is None:
+            positions = self.axle_positions(g)
+        tolerance = 1e-9 * max(1.0, self.beam.length)
+        if not any(abs(p - x) <= tolerance for p in positions.tolist()):
             return ""
         if kind != "shear" or side == 0:
             return "on"

@@ -24,11 +24,13 @@ from typing import Any
 import numpy as np
 from numpy.typing import NDArray
 
+from trundle.analysis.concurrent import concurrent_matching
 from trundle.analysis.envelope import AbsoluteExtreme, Envelope, Governing, kind_and_side
 from trundle.core.beam import Beam
 from trundle.loads.cases import LoadCase, Together
 from trundle.loads.patterns import UniformLoad
 from trundle.loads.vehicles import Train, Vehicle
+from trundle.scan.engine import TermGroup
 
 # The section families of an envelope, in the order of the CSV columns.
 SECTION_FAMILIES = ("moment", "shear_left", "shear_right", "deflection")
@@ -141,49 +143,79 @@ def joined_stretches(stretches: Sequence[tuple[float, float]], length: float
     return tuple((float(a), float(b)) for a, b in out)
 
 
-def extreme_record(env: Envelope, family: str, which: str, g: Governing, x: float
-                   ) -> ExtremeRecord:
-    """``g`` (a Governing of ``env``) at ``x`` as a record."""
+class _Groups:
+    """The TermGroup of each (load case, direction, searched values) an envelope's records
+    meet, made once: thousands of sections share a few, and making one costs more than the
+    rest of a record. The case is named by where it is (its index in the envelope, and in
+    its Together), not by identity."""
+
+    def __init__(self, env: Envelope) -> None:
+        self.env = env
+        self._found: dict[tuple, tuple[TermGroup, NDArray[np.float64], tuple[float, ...],
+                                       tuple[str, ...]]] = {}
+
+    def of(self, where: tuple[int, ...], case: LoadCase, g: Governing
+           ) -> tuple[TermGroup, NDArray[np.float64], tuple[float, ...], tuple[str, ...]]:
+        """(group, its point offsets u, its point loads, the load's searched names)."""
+        key = (where, g.direction, g.searched)
+        found = self._found.get(key)
+        if found is None:
+            group = self.env._group(case, g)
+            found = (group, np.asarray(group.point_u, dtype=float),
+                     tuple(float(p) for p in group.point_P), tuple(searched_names(case.load)))
+            self._found[key] = found
+        return found
+
+
+def extreme_record(env: Envelope, family: str, which: str, g: Governing, x: float,
+                   groups: _Groups | None = None) -> ExtremeRecord:
+    """``g`` (a Governing of ``env``) at ``x`` as a record (``groups``: kept between the
+    records of one envelope)."""
     if g.case < 0:
         return ExtremeRecord(family, which, g.value, x)
+    groups = _Groups(env) if groups is None else groups
     case = env.cases[g.case]
     if isinstance(case, Together):
-        return _together_record(env, family, which, g, x, case)
-    return _case_record(env, family, which, g, g, x, case)
+        return _together_record(env, family, which, g, x, case, groups)
+    return _case_record(env, family, which, g, x, case, (g.case,), groups, g.value, True)
 
 
-def _case_record(env: Envelope, family: str, which: str, own: Governing, asked: Governing,
-                 x: float, case: LoadCase) -> ExtremeRecord:
-    """One load case: ``own`` is its own Governing (reference, side, searched …), ``asked``
-    the Governing of the envelope to ask for its positions (the same, or a Together's with
-    only this part)."""
+def _case_record(env: Envelope, family: str, which: str, own: Governing, x: float,
+                 case: LoadCase, where: tuple[int, ...], groups: _Groups, value: float,
+                 alone: bool) -> ExtremeRecord:
+    """One load case: ``own`` is its own Governing (reference, side, searched …) and
+    ``value`` the value the record states (a Together's, for one of its parts); ``alone``:
+    not a part of loads acting together (only then are the point loads listed)."""
     load = case.load
     if isinstance(load, UniformLoad):
-        stretches, point_x = env.loaded_stretches(asked)
+        stretches, point_x = env.loaded_stretches(own)
         point = point_x if load.point_load else None
         side = int(own.side) if (point is not None and family.startswith("shear")) else 0
-        return ExtremeRecord(family, which, own.value, x, case.name, 0, point,
+        return ExtremeRecord(family, which, value, x, case.name, 0, point,
                              (point,) if point is not None else (), (),
                              joined_stretches(stretches, env.beam.length), load.placement,
                              side)
+    group, point_u, point_P, names = groups.of(where, case, own)
+    positions = own.reference - point_u
     face = ""
     if family in SECTION_FAMILIES:
-        face = env.axle_face(asked, x, kind_and_side(family)[0], own.side)
-    axles = tuple(float(a) for a in env.axle_positions(asked))
-    point_loads = tuple(float(p) for p in env.group_of(own).point_P) if own is asked else ()
-    searched = tuple(zip(searched_names(load), own.searched, strict=False))
-    return ExtremeRecord(family, which, own.value, x, case.name, int(own.direction),
-                         float(own.reference), axles, point_loads, face=face,
-                         searched=searched, attached=_attached(env, case, own))
+        face = env.axle_face(own, x, kind_and_side(family)[0], own.side, positions)
+    axles = tuple(positions.tolist())
+    searched = tuple(zip(names, own.searched, strict=False))
+    return ExtremeRecord(family, which, value, x, case.name, int(own.direction),
+                         float(own.reference), axles, point_P if alone else (), face=face,
+                         searched=searched, attached=_attached(env, group, own))
 
 
-def _attached(env: Envelope, case: LoadCase, own: Governing
+def _attached(env: Envelope, group: TermGroup, own: Governing
               ) -> tuple[tuple[float, float, float], ...]:
     """Where a moving load's attached uniform loads lie on the beam (x = reference − u, as
     for its axles), cut to the beam; empty when it has none or none reaches the beam."""
+    if not group.uniform:
+        return ()
     length = env.beam.length
     out = []
-    for u0, u1, w in env._group(case, own).uniform:
+    for u0, u1, w in group.uniform:
         a, b = max(0.0, own.reference - u1), min(length, own.reference - u0)
         if b - a > 1e-9 * length and w > 0:
             out.append((float(a), float(b), float(w)))
@@ -191,17 +223,15 @@ def _attached(env: Envelope, case: LoadCase, own: Governing
 
 
 def _together_record(env: Envelope, family: str, which: str, g: Governing, x: float,
-                     together: Together) -> ExtremeRecord:
+                     together: Together, groups: _Groups) -> ExtremeRecord:
     """Loads acting together: each loaded part on its own (the value is the sum's); the
     direction and lead axle those of the first moving part, every axle, every stretch."""
     parts = []
-    for k, part in enumerate(g.parts):
+    for part in g.parts:
         if part.case < 0:  # this part makes nothing worse than the empty beam
             continue
-        only = dataclasses.replace(g, parts=tuple(
-            p if i == k else Governing(0.0) for i, p in enumerate(g.parts)))
-        record = _case_record(env, family, which, part, only, x, together.parts[part.case])
-        parts.append(dataclasses.replace(record, value=g.value))
+        parts.append(_case_record(env, family, which, part, x, together.parts[part.case],
+                                  (g.case, part.case), groups, g.value, False))
     if not parts:
         return ExtremeRecord(family, which, g.value, x, together.name, placement="not loaded")
     moving = [p for p in parts if not p.placement]
@@ -220,6 +250,7 @@ class EnvelopeRecords:
     def __init__(self, env: Envelope) -> None:
         self.env = env
         self._cache: dict[Any, Any] = {}
+        self._groups = _Groups(env)
 
     def at_sections(self, family: str, which: str) -> list[ExtremeRecord]:
         """One record per section of a section family."""
@@ -227,8 +258,9 @@ class EnvelopeRecords:
         if key not in self._cache:
             kind, side = kind_and_side(family)
             governing = self.env.governing(kind, which, side)
-            self._cache[key] = [extreme_record(self.env, family, which, g, float(x))
-                                for g, x in zip(governing, self.env.sections, strict=True)]
+            self._cache[key] = [extreme_record(self.env, family, which, g, x, self._groups)
+                                for g, x in zip(governing, self.env.sections.tolist(),
+                                                strict=True)]
         return self._cache[key]
 
     def at_supports(self, family: str, which: str) -> dict[int, ExtremeRecord]:
@@ -241,13 +273,15 @@ class EnvelopeRecords:
             for line in env.index[family]:
                 support = env.effects[line].support
                 x = float(env.beam.support_positions[support])
-                out[support] = extreme_record(env, family, which, source[line], x)
+                out[support] = extreme_record(env, family, which, source[line], x,
+                                              self._groups)
             self._cache[key] = out
         return self._cache[key]
 
     def absolute(self, extreme: AbsoluteExtreme) -> ExtremeRecord:
         """An absolute moment extreme (anywhere in a span) as a record."""
-        record = extreme_record(self.env, "moment", extreme.which, extreme.governing, extreme.x)
+        record = extreme_record(self.env, "moment", extreme.which, extreme.governing, extreme.x,
+                                self._groups)
         return dataclasses.replace(record, certified=extreme.certified)
 
     def concurrent_shear(self, which: str) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
@@ -255,8 +289,9 @@ class EnvelopeRecords:
         (or min) moment [force]."""
         key = ("concurrent shear", which)
         if key not in self._cache:
-            values = self.env.concurrent_matching("moment", which,
-                                                  ("shear_left", "shear_right"))
+            # every section at once (the same numbers as env.concurrent_matching)
+            values = concurrent_matching(self.env, "moment", which,
+                                         ("shear_left", "shear_right"))
             left = values["shear_left"] + 0.0
             right = values["shear_right"] + 0.0
             self._cache[key] = (left, right)

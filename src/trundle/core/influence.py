@@ -222,13 +222,38 @@ def _sign_pieces(knots: NDArray[np.float64], c: NDArray[np.float64]
     Returns the cut points, the integral of the line between consecutive cuts, and the line's
     value in the middle of each stretch (whose sign holds over the whole stretch).
     """
-    pp = PPoly.construct_fast(np.ascontiguousarray(c), knots, extrapolate=False)
-    roots = pp.roots(discontinuity=False, extrapolate=False)
-    cuts = np.unique(np.concatenate([knots, roots[np.isfinite(roots)]]))
+    pp, cuts, mids = _sign_cuts(knots, c)
     running = pp.antiderivative()
     parts = np.diff(running(cuts))
-    mids = pp(0.5 * (cuts[:-1] + cuts[1:]))
     return cuts, parts, mids
+
+
+# cuts and signs of lines already searched, by the line's values (knots and coefficients):
+# the scan's signed areas and the records' loaded stretches search the same lines
+_CUTS: dict[tuple, tuple[NDArray[np.float64], NDArray[np.float64]]] = {}
+_CUTS_KEEP = 200_000
+
+
+def _sign_cuts(knots: NDArray[np.float64], c: NDArray[np.float64]
+               ) -> tuple[PPoly, NDArray[np.float64], NDArray[np.float64]]:
+    """The line as a PPoly, its cuts (knots and real roots) and its value in the middle of
+    each stretch between cuts."""
+    c = np.ascontiguousarray(c, dtype=float)
+    knots = np.ascontiguousarray(knots, dtype=float)
+    pp = PPoly.construct_fast(c, knots, extrapolate=False)
+    key = (c.shape, knots.tobytes(), c.tobytes())
+    found = _CUTS.get(key)
+    if found is None:
+        roots = pp.roots(discontinuity=False, extrapolate=False)
+        # sorted without repeats (np.unique, at a fraction of its cost on a few values)
+        cuts = np.array(sorted(set(knots.tolist() + roots[np.isfinite(roots)].tolist())))
+        mids = pp(0.5 * (cuts[:-1] + cuts[1:]))
+        if len(_CUTS) >= _CUTS_KEEP:
+            _CUTS.clear()
+        cuts.setflags(write=False)
+        mids.setflags(write=False)
+        found = _CUTS[key] = (cuts, mids)
+    return pp, found[0], found[1]
 
 
 def signed_areas(knots: NDArray[np.float64], coefficients: NDArray[np.float64]
@@ -247,15 +272,24 @@ def signed_areas(knots: NDArray[np.float64], coefficients: NDArray[np.float64]
 def piece_sign_intervals(knots: NDArray[np.float64], coefficients: NDArray[np.float64],
                          sign: int) -> list[tuple[float, float]]:
     """Merged intervals of x where one line (coefficients (4, m)) has the given sign."""
-    cuts, _, mids = _sign_pieces(knots, coefficients)
-    out: list[tuple[float, float]] = []
-    for a, b, m in zip(cuts[:-1], cuts[1:], mids, strict=True):
-        if sign * m > 0:
-            if out and out[-1][1] == a:
-                out[-1] = (out[-1][0], float(b))
-            else:
-                out.append((float(a), float(b)))
-    return out
+    return sign_intervals(knots, coefficients)[0 if sign > 0 else 1]
+
+
+def sign_intervals(knots: NDArray[np.float64], coefficients: NDArray[np.float64]
+                   ) -> tuple[list[tuple[float, float]], list[tuple[float, float]]]:
+    """Merged intervals of x where one line (coefficients (4, m)) is positive, and where it
+    is negative: both from one search of its roots."""
+    _, cuts, mids = _sign_cuts(knots, coefficients)
+    found: tuple[list[tuple[float, float]], list[tuple[float, float]]] = ([], [])
+    for a, b, m in zip(cuts[:-1].tolist(), cuts[1:].tolist(), mids.tolist(), strict=True):
+        if m == 0.0 or m != m:  # zero (or NaN): neither sign
+            continue
+        out = found[0] if m > 0 else found[1]
+        if out and out[-1][1] == a:
+            out[-1] = (out[-1][0], b)
+        else:
+            out.append((a, b))
+    return found
 
 
 def _as_effects(effects: Iterable[Effect | tuple | str]) -> list[Effect]:

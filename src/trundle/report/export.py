@@ -77,6 +77,15 @@ def stamp_csv_files(files: dict[str, bytes | str], provenance: Provenance
 
 def jsonable(value: Any) -> Any:
     """``value`` as plain JSON values (see the module docstring)."""
+    kind = type(value)  # the common plain types first, without the chain of tests below
+    if kind is float:
+        return value + 0.0 if math.isfinite(value) else None
+    if kind is str or kind is int:
+        return value
+    if kind is dict:
+        return {(k if type(k) is str else str(k)): jsonable(v) for k, v in value.items()}
+    if kind is tuple or kind is list:
+        return [jsonable(v) for v in value]
     if value is None or isinstance(value, bool | str):
         return value
     if isinstance(value, int | np.integer):
@@ -102,9 +111,88 @@ def jsonable(value: Any) -> Any:
 
 
 def json_text(document: Any) -> str:
-    """``document`` as JSON text (indented, UTF-8 names with controls escaped), newline-ended."""
-    return json_escaped(json.dumps(jsonable(document), indent=1, ensure_ascii=False,
-                                   allow_nan=False)) + "\n"
+    """``document`` as JSON text (indented, UTF-8 names with controls escaped), newline-ended.
+
+    The text is ``json.dumps(jsonable(document), indent=1, ensure_ascii=False)`` character
+    for character, written in one pass over the document (:func:`_write`): json's own
+    indented writer is pure Python and, with :func:`jsonable` before it, cost seconds on an
+    envelope of thousands of sections."""
+    out: list[str] = []
+    _write(document, "\n", out)
+    return json_escaped("".join(out)) + "\n"
+
+
+_INDENT = " "  # json.dumps(indent=1)
+
+
+def _write(value: Any, newline: str, out: list[str]) -> None:
+    """Append the JSON text of ``jsonable(value)`` to ``out`` as ``json.dumps(…, indent=1,
+    ensure_ascii=False)`` writes it at the depth whose line break is ``newline``. Plain values
+    are written at once; anything else goes through :func:`jsonable` first."""
+    kind = type(value)
+    if kind is str:
+        out.append(_encode_string(value))
+    elif kind is float:
+        out.append(_FLOAT_REPR(value + 0.0) if math.isfinite(value) else "null")
+    elif value is None:
+        out.append("null")
+    elif kind is bool:
+        out.append("true" if value else "false")
+    elif kind is int:
+        out.append(_INT_REPR(value))
+    elif kind is dict:
+        if not value:
+            out.append("{}")
+            return
+        inner = newline + _INDENT
+        opening = "{" + inner
+        for key, item in value.items():
+            text = _encode_string(key if type(key) is str else str(key))
+            kind = type(item)  # plain values here, not through another call
+            if kind is str:
+                out.append(f"{opening}{text}: {_encode_string(item)}")
+            elif kind is float and math.isfinite(item):
+                out.append(f"{opening}{text}: {_FLOAT_REPR(item + 0.0)}")
+            elif item is None:
+                out.append(f"{opening}{text}: null")
+            else:
+                out.append(f"{opening}{text}: ")
+                _write(item, inner, out)
+            opening = "," + inner
+        out.append(newline + "}")
+    elif kind is list or kind is tuple:
+        if not value:
+            out.append("[]")
+            return
+        inner = newline + _INDENT
+        first = True
+        for item in value:
+            out.append(("[" if first else ",") + inner)
+            first = False
+            _write(item, inner, out)
+        out.append(newline + "]")
+    else:
+        _write_plain(jsonable(value), newline, out)
+
+
+def _write_plain(value: Any, newline: str, out: list[str]) -> None:
+    """A value :func:`jsonable` returned: as :func:`_write`, with json's own tests of type
+    (a subclass of str, int or float is written as its base type)."""
+    if isinstance(value, str):
+        out.append(_encode_string(value))
+    elif value is None or value is True or value is False:
+        out.append({None: "null", True: "true", False: "false"}[value])
+    elif isinstance(value, int):
+        out.append(_INT_REPR(value))
+    elif isinstance(value, float):
+        out.append(_FLOAT_REPR(value))
+    else:  # containers of plain values: their items are plain (jsonable made them so)
+        _write(value, newline, out)
+
+
+_encode_string = json.encoder.encode_basestring  # ensure_ascii=False
+_FLOAT_REPR = float.__repr__
+_INT_REPR = int.__repr__
 
 
 def input_values(value: Any) -> Any:
