@@ -122,6 +122,25 @@ def kernel_time(env, load, threads: int | None = 1) -> float:
     return timed(go, repeat=7)
 
 
+def paired_efficiency(env, load, pairs: int = 15) -> tuple[float, float, float]:
+    """(t1, t2, median of t1 / (2 · t2) over pairs): one- and two-thread kernel runs taken
+    in turn, so that a slower or faster spell of the machine (a shared virtual machine's
+    cores change speed from one second to the next) falls on both sides of each pair."""
+    _, calls = kernel_calls(env, load)
+
+    def go(threads: int) -> float:
+        t0 = time.perf_counter()
+        for args, own in calls:
+            kernels.scan_rows(*args, threads=threads, own_knot=own[0], own_value=own[1],
+                              end_live=own[2])
+        return time.perf_counter() - t0
+
+    go(1), go(2)
+    runs = np.array([(go(1), go(2)) for _ in range(pairs)])
+    return (float(np.median(runs[:, 0])), float(np.median(runs[:, 1])),
+            float(np.median(runs[:, 0] / (2.0 * runs[:, 1]))))
+
+
 def slice_balance(env, load) -> tuple[float, float]:
     """(serial time of the chunks, the time two threads need for them when each thread takes
     the next chunk as soon as it is free, as ``kernels.scan_rows_parallel`` does): every chunk
@@ -384,8 +403,9 @@ def large_jobs(quick: bool) -> None:
           f"{t_first * 1e3:.1f} ms), kernel {t_kernel * 1e3:.1f} ms, floor "
           f"{t_floor * 1e3:.2f} ms; whole call / floor {t_call / t_floor:.1f}")
 
-    print("   kernel on 1 and 2 threads: efficiency = t1 / (2 · t2) on the wall clock (spoilt "
-          "by any other load on the machine: see the load average); balance = t1 / (2 · the "
+    print("   kernel on 1 and 2 threads: efficiency = t1 / (2 · t2) on the wall clock, the "
+          "median over 15 pairs of runs taken in turn (spoilt by any other load on the machine: "
+          "see the load average); balance = t1 / (2 · the "
           "time two threads need for the chunks, each chunk timed alone, every thread taking "
           "the next chunk when free): the efficiency the split of the work allows")
     big_beam = trundle.Beam([24.0, 30.0, 24.0])
@@ -398,12 +418,11 @@ def large_jobs(quick: bool) -> None:
     for label, b, s, ld, eff in jobs:
         s = sections_of(b, 10) if s is None else s
         env = run(b, s, ld, eff)
-        one = kernel_time(env, ld, threads=1)
-        two = kernel_time(env, ld, threads=2)
+        one, two, efficiency = paired_efficiency(env, ld, pairs=3 if quick else 15)
         auto = kernel_time(env, ld, threads=None)
         alone, slowest = slice_balance(env, ld)
         print(f"     {label:60s} 1: {one * 1e3:7.2f} ms  2: {two * 1e3:7.2f} ms  "
-              f"efficiency {one / (2 * two):.2f}  balance {alone / (2 * slowest):.2f}  "
+              f"efficiency {efficiency:.2f}  balance {alone / (2 * slowest):.2f}  "
               f"(threads chosen by trundle: {auto * 1e3:.2f} ms; load "
               f"{load_average().split()[0]})")
 

@@ -566,7 +566,7 @@ def scan_chunk(start, stop, knots, n_pieces, coef, running, running_end, head, t
 # in parallel on disjoint rows of one result array. Rows are cut into more chunks than threads
 # and every thread takes the next chunk when it is done with one: the work estimate
 # (``row_work``) is only an estimate (pruning stops some rows early), so fixed halves left one
-# thread idle for up to a third of the call (balance 0.85 on an 80-axle train), and numba's
+# thread idle for up to 30 % of the call (balance 0.85 on an 80-axle train), and numba's
 # own parallel loop over the same halves was slower still (59.5 ms against 48 ms for Python
 # threads, serial 65 ms) and cost about 4 s of compiling on its first use.
 
