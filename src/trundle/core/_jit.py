@@ -97,6 +97,7 @@ class FirstRunTier:
         self.probed = False  # numba's disk cache and the ledger were read once
         self.budget = float(budget)
         self.spent = 0.0  # interpreted work of this process, not yet in the ledger
+        self.ledger: Path | None = None  # the ledger file, found when the cache is probed
         self._copy = None
 
     def interpreted(self):
@@ -114,7 +115,8 @@ class FirstRunTier:
             if compiled_without_compiling(self.compiled_function, args):
                 self.compiled = True
                 return self.compiled_function
-            self.budget -= _ledger_read(self._ledger())
+            self.ledger = self._ledger()  # where it is now, not where it is at exit
+            self.budget -= _ledger_read(self.ledger)
             atexit.register(self._write_ledger)
         if work > self.budget:
             self.compiled = True  # worth compiling now
@@ -136,7 +138,7 @@ class FirstRunTier:
 
     def _write_ledger(self) -> None:
         if self.spent > 0.0:
-            _ledger_add(self._ledger(), self.spent)
+            _ledger_add(self.ledger, self.spent)
             self.spent = 0.0
 
 
