@@ -581,15 +581,19 @@ PARALLEL_FROM_VISITS_PER_THREAD = 20_000
 CHUNK_FROM_VISITS = 5_000
 CHUNKS_PER_THREAD = 8
 
-_pool: dict[int, ThreadPoolExecutor] = {}  # per process id (a forked child makes its own)
+# the helper threads' pool: process id → (pool, its number of threads); a forked child,
+# which has none of its parent's threads, makes its own
+_pool: dict[int, tuple[ThreadPoolExecutor, int]] = {}
 
 
 def _thread_pool(workers: int) -> ThreadPoolExecutor:
-    pool = _pool.get(os.getpid())
-    if pool is None or pool._max_workers < workers:
+    pool, size = _pool.get(os.getpid(), (None, 0))
+    if pool is None or size < workers:
+        if pool is not None:
+            pool.shutdown(wait=False)
         pool = ThreadPoolExecutor(max_workers=workers, thread_name_prefix="trundle-scan")
         _pool.clear()
-        _pool[os.getpid()] = pool
+        _pool[os.getpid()] = (pool, workers)
     return pool
 
 
@@ -727,7 +731,6 @@ def _evaluate_lines(knots, n_pieces, coef, x, from_left):
                 value = value * s + coef[j, lo, p]
             out[i, j] = value
     return out
-
 
 
 # The first run, as for the loop body: compiling ``_evaluate_lines`` costs 0.6–0.8 s in a
