@@ -71,11 +71,11 @@ def test_interpreted_search_is_the_compiled_one_bit_for_bit(seed, monkeypatch):
                                         (2.0, float(np.round(rng.uniform(3, 9), 2)))])
     calls = []
 
-    def recording(*args):
+    def capturing(*args):
         calls.append(args)
         return candidates._search_lines(*args)
 
-    monkeypatch.setattr(search_module, "search_lines", recording)
+    monkeypatch.setattr(search_module, "search_lines", capturing)
     trundle.envelope(beam, [vehicle], effects=("moment", "shear", "reaction"))
     assert calls
     interpreted = candidates.interpreted_search()

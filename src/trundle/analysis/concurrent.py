@@ -71,18 +71,10 @@ def paired_ordinates(batch: LineBatch, x: NDArray[np.float64], side: str,
             on = owning[np.abs(x[owning] - own_x) <= tolerance]
             out[on] = batch.own_value[lines[on]]
         return out
-    knots = batch.knots
-    nearest = np.clip(np.searchsorted(knots, x), 1, len(knots) - 1)
-    nearest = np.where(np.abs(knots[nearest - 1] - x) < np.abs(knots[nearest] - x),
-                       nearest - 1, nearest)
-    close = np.abs(knots[nearest] - x) <= 1e-12 * max(1.0, length)
-    x = np.where(close, knots[nearest], x)
+    x = batch.snapped(x)
     out = _evaluate_pairs(batch.line_knots, batch.n_pieces, batch.line_coef, lines, x,
                           side == "left")
-    if side == "left":
-        out[(x <= 0.0) | (x > length)] = 0.0
-    else:
-        out[(x < 0.0) | (x >= length)] = 0.0
+    out[batch.off_beam(x, side)] = 0.0
     return out
 
 

@@ -205,12 +205,7 @@ class _CaseResult:
         # each direction offered in turn, as ``_taken`` does line by line
         kept = np.zeros((2, n))
         for k in range(directions.shape[0]):
-            rows = scan[k * n:(k + 1) * n]
-            better = (rows[:, 0::3].T * _SIGNS > kept * _SIGNS) & ~np.isnan(rows[:, 1::3].T)
-            np.copyto(kept, rows[:, 0::3].T, where=better)
-            np.copyto(xi, rows[:, 1::3].T, where=better)
-            np.copyto(side, rows[:, 2::3].T, where=better, casting="unsafe")
-            np.copyto(direction, directions[k], where=better, casting="unsafe")
+            _offer_rows(scan[k * n:(k + 1) * n], directions[k], kept, xi, side, direction)
         self._searched = np.zeros((2, n, 0))
         self._side, self._direction, self._xi = side, direction, xi
 
@@ -275,13 +270,7 @@ class _CaseResult:
         """``offer`` of a kernel's (n_lines, 6) result for every line, max and min at once
         (nothing searched): the same choices, in fewer array operations."""
         self._own_arrays()
-        value = r[:, 0::3].T  # (2, n): max, min
-        xi = r[:, 1::3].T
-        better = (value * _SIGNS > self.value * _SIGNS) & ~np.isnan(xi)
-        np.copyto(self.value, value, where=better)
-        np.copyto(self.xi, xi, where=better)
-        np.copyto(self.side, r[:, 2::3].T, where=better, casting="unsafe")
-        np.copyto(self.direction, direction, where=better, casting="unsafe")
+        _offer_rows(r, direction, self.value, self.xi, self.side, self.direction)
 
     def governing(self, w: int, j: int) -> Governing:
         if self.parts:
@@ -303,6 +292,21 @@ class _CaseResult:
         return Governing(float(self.value[w, j]), self.case, int(self.direction[w, j]),
                          float(self.xi[w, j]), int(self.side[w, j]),
                          tuple(float(v) for v in self.searched[w, j]))
+
+
+def _offer_rows(r: NDArray[np.float64], direction: int, value: NDArray[np.float64],
+                xi: NDArray[np.float64], side: NDArray[np.int64],
+                direction_kept: NDArray[np.int64]) -> None:
+    """Offer a kernel's (n_lines, 6) rows of one direction to the (2, n) max/min arrays kept
+    so far: a row replaces what is kept where it is strictly worse (larger max, smaller min)
+    and stands at a real position (ξ not NaN)."""
+    offered = r[:, 0::3].T  # (2, n): max, min
+    at = r[:, 1::3].T
+    better = (offered * _SIGNS > value * _SIGNS) & ~np.isnan(at)
+    np.copyto(value, offered, where=better)
+    np.copyto(xi, at, where=better)
+    np.copyto(side, r[:, 2::3].T, where=better, casting="unsafe")
+    np.copyto(direction_kept, direction, where=better, casting="unsafe")
 
 
 def merge_scans(scan: NDArray[np.float64], n_directions: int) -> NDArray[np.float64]:

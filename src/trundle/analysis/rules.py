@@ -81,7 +81,7 @@ _HOGGING_KEEP = 8
 def hogging_region(beam: Beam) -> list[tuple[float, float]]:
     """Stretches between points of contraflexure where uniform load on every span causes
     hogging moment, as closed intervals [(a, b), …] [length]."""
-    key = repr(beam)  # a Beam compares by identity; its repr spells out every value
+    key = beam._value_key  # a Beam compares by identity; its repr spells out every value
     if key not in _HOGGING:
         if len(_HOGGING) >= _HOGGING_KEEP:
             _HOGGING.pop(next(iter(_HOGGING)))

@@ -258,22 +258,30 @@ class LineBatch:
         """
         if side == "point":
             return self._point_ordinates(np.asarray(x, dtype=float), lines)
+        x = self.snapped(x)
+        knots, n_pieces, coef = self._rows(lines, self.line_knots, self.n_pieces,
+                                           self.line_coef)
+        out = evaluate_lines(knots, n_pieces, coef, np.ascontiguousarray(x), side == "left")
+        out[self.off_beam(x, side)] = 0.0
+        return out
+
+    def snapped(self, x: NDArray[np.float64]) -> NDArray[np.float64]:
+        """x, with every point within rounding of a structural knot moved onto it: a load
+        placed at ξ − u may miss a knot by rounding (0.45 − 0.15 ≠ 0.3), and a one-sided
+        limit must then be read at the knot itself, or it reads the other side of a jump."""
         x = np.asarray(x, dtype=float)
-        # a load placed at ξ − u may miss a knot by rounding (0.45 − 0.15 ≠ 0.3); a one-sided
-        # limit must then be read at the knot itself, or it reads the other side of a jump
         nearest = np.clip(np.searchsorted(self.knots, x), 1, len(self.knots) - 1)
         nearest = np.where(np.abs(self.knots[nearest - 1] - x) < np.abs(self.knots[nearest] - x),
                            nearest - 1, nearest)
         close = np.abs(self.knots[nearest] - x) <= 1e-12 * max(1.0, self.length)
-        x = np.where(close, self.knots[nearest], x)
-        knots, n_pieces, coef = self._rows(lines, self.line_knots, self.n_pieces,
-                                           self.line_coef)
-        out = evaluate_lines(knots, n_pieces, coef, np.ascontiguousarray(x), side == "left")
+        return np.where(close, self.knots[nearest], x)
+
+    def off_beam(self, x: NDArray[np.float64], side: str) -> NDArray[np.bool_]:
+        """Where the one-sided limit from ``side`` ("left", "right") reads nothing: a load
+        approaching an end of the beam from outside."""
         if side == "left":
-            out[(x <= 0.0) | (x > self.length)] = 0.0
-        else:
-            out[(x < 0.0) | (x >= self.length)] = 0.0
-        return out
+            return (x <= 0.0) | (x > self.length)
+        return (x < 0.0) | (x >= self.length)
 
     def _point_ordinates(self, x: NDArray[np.float64], lines: NDArray[np.int64] | None = None
                          ) -> NDArray[np.float64]:

@@ -607,7 +607,7 @@ def _evaluate(subject: SweepSubject, selectors: Sequence[EffectSelector]
         chosen = [selectors[i] for i in members]
         sections = _sections(subject, chosen)
         kinds = tuple(k for k in KINDS if any(s.kind == k for s in chosen))
-        keys.add((repr(beam), sections.tobytes(), kinds))
+        keys.add((beam._value_key, sections.tobytes(), kinds))
         env = envelope(beam, cases, sections=sections, effects=kinds)
         for i in members:
             out[i] = _pick(env, selectors[i], cases)
